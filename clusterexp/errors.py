@@ -1,0 +1,83 @@
+"""Errors and exit codes of clusterexp.
+
+Input errors carry the place in the user's file (file, line, column) and render as the offending line
+with a caret under the column. Internal bugs are ordinary Python exceptions and may show a traceback.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+EXIT_OK = 0
+EXIT_CHECK_FAILED = 1
+EXIT_INPUT_ERROR = 2
+
+
+@dataclass(frozen=True)
+class Span:
+    """A place in a source file: 1-based line and column, plus the text of that line."""
+
+    file: str
+    line: int
+    column: int
+    end_line: int | None = None
+    end_column: int | None = None
+    line_text: str = ""
+
+    def __str__(self) -> str:
+        return f"{self.file}:{self.line}:{self.column}"
+
+
+class ClusterexpError(Exception):
+    """Base of every error clusterexp raises on purpose."""
+
+
+class InputError(ClusterexpError):
+    """Something wrong in the user's input; always points at a place when one is known.
+
+    `render()` gives the message the CLI prints:
+
+        file.gas:3:12: error: unknown species 'C'
+            mutual A C = nu
+                     ^
+    """
+
+    def __init__(self, message: str, span: Span | None = None, hint: str | None = None):
+        super().__init__(message)
+        self.message = message
+        self.span = span
+        self.hint = hint
+
+    def render(self) -> str:
+        where = f"{self.span}: " if self.span else ""
+        lines = [f"{where}error: {self.message}"]
+        if self.span and self.span.line_text:
+            text = self.span.line_text.rstrip("\n").expandtabs(1)
+            lines.append("    " + text)
+            width = 1
+            if self.span.end_line == self.span.line and self.span.end_column:
+                width = max(1, self.span.end_column - self.span.column)
+            lines.append("    " + " " * (self.span.column - 1) + "^" * min(width, max(1, len(text) - self.span.column + 1)))
+        if self.hint:
+            lines.append(f"hint: {self.hint}")
+        return "\n".join(lines)
+
+    def __str__(self) -> str:
+        return self.render()
+
+
+class NotSupportedYet(ClusterexpError):
+    """A capability that is planned but not finished. Raised, never silently approximated."""
+
+    def __init__(self, what: str, span: Span | None = None):
+        super().__init__(f"not supported yet: {what}")
+        self.what = what
+        self.span = span
+
+    def render(self) -> str:
+        where = f"{self.span}: " if self.span else ""
+        return f"{where}error: not supported yet: {self.what}"
+
+
+class SeriesError(ClusterexpError):
+    """An operation on truncated series that is mathematically undefined (e.g. log of a series
+    without constant term) or would need a coefficient the kernel cannot invert exactly."""

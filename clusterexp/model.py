@@ -1,0 +1,138 @@
+"""The validated description of a gas: frozen dataclasses that carry the source span of every piece.
+
+Conventions (see README): exchange parameter alpha with alpha = 0 bosons and alpha = 1 fermions; mutual
+(braiding) parameter alpha_ij between distinct species with period 1; masses are relative to the
+reference species, whose thermal wavelength lambda is the unit of length.
+
+A `System` is produced only by `clusterexp.build.build_system`, which validates once; everything
+downstream may trust it.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import sympy
+
+from .errors import Span
+
+QUANTITIES = ("cluster", "virial", "density", "fugacity")
+FORMATS = ("text", "latex", "json")
+
+Index = tuple[int, ...]
+
+
+@dataclass(frozen=True)
+class Parameter:
+    """A symbolic parameter the user declared, e.g. `parameter nu in [0, 1]`.
+
+    `lower`/`upper` bound the range (None: unbounded); `assumptions` are sympy assumption names
+    ("real", "positive", "nonnegative", "integer") already applied to `symbol`.
+    """
+
+    name: str
+    symbol: sympy.Symbol
+    span: Span
+    lower: sympy.Expr | None = None
+    upper: sympy.Expr | None = None
+    lower_open: bool = False
+    upper_open: bool = False
+    assumptions: tuple[str, ...] = ()
+
+
+@dataclass(frozen=True)
+class Species:
+    """One particle species. `exchange` is alpha (0 bosons, 1 fermions); `mass` relative or absolute,
+    only ratios to the reference mass matter."""
+
+    name: str
+    mass: sympy.Expr
+    exchange: sympy.Expr
+    span: Span
+    statistics: str | None = None  # "bose" / "fermi" when given by word, else None
+
+
+@dataclass(frozen=True)
+class Mutual:
+    """Mutual (braiding) parameter alpha_ij between two distinct species (period 1)."""
+
+    first: str
+    second: str
+    value: sympy.Expr
+    span: Span
+
+
+@dataclass(frozen=True)
+class GivenValue:
+    """A coefficient the user states: kind "cluster" (b) or "virial" (a), a multi-index in species
+    declaration order, and its value."""
+
+    kind: str
+    index: Index
+    value: sympy.Expr
+    span: Span
+
+
+@dataclass(frozen=True)
+class Source:
+    """Where the cluster coefficients come from.
+
+    kind "generic": every b_n with |n| >= 2 is its own symbol;
+    kind "given": the user states some b_n (kind "cluster") or some a_n (kind "virial"), the rest are
+    symbols. Later regimes add kinds of their own.
+    """
+
+    kind: str
+    span: Span
+    values: tuple[GivenValue, ...] = ()
+
+
+@dataclass(frozen=True)
+class Request:
+    """What to derive: a quantity ("cluster", "virial", "density", "fugacity"), either every
+    multi-index up to total order `up_to`, or the explicit `indices`."""
+
+    quantity: str
+    span: Span
+    up_to: int | None = None
+    indices: tuple[Index, ...] = ()
+
+
+@dataclass(frozen=True)
+class OutputSettings:
+    format: str = "text"
+    align: bool = True
+    span: Span | None = None
+
+
+@dataclass(frozen=True)
+class System:
+    """A validated gas: what the derivation stage consumes."""
+
+    dimension: int
+    species: tuple[Species, ...]
+    source: Source
+    requests: tuple[Request, ...]
+    order: int
+    reference: str
+    parameters: tuple[Parameter, ...] = ()
+    mutuals: tuple[Mutual, ...] = ()
+    output: OutputSettings = field(default_factory=OutputSettings)
+    files: tuple[str, ...] = ()
+
+    @property
+    def species_names(self) -> tuple[str, ...]:
+        return tuple(s.name for s in self.species)
+
+    def species_index(self, name: str) -> int:
+        return self.species_names.index(name)
+
+    @property
+    def reference_mass(self) -> sympy.Expr:
+        return self.species[self.species_index(self.reference)].mass
+
+    def mutual(self, first: str, second: str) -> sympy.Expr:
+        """alpha_ij for two distinct species; 0 (no statistical coupling) when undeclared."""
+        for m in self.mutuals:
+            if {m.first, m.second} == {first, second}:
+                return m.value
+        return sympy.Integer(0)

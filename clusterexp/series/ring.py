@@ -1,0 +1,206 @@
+"""Exact coefficient rings for the series kernel.
+
+A `PolynomialRing` is a sparse polynomial ring over the rationals whose first `nvars` generators are
+the expansion variables (fugacities or densities) and whose remaining generators are *atoms*: declared
+parameters, symbolic coefficients such as b_{2,1}, and any other sympy subexpression that is not a
+polynomial in those (sqrt(2), zeta(3), sin(pi*alpha), 1/(1 - g), ...). Every polynomial identity in free
+atoms stays true under any substitution, so the kernel is exact whatever the atoms stand for; relations
+between atoms (sqrt(2)**2 = 2) are restored by sympy when results are converted back at the edge.
+
+Two interchangeable backends: python-flint's `fmpq_mpoly` (fast, preferred) and sympy's own sparse
+`PolyRing` over QQ (the fallback when python-flint is absent or `CLUSTEREXP_BACKEND=sympy` is set).
+"""
+from __future__ import annotations
+
+import os
+from fractions import Fraction
+from functools import cached_property
+from typing import Iterable, Mapping, Sequence
+
+import sympy
+from sympy.core.sorting import default_sort_key
+
+try:  # python-flint is optional
+    import flint as _flint
+except ImportError:  # pragma: no cover - exercised in the fallback CI leg
+    _flint = None
+
+
+def available_backends() -> tuple[str, ...]:
+    return ("flint", "sympy") if _flint is not None else ("sympy",)
+
+
+def default_backend() -> str:
+    wanted = os.environ.get("CLUSTEREXP_BACKEND", "").strip().lower()
+    if wanted:
+        if wanted not in available_backends():
+            raise RuntimeError(f"CLUSTEREXP_BACKEND={wanted!r} is not available here; "
+                               f"available: {', '.join(available_backends())}")
+        return wanted
+    return available_backends()[0]
+
+
+class PolynomialRing:
+    """Q[x_1..x_K, atoms]; elements are backend polynomials, manipulated with + - * directly.
+
+    >>> import sympy
+    >>> g = sympy.Symbol("g")
+    >>> R = PolynomialRing(2, [g], backend="sympy")
+    >>> R.to_expr(R.from_expr(g**2 / 3) * R.var(0), ["x", "y"])
+    g**2*x/3
+    """
+
+    def __init__(self, nvars: int, atoms: Iterable[sympy.Expr] = (), backend: str | None = None,
+                 var_names: Sequence[str] | None = None):
+        self.nvars = nvars
+        self.atoms: tuple[sympy.Expr, ...] = tuple(sorted(set(atoms), key=default_sort_key))
+        self.backend = backend or default_backend()
+        self.var_names = tuple(var_names) if var_names else tuple(f"x{i}" for i in range(nvars))
+        names = list(self.var_names) + [f"t{k}" for k in range(len(self.atoms))]
+        if not names:
+            names = ["_unused"]
+        self._ngens = len(names)
+        if self.backend == "flint":
+            self._ctx = _flint.fmpq_mpoly_ctx.get(tuple(names), "deglex")
+            self._gens = self._ctx.gens()
+            self._rational = _flint.fmpq
+            self.zero = self._ctx.from_dict({})
+            self.one = self._ctx.from_dict({(0,) * self._ngens: 1})
+        elif self.backend == "sympy":
+            from sympy.polys.domains import QQ
+            from sympy.polys.rings import PolyRing
+            self._ctx = PolyRing(names, QQ)
+            self._gens = self._ctx.gens
+            self._rational = QQ
+            self.zero = self._ctx.zero
+            self.one = self._ctx.one
+        else:
+            raise ValueError(f"unknown backend {self.backend!r}")
+        self._atom_index = {a: k for k, a in enumerate(self.atoms)}
+
+    # -- construction -------------------------------------------------------------------------------
+    def rational(self, value) -> object:
+        """An exact rational scalar of the backend (accepts int, Fraction, sympy Rational)."""
+        if isinstance(value, sympy.Rational):
+            return self._rational(int(value.p), int(value.q))
+        if isinstance(value, Fraction):
+            return self._rational(value.numerator, value.denominator)
+        return self._rational(int(value), 1)
+
+    def var(self, i: int):
+        return self._gens[i]
+
+    def atom(self, a: sympy.Expr):
+        return self._gens[self.nvars + self._atom_index[a]]
+
+    def constant(self, value):
+        return self.one * self.rational(value)
+
+    def from_terms(self, terms: Mapping[tuple[int, ...], object]):
+        """Build from {full exponent tuple: rational}."""
+        data = {k: self.rational(v) for k, v in terms.items() if v != 0}
+        if self.backend == "flint":
+            return self._ctx.from_dict(data)
+        return self._ctx.from_dict(data) if data else self._ctx.zero
+
+    def scalar_or_element(self, expr):
+        """A backend rational scalar when expr is a rational number (cheaper to multiply by),
+        else the ring element of expr over the atoms."""
+        expr = sympy.sympify(expr)
+        return self.rational(expr) if expr.is_Rational else self.from_expr(expr)
+
+    def from_expr(self, expr) -> object:
+        """A sympy expression free of the expansion variables, as a ring element over the atoms."""
+        expr = sympy.sympify(expr)
+        if expr.is_Rational:
+            return self.constant(expr)
+        result = self.zero
+        for term in sympy.Add.make_args(sympy.expand(expr)):
+            coeff, factors = term.as_coeff_mul()
+            if not coeff.is_Rational:
+                factors = (coeff,) + factors
+                coeff = sympy.Integer(1)
+            element = self.constant(coeff)
+            for factor in factors:
+                base, exponent = factor.as_base_exp()
+                if base in self._atom_index and exponent.is_Integer and exponent > 0:
+                    element = element * self.atom(base) ** int(exponent)
+                elif factor in self._atom_index:
+                    element = element * self.atom(factor)
+                else:
+                    raise KeyError(f"{factor} is not an atom of this ring")
+            result = result + element
+        return result
+
+    # -- inspection ---------------------------------------------------------------------------------
+    def terms(self, p) -> Iterable[tuple[tuple[int, ...], int, int]]:
+        """(exponents, numerator, denominator) of every term of p."""
+        items = p.to_dict().items() if self.backend == "flint" else p.items()
+        for monom, c in items:
+            if self.backend == "flint":
+                yield monom, int(c.p), int(c.q)
+            else:
+                yield monom, int(c.numerator), int(c.denominator)
+
+    def is_zero(self, p) -> bool:
+        return p.is_zero() if self.backend == "flint" else not p
+
+    def euler(self, p, i: int):
+        """x_i d/dx_i applied to p (multiplies each term by its exponent of x_i)."""
+        if self.backend == "flint":
+            return p.derivative(i) * self._gens[i]
+        return p.diff(self._gens[i]) * self._gens[i]
+
+    @cached_property
+    def _atom_exprs(self) -> tuple[sympy.Expr, ...]:
+        return self.atoms
+
+    def to_expr(self, p, variables: Sequence[sympy.Expr] | None = None) -> sympy.Expr:
+        """Convert back to a sympy expression; the expansion variables become `variables` (when
+        omitted, p must be free of them, as coefficients are)."""
+        k = self.nvars
+        if variables is None:
+            names = None
+        else:
+            names = [sympy.Symbol(v) if isinstance(v, str) else v for v in variables]
+        atoms = self._atom_exprs
+        out = []
+        for monom, num, den in self.terms(p):
+            factors = [sympy.Rational(num, den)]
+            if names is None:
+                if any(monom[:k]):
+                    raise ValueError("polynomial uses expansion variables but none were given")
+            else:
+                factors += [g if e == 1 else sympy.Pow(g, e) for g, e in zip(names, monom[:k]) if e]
+            factors += [g if e == 1 else sympy.Pow(g, e) for g, e in zip(atoms, monom[k:]) if e]
+            out.append(sympy.Mul(*factors))
+        return sympy.Add(*out)
+
+    def split_by_variables(self, p) -> dict[tuple[int, ...], object]:
+        """{exponents of the expansion variables: coefficient (a ring element over the atoms only)}."""
+        grouped: dict[tuple[int, ...], dict] = {}
+        k = self.nvars
+        for monom, num, den in self.terms(p):
+            key = tuple(monom[:k])
+            grouped.setdefault(key, {})[(0,) * k + tuple(monom[k:])] = Fraction(num, den)
+        return {key: self.from_terms(t) for key, t in grouped.items()}
+
+
+def collect_atoms(exprs: Iterable[sympy.Expr]) -> set[sympy.Expr]:
+    """The atoms a ring needs so that `from_expr` can represent every expression given."""
+    found: set[sympy.Expr] = set()
+    for expr in exprs:
+        expr = sympy.sympify(expr)
+        if expr.is_Rational:
+            continue
+        for term in sympy.Add.make_args(sympy.expand(expr)):
+            coeff, factors = term.as_coeff_mul()
+            if not coeff.is_Rational:
+                factors = (coeff,) + factors
+            for factor in factors:
+                base, exponent = factor.as_base_exp()
+                if exponent.is_Integer and exponent > 0 and not base.is_Number:
+                    found.add(base)
+                else:
+                    found.add(factor)
+    return found

@@ -1,0 +1,232 @@
+"""Cluster <-> virial machinery for K species to any total order (route R6).
+
+Conventions (README): beta P lambda^d = sum_n b_n z^n and rho_i lambda^d = z_i d/dz_i of it;
+beta P lambda^d = sum_n a_n (rho lambda^d)^n with a_{e_i} = 1. b_{e_i} = (m_i/m_ref)^{d/2} carries
+the masses; the machinery takes whatever b_{e_i} it is given (default 1).
+
+Inside, the fugacities are rescaled to w_i = b_{e_i} z_i so that every series has a unit linear part
+and the whole computation is ring arithmetic: with beta_n = b_n / prod_i b_{e_i}^{n_i},
+F(w) = sum_n beta_n w^n, rho_i = w_i dF/dw_i, and P(rho) = F(w(rho)) after one reversion. The
+division by b_{e_i} happens at the edge, in sympy.
+
+All public functions take {multi-index: value} (values: rationals or sympy expressions) and return a
+`CoefficientTable`, a read-only mapping that converts to sympy only what is looked at.
+"""
+from __future__ import annotations
+
+from fractions import Fraction
+from typing import Callable, Iterator, Mapping, Sequence
+
+import sympy
+
+from .errors import SeriesError
+from .series import PolynomialRing, Series, collect_atoms, indices_up_to, revert
+from .series.series import revert_coefficients
+
+Index = tuple[int, ...]
+
+
+class CoefficientTable(Mapping):
+    """{multi-index: sympy value}, converted lazily from exact ring elements.
+
+    `edge` (optional) maps (index, sympy value) to the final value, e.g. a mass factor applied
+    at the edge. Iteration order is deterministic: by total order, then descending lex.
+    """
+
+    def __init__(self, ring: PolynomialRing, elements: Mapping[Index, object], order: int,
+                 edge: Callable[[Index, sympy.Expr], sympy.Expr] | None = None):
+        self.ring = ring
+        self.order = order
+        self._elements = dict(elements)
+        self._edge = edge
+        self._cache: dict[Index, sympy.Expr] = {}
+        self._keys = [n for n in indices_up_to(ring.nvars, order, start=0) if n in self._elements]
+
+    def __getitem__(self, index: Index) -> sympy.Expr:
+        index = tuple(index)
+        if sum(index) > self.order:
+            raise KeyError(f"{index} is beyond the computed total order {self.order}")
+        if index not in self._cache:
+            element = self._elements.get(index)
+            value = sympy.Integer(0) if element is None else self.ring.to_expr(element)
+            if self._edge is not None:
+                value = self._edge(index, value)
+            self._cache[index] = value
+        return self._cache[index]
+
+    def __iter__(self) -> Iterator[Index]:
+        return iter(self._keys)
+
+    def __len__(self) -> int:
+        return len(self._keys)
+
+    def element(self, index: Index):
+        """The exact ring element behind a value (before the edge map)."""
+        return self._elements.get(tuple(index), self.ring.zero)
+
+    def __repr__(self) -> str:
+        return f"CoefficientTable(order={self.order}, {len(self)} nonzero coefficients)"
+
+
+def _nspecies(coefficients: Mapping[Index, object], nspecies: int | None) -> int:
+    if nspecies is not None:
+        return nspecies
+    for index in coefficients:
+        return len(index)
+    raise ValueError("cannot tell the number of species from an empty table; pass nspecies")
+
+
+def _unit(K: int, i: int) -> Index:
+    return tuple(1 if j == i else 0 for j in range(K))
+
+
+def _linear(values: Mapping[Index, object], K: int) -> list[sympy.Expr]:
+    return [sympy.sympify(values.get(_unit(K, i), 1)) for i in range(K)]
+
+
+def _mass_power(linear: Sequence[sympy.Expr], index: Index) -> sympy.Expr:
+    return sympy.Mul(*(c ** e for c, e in zip(linear, index) if e))
+
+
+def _working_ring(values: Mapping[Index, sympy.Expr], K: int, backend: str | None) -> PolynomialRing:
+    return PolynomialRing(K, collect_atoms(values.values()), backend=backend)
+
+
+def reduced_clusters(b: Mapping[Index, object], K: int, order: int) -> tuple[dict[Index, sympy.Expr], list]:
+    """beta_n = b_n / prod b_{e_i}^{n_i} for 2 <= |n| <= order, and the linear coefficients."""
+    linear = _linear(b, K)
+    for i, c in enumerate(linear):
+        if c == 0:
+            raise SeriesError(f"b for a single particle of species {i + 1} is zero; the gas has no ideal limit")
+    reduced = {}
+    for index, value in b.items():
+        index = tuple(index)
+        if len(index) != K:
+            raise ValueError(f"multi-index {index} does not have {K} entries")
+        if 2 <= sum(index) <= order:
+            value = sympy.sympify(value)
+            if value != 0:
+                reduced[index] = value if all(c == 1 for c in linear) else value / _mass_power(linear, index)
+    return reduced, linear
+
+
+def _pressure_in_w(ring: PolynomialRing, reduced: Mapping[Index, sympy.Expr], K: int, order: int) -> Series:
+    coefficients = {_unit(K, i): 1 for i in range(K)}
+    coefficients.update(reduced)
+    return Series.from_coefficients(ring, order, coefficients)
+
+
+def cluster_to_virial(b: Mapping[Index, object], order: int, nspecies: int | None = None,
+                      backend: str | None = None) -> "VirialResult":
+    """Virial coefficients a_n (and the fugacity expansion) from cluster coefficients b_n.
+
+    >>> b = {(1,): 1, (2,): sympy.Symbol("b2"), (3,): sympy.Symbol("b3")}
+    >>> cluster_to_virial(b, 3).virial[(3,)]
+    4*b2**2 - 2*b3
+    """
+    K = _nspecies(b, nspecies)
+    reduced, linear = reduced_clusters(b, K, order)
+    ring = _working_ring(reduced, K, backend)
+    beta = {n: ring.scalar_or_element(v) for n, v in reduced.items()}
+    g = [{n: c * ring.rational(n[i]) for n, c in beta.items() if n[i]} for i in range(K)]
+    pressure_terms = dict(beta)
+    pressure_terms.update({_unit(K, i): ring.one for i in range(K)})
+    w, (pressure,) = revert_coefficients(ring, order, g, [pressure_terms])
+    return VirialResult(ring, order, linear, pressure, w)
+
+
+class VirialResult:
+    """The outcome of one reversion: virial coefficients and fugacities z_i(rho)."""
+
+    def __init__(self, ring, order, linear, pressure: Series, w: Sequence[Series]):
+        self.ring, self.order, self.linear = ring, order, list(linear)
+        self.pressure_series = pressure
+        self.w_series = list(w)
+        self.virial = CoefficientTable(ring, pressure.coefficients(), order)
+
+    def fugacity(self, i: int) -> CoefficientTable:
+        """z_i(rho) = w_i(rho) / b_{e_i}: coefficients of rho^n in the fugacity of species i."""
+        c = self.linear[i]
+        edge = None if c == 1 else (lambda index, value: value / c)
+        return CoefficientTable(self.ring, self.w_series[i].coefficients(), self.order, edge)
+
+    def legendre_pressure(self) -> Series:
+        """P(rho) recomputed from the fugacities alone (independent self-check):
+        the degree-m part of P is (m - 1)/m times that of sum_i rho_i ln(w_i / rho_i)."""
+        return legendre_pressure(self.w_series)
+
+
+def legendre_pressure(w: Sequence[Series]) -> Series:
+    """beta P lambda^d from w_i(rho) = b_{e_i} z_i(rho) through the Legendre transform (Gibbs-Duhem)."""
+    ring = w[0].ring
+    total = None
+    for i, wi in enumerate(w):
+        ratio = wi.shift_down(i)                       # w_i / rho_i = 1 + ...
+        term = _times_variable(ratio.log(), i)
+        total = term if total is None else total + term
+    parts = [ring.zero] + [ring.zero] * total.order
+    for m in range(1, total.order + 1):
+        parts[m] = total.parts[m] * ring.rational(Fraction(m - 1, m))
+    for i in range(len(w)):
+        parts[1] = parts[1] + ring.var(i)
+    return Series(ring, total.order, parts)
+
+
+def virial_to_cluster(a: Mapping[Index, object], order: int, nspecies: int | None = None,
+                      linear: Sequence[object] | None = None, backend: str | None = None) -> CoefficientTable:
+    """Cluster coefficients b_n from virial coefficients a_n (a_{e_i} = 1 implied).
+
+    Gibbs-Duhem gives ln(w_i / rho_i) = d/drho_i sum_{m>=2} P_m / (m - 1); one reversion turns
+    w(rho) into rho(w), and F(w) = P(rho(w)). `linear` are the b_{e_i} (default 1).
+    """
+    K = _nspecies(a, nspecies)
+    lin = [sympy.sympify(c) for c in (linear or [1] * K)]
+    higher = {tuple(n): sympy.sympify(v) for n, v in a.items() if 2 <= sum(n) <= order and v != 0}
+    ring = _working_ring(higher, K, backend)
+    coefficients = {_unit(K, i): 1 for i in range(K)}
+    coefficients.update(higher)
+    P = Series.from_coefficients(ring, order + 1, coefficients)
+    H = Series(ring, P.order, [ring.zero, ring.zero] +
+               [P.parts[m] * ring.rational(Fraction(1, m - 1)) for m in range(2, P.order + 1)])
+    w = []
+    for i in range(K):
+        log_ratio = H.euler(i).shift_down(i)            # d H / d rho_i, order drops by one
+        w.append(_times_variable(log_ratio.exp(), i))    # w_i = rho_i exp(dH/drho_i)
+    rho, (F,) = revert(w, also=[P.truncate(order)])
+    edge = None if all(c == 1 for c in lin) else (lambda index, value: value * _mass_power(lin, index))
+    return CoefficientTable(ring, F.coefficients(), order, edge)
+
+
+def _times_variable(s: Series, i: int) -> Series:
+    ring = s.ring
+    return Series(ring, s.order + 1, [ring.zero] + [p * ring.var(i) for p in s.parts])
+
+
+def density_expansion(b: Mapping[Index, object], order: int, nspecies: int | None = None,
+                      backend: str | None = None) -> list[CoefficientTable]:
+    """rho_i lambda^d = sum_n n_i b_n z^n, one table per species."""
+    K = _nspecies(b, nspecies)
+    values = {tuple(n): sympy.sympify(v) for n, v in b.items() if 1 <= sum(n) <= order}
+    ring = _working_ring(values, K, backend)
+    F = Series.from_coefficients(ring, order, values)
+    return [CoefficientTable(ring, F.euler(i).coefficients(), order) for i in range(K)]
+
+
+def partition_to_cluster(Z: Mapping[Index, object], order: int, nspecies: int | None = None,
+                         backend: str | None = None) -> CoefficientTable:
+    """Coefficients of ln Xi, Xi = 1 + sum_n Z_n z^n (Z_0 = 1). Dividing by the volume factor
+    (Area / lambda^d, or the trapped one-body function in the harmonic regulator) is the caller's."""
+    K = _nspecies(Z, nspecies)
+    values = {tuple(n): sympy.sympify(v) for n, v in Z.items() if 1 <= sum(n) <= order}
+    ring = _working_ring(values, K, backend)
+    values[(0,) * K] = 1
+    return CoefficientTable(ring, Series.from_coefficients(ring, order, values).log().coefficients(), order)
+
+
+def cluster_to_partition(b: Mapping[Index, object], order: int, nspecies: int | None = None,
+                         backend: str | None = None) -> CoefficientTable:
+    """Z_n from the coefficients of ln Xi: Xi = exp(sum_n b_n z^n)."""
+    K = _nspecies(b, nspecies)
+    values = {tuple(n): sympy.sympify(v) for n, v in b.items() if 1 <= sum(n) <= order}
+    ring = _working_ring(values, K, backend)
+    return CoefficientTable(ring, Series.from_coefficients(ring, order, values).exp().coefficients(), order)
