@@ -21,7 +21,7 @@ import sympy
 
 from .errors import SeriesError
 from .series import PolynomialRing, Series, collect_atoms, indices_up_to, revert
-from .series.series import revert_coefficients
+from .series.series import _by_total, _close_under_chain, _combine, balanced_sum, revert_coefficients, PowerTable
 
 Index = tuple[int, ...]
 
@@ -128,11 +128,50 @@ def cluster_to_virial(b: Mapping[Index, object], order: int, nspecies: int | Non
     reduced, linear = reduced_clusters(b, K, order)
     ring = _working_ring(reduced, K, backend)
     beta = {n: ring.scalar_or_element(v) for n, v in reduced.items()}
-    g = [{n: c * ring.rational(n[i]) for n, c in beta.items() if n[i]} for i in range(K)]
-    pressure_terms = dict(beta)
-    pressure_terms.update({_unit(K, i): ring.one for i in range(K)})
-    w, (pressure,) = revert_coefficients(ring, order, g, [pressure_terms])
-    return VirialResult(ring, order, linear, pressure, w)
+    return reduced_to_virial(ring, beta, order, linear)
+
+
+def reduced_to_virial(ring: PolynomialRing, beta: Mapping[Index, object], order: int,
+                      linear: Sequence[sympy.Expr] | None = None) -> "VirialResult":
+    """The kernel of `cluster_to_virial` on ring elements: beta_n (|n| >= 2) already reduced by the
+    single-particle factors.
+
+    Order by order in rho, with w_i = rho_i exp(h_i), h_i = d/drho_i sum_{m>=2} P_m/(m-1)
+    (Gibbs-Duhem) and P = F(w) = sum_i w_i + R(w), R = sum_{|n|>=2} beta_n w^n: the unknown degree-m
+    parts enter linearly, and Euler's relation sum_i rho_i dP_m/drho_i = m P_m closes them,
+        P_m = -(m - 1) (R_m + sum_i rho_i Q_i),
+    Q_i being the known part of [exp h_i]_{m-1}. So only R needs the powers of w: one combination
+    per order instead of one per species plus one for P. `revert` would give the same (tests compare).
+    """
+    K = ring.nvars
+    zero, is_zero = ring.zero, ring.is_zero
+    terms = _by_total({n: c for n, c in beta.items() if sum(n) >= 2})
+    closed = _close_under_chain([n for n, _, _ in terms])
+    w = [[zero, ring.var(i)] for i in range(K)]
+    exp_h = [[ring.one] for _ in range(K)]      # parts of exp(h_i)
+    h = [[zero] for _ in range(K)]              # parts of h_i
+    pressure = [zero, sum((ring.var(i) for i in range(1, K)), ring.var(0))]
+    table = PowerTable(ring, w, order)
+    for m in range(2, order + 1):
+        table.extend(m, [n for n in closed if sum(n) <= m])
+        known = _combine(ring, terms, table, m)
+        q = []
+        for i in range(K):
+            # [exp h]_{m-1} = [h]_{m-1} + (1/(m-1)) sum_{k=1}^{m-2} k [h]_k [exp h]_{m-1-k}
+            acc = balanced_sum(ring, [h[i][k] * exp_h[i][m - 1 - k] * ring.rational(k)
+                                      for k in range(1, m - 1)
+                                      if not (is_zero(h[i][k]) or is_zero(exp_h[i][m - 1 - k]))])
+            q.append(acc * ring.rational(Fraction(1, m - 1)))
+            known = known + ring.var(i) * q[i]
+        p_m = known * ring.rational(-(m - 1))
+        pressure.append(p_m)
+        for i in range(K):
+            h_i = ring.derivative(p_m, i) * ring.rational(Fraction(1, m - 1))
+            h[i].append(h_i)
+            exp_h[i].append(h_i + q[i])
+            w[i].append(ring.var(i) * exp_h[i][m - 1])
+    return VirialResult(ring, order, linear or [sympy.Integer(1)] * K,
+                        Series(ring, order, pressure), [Series(ring, order, wi) for wi in w])
 
 
 class VirialResult:

@@ -114,23 +114,17 @@ class PolynomialRing:
         expr = sympy.sympify(expr)
         if expr.is_Rational:
             return self.constant(expr)
-        result = self.zero
-        for term in sympy.Add.make_args(sympy.expand(expr)):
-            coeff, factors = term.as_coeff_mul()
-            if not coeff.is_Rational:
-                factors = (coeff,) + factors
-                coeff = sympy.Integer(1)
-            element = self.constant(coeff)
-            for factor in factors:
-                base, exponent = factor.as_base_exp()
-                if base in self._atom_index and exponent.is_Integer and exponent > 0:
-                    element = element * self.atom(base) ** int(exponent)
-                elif factor in self._atom_index:
-                    element = element * self.atom(factor)
-                else:
-                    raise KeyError(f"{factor} is not an atom of this ring")
-            result = result + element
-        return result
+        nv, index = self.nvars, self._atom_index
+        data: dict[tuple[int, ...], Fraction] = {}
+        for coeff, powers in monomials(expr):
+            exponents = [0] * self._ngens
+            for base, e in powers:
+                if base not in index:
+                    raise KeyError(f"{base} is not an atom of this ring")
+                exponents[nv + index[base]] += e
+            key = tuple(exponents)
+            data[key] = data.get(key, 0) + coeff
+        return self.from_terms(data)
 
     # -- inspection ---------------------------------------------------------------------------------
     def terms(self, p) -> Iterable[tuple[tuple[int, ...], int, int]]:
@@ -144,6 +138,12 @@ class PolynomialRing:
 
     def is_zero(self, p) -> bool:
         return p.is_zero() if self.backend == "flint" else not p
+
+    def derivative(self, p, i: int):
+        """d/dx_i of p."""
+        if self.backend == "flint":
+            return p.derivative(i)
+        return p.diff(self._gens[i])
 
     def euler(self, p, i: int):
         """x_i d/dx_i applied to p (multiplies each term by its exponent of x_i)."""
@@ -191,16 +191,65 @@ def collect_atoms(exprs: Iterable[sympy.Expr]) -> set[sympy.Expr]:
     found: set[sympy.Expr] = set()
     for expr in exprs:
         expr = sympy.sympify(expr)
-        if expr.is_Rational:
-            continue
-        for term in sympy.Add.make_args(sympy.expand(expr)):
-            coeff, factors = term.as_coeff_mul()
-            if not coeff.is_Rational:
-                factors = (coeff,) + factors
-            for factor in factors:
-                base, exponent = factor.as_base_exp()
-                if exponent.is_Integer and exponent > 0 and not base.is_Number:
-                    found.add(base)
-                else:
-                    found.add(factor)
+        if not expr.is_Rational:
+            for _, powers in monomials(expr):
+                found.update(base for base, _ in powers)
     return found
+
+
+def monomials(expr: sympy.Expr) -> list[tuple[Fraction, list[tuple[sympy.Expr, int]]]]:
+    """expr as a sum of rational multiples of products of atom powers (positive integer exponents).
+
+    A factor that is not a power of an atom with a positive integer exponent (sqrt(2), 1/(1 - g),
+    sin(pi*a)) is itself an atom. Expressions already in expanded form are read without calling
+    sympy's expand, which dominates the cost otherwise.
+    """
+    cached = _MONOMIAL_CACHE.get(expr)
+    if cached is not None:
+        return cached
+    result = _flat_monomials(expr)
+    if result is None:
+        result = _flat_monomials(sympy.expand(expr))
+        if result is None:  # expand left something non-flat: take factors as atoms
+            result = []
+            for term in sympy.Add.make_args(sympy.expand(expr)):
+                coeff, factors = term.as_coeff_mul()
+                result.append((_fraction(coeff) if coeff.is_Rational else Fraction(1),
+                               [(f, 1) for f in (factors if coeff.is_Rational else (coeff,) + factors)]))
+    if len(_MONOMIAL_CACHE) > 4096:
+        _MONOMIAL_CACHE.clear()
+    _MONOMIAL_CACHE[expr] = result
+    return result
+
+
+# collect_atoms and from_expr read the same expressions one after the other
+_MONOMIAL_CACHE: dict[sympy.Expr, list] = {}
+
+
+def _fraction(r: sympy.Rational) -> Fraction:
+    return Fraction(int(r.p), int(r.q))
+
+
+def _flat_monomials(expr: sympy.Expr):
+    out = []
+    for term in sympy.Add.make_args(expr):
+        coeff = Fraction(1)
+        powers = []
+        for factor in sympy.Mul.make_args(term):
+            if factor.is_Rational:
+                coeff *= _fraction(factor)
+                continue
+            if factor.is_Add:
+                return None
+            if factor.is_Pow:
+                base, e = factor.args
+                if e.is_Integer and e.p > 0:
+                    if base.is_Add or base.is_Mul:
+                        return None
+                    powers.append((base, int(e)))
+                    continue
+            if factor.is_Number:  # a float or other non-rational number: refuse silently inexact input
+                raise ValueError(f"inexact number {factor} in an exact derivation")
+            powers.append((factor, 1))
+        out.append((coeff, powers))
+    return out

@@ -1,0 +1,3 @@
+from .command import main
+
+raise SystemExit(main())

@@ -1,0 +1,74 @@
+"""The command line: argument parsing, calling the public API, exit codes. Nothing else."""
+from __future__ import annotations
+
+import argparse
+import sys
+from pathlib import Path
+
+from .errors import EXIT_INPUT_ERROR, EXIT_OK, InputError, NotSupportedYet
+
+DEMO = Path(__file__).resolve().parent / "demo.gas"
+
+
+def _parser() -> argparse.ArgumentParser:
+    parser = argparse.ArgumentParser(
+        prog="clusterexp",
+        description="Exact cluster and virial expansions of gases with statistical pair phases.")
+    commands = parser.add_subparsers(dest="command", required=True)
+    run = commands.add_parser("run", help="derive what an input file (.gas) asks for")
+    source = run.add_mutually_exclusive_group(required=True)
+    source.add_argument("file", nargs="?", help="input file; `demo` runs the bundled demo")
+    source.add_argument("-e", "--expression", dest="text", metavar="TEXT",
+                        help="the input given on the command line instead of a file")
+    run.add_argument("--format", choices=("text", "latex", "json"), default=None,
+                     help="output format (default: the file's `output format`, else text)")
+    run.add_argument("--document", action="store_true",
+                     help="with --format latex: a standalone document instead of a snippet")
+    run.add_argument("-o", "--output", metavar="PATH", help="write to PATH instead of standard output")
+    run.add_argument("--overwrite", action="store_true", help="allow -o to replace an existing file")
+    return parser
+
+
+def main(argv: list[str] | None = None) -> int:
+    args = _parser().parse_args(argv)
+    from . import derive, derive_file
+    from .export import FORMATTERS, latex_document
+    try:
+        if args.text is not None:
+            derivation = derive(args.text, filename="<command line>", base_dir=Path.cwd())
+        else:
+            path = DEMO if args.file == "demo" else Path(args.file)
+            if not path.is_file():
+                print(f"clusterexp: error: no such input file: {path}", file=sys.stderr)
+                return EXIT_INPUT_ERROR
+            derivation = derive_file(path)
+        fmt = args.format or derivation.system.output.format
+        if fmt == "latex" and args.document:
+            text = latex_document(derivation)
+        else:
+            text = FORMATTERS[fmt](derivation)
+    except (InputError, NotSupportedYet) as error:
+        print(error.render(), file=sys.stderr)
+        return EXIT_INPUT_ERROR
+    if args.output:
+        return _write(Path(args.output), text, args.overwrite)
+    sys.stdout.write(text)
+    return EXIT_OK
+
+
+def _write(path: Path, text: str, overwrite: bool) -> int:
+    """Write atomically (temporary file, then rename); never replace a file unless asked."""
+    import os
+    import tempfile
+    if path.exists() and not overwrite:
+        print(f"clusterexp: error: {path} exists; pass --overwrite to replace it", file=sys.stderr)
+        return EXIT_INPUT_ERROR
+    handle, temporary = tempfile.mkstemp(dir=path.parent or ".", prefix=f".{path.name}.", suffix=".part")
+    try:
+        with os.fdopen(handle, "w", encoding="utf-8") as stream:
+            stream.write(text)
+        os.replace(temporary, path)
+    except BaseException:
+        Path(temporary).unlink(missing_ok=True)
+        raise
+    return EXIT_OK

@@ -1,0 +1,131 @@
+"""From a validated `System` to exact coefficients: the derivation stage.
+
+The physics route only has to supply cluster coefficients b_n (or, for `virials given`, virial
+coefficients a_n); the cluster <-> virial machinery in `virial.py` never knows where they came from.
+"""
+from __future__ import annotations
+
+from functools import cached_property
+from typing import Mapping
+
+import sympy
+
+from .errors import NotSupportedYet
+from .model import Index, Request, System
+from .naming import cluster_symbol, virial_symbol
+from .results import Coefficient, Derivation
+from .series import indices_up_to
+from .virial import CoefficientTable, VirialResult, cluster_to_virial, density_expansion, virial_to_cluster
+
+KIND_ORDER = ("cluster", "density", "fugacity", "virial")
+
+
+def single_particle_factors(system: System) -> list[sympy.Expr]:
+    """b_{e_i} = (m_i / m_ref)^{d/2} for every species (physics.md, section 1)."""
+    m_ref = system.reference_mass
+    half_d = sympy.Rational(system.dimension, 2)
+    return [sympy.powsimp(sympy.powdenest((s.mass / m_ref) ** half_d, force=False)) for s in system.species]
+
+
+def _unit(K: int, i: int) -> Index:
+    return tuple(1 if j == i else 0 for j in range(K))
+
+
+class _Plan:
+    """The tables a system needs, each built once on first use."""
+
+    def __init__(self, system: System):
+        self.system = system
+        self.K = len(system.species)
+        self.linear = single_particle_factors(system)
+        self.order = max([system.order] + [_request_order(r) for r in system.requests])
+
+    @cached_property
+    def given(self) -> dict[Index, sympy.Expr]:
+        return {v.index: v.value for v in self.system.source.values}
+
+    @cached_property
+    def cluster(self) -> Mapping[Index, sympy.Expr]:
+        kind = self.system.source.kind
+        if kind == "generic" or (kind == "given" and self._given_kind() == "cluster"):
+            b = {_unit(self.K, i): c for i, c in enumerate(self.linear)}
+            for index in indices_up_to(self.K, self.order, start=2):
+                b[index] = self.given.get(index, cluster_symbol(index))
+            return b
+        if kind == "given":
+            return virial_to_cluster(self.virial, self.order, self.K, linear=self.linear)
+        raise NotSupportedYet(f"cluster coefficients from the '{kind}' regime", self.system.source.span)
+
+    def _given_kind(self) -> str:
+        kinds = {v.kind for v in self.system.source.values}
+        return kinds.pop() if kinds else "cluster"
+
+    @cached_property
+    def reversion(self) -> VirialResult:
+        return cluster_to_virial(self.cluster, self.order, self.K)
+
+    @cached_property
+    def virial(self) -> Mapping[Index, sympy.Expr]:
+        if self.system.source.kind == "given" and self._given_kind() == "virial":
+            a = {_unit(self.K, i): sympy.Integer(1) for i in range(self.K)}
+            for index in indices_up_to(self.K, self.order, start=2):
+                a[index] = self.given.get(index, virial_symbol(index))
+            return a
+        return self.reversion.virial
+
+    @cached_property
+    def density(self) -> list[CoefficientTable]:
+        return density_expansion(self.cluster, self.order, self.K)
+
+    def fugacity(self, i: int) -> CoefficientTable:
+        return self.reversion.fugacity(i)
+
+
+def _request_order(request: Request) -> int:
+    if request.up_to is not None:
+        return request.up_to
+    return max((sum(n) for n in request.indices), default=1)
+
+
+def _requested_indices(request: Request, K: int) -> list[Index]:
+    if request.indices:
+        return list(request.indices)
+    return indices_up_to(K, request.up_to)
+
+
+def derive_system(system: System) -> Derivation:
+    """Derive every requested coefficient of a validated system (values computed lazily)."""
+    plan = _Plan(system)
+    names = system.species_names
+    wanted: dict[str, set[Index]] = {}
+    for request in system.requests:
+        wanted.setdefault(request.quantity, set()).update(_requested_indices(request, plan.K))
+    coefficients: list[Coefficient] = []
+    order_key = {n: k for k, n in enumerate(indices_up_to(plan.K, plan.order))}
+    for kind in KIND_ORDER:
+        indices = sorted(wanted.get(kind, ()), key=order_key.__getitem__)
+        if kind in ("cluster", "virial"):
+            for index in indices:
+                coefficients.append(Coefficient(kind, index, names, _lookup(plan, kind, index)))
+        else:
+            for i, component in enumerate(names):
+                for index in indices:
+                    if index[i]:
+                        coefficients.append(Coefficient(kind, index, names, _lookup(plan, kind, index, i),
+                                                        component=component))
+    return Derivation(system, coefficients)
+
+
+def _lookup(plan: _Plan, kind: str, index: Index, i: int | None = None):
+    def compute() -> sympy.Expr:
+        if kind == "cluster":
+            table = plan.cluster
+        elif kind == "virial":
+            table = plan.virial
+        elif kind == "density":
+            table = plan.density[i]
+        else:
+            table = plan.fugacity(i)
+        value = table.get(index, sympy.Integer(0)) if isinstance(table, dict) else table[index]
+        return sympy.sympify(value)
+    return compute

@@ -1,0 +1,21 @@
+"""Plain-text printer."""
+from __future__ import annotations
+
+import sympy
+
+from ..results import Derivation
+from .common import CONVENTIONS, KIND_TITLES, summary_lines
+
+
+def to_text(derivation: Derivation) -> str:
+    """One line per coefficient, grouped by kind, after a commented header with the conventions."""
+    lines = ["# clusterexp"] + [f"# {line}" for line in summary_lines(derivation.system)]
+    lines.append(f"# conventions: {CONVENTIONS}")
+    kind = None
+    for c in derivation:
+        if c.kind != kind:
+            kind = c.kind
+            lines.append("")
+            lines.append(KIND_TITLES[kind] + ":")
+        lines.append(f"  {c.label} = {sympy.sstr(c.value, order='lex')}")
+    return "\n".join(lines) + "\n"

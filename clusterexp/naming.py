@@ -1,0 +1,61 @@
+"""Names of the symbols clusterexp itself introduces, and their LaTeX forms.
+
+Generic cluster coefficients are sympy symbols `b_2_1` (species in declaration order), virial ones
+`a_2_1`; single species: `b_3`, `a_3`. The names parse back with `sympy.sympify`. LaTeX labels use
+the species names as subscripts: b_{A^2 B}; a single species keeps the number: b_{3}.
+"""
+from __future__ import annotations
+
+from typing import Sequence
+
+import sympy
+
+Index = tuple[int, ...]
+
+
+def index_label(index: Index) -> str:
+    return "_".join(str(n) for n in index)
+
+
+def cluster_symbol(index: Index) -> sympy.Symbol:
+    return sympy.Symbol(f"b_{index_label(index)}")
+
+
+def virial_symbol(index: Index) -> sympy.Symbol:
+    return sympy.Symbol(f"a_{index_label(index)}")
+
+
+def bracket_label(index: Index) -> str:
+    """The plain-text multi-index, e.g. [2,1]; for one species [3]."""
+    return "[" + ",".join(str(n) for n in index) + "]"
+
+
+def latex_subscript(index: Index, species_latex: Sequence[str]) -> str:
+    """Species labels as subscripts: (2, 1) with A, B -> A^{2}B; one species: (3,) -> 3."""
+    if len(index) == 1:
+        return str(index[0])
+    parts = []
+    for n, label in zip(index, species_latex):
+        if n == 1:
+            parts.append(label)
+        elif n > 1:
+            parts.append(f"{label}^{{{n}}}")
+    return " ".join(parts)
+
+
+def species_latex(name: str) -> str:
+    """A species name as LaTeX: single letters stay, longer names go upright."""
+    if len(name) == 1:
+        return name
+    return r"\mathrm{" + name.replace("_", r"\_") + "}"
+
+
+def generated_latex_names(indices: Sequence[Index], species: Sequence[str]) -> dict[sympy.Symbol, str]:
+    """LaTeX names for every generated b/a symbol of the given multi-indices."""
+    labels = [species_latex(s) for s in species]
+    names = {}
+    for index in indices:
+        sub = latex_subscript(index, labels)
+        names[cluster_symbol(index)] = f"b_{{{sub}}}"
+        names[virial_symbol(index)] = f"a_{{{sub}}}"
+    return names
