@@ -26,7 +26,7 @@ def __getattr__(name: str):
         from . import build
         return getattr(build, name)
     if name == "derive_system":
-        from .derive import derive_system
+        from .derivation import derive_system
         return derive_system
     raise AttributeError(f"module 'clusterexp' has no attribute {name!r}")
 
@@ -34,14 +34,14 @@ def __getattr__(name: str):
 def derive(text: str, filename: str = "<input>", base_dir: str | Path | None = None) -> Derivation:
     """Parse, validate and derive an input given as text."""
     from .build import build_system
-    from .derive import derive_system
+    from .derivation import derive_system
     return derive_system(build_system(text, filename, Path(base_dir) if base_dir else None))
 
 
 def derive_file(path: str | Path) -> Derivation:
     """Parse, validate and derive an input file."""
     from .build import build_system_from_file
-    from .derive import derive_system
+    from .derivation import derive_system
     return derive_system(build_system_from_file(Path(path)))
 
 

@@ -66,9 +66,10 @@ def test_film_mixture_against_a_route_written_here():
     zA, zB, rA, rB, t = sympy.symbols("zA zB rA rB t")
     P = sum(v * zA**i * zB**j for (i, j), v in b.items())
     rho = [sympy.expand(zA * sympy.diff(P, zA)), sympy.expand(zB * sympy.diff(P, zB))]
-    c = sympy.symbols("c0:10")
-    ansatz_A = rA + c[0] * rA**2 + c[1] * rA * rB + c[2] * rB**2 + c[3] * rA**3 + c[4] * rA**2 * rB + c[5] * rA * rB**2
-    ansatz_B = rB / mu + c[6] * rA * rB + c[7] * rB**2 + c[8] * rA**2 * rB + c[9] * rA * rB**2
+    monomials = [rA**i * rB**(k - i) for k in (2, 3) for i in range(k + 1)]
+    c = sympy.symbols(f"c0:{2 * len(monomials)}")
+    ansatz_A = rA + sum(ci * m for ci, m in zip(c[:len(monomials)], monomials))
+    ansatz_B = rB / mu + sum(ci * m for ci, m in zip(c[len(monomials):], monomials))
     scale = {rA: t * rA, rB: t * rB}
     subs = {zA: ansatz_A.subs(scale), zB: ansatz_B.subs(scale)}
     equations = []

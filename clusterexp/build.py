@@ -1,0 +1,363 @@
+"""Lark tree -> validated `model.System`. Validation happens once, here; every error points at the
+user's line and column."""
+from __future__ import annotations
+
+import re
+from pathlib import Path
+
+import lark
+import sympy
+
+from .errors import InputError, NotSupportedYet, Span
+from .expressions import CONSTANTS, FUNCTIONS, ExpressionBuilder
+from .model import FORMATS, QUANTITIES, GivenValue, Mutual, OutputSettings, Parameter, Request, Source, Species, System
+from .parse import parse
+
+MAX_ORDER = 200
+LATER_REGIMES = ("ideal", "exclusion", "landau", "pairphase")
+RESERVED = {"b", "a", "z", "rho", "pi", "I", "E"} | set(FUNCTIONS)
+GENERATED = re.compile(r"^(b|a|z|rho)_")
+DEFAULT_ORDER = 4
+
+
+class _File:
+    """One source file: its name and text, for spans."""
+
+    def __init__(self, name: str, text: str):
+        self.name, self.lines = name, text.splitlines()
+
+    def span(self, item) -> Span:
+        if isinstance(item, lark.Token):
+            line, column = item.line or 1, item.column or 1
+            end = item.end_column if item.end_line == item.line else None
+        else:
+            meta = item.meta
+            if getattr(meta, "empty", True):
+                return Span(self.name, 1, 1, line_text=self.lines[0] if self.lines else "")
+            line, column = meta.line, meta.column
+            end = meta.end_column if meta.end_line == meta.line else None
+        text = self.lines[line - 1] if 0 < line <= len(self.lines) else ""
+        return Span(self.name, line, column, line, end, text)
+
+
+def build_system(text: str, filename: str = "<input>", base_dir: Path | None = None) -> System:
+    """Parse and validate an input given as text (includes are resolved from `base_dir`, default cwd)."""
+    statements = _collect(text, filename, base_dir or Path.cwd(), [])
+    return _Builder(statements, filename, text).system()
+
+
+def build_system_from_file(path: Path | str) -> System:
+    path = Path(path)
+    try:
+        text = path.read_text(encoding="utf-8")
+    except (OSError, UnicodeDecodeError) as error:
+        raise InputError(f"cannot read {path}: {error}") from None
+    return build_system(text, str(path), path.resolve().parent)
+
+
+def _collect(text: str, filename: str, base_dir: Path, stack: list[str]) -> list[tuple[lark.Tree, _File]]:
+    source = _File(filename, text)
+    out = []
+    for statement in parse(text, filename).children:
+        if statement.data == "include":
+            token = statement.children[0]
+            target = (base_dir / str(token)[1:-1]).resolve()
+            if str(target) in stack:
+                raise InputError(f"include cycle: {target.name} includes itself", source.span(token))
+            try:
+                included = target.read_text(encoding="utf-8")
+            except (OSError, UnicodeDecodeError):
+                raise InputError(f"cannot read included file {str(token)[1:-1]}", source.span(token)) from None
+            out += _collect(included, str(target), target.parent, stack + [str(target)])
+        else:
+            out.append((statement, source))
+    return out
+
+
+class _Builder:
+    def __init__(self, statements, filename: str, text: str):
+        self.statements = statements
+        self.main = _File(filename, text)
+        self.files = [filename] + sorted({f.name for _, f in statements if f.name != filename})
+        self.parameters: dict[str, Parameter] = {}
+        self.species: dict[str, Species] = {}
+        self.mutuals: list[Mutual] = []
+        self.dimension = None
+        self.order = None
+        self.reference = None
+        self.source = None
+        self.requests: list[tuple[lark.Tree, _File]] = []
+        self.output = OutputSettings()
+        self.file = self.main
+
+    def span(self, item) -> Span:
+        return self.file.span(item)
+
+    def expr(self, tree) -> sympy.Expr:
+        symbols = {p.name: p.symbol for p in self.parameters.values()}
+        return ExpressionBuilder(symbols, self.span).build(tree)
+
+    def system(self) -> System:
+        for statement, source in self.statements:
+            self.file = source
+            getattr(self, "_" + statement.data)(statement)
+        self.file = self.main
+        if self.dimension is None:
+            raise InputError("missing `dimension` statement", self.main.span(lark.Token("X", "", line=1, column=1)))
+        if not self.species:
+            raise InputError("no species declared; add e.g. `species A bose`", self._first_span())
+        names = list(self.species)
+        requests = [self._request(tree, source, names) for tree, source in self.requests]
+        needed = max([_total(r) for r in requests], default=0)
+        order = self.order[0] if self.order else max(needed, DEFAULT_ORDER if not requests else 1)
+        if self.order:
+            for r in requests:
+                if _total(r) > order:
+                    raise InputError(f"request needs total order {_total(r)} but `order {order}` is declared", r.span)
+        if not requests:
+            span = self._first_span()
+            requests = [Request("cluster", span, up_to=order), Request("virial", span, up_to=order)]
+        source = self.source or Source("generic", self._first_span())
+        source = self._check_given(source, names, order)
+        return System(dimension=self.dimension, species=tuple(self.species.values()), source=source,
+                      requests=tuple(requests), order=order, reference=self.reference or names[0],
+                      parameters=tuple(self.parameters.values()), mutuals=tuple(self.mutuals),
+                      output=self.output, files=tuple(self.files))
+
+    def _first_span(self) -> Span:
+        return self.main.span(self.statements[0][0]) if self.statements else Span(self.main.name, 1, 1)
+
+    # -- statements ---------------------------------------------------------------------------------
+    def _dimension(self, tree):
+        token = tree.children[0]
+        if self.dimension is not None:
+            raise InputError("`dimension` is declared twice", self.span(token))
+        if int(token) not in (1, 2, 3):
+            raise InputError(f"dimension must be 1, 2 or 3, not {token}", self.span(token))
+        self.dimension = int(token)
+
+    def _order(self, tree):
+        token = tree.children[0]
+        if self.order is not None:
+            raise InputError("`order` is declared twice", self.span(token))
+        value = int(token)
+        if not 1 <= value <= MAX_ORDER:
+            raise InputError(f"order must be between 1 and {MAX_ORDER}, not {value}", self.span(token))
+        self.order = (value, self.span(token))
+
+    def _check_name(self, token, what: str):
+        name = str(token)
+        if name in RESERVED or GENERATED.match(name):
+            raise InputError(f"'{name}' is a reserved name and cannot be a {what}", self.span(token))
+        if name in self.parameters or name in self.species:
+            kind = "parameter" if name in self.parameters else "species"
+            raise InputError(f"'{name}' is already declared as a {kind}", self.span(token))
+
+    def _parameter(self, tree):
+        names = [c for c in tree.children if isinstance(c, lark.Token) and c.type == "NAME"]
+        assumptions = [str(c) for c in tree.children if isinstance(c, lark.Token) and c.type == "ASSUME"]
+        ranges = [c for c in tree.children if isinstance(c, lark.Tree) and c.data == "range"]
+        lower = upper = None
+        lower_open = upper_open = False
+        if ranges:
+            left, lo, hi, right = ranges[0].children
+            lower, upper = self.expr(lo), self.expr(hi)
+            if not (lower.is_real and upper.is_real and lower.is_number and upper.is_number) or bool(lower >= upper):
+                raise InputError("a range needs two real numbers, the lower first", self.span(ranges[0]))
+            lower_open, upper_open = str(left) == "(", str(right) == ")"
+        flags = {"real": True}
+        for a in assumptions:
+            flags[a] = True
+        if lower is not None and bool(lower >= 0) and "positive" not in flags:
+            if lower > 0 or lower_open:
+                flags["positive"] = True
+            else:
+                flags["nonnegative"] = True
+        for token in names:
+            self._check_name(token, "parameter")
+            symbol = sympy.Symbol(str(token), **flags)
+            self.parameters[str(token)] = Parameter(str(token), symbol, self.span(token), lower, upper,
+                                                    lower_open, upper_open, tuple(sorted(flags)))
+
+    def _species(self, tree):
+        token, *props = tree.children
+        self._check_name(token, "species")
+        mass, exchange, statistics = sympy.Integer(1), sympy.Integer(0), None
+        seen = {}
+        for prop in props:
+            kind = "statistics" if prop.data in ("prop_bose", "prop_fermi", "prop_exchange") else "mass"
+            if kind in seen:
+                raise InputError(f"species {token}: {'exchange/bose/fermi' if kind == 'statistics' else 'mass'}"
+                                 " given twice", self.span(prop))
+            seen[kind] = prop
+            if prop.data == "prop_mass":
+                mass = self.expr(prop.children[0])
+                if not (mass.is_positive or (mass.is_number and mass.is_positive)):
+                    raise InputError("mass must be positive (a positive number, or a parameter declared positive)",
+                                     self.span(prop.children[0]))
+            elif prop.data == "prop_exchange":
+                exchange = self.expr(prop.children[0])
+                if exchange.is_real is False:
+                    raise InputError("the exchange parameter must be real", self.span(prop.children[0]))
+            else:
+                statistics = "bose" if prop.data == "prop_bose" else "fermi"
+                exchange = sympy.Integer(0 if statistics == "bose" else 1)
+        self.species[str(token)] = Species(str(token), mass, exchange, self.span(token), statistics)
+
+    def _known_species(self, token) -> str:
+        if str(token) not in self.species:
+            raise InputError(f"unknown species '{token}'", self.span(token))
+        return str(token)
+
+    def _mutual(self, tree):
+        first, second, value = tree.children
+        a, b = self._known_species(first), self._known_species(second)
+        if a == b:
+            raise InputError(f"a mutual parameter needs two distinct species; for {a} with itself use "
+                             "`exchange` on the species", self.span(second))
+        if any({m.first, m.second} == {a, b} for m in self.mutuals):
+            raise InputError(f"mutual parameter of {a} and {b} is given twice", self.span(first))
+        expr = self.expr(value)
+        if expr.is_real is False:
+            raise InputError("the mutual parameter must be real", self.span(value))
+        self.mutuals.append(Mutual(a, b, expr, self.span(first)))
+
+    def _reference(self, tree):
+        self.reference = self._known_species(tree.children[0])
+
+    def _set_source(self, source: Source, tree):
+        if self.source is not None:
+            raise InputError("the coefficient source (`clusters` or `virials given`) is given twice", self.span(tree))
+        self.source = source
+
+    def _clusters_regime(self, tree):
+        token = tree.children[0]
+        word = str(token)
+        if word == "generic":
+            return self._set_source(Source("generic", self.span(token)), tree)
+        if word in LATER_REGIMES:
+            raise InputError(f"regime '{word}' is not supported yet", self.span(token))
+        raise InputError(f"unknown regime '{word}'; expected generic or given", self.span(token))
+
+    def _given_block(self, tree, kind: str):
+        values = []
+        letter = "b" if kind == "cluster" else "a"
+        for entry in tree.children:
+            ref, value = entry.children
+            name_token = ref.children[0]
+            if str(name_token) != letter:
+                other = "clusters given" if letter == "b" else "virials given"
+                raise InputError(f"inside `{other}` write {letter}[...], not {name_token}[...]", self.span(name_token))
+            values.append((ref, value, self.file))
+        self._set_source(Source("given", self.span(tree)), tree)
+        self._pending_given = (kind, values)
+
+    def _clusters_given(self, tree):
+        self._given_block(tree, "cluster")
+
+    def _virials_given(self, tree):
+        self._given_block(tree, "virial")
+
+    def _derive_upto(self, tree):
+        self.requests.append((tree, self.file))
+
+    def _derive_list(self, tree):
+        self.requests.append((tree, self.file))
+
+    def _derive_named_list(self, tree):
+        self.requests.append((tree, self.file))
+
+    def _output_format(self, tree):
+        token = tree.children[0]
+        if str(token) not in FORMATS:
+            raise InputError(f"unknown output format '{token}'; expected text, latex or json", self.span(token))
+        self.output = OutputSettings(str(token), self.output.align, self.span(token))
+
+    def _output_align(self, tree):
+        self.output = OutputSettings(self.output.format, str(tree.children[0]) == "on", self.span(tree))
+
+    # -- checks after all declarations ----------------------------------------------------------------
+    def _index(self, ref, names: list[str]) -> tuple[int, ...]:
+        items = ref.children[1:]
+        K = len(names)
+        counts = [0] * K
+        positional = [i for i in items if i.data == "index_count"]
+        if positional and len(positional) != len(items):
+            raise InputError("mix of counts and species names in one multi-index", self.span(ref))
+        if positional:
+            if len(items) != K:
+                raise InputError(f"multi-index has {len(items)} entries but {K} species are declared "
+                                 f"({', '.join(names)})", self.span(ref))
+            counts = [int(i.children[0]) for i in items]
+        else:
+            for item in items:
+                token = item.children[0]
+                if str(token) not in names:
+                    raise InputError(f"unknown species '{token}'", self.span(token))
+                counts[names.index(str(token))] += int(item.children[1]) if len(item.children) > 1 else 1
+        if sum(counts) == 0:
+            raise InputError("a multi-index needs at least one particle", self.span(ref))
+        if sum(counts) > MAX_ORDER:
+            raise InputError(f"total order {sum(counts)} is beyond the limit {MAX_ORDER}", self.span(ref))
+        return tuple(counts)
+
+    def _request(self, tree, source: _File, names: list[str]) -> Request:
+        self.file = source
+        try:
+            if tree.data == "derive_upto":
+                word, count = tree.children
+                if str(word) not in QUANTITIES:
+                    raise InputError(f"unknown quantity '{word}'; expected cluster, virial, density or fugacity",
+                                     self.span(word))
+                if not 1 <= int(count) <= MAX_ORDER:
+                    raise InputError(f"`up to` needs an order between 1 and {MAX_ORDER}", self.span(count))
+                return Request(str(word), self.span(tree), up_to=int(count))
+            refs = tree.children
+            if tree.data == "derive_named_list":
+                word, *refs = refs
+                letter = {"cluster": "b", "virial": "a"}.get(str(word))
+                if letter is None:
+                    raise InputError(f"explicit indices are for cluster (b[...]) and virial (a[...]) requests, "
+                                     f"not '{word}'", self.span(word))
+                for r in refs:
+                    if str(r.children[0]) != letter:
+                        raise InputError(f"`derive {word}` lists {letter}[...], not {r.children[0]}[...]",
+                                         self.span(r.children[0]))
+            letters = {str(r.children[0]) for r in refs}
+            if not letters <= {"a", "b"}:
+                bad = next(r.children[0] for r in refs if str(r.children[0]) not in ("a", "b"))
+                raise InputError("explicit indices are for cluster (b[...]) and virial (a[...]) requests",
+                                 self.span(bad))
+            if len(letters) > 1:
+                raise InputError("one `derive` lists either b[...] or a[...]; use two statements", self.span(tree))
+            quantity = "cluster" if letters == {"b"} else "virial"
+            return Request(quantity, self.span(tree), indices=tuple(self._index(r, names) for r in refs))
+        finally:
+            self.file = self.main
+
+    def _check_given(self, source: Source, names: list[str], order: int) -> Source:
+        pending = getattr(self, "_pending_given", None)
+        if source.kind != "given" or not pending:
+            return source
+        kind, entries = pending
+        values, seen = [], {}
+        for ref, value, file in entries:
+            self.file = file
+            index = self._index(ref, names)
+            if sum(index) == 1:
+                fixed = ("b for a single particle is fixed by the masses ((m_i/m_ref)^(d/2)); do not give it"
+                         if kind == "cluster" else "a for a single particle is 1; do not give it")
+                raise InputError(fixed, self.span(ref))
+            if index in seen:
+                raise InputError(f"{ref.children[0]}{list(index)} is given twice", self.span(ref))
+            seen[index] = True
+            if sum(index) > order:
+                raise InputError(f"this coefficient has total order {sum(index)}, beyond the order {order} "
+                                 "derived here", self.span(ref))
+            values.append(GivenValue(kind, index, self.expr(value), self.span(ref)))
+        self.file = self.main
+        return Source("given", source.span, tuple(values))
+
+
+def _total(request: Request) -> int:
+    return request.up_to if request.up_to is not None else max(sum(n) for n in request.indices)
