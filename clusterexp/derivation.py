@@ -15,6 +15,7 @@ from .model import Index, Request, System
 from .naming import cluster_symbol, virial_symbol
 from .results import Coefficient, Derivation
 from .series import indices_up_to
+from .terms import TermSum
 from .virial import CoefficientTable, VirialResult, cluster_to_virial, density_expansion, virial_to_cluster
 
 KIND_ORDER = ("cluster", "density", "fugacity", "virial")
@@ -106,26 +107,38 @@ def derive_system(system: System) -> Derivation:
         indices = sorted(wanted.get(kind, ()), key=order_key.__getitem__)
         if kind in ("cluster", "virial"):
             for index in indices:
-                coefficients.append(Coefficient(kind, index, names, _lookup(plan, kind, index)))
+                value, terms = _lookup(plan, kind, index)
+                coefficients.append(Coefficient(kind, index, names, value, compute_terms=terms))
         else:
             for i, component in enumerate(names):
                 for index in indices:
                     if index[i]:
-                        coefficients.append(Coefficient(kind, index, names, _lookup(plan, kind, index, i),
-                                                        component=component))
+                        value, terms = _lookup(plan, kind, index, i)
+                        coefficients.append(Coefficient(kind, index, names, value, component=component,
+                                                        compute_terms=terms))
     return Derivation(system, coefficients)
 
 
 def _lookup(plan: _Plan, kind: str, index: Index, i: int | None = None):
-    def compute() -> sympy.Expr:
+    """Two deferred computations of one coefficient: its sympy value, and its `TermSum` read
+    straight off the exact ring when the table has one (None otherwise)."""
+    def table():
         if kind == "cluster":
-            table = plan.cluster
-        elif kind == "virial":
-            table = plan.virial
-        elif kind == "density":
-            table = plan.density[i]
-        else:
-            table = plan.fugacity(i)
-        value = table.get(index, sympy.Integer(0)) if isinstance(table, dict) else table[index]
+            return plan.cluster
+        if kind == "virial":
+            return plan.virial
+        if kind == "density":
+            return plan.density[i]
+        return plan.fugacity(i)
+
+    def compute() -> sympy.Expr:
+        t = table()
+        value = t[index] if isinstance(t, CoefficientTable) else t.get(index, sympy.Integer(0))
         return sympy.sympify(value)
-    return compute
+
+    def compute_terms():
+        t = table()
+        if isinstance(t, CoefficientTable):
+            return t.term_sum(index)
+        return TermSum.from_expr(sympy.sympify(t.get(index, sympy.Integer(0))))
+    return compute, compute_terms

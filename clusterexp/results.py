@@ -26,6 +26,7 @@ class Coefficient:
     species: tuple[str, ...]
     compute: Callable[[], sympy.Expr] = field(repr=False, compare=False)
     component: str | None = None
+    compute_terms: Callable[[], object] | None = field(default=None, repr=False, compare=False)
 
     @property
     def value(self) -> sympy.Expr:
@@ -33,6 +34,31 @@ class Coefficient:
         if not cache:
             cache.append(self.compute())
         return cache[0]
+
+    @property
+    def terms(self):
+        """The value as a `TermSum` when it is a sum of power products of symbols (printers use it
+        to avoid building large sympy expressions), else None."""
+        cache = self.__dict__.setdefault("_terms_cache", [])
+        if not cache:
+            from .terms import TermSum
+            found = self.compute_terms() if self.compute_terms is not None else None
+            if found is None and self.compute_terms is None:
+                found = TermSum.from_expr(self.value)
+            cache.append(found)
+        return cache[0]
+
+    @property
+    def text(self) -> str:
+        """The value as sympy-parsable text."""
+        terms = self.terms
+        return terms.text() if terms is not None else sympy.sstr(self.value, order="lex")
+
+    def latex(self, symbol_names=None) -> str:
+        terms = self.terms
+        if terms is not None:
+            return terms.latex(symbol_names)
+        return sympy.latex(self.value, symbol_names=symbol_names or {}, order="lex")
 
     @property
     def label(self) -> str:

@@ -29,16 +29,16 @@ Index = tuple[int, ...]
 class CoefficientTable(Mapping):
     """{multi-index: sympy value}, converted lazily from exact ring elements.
 
-    `edge` (optional) maps (index, sympy value) to the final value, e.g. a mass factor applied
-    at the edge. Iteration order is deterministic: by total order, then descending lex.
+    `factor` (optional) gives, per multi-index, a sympy factor applied at the edge (a mass factor).
+    Iteration order is deterministic: by total order, then descending lex.
     """
 
     def __init__(self, ring: PolynomialRing, elements: Mapping[Index, object], order: int,
-                 edge: Callable[[Index, sympy.Expr], sympy.Expr] | None = None):
+                 factor: Callable[[Index], sympy.Expr] | None = None):
         self.ring = ring
         self.order = order
         self._elements = dict(elements)
-        self._edge = edge
+        self._factor = factor
         self._cache: dict[Index, sympy.Expr] = {}
         self._keys = [n for n in indices_up_to(ring.nvars, order, start=0) if n in self._elements]
 
@@ -49,8 +49,8 @@ class CoefficientTable(Mapping):
         if index not in self._cache:
             element = self._elements.get(index)
             value = sympy.Integer(0) if element is None else self.ring.to_expr(element)
-            if self._edge is not None:
-                value = self._edge(index, value)
+            if self._factor is not None:
+                value = value * self._factor(index)
             self._cache[index] = value
         return self._cache[index]
 
@@ -61,8 +61,16 @@ class CoefficientTable(Mapping):
         return len(self._keys)
 
     def element(self, index: Index):
-        """The exact ring element behind a value (before the edge map)."""
+        """The exact ring element behind a value (before the edge factor)."""
         return self._elements.get(tuple(index), self.ring.zero)
+
+    def term_sum(self, index: Index):
+        """The value as a `TermSum` read straight off the ring (no sympy expression is built), or
+        None when an atom or the edge factor is not a plain power product of symbols."""
+        from .terms import TermSum
+        index = tuple(index)
+        factor = sympy.Integer(1) if self._factor is None else self._factor(index)
+        return TermSum.from_ring(self.ring, self.element(index), factor)
 
     def __repr__(self) -> str:
         return f"CoefficientTable(order={self.order}, {len(self)} nonzero coefficients)"
@@ -186,8 +194,8 @@ class VirialResult:
     def fugacity(self, i: int) -> CoefficientTable:
         """z_i(rho) = w_i(rho) / b_{e_i}: coefficients of rho^n in the fugacity of species i."""
         c = self.linear[i]
-        edge = None if c == 1 else (lambda index, value: value / c)
-        return CoefficientTable(self.ring, self.w_series[i].coefficients(), self.order, edge)
+        factor = None if c == 1 else (lambda index: 1 / c)
+        return CoefficientTable(self.ring, self.w_series[i].coefficients(), self.order, factor)
 
     def legendre_pressure(self) -> Series:
         """P(rho) recomputed from the fugacities alone (independent self-check):
@@ -232,8 +240,8 @@ def virial_to_cluster(a: Mapping[Index, object], order: int, nspecies: int | Non
         log_ratio = H.euler(i).shift_down(i)            # d H / d rho_i, order drops by one
         w.append(_times_variable(log_ratio.exp(), i))    # w_i = rho_i exp(dH/drho_i)
     rho, (F,) = revert(w, also=[P.truncate(order)])
-    edge = None if all(c == 1 for c in lin) else (lambda index, value: value * _mass_power(lin, index))
-    return CoefficientTable(ring, F.coefficients(), order, edge)
+    factor = None if all(c == 1 for c in lin) else (lambda index: _mass_power(lin, index))
+    return CoefficientTable(ring, F.coefficients(), order, factor)
 
 
 def _times_variable(s: Series, i: int) -> Series:

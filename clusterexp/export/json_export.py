@@ -27,7 +27,7 @@ def to_json(derivation: Derivation) -> str:
                 "index": list(c.index),
                 "species": dict(zip(names, c.index)),
                 **({"component": c.component} if c.component else {}),
-                "value": sympy.sstr(c.value, order="lex"),
+                "value": c.text,
             }
             for c in derivation
         ],

@@ -43,7 +43,7 @@ def latex_snippet(derivation: Derivation, environment: str = "align", align: boo
     labels = [species_latex(s) for s in system.species_names]
     use_align = system.output.align if align is None else align
     amp = "&" if use_align else ""
-    rows = [f"  {_lhs(c, labels, system.dimension)} {amp}= {sympy.latex(c.value, symbol_names=names, order='lex')}"
+    rows = [f"  {_lhs(c, labels, system.dimension)} {amp}= {c.latex(names)}"
             for c in derivation]
     body = " \\\\\n".join(rows)
     return f"\\begin{{{environment}}}\n{body}\n\\end{{{environment}}}\n"

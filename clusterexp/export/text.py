@@ -17,5 +17,5 @@ def to_text(derivation: Derivation) -> str:
             kind = c.kind
             lines.append("")
             lines.append(KIND_TITLES[kind] + ":")
-        lines.append(f"  {c.label} = {sympy.sstr(c.value, order='lex')}")
+        lines.append(f"  {c.label} = {c.text}")
     return "\n".join(lines) + "\n"
