@@ -10,11 +10,15 @@ import sympy
 
 from .errors import InputError, NotSupportedYet, Span
 from .expressions import CONSTANTS, FUNCTIONS, ExpressionBuilder
-from .model import FORMATS, QUANTITIES, GivenValue, Mutual, OutputSettings, Parameter, Request, Source, Species, System
+from .model import (FORMATS, QUANTITIES, GivenValue, Mutual, OutputSettings, Parameter, Request, Source, Species,
+                    Spectrum, System)
 from .parse import parse
 
 MAX_ORDER = 200
-LATER_REGIMES = ("ideal", "exclusion", "landau", "pairphase")
+LATER_REGIMES = ("pairphase",)
+REGIME_FORMS = {"generic": (None,), "ideal": (None,), "exclusion": ("continuum", "level"),
+                "landau": ("exclusion", "spectrum")}
+TRAP = sympy.Symbol("x")
 RESERVED = {"b", "a", "z", "rho", "pi", "I", "E"} | set(FUNCTIONS)
 GENERATED = re.compile(r"^(b|a|z|rho)_")
 DEFAULT_ORDER = 4
@@ -89,12 +93,16 @@ class _Builder:
         self.requests: list[tuple[lark.Tree, _File]] = []
         self.output = OutputSettings()
         self.file = self.main
+        self.statistics: list[tuple[lark.Tree, _File]] = []
+        self.spectrum_items: list[tuple[lark.Tree, _File]] = []
+        self.warnings: list[tuple[str, Span | None]] = []
 
     def span(self, item) -> Span:
         return self.file.span(item)
 
-    def expr(self, tree) -> sympy.Expr:
+    def expr(self, tree, extra: dict | None = None) -> sympy.Expr:
         symbols = {p.name: p.symbol for p in self.parameters.values()}
+        symbols.update(extra or {})
         return ExpressionBuilder(symbols, self.span).build(tree)
 
     def system(self) -> System:
@@ -119,10 +127,11 @@ class _Builder:
             requests = [Request("cluster", span, up_to=order), Request("virial", span, up_to=order)]
         source = self.source or Source("generic", self._first_span())
         source = self._check_given(source, names, order)
+        source = self._check_regime(source, names)
         return System(dimension=self.dimension, species=tuple(self.species.values()), source=source,
                       requests=tuple(requests), order=order, reference=self.reference or names[0],
                       parameters=tuple(self.parameters.values()), mutuals=tuple(self.mutuals),
-                      output=self.output, files=tuple(self.files))
+                      output=self.output, files=tuple(self.files), warnings=tuple(self.warnings))
 
     def _first_span(self) -> Span:
         return self.main.span(self.statements[0][0]) if self.statements else Span(self.main.name, 1, 1)
@@ -164,7 +173,7 @@ class _Builder:
             lower, upper = self.expr(lo), self.expr(hi)
             if not (lower.is_real and upper.is_real and lower.is_number and upper.is_number) or bool(lower >= upper):
                 raise InputError("a range needs two real numbers, the lower first", self.span(ranges[0]))
-            lower_open, upper_open = str(left) == "(", str(right) == ")"
+            lower_open, upper_open = left.data == "open_end", right.data == "open_end"
         flags = {"real": True}
         for a in assumptions:
             flags[a] = True
@@ -185,9 +194,9 @@ class _Builder:
         mass, exchange, statistics = sympy.Integer(1), sympy.Integer(0), None
         seen = {}
         for prop in props:
-            kind = "statistics" if prop.data in ("prop_bose", "prop_fermi", "prop_exchange") else "mass"
+            kind = "mass" if prop.data == "prop_mass" else "statistics"
             if kind in seen:
-                raise InputError(f"species {token}: {'exchange/bose/fermi' if kind == 'statistics' else 'mass'}"
+                raise InputError(f"species {token}: {'exchange/bose/fermi/boltzmann' if kind == 'statistics' else 'mass'}"
                                  " given twice", self.span(prop))
             seen[kind] = prop
             if prop.data == "prop_mass":
@@ -200,8 +209,8 @@ class _Builder:
                 if exchange.is_real is False:
                     raise InputError("the exchange parameter must be real", self.span(prop.children[0]))
             else:
-                statistics = "bose" if prop.data == "prop_bose" else "fermi"
-                exchange = sympy.Integer(0 if statistics == "bose" else 1)
+                statistics = prop.data[len("prop_"):]
+                exchange = sympy.Integer(1 if statistics == "fermi" else 0)
         self.species[str(token)] = Species(str(token), mass, exchange, self.span(token), statistics)
 
     def _known_species(self, token) -> str:
@@ -231,13 +240,33 @@ class _Builder:
         self.source = source
 
     def _clusters_regime(self, tree):
-        token = tree.children[0]
+        token, *option_trees = tree.children
         word = str(token)
-        if word == "generic":
-            return self._set_source(Source("generic", self.span(token)), tree)
+        options = [o.children[0] if o.data == "option_word" else lark.Token("NAME", "spectrum", line=o.meta.line,
+                   column=o.meta.column, end_line=o.meta.end_line, end_column=o.meta.end_column)
+                   for o in option_trees]
         if word in LATER_REGIMES:
             raise InputError(f"regime '{word}' is not supported yet", self.span(token))
-        raise InputError(f"unknown regime '{word}'; expected generic or given", self.span(token))
+        if word not in REGIME_FORMS:
+            raise InputError(f"unknown regime '{word}'; expected generic, ideal, exclusion, landau, "
+                             "spectrum { ... } or given { ... }", self.span(token))
+        forms = REGIME_FORMS[word]
+        if len(options) > 1 or (options and str(options[0]) not in forms[1:] + forms[:1]):
+            bad = options[1] if len(options) > 1 else options[0]
+            allowed = " or ".join(f for f in forms if f) or "nothing"
+            raise InputError(f"`clusters {word}` takes {allowed} after it, not '{bad}'", self.span(bad))
+        form = str(options[0]) if options else forms[0]
+        self._set_source(Source(word, self.span(token), form=form), tree)
+
+    def _clusters_spectrum(self, tree):
+        self._set_source(Source("spectrum", self.span(tree)), tree)
+        self.spectrum_items = [(item, self.file) for item in tree.children]
+
+    def _statistics_entry(self, tree):
+        self.statistics.append((tree, self.file))
+
+    def _statistics_matrix(self, tree):
+        self.statistics.append((tree, self.file))
 
     def _given_block(self, tree, kind: str):
         values = []
@@ -357,6 +386,173 @@ class _Builder:
             values.append(GivenValue(kind, index, self.expr(value), self.span(ref)))
         self.file = self.main
         return Source("given", source.span, tuple(values))
+
+
+    # -- physical regimes -------------------------------------------------------------------------------
+    def _check_regime(self, source: Source, names: list[str]) -> Source:
+        if self.statistics and source.kind != "exclusion":
+            tree, file = self.statistics[0]
+            self.file = file
+            span = self.span(tree)
+            self.file = self.main
+            raise InputError("a statistics matrix is only used with `clusters exclusion`"
+                             + ("; the lowest Landau level takes it from the exchange and mutual parameters"
+                                if source.kind == "landau" else ""), span)
+        if source.kind == "ideal":
+            for s in self.species.values():
+                if s.statistics is None and s.exchange not in (0, 1):
+                    raise InputError(f"`clusters ideal` needs bose, fermi or boltzmann species; {s.name} has "
+                                     f"exchange parameter {s.exchange}", s.span)
+            self._no_mutuals("ideal gases")
+        elif source.kind == "exclusion":
+            source = Source("exclusion", source.span, form=source.form, matrix=self._exclusion_matrix(names))
+            if self.mutuals:
+                self.warnings.append(("mutual (braiding) parameters do not enter exclusion statistics; "
+                                      "they are ignored here (declare `statistics A B = ...`)", self.mutuals[0].span))
+        elif source.kind == "landau":
+            if self.dimension != 2:
+                raise InputError(f"the lowest Landau level lives in the plane; declare `dimension 2`, "
+                                 f"not {self.dimension}", source.span)
+            self._landau_range_warnings()
+            masses = {sympy.srepr(s.mass) for s in self.species.values()}
+            if len(masses) > 1:
+                self.warnings.append(("masses do not enter the lowest Landau level (all species are taken to "
+                                      "carry the same charge, hence the same degeneracy per area)", source.span))
+        elif source.kind == "spectrum":
+            source = Source("spectrum", source.span, spectrum=self._spectrum(names, source.span))
+        return source
+
+    def _no_mutuals(self, what: str) -> None:
+        if self.mutuals:
+            m = self.mutuals[0]
+            raise InputError(f"{what} have no pair phases; a mutual parameter cannot be used here", m.span)
+
+    def _exclusion_matrix(self, names: list[str]) -> tuple[tuple[sympy.Expr, ...], ...]:
+        K = len(names)
+        g: list[list] = [[None] * K for _ in range(K)]
+        for tree, file in self.statistics:
+            self.file = file
+            if tree.data == "statistics_matrix":
+                rows = tree.children
+                widths = [len(r.children) for r in rows]
+                if len(rows) != K or any(w != K for w in widths):
+                    shape = f"{len(rows)} x {max(widths)}" if len(set(widths)) == 1 else \
+                        f"{len(rows)} rows of lengths {', '.join(map(str, widths))}"
+                    raise InputError(f"the statistics matrix is {shape} but {K} species are declared "
+                                     f"({', '.join(names)}): it must be {K} x {K}", self.span(tree))
+                for i, row in enumerate(rows):
+                    for j, entry in enumerate(row.children):
+                        self._set_entry(g, i, j, entry, tree)
+            else:
+                first, second, value = tree.children
+                i, j = names.index(self._known_species(first)), names.index(self._known_species(second))
+                self._set_entry(g, i, j, value, first)
+        self.file = self.main
+        species = list(self.species.values())
+        for i in range(K):
+            for j in range(K):
+                if g[i][j] is None:
+                    g[i][j] = species[i].exchange if i == j else sympy.Integer(0)
+        return tuple(tuple(row) for row in g)
+
+    def _set_entry(self, g, i, j, tree, where):
+        if g[i][j] is not None:
+            names = list(self.species)
+            raise InputError(f"statistics entry g[{names[i]},{names[j]}] is given twice", self.span(where))
+        value = self.expr(tree)
+        if value.is_real is False:
+            raise InputError("statistics matrix entries must be real", self.span(tree))
+        g[i][j] = value
+
+    def _landau_range_warnings(self) -> None:
+        values = [(f"exchange parameter of {s.name}", s.exchange, s.span) for s in self.species.values()]
+        values += [(f"mutual parameter of {m.first} and {m.second}", m.value, m.span) for m in self.mutuals]
+        for what, value, span in values:
+            if value.is_number:
+                if not (0 <= value <= 1):
+                    self.warnings.append((f"the {what} is {value}, outside [0, 1] where the lowest-Landau-level "
+                                          "states interpolate linearly; results there are the linear continuation",
+                                          span))
+                continue
+            inside = all(self._within_unit(symbol) for symbol in value.free_symbols) and value.is_polynomial() \
+                and sympy.Poly(value, *value.free_symbols).total_degree() <= 1 and \
+                all(c >= 0 for c in sympy.Poly(value, *value.free_symbols).coeffs()) and \
+                sum(sympy.Poly(value, *value.free_symbols).coeffs()) <= 1
+            if not inside:
+                self.warnings.append((f"the lowest-Landau-level states interpolate linearly only for parameters in "
+                                      f"[0, 1]; declare a range inside [0, 1] for the {what} ({value}) to say so",
+                                      span))
+
+    def _within_unit(self, symbol) -> bool:
+        p = self.parameters.get(symbol.name)
+        return bool(p and p.lower is not None and p.upper is not None and p.lower >= 0 and p.upper <= 1)
+
+    def _spectrum(self, names: list[str], span: Span) -> Spectrum:
+        K = len(names)
+        species = list(self.species.values())
+        if "x" in self.parameters:
+            raise InputError("`x` stands for exp(-beta hbar omega) in a declared spectrum; rename the parameter x",
+                             self.parameters["x"].span)
+        counts = tuple(sympy.Symbol(f"N_{n}", integer=True, nonnegative=True) for n in names)
+        count_of = dict(zip(names, counts))
+        levels: list = [None] * K
+        fill: list = [None] * K
+        shift = None
+        trapped = {}
+        area = None
+        for item, file in self.spectrum_items:
+            self.file = file
+            kind = item.data
+            if kind == "levels":
+                i = names.index(self._known_species(item.children[0]))
+                if levels[i] is not None:
+                    raise InputError(f"levels of {names[i]} are given twice", self.span(item.children[0]))
+                levels[i] = self._trap_expr(item.children[1])
+            elif kind in ("fill_bose", "fill_fermi"):
+                i = names.index(self._known_species(item.children[0]))
+                if fill[i] is not None:
+                    raise InputError(f"the filling of {names[i]} is given twice", self.span(item.children[0]))
+                fill[i] = kind[len("fill_"):]
+            elif kind == "shift":
+                if shift is not None:
+                    raise InputError("`shift` is given twice", self.span(item))
+                shift = self.expr(item.children[0], extra=count_of)
+                if shift.is_real is False:
+                    raise InputError("the energy shift must be real", self.span(item.children[0]))
+            elif kind == "trapped":
+                ref, value = item.children
+                if str(ref.children[0]) != "Z":
+                    raise InputError(f"write trapped Z[...] = ..., not {ref.children[0]}[...]", self.span(ref.children[0]))
+                index = self._index(ref, names)
+                if index in trapped:
+                    raise InputError(f"Z{list(index)} is given twice", self.span(ref))
+                trapped[index] = self._trap_expr(value)
+            else:
+                word = "mass" if kind == "area_mass" else str(item.children[0])
+                if word not in ("mass", "count"):
+                    raise InputError(f"`area` is mass or count, not '{word}'", self.span(item.children[0]))
+                if area is not None:
+                    raise InputError("`area` is given twice", self.span(item))
+                area = word
+        self.file = self.main
+        from .routes.spectrum import harmonic_levels
+        for i, s in enumerate(species):
+            if levels[i] is None:
+                levels[i] = harmonic_levels(self.dimension)
+            if fill[i] is None:
+                if s.statistics == "boltzmann" or s.exchange not in (0, 1):
+                    raise InputError(f"say how {s.name} fills the levels (`fill {s.name} bose` or `fill {s.name} fermi`): "
+                                     "its statistics is neither bose nor fermi", s.span)
+                fill[i] = "fermi" if s.exchange == 1 else "bose"
+        self._no_mutuals("declared spectra carry their pair phases in `shift`; they")
+        return Spectrum(tuple(levels), tuple(fill), shift if shift is not None else sympy.Integer(0), counts,
+                        tuple(sorted(trapped.items())), area or "mass", span)
+
+    def _trap_expr(self, tree) -> sympy.Expr:
+        value = self.expr(tree, extra={"x": TRAP})
+        if not value.has(TRAP):
+            raise InputError("this function of x = exp(-beta hbar omega) does not contain x", self.span(tree))
+        return value
 
 
 def _total(request: Request) -> int:

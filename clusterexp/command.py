@@ -42,6 +42,8 @@ def main(argv: list[str] | None = None) -> int:
                 print(f"clusterexp: error: no such input file: {path}", file=sys.stderr)
                 return EXIT_INPUT_ERROR
             derivation = derive_file(path)
+        for message, span in derivation.system.warnings:
+            print(f"{span}: warning: {message}" if span else f"warning: {message}", file=sys.stderr)
         fmt = args.format or derivation.system.output.format
         if fmt == "latex" and args.document:
             text = latex_document(derivation)

@@ -16,7 +16,8 @@ from .naming import cluster_symbol, virial_symbol
 from .results import Coefficient, Derivation
 from .series import indices_up_to
 from .terms import TermSum
-from .virial import CoefficientTable, VirialResult, cluster_to_virial, density_expansion, virial_to_cluster
+from .virial import (CoefficientTable, VirialResult, cluster_to_virial, density_expansion, reduced_to_virial,
+                     virial_to_cluster)
 
 KIND_ORDER = ("cluster", "density", "fugacity", "virial")
 
@@ -46,8 +47,18 @@ class _Plan:
         return {v.index: v.value for v in self.system.source.values}
 
     @cached_property
+    def physical(self):
+        """The route's result for the physical regimes (None for generic/given)."""
+        from .routes import ROUTES, physical_clusters
+        if self.system.source.kind not in ROUTES:
+            return None
+        return physical_clusters(self.system, self.order)
+
+    @cached_property
     def cluster(self) -> Mapping[Index, sympy.Expr]:
         kind = self.system.source.kind
+        if self.physical is not None:
+            return self.physical.values
         if kind == "generic" or (kind == "given" and self._given_kind() == "cluster"):
             b = {_unit(self.K, i): c for i, c in enumerate(self.linear)}
             for index in indices_up_to(self.K, self.order, start=2):
@@ -63,6 +74,9 @@ class _Plan:
 
     @cached_property
     def reversion(self) -> VirialResult:
+        physical = self.physical
+        if physical is not None and physical.ring is not None:
+            return reduced_to_virial(physical.ring, physical.elements, self.order, [sympy.Integer(1)] * self.K)
         return cluster_to_virial(self.cluster, self.order, self.K)
 
     @cached_property

@@ -48,7 +48,7 @@ class Species:
     mass: sympy.Expr
     exchange: sympy.Expr
     span: Span
-    statistics: str | None = None  # "bose" / "fermi" when given by word, else None
+    statistics: str | None = None  # "bose" / "fermi" / "boltzmann" when given by word, else None
 
 
 @dataclass(frozen=True)
@@ -78,12 +78,39 @@ class Source:
 
     kind "generic": every b_n with |n| >= 2 is its own symbol;
     kind "given": the user states some b_n (kind "cluster") or some a_n (kind "virial"), the rest are
-    symbols. Later regimes add kinds of their own.
+    symbols;
+    kind "ideal": ideal Bose/Fermi/Boltzmann species (route R1);
+    kind "exclusion": exclusion statistics with `matrix` g (Haldane's g_ij = -dd_i/dN_j), `form`
+    "continuum" (the declared dimension) or "level" (one single-particle level);
+    kind "landau": lowest-Landau-level anyons, `form` "exclusion" (default route) or "spectrum";
+    kind "spectrum": a declared trapped spectrum (`spectrum`, route R2).
     """
 
     kind: str
     span: Span
     values: tuple[GivenValue, ...] = ()
+    form: str | None = None
+    matrix: tuple[tuple[sympy.Expr, ...], ...] | None = None
+    spectrum: "Spectrum | None" = None
+
+
+@dataclass(frozen=True)
+class Spectrum:
+    """A declared trapped spectrum in units of hbar omega, x = exp(-beta hbar omega).
+
+    `levels[i]`: one-body level generating function of species i in the symbol x; `fill[i]`: "bose"
+    or "fermi" occupation of those levels; `shift`: energy shift as an expression in `counts` (one
+    symbol per species standing for its particle number); `trapped`: explicit Z_n(x) for chosen n;
+    `area`: "mass" (weight (M_n/m_ref)^(d/2)) or "count" (weight |n|, lowest Landau level).
+    """
+
+    levels: tuple[sympy.Expr, ...]
+    fill: tuple[str, ...]
+    shift: sympy.Expr
+    counts: tuple[sympy.Symbol, ...]
+    trapped: tuple[tuple[Index, sympy.Expr], ...] = ()
+    area: str = "mass"
+    span: Span | None = None
 
 
 @dataclass(frozen=True)
@@ -118,6 +145,7 @@ class System:
     mutuals: tuple[Mutual, ...] = ()
     output: OutputSettings = field(default_factory=OutputSettings)
     files: tuple[str, ...] = ()
+    warnings: tuple[tuple[str, Span | None], ...] = ()
 
     @property
     def species_names(self) -> tuple[str, ...]:

@@ -1,6 +1,7 @@
 """Text -> lark tree, with lark's errors turned into `InputError`s that point at the user's text."""
 from __future__ import annotations
 
+import unicodedata
 from functools import cache
 
 import lark
@@ -9,6 +10,8 @@ from lark.exceptions import UnexpectedCharacters, UnexpectedEOF, UnexpectedInput
 from .errors import InputError, Span
 from .resources import grammar_text
 
+MAX_LINE_LENGTH = 100_000    # characters; longer lines are refused before parsing (parse time grows with them)
+MAX_INPUT_LENGTH = 2_000_000  # characters in one file
 STATEMENTS = "dimension, order, parameter, species, mutual, reference, clusters, virials, derive, output, include"
 
 
@@ -25,10 +28,32 @@ def span_at(text: str, filename: str, line: int, column: int, end_column: int | 
 
 def parse(text: str, filename: str = "<input>") -> lark.Tree:
     """Parse one file's text; syntax errors become InputError with a caret."""
+    _check_length(text, filename)
     try:
         return parser().parse(text)
     except UnexpectedInput as error:
         raise _friendly(error, text, filename) from None
+
+
+def _check_length(text: str, filename: str) -> None:
+    if len(text) <= MAX_LINE_LENGTH and "\n" not in text:
+        return
+    for number, line in enumerate(text.splitlines(), start=1):
+        if len(line) > MAX_LINE_LENGTH:
+            raise InputError(f"line {number} is {len(line):,} characters long (at most {MAX_LINE_LENGTH:,})",
+                             span_at(text, filename, number, MAX_LINE_LENGTH + 1))
+    if len(text) > MAX_INPUT_LENGTH:
+        raise InputError(f"the input is {len(text):,} characters long (at most {MAX_INPUT_LENGTH:,})",
+                         span_at(text, filename, 1, 1))
+
+
+def _describe_character(char: str) -> str:
+    """A character as the user can recognise it even when it is invisible or a look-alike."""
+    if char.isascii() and char.isprintable():
+        return repr(char)
+    name = unicodedata.name(char, "unnamed character")
+    shown = repr(char) if char.isprintable() and not char.isspace() else "(invisible)"
+    return f"{shown} U+{ord(char):04X} {name}; only ASCII letters, digits and symbols are read"
 
 
 def _friendly(error: UnexpectedInput, text: str, filename: str) -> InputError:
@@ -40,7 +65,7 @@ def _friendly(error: UnexpectedInput, text: str, filename: str) -> InputError:
     line, column = error.line, error.column
     if isinstance(error, UnexpectedCharacters):
         char = text[error.pos_in_stream] if error.pos_in_stream < len(text) else "?"
-        return InputError(f"unexpected character {char!r}", span_at(text, filename, line, column))
+        return InputError(f"unexpected character {_describe_character(char)}", span_at(text, filename, line, column))
     token = error.token
     expected = set(getattr(error, "expected", ()) or ())
     word = str(token)
@@ -50,6 +75,9 @@ def _friendly(error: UnexpectedInput, text: str, filename: str) -> InputError:
         message = f"unexpected {word!r}"
     else:
         message = f"unexpected {word!r}" + _expected_words(expected)
+    after = getattr(token, "end_pos", None)
+    if after is not None and after < len(text) and not text[after].isascii():
+        message += f" (it is followed by {_describe_character(text[after])})"
     return InputError(message, span_at(text, filename, line, column, column + max(1, len(word))))
 
 

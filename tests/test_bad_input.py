@@ -16,8 +16,8 @@ CASES = [
     ("dimension 2 species b_2", "'b_2' is a reserved name", "1:21"),
     ("dimension 2 parameter sqrt species A", "'sqrt' is a reserved name", "1:23"),
     ("dimension 2 species A mass 1 mass 2", "species A: mass given twice", "1:30"),
-    ("dimension 2 species A bose fermi", "species A: exchange/bose/fermi given twice", "1:28"),
-    ("dimension 2 species A bose exchange 1/2", "species A: exchange/bose/fermi given twice", "1:28"),
+    ("dimension 2 species A bose fermi", "species A: exchange/bose/fermi/boltzmann given twice", "1:28"),
+    ("dimension 2 species A bose exchange 1/2", "species A: exchange/bose/fermi/boltzmann given twice", "1:28"),
     ("dimension 2 species A mass -1", "mass must be positive", "1:28"),
     ("dimension 2 species A mass 0", "mass must be positive", "1:28"),
     ("dimension 2 parameter m species A mass m", "mass must be positive", "1:40"),
@@ -41,7 +41,7 @@ CASES = [
     ("dimension 2 species A derive density b[2]", "explicit indices are for cluster (b[...]) and virial (a[...]) requests", "1:30"),
     ("dimension 2 species A derive virial b[2]", "`derive virial` lists a[...], not b[...]", "1:37"),
     ("dimension 2 species A output format html", "unknown output format 'html'", "1:37"),
-    ("dimension 2 species A clusters ideal", "regime 'ideal' is not supported yet", "1:32"),
+    ("dimension 2 species A clusters pairphase", "regime 'pairphase' is not supported yet", "1:32"),
     ("dimension 2 species A clusters magic", "unknown regime 'magic'", "1:32"),
     ("dimension 2 species A clusters generic clusters generic", "the coefficient source", "1:40"),
     ("dimension 2 species A exchange foo(1)", "unknown function 'foo'", "1:32"),
@@ -56,6 +56,16 @@ CASES = [
     ("dimension 2 species A include \"no-such-file.gas\"", "cannot read included file no-such-file.gas", "1:31"),
     ("dimension 2 parameter x in [1, 0] species A", "a range needs two real numbers, the lower first", "1:25"),
     ("dimension 2 species Ａ", "unexpected character", "1:21"),
+    # types: values that must be real or positive
+    ("dimension 2 species A exchange sqrt(-1)", "the exchange parameter must be real", "1:32"),
+    ("dimension 2 species A species B mutual A B = 1 + sqrt(-4)", "the mutual parameter must be real", "1:46"),
+    ("dimension 2 species A mass log(0)", "mass must be positive", "1:28"),
+    ("dimension 2 parameter y in [sqrt(-1), 1] species A", "a range needs two real numbers", "1:25"),
+    # regimes
+    ("dimension 2 species A species B statistics matrix [[1, 0, 0], [0, 1, 0]] clusters exclusion",
+     "the statistics matrix is 2 x 3 but 2 species are declared", "1:33"),
+    ("dimension 3 species A clusters landau", "the lowest Landau level lives in the plane", "1:32"),
+    ("dimension 2 species A exchange 1/2 clusters ideal", "`clusters ideal` needs bose, fermi or boltzmann", "1:21"),
 ]
 
 

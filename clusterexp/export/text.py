@@ -4,13 +4,14 @@ from __future__ import annotations
 import sympy
 
 from ..results import Derivation
-from .common import CONVENTIONS, KIND_TITLES, summary_lines
+from .common import CONVENTIONS, KIND_TITLES, regime_lines, summary_lines
 
 
 def to_text(derivation: Derivation) -> str:
     """One line per coefficient, grouped by kind, after a commented header with the conventions."""
     lines = ["# clusterexp"] + [f"# {line}" for line in summary_lines(derivation.system)]
     lines.append(f"# conventions: {CONVENTIONS}")
+    lines += [f"# {line}" for line in regime_lines(derivation.system)]
     kind = None
     for c in derivation:
         if c.kind != kind:

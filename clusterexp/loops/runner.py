@@ -1,0 +1,270 @@
+"""Batches of loop samples on worker processes: seeds, rounds, caps, error bars.
+
+A run is a sequence of rounds; round r holds one batch of every family of the requested kind.  Batch
+(family, r) draws its random numbers from SeedSequence(seed, spawn_key=(family id, r)), so its values
+depend only on (seed, family, r, batch size, slices) and never on which process ran it or when.  The
+estimate after R rounds uses rounds 0..R-1 only (a contiguous prefix), so a run that stopped on a time
+cap is reproduced exactly by asking for the same number of rounds.
+
+Errors come from the scatter of independent batch means (every batch of a family has the same size).
+"""
+from __future__ import annotations
+
+import math
+import sys
+import time
+from concurrent.futures import FIRST_COMPLETED, ProcessPoolExecutor, wait
+from dataclasses import dataclass
+from multiprocessing import get_all_start_methods, get_context
+
+import numpy as np
+
+from clusterexp.errors import ClusterexpError
+
+from . import sampler
+
+FAMILY_IDS = {"cycle": 1, "exchange": 2, "triple": 3, "pair_loop": 4, "pair_swap": 5}
+SAMPLE_CLASSES = {
+    "cycle": sampler.CycleSamples,
+    "exchange": sampler.ExchangeSamples,
+    "triple": sampler.TripleSamples,
+    "pair_loop": sampler.PairLoopSamples,
+    "pair_swap": sampler.PairSwapSamples,
+}
+MIN_ROUNDS_FOR_TARGET = 10
+EARLY_MARGIN = 2.0       # give up early when the projection exceeds the cap by this factor ...
+EARLY_FRACTION = 0.1     # ... and at least this fraction of the cap has been spent
+
+
+class LoopsError(ClusterexpError):
+    """A request the loop estimator does not support, or inconsistent run settings."""
+
+
+class TargetNotReachable(LoopsError):
+    """The requested error bar cannot be reached within the time or sample cap."""
+
+    def __init__(self, message: str, needed_seconds: float, needed_samples: float):
+        super().__init__(message)
+        self.needed_seconds = needed_seconds
+        self.needed_samples = needed_samples
+
+
+def family_values(kind: str, family: str, samples, params: tuple, stride: int = 1) -> np.ndarray:
+    """Per-sample contribution of one family to the third-order (or second-order) coefficient."""
+    if family == "cycle":
+        return samples.values(params[0], stride)
+    if family == "exchange":
+        return samples.values(params[0], params[1] if kind == "pair_plus_one" else params[0], stride)
+    if family == "triple":
+        if kind == "pair_plus_one":
+            return samples.values(params[0], params[1], params[1], 1.5, stride)
+        return samples.values(params[0], params[0], params[0], 0.5, stride)
+    if family in ("pair_loop", "pair_swap"):
+        return samples.values(params[0])
+    raise LoopsError(f"unknown family {family!r}")
+
+
+# Families extrapolated in the slice number.  The slice study (docs/loops.md) found the O(1/n)
+# pair-product error in the 3-cycle family; the exchange and triple families agree between n = 8, 16
+# and 32 within their errors, and extrapolating them from n/2 = 4 slices was biased, so they are used
+# at the full slice number.  The two-body families are exact at any slicing.
+EXTRAPOLATED_FAMILIES = ("cycle",)
+
+
+def run_batch(kind: str, family: str, index: int, count: int, slices: int, seed: int,
+              params: list[tuple], extrapolate: bool = True) -> tuple[np.ndarray, np.ndarray, float]:
+    """One batch at every parameter point: the mean of the family's per-sample values and the mean
+    at the full slice number without extrapolation.
+
+    With `extrapolate` (cycle family only), each sample is evaluated on its own path with `slices` slices and with every
+    second slice point only (slices/2), and contributes 2 V(slices) - V(slices/2): the pair-product
+    error is O(1/slices), so this removes it to O(1/slices^2) at little cost in variance because the
+    two values are strongly correlated.
+    """
+    start = time.perf_counter()
+    seq = np.random.SeedSequence(entropy=seed, spawn_key=(FAMILY_IDS[family], index))
+    rng = np.random.default_rng(seq)
+    extrapolate = extrapolate and family in EXTRAPOLATED_FAMILIES
+    strides = (1, 2) if extrapolate else (1,)
+    samples = SAMPLE_CLASSES[family](rng, count, slices, strides)
+    means = np.empty(len(params))
+    raw = np.empty(len(params))
+    for k, p in enumerate(params):
+        v = family_values(kind, family, samples, p, 1)
+        raw[k] = v.mean()
+        if extrapolate:
+            v = 2.0 * v - family_values(kind, family, samples, p, 2)
+        means[k] = v.mean()
+    return means, raw, time.perf_counter() - start
+
+
+@dataclass
+class RunPlan:
+    kind: str
+    families: dict[str, int]          # family -> samples per batch
+    params: list[tuple]
+    slices: int
+    seed: int
+    workers: int
+    max_rounds: int | None            # from a sample budget
+    time_cap: float | None
+    target_error: float | None
+    label: str                        # name of the estimated coefficient, for messages
+    progress: bool
+    extrapolate: bool = True
+
+
+@dataclass
+class RunOutcome:
+    rounds: int
+    seconds: float
+    batch_means: dict[str, np.ndarray]     # family -> (rounds, params), extrapolated in slices
+    batch_raw: dict[str, np.ndarray]       # the same at the full slice number, not extrapolated
+
+
+def combined_error(batch_means: dict[str, np.ndarray]) -> np.ndarray:
+    """Standard error of the sum over families, per parameter point."""
+    var = 0.0
+    for m in batch_means.values():
+        r = m.shape[0]
+        # column by column, so that a point's error does not depend on the other points of a scan
+        col = np.array([m[:, k].var(ddof=1) / r for k in range(m.shape[1])]) if r > 1 else np.full(m.shape[1], np.inf)
+        var = var + col
+    return np.sqrt(var)
+
+
+def _round_tasks(plan: RunPlan, r: int):
+    return [(plan.kind, f, r, n, plan.slices, plan.seed, plan.params, plan.extrapolate)
+            for f, n in plan.families.items()]
+
+
+def execute(plan: RunPlan) -> RunOutcome:
+    start = time.perf_counter()
+    per_round = sum(plan.families.values())
+    done: dict[tuple[str, int], tuple] = {}
+    prefix = 0
+    next_round = 0
+    stop_submitting = False
+    show = plan.progress
+
+    def complete_prefix() -> int:
+        r = prefix
+        while all((f, r) in done for f in plan.families):
+            r += 1
+        return r
+
+    def outcome(rounds: int) -> RunOutcome:
+        means = {f: np.array([done[(f, r)][0] for r in range(rounds)]).reshape(rounds, len(plan.params))
+                 for f in plan.families}
+        raw = {f: np.array([done[(f, r)][1] for r in range(rounds)]).reshape(rounds, len(plan.params))
+               for f in plan.families}
+        return RunOutcome(rounds, time.perf_counter() - start, means, raw)
+
+    def check_target(rounds: int) -> bool:
+        """True when the target is met; raises when the caps make it unreachable."""
+        if plan.target_error is None or rounds < MIN_ROUNDS_FOR_TARGET:
+            return False
+        err = float(np.max(combined_error(outcome(rounds).batch_means)))
+        if err <= plan.target_error:
+            return True
+        elapsed = time.perf_counter() - start
+        factor = (err / plan.target_error) ** 2
+        need_rounds = rounds * factor
+        need_seconds = elapsed / rounds * need_rounds
+        need_samples = need_rounds * per_round
+        # Raise early only when clearly out of reach (the projection from a short run is noisy and
+        # includes start-up); a near miss runs to the cap and is reported at the end.
+        over_time = (plan.time_cap is not None and need_seconds > EARLY_MARGIN * plan.time_cap
+                     and elapsed >= EARLY_FRACTION * plan.time_cap)
+        over_samples = (plan.max_rounds is not None and need_rounds > EARLY_MARGIN * plan.max_rounds
+                        and rounds >= EARLY_FRACTION * plan.max_rounds)
+        if over_time or over_samples:
+            caps = []
+            if plan.time_cap is not None:
+                caps.append(f"time cap {plan.time_cap:g} s")
+            if plan.max_rounds is not None:
+                caps.append(f"sample cap {plan.max_rounds * per_round} samples")
+            raise TargetNotReachable(
+                f"target error {plan.target_error:g} on {plan.label} is out of reach: after {rounds * per_round} "
+                f"samples ({elapsed:.1f} s) the error is {err:.3g}; at the measured variance per sample the "
+                f"run would need about {need_samples:.3g} samples, about {need_seconds:.3g} s with "
+                f"{plan.workers} worker(s), but the {' and '.join(caps)} allow less. Raise the cap or the "
+                f"target error.", need_seconds, need_samples)
+        return False
+
+    def report(rounds: int) -> None:
+        if not show or rounds < 2:
+            return
+        means = outcome(rounds).batch_means
+        err = float(np.max(combined_error(means)))
+        value = sum(m.mean(axis=0) for m in means.values())[0]
+        sys.stderr.write(f"\r[loops] {plan.label}: {rounds} rounds, {rounds * per_round} samples, "
+                         f"{value:.6f} +- {err:.2g}, {time.perf_counter() - start:.1f} s   ")
+        sys.stderr.flush()
+
+    def may_submit() -> bool:
+        if stop_submitting:
+            return False
+        if plan.max_rounds is not None and next_round >= plan.max_rounds:
+            return False
+        if plan.time_cap is not None:
+            elapsed = time.perf_counter() - start
+            per = elapsed / prefix if prefix else 0.0
+            if elapsed + per / max(plan.workers, 1) > plan.time_cap:
+                return False
+        return True
+
+    try:
+        if plan.workers <= 1:
+            while may_submit():
+                for task in _round_tasks(plan, next_round):
+                    done[(task[1], task[2])] = run_batch(*task)
+                next_round += 1
+                prefix = complete_prefix()
+                report(prefix)
+                if check_target(prefix):
+                    break
+        else:
+            # fork: workers need no re-import of the caller's script (spawn would require a main guard)
+            ctx = get_context("fork" if "fork" in get_all_start_methods() else "spawn")
+            with ProcessPoolExecutor(max_workers=plan.workers, mp_context=ctx) as pool:
+                pending = {}
+                while True:
+                    while may_submit() and len(pending) < (plan.workers + 1) * len(plan.families):
+                        for task in _round_tasks(plan, next_round):
+                            pending[pool.submit(run_batch, *task)] = (task[1], task[2])
+                        next_round += 1
+                    if not pending:
+                        break
+                    finished, _ = wait(list(pending), return_when=FIRST_COMPLETED)
+                    for fut in finished:
+                        done[pending.pop(fut)] = fut.result()
+                    prefix = complete_prefix()
+                    report(prefix)
+                    if check_target(prefix):
+                        stop_submitting = True
+                        for fut in pending:
+                            fut.cancel()
+                        break
+    finally:
+        if show:
+            sys.stderr.write("\n")
+    rounds = complete_prefix()
+    if rounds < 2:
+        raise LoopsError(f"the run finished {rounds} round(s); at least 2 are needed for an error bar "
+                         f"(one round here is {per_round} samples): raise the time cap or the sample budget")
+    out = outcome(rounds)
+    if plan.target_error is not None:
+        err = float(np.max(combined_error(out.batch_means)))
+        if err > plan.target_error:
+            need = rounds * (err / plan.target_error) ** 2
+            raise TargetNotReachable(
+                f"target error {plan.target_error:g} on {plan.label} not reached: error {err:.3g} after "
+                f"{rounds * per_round} samples ({out.seconds:.1f} s); the run would need about "
+                f"{need * per_round:.3g} samples, about {out.seconds / rounds * need:.3g} s.",
+                out.seconds / rounds * need, need * per_round)
+    return out
+
+
+def rounds_for(samples: int, per_round: int) -> int:
+    return max(1, math.ceil(samples / per_round))

@@ -1,0 +1,196 @@
+"""Brownian loops for the three-particle cluster coefficients, stored so that phases can be re-evaluated.
+
+Units: lambda = 1 and beta = 1, so one particle's free kernel over imaginary time s is
+(1/s) exp(-pi |x - y|^2 / s): a planar Brownian motion with per-component variance s / (2 pi).
+A k-cycle of a permutation is one loop of duration k.  Every family below is translation invariant;
+one position (the start of the first loop) is integrated out exactly and gives the area, the others
+are sampled (importance sampling) where the integrand is not already normalised.
+
+Each `*Samples` object keeps, per sample, the sum of minimal slice angles over far slices and the list
+of near slices (see `pairfactor`).  The phase at any statistics parameter is recomputed from these
+without new random numbers, which is what parameter scans reuse.
+
+Families (the prefactors are derived in docs/loops.md):
+  cycle      one loop of duration 3; value (1/9) Re Phi                       -> b_3 (identical only)
+  exchange   loop of duration 2 (the transposed pair) and a loop of duration 1 (the third particle),
+             value (1/4) Re[Phi_12 (Phi_cross - 1)] / g(c)                       -> b_3 and b_21
+  triple     three loops of duration 1, value
+             c Re[Phi_12 Phi_13 Phi_23 - 1 - F_12 - F_13 - F_23] / g(rho, eta)  (c = 1/2 or 3/2)
+  pair_loop  two loops of duration 1 (validation: the loop part of b_2, and b_11)
+  pair_swap  one loop of duration 2 (validation: the exchange part of b_2)
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from .pairfactor import classify_segments, pair_factor
+
+# Importance sampling of sampled offsets: a defensive mixture of two centred complex Gaussians, so that
+# the weight stays bounded where the integrand's Gaussian tail is wider than the main component.
+# Widths fixed once from a pilot study of the variance per second (docs/loops.md); not tuned to results.
+MIX_WIDE_FRACTION = 0.2
+MIX_WIDE_FACTOR = 2.5
+WIDTH_EXCHANGE = 0.35
+WIDTH_TRIPLE = 0.22
+WIDTH_PAIR = 0.35
+
+
+@dataclass
+class PhaseData:
+    """Stored slice data of a group of pairs that share one statistics parameter, per sample."""
+
+    far: np.ndarray
+    rows: np.ndarray
+    x: np.ndarray
+    phi: np.ndarray
+
+    @classmethod
+    def from_paths(cls, u: np.ndarray, v: float) -> "PhaseData":
+        far, rows, x, phi = classify_segments(u, v)
+        return cls(far, rows, x, phi)
+
+    @classmethod
+    def join(cls, parts: list["PhaseData"]) -> "PhaseData":
+        """Several pair groups of the same samples under one parameter (phases multiply)."""
+        return cls(sum(p.far for p in parts), np.concatenate([p.rows for p in parts]),
+                   np.concatenate([p.x for p in parts]), np.concatenate([p.phi for p in parts]))
+
+    def phase(self, alpha: float) -> np.ndarray:
+        out = np.exp(1j * alpha * self.far)
+        if self.rows.size:
+            np.multiply.at(out, self.rows, pair_factor(alpha, self.x, self.phi))
+        return out
+
+    @property
+    def near_count(self) -> int:
+        return int(self.rows.size)
+
+
+def brownian_loops(rng: np.random.Generator, count: int, segments: int, duration: float) -> np.ndarray:
+    """`count` planar Brownian bridges from 0 back to 0, `segments` equal slices over `duration`."""
+    scale = np.sqrt(duration / segments / (2.0 * np.pi))
+    steps = rng.standard_normal((count, segments, 2)) * scale
+    walk = np.zeros((count, segments + 1), dtype=complex)
+    walk[:, 1:] = np.cumsum(steps[..., 0] + 1j * steps[..., 1], axis=1)
+    frac = np.arange(segments + 1) / segments
+    return walk - frac[None, :] * walk[:, -1:]
+
+
+def complex_normal(rng: np.random.Generator, count: int, width: float) -> np.ndarray:
+    z = rng.standard_normal((count, 2)) * width
+    return z[:, 0] + 1j * z[:, 1]
+
+
+def mixture_offsets(rng: np.random.Generator, count: int, width: float, dims: int):
+    """`dims` complex offsets per sample from the defensive mixture; returns (offsets, density)."""
+    wide = rng.random(count) < MIX_WIDE_FRACTION
+    scale = np.where(wide, width * MIX_WIDE_FACTOR, width)
+    z = rng.standard_normal((count, dims, 2)) * scale[:, None, None]
+    offsets = z[..., 0] + 1j * z[..., 1]
+    r2 = (np.abs(offsets) ** 2).sum(axis=1)
+    dens = 0.0
+    for frac, w in ((1.0 - MIX_WIDE_FRACTION, width), (MIX_WIDE_FRACTION, width * MIX_WIDE_FACTOR)):
+        dens = dens + frac * np.exp(-r2 / (2 * w * w)) / (2 * np.pi * w * w) ** dims
+    return offsets, dens
+
+
+def coarse(u: np.ndarray, stride: int) -> np.ndarray:
+    """Every `stride`-th point: the same path seen with `stride` times fewer slices."""
+    return u[:, ::stride]
+
+
+def phase_levels(u: np.ndarray, slices: int, strides) -> dict[int, PhaseData]:
+    """Slice data of a relative path at the full resolution and at coarser sub-samplings of it."""
+    return {s: PhaseData.from_paths(coarse(u, s), slice_variance(slices // s)) for s in strides}
+
+
+def slice_variance(segments: int) -> float:
+    """Per-component variance of a relative vector's increment over one slice (two particles)."""
+    return 2.0 * (1.0 / segments) / (2.0 * np.pi)
+
+
+class CycleSamples:
+    """The 3-cycle: one loop X of duration 3; the pair vectors X(t) - X(t+1) join into one closed curve."""
+
+    def __init__(self, rng: np.random.Generator, count: int, slices: int, strides=(1,)):
+        x = brownian_loops(rng, count, 3 * slices, 3.0)
+        idx = (np.arange(3 * slices + 1) + slices) % (3 * slices)
+        self.count = count
+        self.levels = phase_levels(x - x[:, idx], slices, strides)
+
+    def values(self, alpha: float, stride: int = 1) -> np.ndarray:
+        return self.levels[stride].phase(alpha).real / 9.0
+
+
+class ExchangeSamples:
+    """A transposed pair (one loop X of duration 2) and a third particle (loop Y of duration 1 at c)."""
+
+    def __init__(self, rng: np.random.Generator, count: int, slices: int, strides=(1,)):
+        x = brownian_loops(rng, count, 2 * slices, 2.0)
+        y = brownian_loops(rng, count, slices, 1.0)
+        centre = 0.5 * x[:, slices]
+        off, dens = mixture_offsets(rng, count, WIDTH_EXCHANGE, 1)
+        c = centre + off[:, 0]
+        self.count = count
+        self.weight = 1.0 / dens
+        self.pair = phase_levels(x[:, : slices + 1] - x[:, slices:], slices, strides)
+        y_twice = np.concatenate([y[:, :slices], y[:, :slices], y[:, :1]], axis=1)
+        self.cross = phase_levels(x - (c[:, None] + y_twice), slices, strides)
+
+    def values(self, alpha_pair: float, alpha_cross: float, stride: int = 1) -> np.ndarray:
+        ph = self.pair[stride].phase(alpha_pair) * (self.cross[stride].phase(alpha_cross) - 1.0)
+        return 0.25 * ph.real * self.weight
+
+
+class TripleSamples:
+    """Three loops of duration 1; offsets from Jacobi coordinates (rho, eta), d^2c2 d^2c3 = 3 d^2rho d^2eta."""
+
+    def __init__(self, rng: np.random.Generator, count: int, slices: int, strides=(1,)):
+        y = [brownian_loops(rng, count, slices, 1.0) for _ in range(3)]
+        off, dens = mixture_offsets(rng, count, WIDTH_TRIPLE, 2)
+        rho, eta = off[:, 0], off[:, 1]
+        z2 = -np.sqrt(2.0) * rho
+        z3 = -rho / np.sqrt(2.0) - np.sqrt(1.5) * eta
+        p1, p2, p3 = y[0], z2[:, None] + y[1], z3[:, None] + y[2]
+        self.count = count
+        self.weight = 1.0 / dens
+        self.p12 = phase_levels(p1 - p2, slices, strides)
+        self.p13 = phase_levels(p1 - p3, slices, strides)
+        self.p23 = phase_levels(p2 - p3, slices, strides)
+
+    def values(self, a12: float, a13: float, a23: float, prefactor: float, stride: int = 1) -> np.ndarray:
+        f12 = self.p12[stride].phase(a12) - 1.0
+        f13 = self.p13[stride].phase(a13) - 1.0
+        f23 = self.p23[stride].phase(a23) - 1.0
+        connected = f12 * f13 + f12 * f23 + f13 * f23 + f12 * f13 * f23
+        return prefactor * connected.real * self.weight
+
+
+class PairLoopSamples:
+    """Two loops of duration 1 at offset c: sum over samples of Re(Phi - 1)/g(c) estimates b_11.
+    With a single pair the slice factors are exact at any slice number (no extrapolation needed)."""
+
+    def __init__(self, rng: np.random.Generator, count: int, slices: int, strides=(1,)):
+        y1 = brownian_loops(rng, count, slices, 1.0)
+        y2 = brownian_loops(rng, count, slices, 1.0)
+        off, dens = mixture_offsets(rng, count, WIDTH_PAIR, 1)
+        self.count = count
+        self.weight = 1.0 / dens
+        self.data = PhaseData.from_paths(y1 - (off[:, 0:1] + y2), slice_variance(slices))
+
+    def values(self, alpha: float, stride: int = 1) -> np.ndarray:
+        return (self.data.phase(alpha) - 1.0).real * self.weight
+
+
+class PairSwapSamples:
+    """One loop X of duration 2, pair vector X(t) - X(t+1) from r to -r: (1/2) Re Phi is J_swap / Area."""
+
+    def __init__(self, rng: np.random.Generator, count: int, slices: int, strides=(1,)):
+        x = brownian_loops(rng, count, 2 * slices, 2.0)
+        self.count = count
+        self.data = PhaseData.from_paths(x[:, : slices + 1] - x[:, slices:], slice_variance(slices))
+
+    def values(self, alpha: float, stride: int = 1) -> np.ndarray:
+        return 0.5 * self.data.phase(alpha).real

@@ -1,0 +1,155 @@
+"""Exclusion statistics (route R5): cluster coefficients from a K x K statistics matrix, exactly.
+
+Index convention (Haldane's counting): g[i][j] = -dd_i/dN_j, the number of single-particle states of
+species i lost per particle of species j added. Wu's distribution then reads, per level, with
+u_i = 1/w_i and xi_i = z_i e^{-beta eps_i},
+
+    u_i = xi_i (1 + u_i) prod_j (1 + u_j)^(-g_ji),        beta P / (states) = sum_i ln(1 + u_i).
+
+The per-level cluster coefficients b^lev_n (coefficient of xi^n in sum_i ln(1 + u_i)) follow in
+closed form from Good's multivariate Lagrange inversion with phi_i(u) = (1 + u_i) prod_j (1+u_j)^(-g_ji):
+
+    [xi^n] F(u(xi)) = [u^n] F(u) prod_i phi_i^{n_i} det(delta_ij - u_j d_j ln phi_i).
+
+Here prod_i phi_i^{n_i} = prod_j (1 + u_j)^{e_j}, e_j = n_j - sum_i g_ji n_i, and the determinant is
+det(1 - C diag(q)), C_ij = delta_ij - g_ji, q_j = u_j/(1 + u_j), whose principal-minor expansion
+sum_S (-1)^|S| det(C_SS) prod_{j in S} q_j leaves only one-variable coefficient extractions:
+
+    b^lev_n = sum_S (-1)^|S| det(C_SS) sum_i L_i(S) prod_{j != i} binom(e_j - s_j, n_j - s_j),
+    L_i(S) = sum_{k=1}^{n_i - s_i} ((-1)^(k+1)/k) binom(e_i - s_i, n_i - s_i - k),
+
+with s_j = 1 for j in S. Binomials of polynomial tops are falling factorials; no series inversion
+and no fixed point is needed, so any order and symbolic matrices cost little.
+
+Continuum gas in d dimensions: the levels are momentum cells shared by all species, eps_i(k) =
+hbar^2 k^2 / 2 m_i, so integrating over k gives b_n = b^lev_n (sum_i n_i m_ref / m_i)^(-d/2).
+"""
+from __future__ import annotations
+
+from fractions import Fraction
+from itertools import combinations
+from typing import Sequence
+
+import sympy
+
+from ..series import PolynomialRing, collect_atoms, indices_up_to
+
+Index = tuple[int, ...]
+
+
+def statistics_ring(g: Sequence[Sequence[object]], extra_atoms=(), backend: str | None = None) -> PolynomialRing:
+    """A ring with K expansion variables over the atoms of the matrix entries."""
+    K = len(g)
+    entries = [sympy.sympify(x) for row in g for x in row]
+    return PolynomialRing(K, collect_atoms(entries + list(extra_atoms)), backend=backend)
+
+
+def level_clusters(g: Sequence[Sequence[object]], order: int, ring: PolynomialRing | None = None,
+                   indices: Sequence[Index] | None = None) -> tuple[PolynomialRing, dict[Index, object]]:
+    """Per-level cluster coefficients b^lev_n for 1 <= |n| <= order as ring elements.
+
+    >>> g = sympy.Symbol("g")
+    >>> ring, b = level_clusters([[g]], 3)
+    >>> sympy.factor(ring.to_expr(b[(3,)]))
+    (3*g - 2)*(3*g - 1)/6
+    """
+    K = len(g)
+    if any(len(row) != K for row in g):
+        raise ValueError("the statistics matrix must be square")
+    ring = ring or statistics_ring(g)
+    G = [[ring.from_expr(sympy.sympify(g[i][j])) for j in range(K)] for i in range(K)]
+    C = [[(ring.one if i == j else ring.zero) - G[j][i] for j in range(K)] for i in range(K)]
+    minors: dict[tuple[int, ...], object] = {(): ring.one}
+    out: dict[Index, object] = {}
+    for n in (indices if indices is not None else indices_up_to(K, order)):
+        out[tuple(n)] = _level_coefficient(ring, G, C, tuple(n), minors)
+    return ring, out
+
+
+def _level_coefficient(ring, G, C, n: Index, minors) -> object:
+    K = len(n)
+    support = [j for j in range(K) if n[j]]
+    # e_j = n_j - sum_i g_ji n_i
+    e = []
+    for j in range(K):
+        acc = ring.constant(n[j])
+        for i in range(K):
+            if n[i]:
+                acc = acc - G[j][i] * ring.rational(n[i])
+        e.append(acc)
+    total = ring.zero
+    for size in range(len(support) + 1):
+        for S in combinations(support, size):
+            det = _minor(ring, C, S, minors)
+            if ring.is_zero(det):
+                continue
+            s = [1 if j in S else 0 for j in range(K)]
+            binoms = [_binomials(ring, e[j] - ring.rational(s[j]), n[j] - s[j]) for j in range(K)]
+            inner = ring.zero
+            for i in support:
+                if n[i] - s[i] < 1:
+                    continue
+                top = binoms[i]
+                L = ring.zero
+                for k in range(1, n[i] - s[i] + 1):
+                    L = L + top[n[i] - s[i] - k] * ring.rational(Fraction((-1) ** (k + 1), k))
+                prod = L
+                for j in range(K):
+                    if j != i:
+                        prod = prod * binoms[j][n[j] - s[j]]
+                inner = inner + prod
+            term = det * inner
+            total = total - term if size % 2 else total + term
+    return total
+
+
+def _binomials(ring, top, kmax: int) -> list:
+    """binom(top, k) for k = 0..kmax (top a ring element): falling factorials over k!."""
+    out = [ring.one]
+    for k in range(1, kmax + 1):
+        out.append(out[-1] * (top - ring.rational(k - 1)) * ring.rational(Fraction(1, k)))
+    return out
+
+
+def _minor(ring, C, S: tuple[int, ...], cache) -> object:
+    """det(C_SS) by Laplace expansion along the first row (cached by S)."""
+    if S in cache:
+        return cache[S]
+    if len(S) == 1:
+        value = C[S[0]][S[0]]
+    else:
+        value = ring.zero
+        first, rest = S[0], S[1:]
+        for pos, col in enumerate(S):
+            sub_cols = S[:pos] + S[pos + 1:]
+            value = value + C[first][col] * _minor_cols(ring, C, rest, sub_cols, cache) * ring.rational((-1) ** pos)
+    cache[S] = value
+    return value
+
+
+def _minor_cols(ring, C, rows, cols, cache):
+    if rows == cols:
+        return _minor(ring, C, rows, cache)
+    key = ("rc", rows, cols)
+    if key in cache:
+        return cache[key]
+    if len(rows) == 1:
+        value = C[rows[0]][cols[0]]
+    else:
+        value = ring.zero
+        for pos, col in enumerate(cols):
+            value = value + C[rows[0]][col] * _minor_cols(ring, C, rows[1:], cols[:pos] + cols[pos + 1:], cache) \
+                * ring.rational((-1) ** pos)
+    cache[key] = value
+    return value
+
+
+def continuum_factor(index: Index, masses: Sequence[sympy.Expr], m_ref: sympy.Expr, d: int) -> sympy.Expr:
+    """(sum_i n_i m_ref / m_i)^(-d/2): the k integral of prod_i e^{-beta n_i eps_i(k)} in units of
+    lambda_ref^-d."""
+    inverse = sympy.Add(*(n * m_ref / m for n, m in zip(index, masses) if n))
+    return sympy.powsimp(sympy.Pow(inverse, -sympy.Rational(d, 2)))
+
+
+def equal_masses(masses: Sequence[sympy.Expr]) -> bool:
+    return all(sympy.simplify(m - masses[0]) == 0 for m in masses)

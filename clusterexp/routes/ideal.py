@@ -1,0 +1,32 @@
+"""Ideal quantum gases (route R1): b_{l e_i} = (m_i/m_ref)^{d/2} (+-1)^{l+1} l^{-1-d/2}, upper sign
+bosons, lower fermions; Boltzmann species have b_{e_i} only; ideal species have no mixed b."""
+from __future__ import annotations
+
+from typing import Sequence
+
+import sympy
+
+Index = tuple[int, ...]
+
+STATISTICS = ("bose", "fermi", "boltzmann")
+
+
+def ideal_clusters(statistics: Sequence[str], masses: Sequence[sympy.Expr], m_ref: sympy.Expr, d: int,
+                   order: int) -> dict[Index, sympy.Expr]:
+    """Every nonzero b_n up to total order `order` (exact: irrational powers stay sympy radicals).
+
+    >>> ideal_clusters(["bose"], [1], 1, 3, 3)[(2,)]
+    sqrt(2)/8
+    """
+    K = len(statistics)
+    half_d = sympy.Rational(d, 2)
+    out: dict[Index, sympy.Expr] = {}
+    for i, (kind, m) in enumerate(zip(statistics, masses)):
+        if kind not in STATISTICS:
+            raise ValueError(f"unknown statistics {kind!r}")
+        top = 1 if kind == "boltzmann" else order
+        for l in range(1, top + 1):
+            sign = 1 if kind == "bose" or l % 2 else -1
+            index = tuple(l if j == i else 0 for j in range(K))
+            out[index] = sympy.powsimp((m / m_ref) ** half_d) * sign * sympy.Integer(l) ** (-1 - half_d)
+    return out

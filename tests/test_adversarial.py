@@ -1,0 +1,300 @@
+"""Hostile input: huge numbers, deep nesting, very long lines, unicode look-alikes, derivations too
+large to start, and interrupted or refused output files. Each is refused cleanly (an InputError at the
+right place; from the command line exit code 2 and no traceback) and quickly."""
+import os
+import re
+import time
+from pathlib import Path
+
+import pytest
+import sympy
+
+import clusterexp
+from clusterexp import InputError, build_system
+from clusterexp.export import FORMATTERS
+from clusterexp.limits import DEFAULT_SIZE_LIMIT, check_size, count_multi_indices, estimate, weighted_partitions
+
+from conftest import ROOT, run_cli
+from test_fuzz import run_main, time_guard
+
+SPECIES = "dimension 2 species A "
+
+
+def refusal(text: str, seconds: float = 10) -> InputError:
+    start = time.perf_counter()
+    with time_guard(seconds), pytest.raises(InputError) as caught:
+        clusterexp.derive(text, filename="hostile.gas")
+    assert time.perf_counter() - start < seconds
+    return caught.value
+
+
+def place(error: InputError) -> tuple[int, int]:
+    return error.span.line, error.span.column
+
+
+# (name, input, message start, line, column); the column is computed from the text where it is
+# easier to read that way.
+HOSTILE = [
+    ("tower of powers", SPECIES + "exchange 2^2^2^2^2^2", "exponent 65536 is too large", 1, 36),
+    ("ten to the 100000", SPECIES + "exchange 10^100000", "exponent 100000 is too large", 1, 35),
+    ("power with too many digits", SPECIES + "mass 10^5000", "this power has about 5000 digits", 1, 28),
+    ("power of a power", SPECIES + "mass (2^10000)^10000", "this power has about 3010 digits", 1, 29),
+    ("huge literal", SPECIES + "mass " + "7" * 5000, "number with too many digits", 1, 28),
+    ("huge decimal exponent", SPECIES + "mass 1e999999999999", "number with too many digits", 1, 28),
+    ("exponent with a huge denominator", SPECIES + "mass 2^(1/10^900)", "exponent", 1, 31),
+    ("long product of big numbers", SPECIES + "mass " + "*".join(["10^999"] * 50), "a number in this expression has about 1998 digits", 1, 35),
+    ("huge factorial", SPECIES + "exchange factorial(10^6)", "argument of factorial is too large", 1, 42),
+    ("huge binomial", SPECIES + "exchange binomial(10^900, 10^899)", "argument of binomial is too large", 1, 41),
+    ("huge gamma", SPECIES + "exchange gamma(10^900)", "argument of gamma is too large", 1, 38),
+    ("huge zeta", SPECIES + "exchange zeta(100000)", "argument of zeta is too large", 1, 37),
+    ("factorial of a big number", SPECIES + "exchange factorial(1000)", "a number in this expression has about 2567", 1, 32),
+    ("1000 nested calls", SPECIES + "mass " + "sqrt(" * 1000 + "2" + ")" * 1000, "expression is nested too deeply", 1,
+     28 + 5 * 100),
+    ("1000 nested powers", SPECIES + "mass " + "2^(" * 1000 + "1" + ")" * 1000, "expression is nested too deeply", 1,
+     None),
+    ("power chain", SPECIES + "exchange " + "^".join(["1"] * 1000), "expression is nested too deeply", 1, None),
+    ("1 MB line", SPECIES + "exchange 1 # " + "x" * 1_000_000, "line 1 is 1,000,035 characters long", 1, 100_001),
+    ("1 MB expression", SPECIES + "exchange " + "+".join(["1"] * 500_000), "line 1 is", 1, 100_001),
+    ("3 MB of short lines", SPECIES + "\n" + "# padding\n" * 300_000, "the input is", 1, 1),
+    ("Cyrillic a in a species name", SPECIES.replace("A", "G\u0430s"), "unexpected character '\u0430' U+0430 CYRILLIC SMALL LETTER A", 1, 22),
+    ("Cyrillic A as a whole name", "dimension 2 species \u0410", "unexpected character '\u0410' U+0410 CYRILLIC CAPITAL", 1, 21),
+    ("full-width digit", "dimension \uff12 species A", "unexpected character '\uff12' U+FF12 FULLWIDTH DIGIT TWO", 1, 11),
+    ("zero-width space in a name", "dimension 2 species A\u200bB", "unexpected character (invisible) U+200B ZERO WIDTH SPACE", 1, 22),
+    ("no-break space between words", "dimension 2\nspecies\u00a0A", "unexpected character (invisible) U+00A0 NO-BREAK SPACE", 2, 8),
+    ("Greek omicron in a keyword", "dimension 2 species A derive virial up t\u03bf 2", "unexpected 't'; expected 'to' (it is followed by '\u03bf' U+03BF GREEK SMALL LETTER OMICRON", 1, 40),
+    ("NUL byte", "dimension 2 species A\x00", "unexpected character (invisible) U+0000", 1, 22),
+]
+
+
+@pytest.mark.parametrize("name, text, message, line, column", HOSTILE, ids=[h[0] for h in HOSTILE])
+def test_hostile_input_is_refused_at_the_right_place(name, text, message, line, column):
+    error = refusal(text)
+    assert error.message.startswith(message), error.message[:300]
+    assert error.span.line == line, error.message[:200]
+    if column is not None:
+        assert error.span.column == column, (error.span.column, error.message[:200])
+    lines = text.splitlines()
+    assert error.span.line_text == lines[line - 1]
+    assert error.render().startswith(f"hostile.gas:{line}:{error.span.column}: error: ")
+
+
+@pytest.mark.parametrize("name, text, message, line, column",
+                         [h for h in HOSTILE if h[0] in ("tower of powers", "1 MB line", "1000 nested calls",
+                                                         "Cyrillic a in a species name", "zero-width space in a name",
+                                                         "huge binomial")],
+                         ids=lambda v: v if isinstance(v, str) and len(v) < 40 else "")
+def test_hostile_input_from_the_command_line(name, text, message, line, column, tmp_path):
+    path = tmp_path / "hostile.gas"
+    path.write_text(text, encoding="utf-8")
+    result = run_cli("run", str(path))
+    assert result.returncode == 2, result.stderr[:500]
+    assert "Traceback" not in result.stderr
+    first = result.stderr.splitlines()[0]
+    assert first.startswith(f"{path}:{line}:") and message in first, first[:300]
+    assert "^" in result.stderr
+
+
+def test_nesting_is_counted_on_true_nesting_only():
+    # 1000 parentheses around a value add no nesting; neither do long chains of + - * / or of signs
+    wrapped = clusterexp.derive(SPECIES + "mass " + "(" * 1000 + "3" + ")" * 1000 + " species B derive virial up to 2")
+    plain = clusterexp.derive(SPECIES + "mass 3 species B derive virial up to 2")
+    assert [c.value for c in wrapped] == [c.value for c in plain]
+    system = build_system(SPECIES + "exchange " + "+".join(["1/7"] * 20_000) + " - " + "-" * 500 + "1")
+    assert system.species[0].exchange == sympy.Rational(20_000, 7) - 1
+    system = build_system(SPECIES + "mass " + "*".join(["2"] * 2000) + "/" + "/".join(["2"] * 1999))
+    assert system.species[0].mass == 2
+    nested = SPECIES + "mass " + "sqrt(" * 99 + "2" + ")" * 99
+    assert build_system(nested).species[0].mass == 2 ** sympy.Rational(1, 2 ** 99)
+
+
+def test_numbers_at_the_limit_are_read_exactly():
+    assert build_system(SPECIES + "mass 10^999").species[0].mass == 10 ** 999
+    assert build_system(SPECIES + "mass 1e999").species[0].mass == 10 ** 999
+    assert build_system(SPECIES + "mass 1e-999").species[0].mass == sympy.Rational(1, 10 ** 999)
+    assert build_system(SPECIES + "exchange 0e99999999").species[0].exchange == 0
+    assert build_system(SPECIES + "exchange 0.000e-99999999").species[0].exchange == 0
+    assert build_system(SPECIES + "mass 0.5e3").species[0].mass == 500
+
+
+def test_no_recursion_error_escapes_an_expression():
+    # mixing every operator keeps the nesting honest; whatever the depth, the answer is an InputError
+    for depth in (50, 99, 100, 150, 3000):
+        text = SPECIES + "exchange " + "-(2*(1+" * depth + "1" + "))" * depth
+        try:
+            build_system(text)
+        except InputError as error:
+            assert error.message.startswith("expression is nested too deeply"), error.message
+            assert depth >= 50
+
+
+# -- derivations too large to start ---------------------------------------------------------------------
+
+def test_multi_index_count_is_the_binomial():
+    from clusterexp.series import indices_up_to
+    for K in (1, 2, 3, 4):
+        for N in (1, 3, 6):
+            assert count_multi_indices(K, N) == len(indices_up_to(K, N))
+
+
+def test_one_species_terms_are_the_partitions_of_n_minus_one():
+    # a_n in generic b has one term per partition of n - 1 (common practice: each monomial
+    # b_{m_1}...b_{m_k} has sum (m_j - 1) = n - 1); compared with sympy's partition numbers
+    from sympy.functions.combinatorial.numbers import partition
+    for N in range(2, 30):
+        system = build_system(f"dimension 2 species A derive virial up to {N}")
+        assert estimate(system).largest_terms == partition(N - 1)
+    assert weighted_partitions({1: 2}, 3) == 4  # two kinds of weight-1 part, three of them: 4 multisets
+
+
+@pytest.mark.parametrize("K, N", [(1, 9), (2, 6), (2, 8), (3, 5), (4, 5)])
+def test_estimate_is_within_a_factor_three_of_the_real_size(K, N):
+    species = " ".join(f"species S{i}" for i in range(K))
+    d = clusterexp.derive(f"dimension 2 {species} clusters generic derive virial up to {N}")
+    sizes = [len(c.terms) for c in d if c.order == N]
+    found = estimate(d.system)
+    assert max(sizes) / 3 <= found.largest_terms <= 3 * max(sizes), (found, max(sizes))
+    assert sum(sizes) / 3 <= found.layer_terms <= 3 * sum(sizes), (found, sum(sizes))
+
+
+def test_stated_numbers_shrink_the_estimate():
+    generic = estimate(build_system("dimension 2 species A derive virial up to 30"))
+    given = estimate(build_system("dimension 2 species A clusters given { "
+                                  + " ".join(f"b[{n}] = 1/{n}" for n in range(2, 31)) + " } derive virial up to 30"))
+    assert given.layer_terms == 1 and given.unknown_symbols == 0 and generic.unknown_symbols == 29
+    half = estimate(build_system("dimension 2 parameter g species A clusters given { b[2] = g } derive virial up to 30"))
+    assert half.layer_terms == generic.layer_terms  # a symbol for a symbol: same count
+
+
+def test_too_large_a_derivation_is_refused_at_the_derive_line_before_it_starts():
+    text = "dimension 2\nspecies A\nspecies B\nspecies C\nderive cluster up to 2\nderive virial up to 200\n"
+    system = build_system(text, "big.gas")
+    start = time.perf_counter()
+    with pytest.raises(InputError) as caught:
+        check_size(system)
+    assert time.perf_counter() - start < 2
+    error = caught.value
+    assert place(error) == (6, 1), error.render()
+    assert "1,373,700 multi-indices" in error.message and f"{DEFAULT_SIZE_LIMIT:,}" in error.message
+    assert "far beyond" in error.hint
+    assert error.render().splitlines()[0].startswith("big.gas:6:1: error: this derivation is too large")
+
+
+def test_the_limit_can_be_raised_and_the_worked_examples_fit():
+    system = build_system("dimension 2 species A species B derive virial up to 16", "two.gas")
+    with pytest.raises(InputError) as caught:
+        check_size(system)
+    assert "--size-limit 400000" in caught.value.hint and "`size limit 400000`" in caught.value.hint
+    assert check_size(system, limit=10 ** 7).layer_terms > DEFAULT_SIZE_LIMIT
+    for example in sorted((ROOT / "worked").glob("*/input.gas")) + [ROOT / "clusterexp" / "demo.gas"]:
+        check_size(clusterexp.build_system_from_file(example))
+    many = build_system("dimension 2 " + " ".join(f"species S{i}" for i in range(60)) + " derive virial up to 3")
+    with pytest.raises(InputError, match="60 species"):
+        check_size(many)
+
+
+# -- output files -----------------------------------------------------------------------------------------
+
+ARGS = ["run", "-e", "dimension 2 species A species B derive virial up to 3", "--format", "latex"]
+
+
+def leftovers(folder: Path) -> list[str]:
+    return [p.name for p in folder.iterdir() if p.name.endswith(".part")]
+
+
+@pytest.mark.parametrize("moment", ["while writing", "before the rename"])
+def test_interrupt_while_writing_leaves_no_half_file(moment, tmp_path, monkeypatch):
+    target = tmp_path / "out.tex"
+    real_fdopen, real_replace = os.fdopen, os.replace
+
+    class HalfWriter:
+        def __init__(self, stream):
+            self.stream = stream
+
+        def __enter__(self):
+            return self
+
+        def __exit__(self, *exc):
+            self.stream.close()
+
+        def write(self, text):
+            self.stream.write(text[: len(text) // 2])
+            self.stream.flush()
+            raise KeyboardInterrupt
+
+    def interrupted_replace(*args):
+        raise KeyboardInterrupt
+
+    if moment == "while writing":
+        monkeypatch.setattr(os, "fdopen", lambda *a, **k: HalfWriter(real_fdopen(*a, **k)))
+    else:
+        monkeypatch.setattr(os, "replace", interrupted_replace)
+    with pytest.raises(KeyboardInterrupt):
+        run_main(ARGS + ["-o", str(target)])
+    assert not target.exists()
+    assert leftovers(tmp_path) == []
+    # and an existing file replaced with --overwrite keeps its old content when interrupted
+    target.write_text("the user's notes")
+    with pytest.raises(KeyboardInterrupt):
+        run_main(ARGS + ["-o", str(target), "--overwrite"])
+    assert target.read_text() == "the user's notes"
+    assert leftovers(tmp_path) == []
+    monkeypatch.setattr(os, "fdopen", real_fdopen)
+    monkeypatch.setattr(os, "replace", real_replace)
+    assert run_main(ARGS + ["-o", str(target), "--overwrite"])[0] == 0
+    assert target.read_text().startswith("\\begin{align}")
+
+
+def test_existing_file_is_never_overwritten_without_the_option(tmp_path):
+    target = tmp_path / "result.json"
+    target.write_bytes(b"\x00precious\xff")
+    code, out, err = run_main(ARGS + ["--format", "json", "-o", str(target)])
+    assert code == 2 and "exists" in err and "--overwrite" in err and out == ""
+    assert target.read_bytes() == b"\x00precious\xff"
+    assert leftovers(tmp_path) == []
+    code, _, _ = run_main(ARGS + ["--format", "json", "-o", str(target), "--overwrite"])
+    assert code == 0 and target.read_text(encoding="utf-8").lstrip().startswith("{")
+
+
+def test_output_written_through_the_command_is_complete(tmp_path):
+    target = tmp_path / "out.txt"
+    code, out, _ = run_main(["run", "-e", "dimension 2 species A species B derive virial up to 3", "-o", str(target)])
+    assert code == 0 and out == ""
+    _, printed, _ = run_main(["run", "-e", "dimension 2 species A species B derive virial up to 3"])
+    assert target.read_text(encoding="utf-8") == printed
+
+
+# -- known problems outside these modules (patches proposed in .helper-notes-reliability.md) -------------
+
+@pytest.mark.xfail(reason="build.py: an undecidable range comparison raises TypeError", raises=TypeError)
+def test_undecidable_range_is_an_input_error():
+    error = refusal("dimension 2 parameter y in [sin(1)^2 + cos(1)^2, 1] species A")
+    assert error.span.column == 25
+
+
+@pytest.mark.xfail(reason="build.py: deciding the sign of an exp tower overflows", strict=True)
+def test_exp_tower_mass_is_an_input_error_or_accepted():
+    # whether sympy overflows depends on the hash seed (0, 2 and 7 did on one machine): try several
+    for seed in ("0", "1", "2", "7"):
+        result = run_cli("run", "-e", SPECIES + "mass exp(exp(exp(exp(exp(2))))) derive virial up to 2",
+                         env_extra={"PYTHONHASHSEED": seed})
+        assert result.returncode in (0, 2) and "Traceback" not in result.stderr, (seed, result.stderr[-300:])
+
+
+@pytest.mark.xfail(reason="export: numbers above 4300 digits cannot be printed (int-str limit)", raises=ValueError)
+def test_results_with_very_large_numbers_print():
+    d = clusterexp.derive(SPECIES + "species B mass 10^999 derive virial up to 6")
+    assert len(FORMATTERS["text"](d)) > 5 * 999
+
+
+@pytest.mark.xfail(reason="command.py: -o into a missing folder gives a traceback", strict=True)
+def test_output_into_a_missing_folder_is_a_clear_error(tmp_path):
+    result = run_cli(*ARGS, "-o", str(tmp_path / "no" / "such" / "out.tex"))
+    assert result.returncode == 2 and "Traceback" not in result.stderr
+
+
+@pytest.mark.xfail(reason="errors.py: the caret line repeats a 1 MB line in full", strict=True)
+def test_message_about_a_long_line_stays_short():
+    error = refusal(SPECIES + "exchange 1 # " + "x" * 1_000_000)
+    assert len(error.render()) < 1000
+
+
