@@ -31,18 +31,20 @@ def __getattr__(name: str):
     raise AttributeError(f"module 'clusterexp' has no attribute {name!r}")
 
 
-def derive(text: str, filename: str = "<input>", base_dir: str | Path | None = None) -> Derivation:
-    """Parse, validate and derive an input given as text."""
+def derive(text: str, filename: str = "<input>", base_dir: str | Path | None = None,
+           size_limit: int | None = None) -> Derivation:
+    """Parse, validate and derive an input given as text. `size_limit` (estimated terms) overrides
+    the default and the input's own `size limit`."""
     from .build import build_system
     from .derivation import derive_system
-    return derive_system(build_system(text, filename, Path(base_dir) if base_dir else None))
+    return derive_system(build_system(text, filename, Path(base_dir) if base_dir else None), size_limit)
 
 
-def derive_file(path: str | Path) -> Derivation:
+def derive_file(path: str | Path, size_limit: int | None = None) -> Derivation:
     """Parse, validate and derive an input file."""
     from .build import build_system_from_file
     from .derivation import derive_system
-    return derive_system(build_system_from_file(Path(path)))
+    return derive_system(build_system_from_file(Path(path)), size_limit)
 
 
 __all__ = ["Coefficient", "Derivation", "InputError", "NotSupportedYet", "build_system",

@@ -15,6 +15,7 @@ from .model import (FORMATS, QUANTITIES, GivenValue, Mutual, OutputSettings, Par
 from .parse import parse
 
 MAX_ORDER = 200
+MAX_INCLUDE_BYTES = 4_000_000
 LATER_REGIMES = ("pairphase",)
 REGIME_FORMS = {"generic": (None,), "ideal": (None,), "exclusion": ("continuum", "level"),
                 "landau": ("exclusion", "spectrum")}
@@ -53,7 +54,11 @@ def build_system(text: str, filename: str = "<input>", base_dir: Path | None = N
 def build_system_from_file(path: Path | str) -> System:
     path = Path(path)
     try:
-        text = path.read_text(encoding="utf-8")
+        if not path.is_file():
+            raise InputError(f"cannot read {path}: not a regular file")
+        if path.stat().st_size > MAX_INCLUDE_BYTES:
+            raise InputError(f"{path} is {path.stat().st_size:,} bytes (at most {MAX_INCLUDE_BYTES:,})")
+        text = path.read_text(encoding="utf-8-sig")
     except (OSError, UnicodeDecodeError) as error:
         raise InputError(f"cannot read {path}: {error}") from None
     return build_system(text, str(path), path.resolve().parent)
@@ -65,11 +70,22 @@ def _collect(text: str, filename: str, base_dir: Path, stack: list[str]) -> list
     for statement in parse(text, filename).children:
         if statement.data == "include":
             token = statement.children[0]
-            target = (base_dir / str(token)[1:-1]).resolve()
+            name = str(token)[1:-1]
+            try:
+                target = (base_dir / name).resolve()
+                regular = target.is_file()  # not a folder, device or FIFO
+                size = target.stat().st_size if regular else 0
+            except (OSError, ValueError):   # ValueError: a NUL in the name
+                raise InputError(f"cannot read included file {name!r}", source.span(token)) from None
+            if not regular:
+                raise InputError(f"cannot read included file {name}: not a regular file", source.span(token))
+            if size > MAX_INCLUDE_BYTES:
+                raise InputError(f"included file {name} is {size:,} bytes (at most {MAX_INCLUDE_BYTES:,})",
+                                 source.span(token))
             if str(target) in stack:
                 raise InputError(f"include cycle: {target.name} includes itself", source.span(token))
             try:
-                included = target.read_text(encoding="utf-8")
+                included = target.read_text(encoding="utf-8-sig")
             except (OSError, UnicodeDecodeError):
                 raise InputError(f"cannot read included file {str(token)[1:-1]}", source.span(token)) from None
             out += _collect(included, str(target), target.parent, stack + [str(target)])
@@ -96,6 +112,7 @@ class _Builder:
         self.statistics: list[tuple[lark.Tree, _File]] = []
         self.spectrum_items: list[tuple[lark.Tree, _File]] = []
         self.warnings: list[tuple[str, Span | None]] = []
+        self.size_limit = None
 
     def span(self, item) -> Span:
         return self.file.span(item)
@@ -131,7 +148,8 @@ class _Builder:
         return System(dimension=self.dimension, species=tuple(self.species.values()), source=source,
                       requests=tuple(requests), order=order, reference=self.reference or names[0],
                       parameters=tuple(self.parameters.values()), mutuals=tuple(self.mutuals),
-                      output=self.output, files=tuple(self.files), warnings=tuple(self.warnings))
+                      output=self.output, files=tuple(self.files), warnings=tuple(self.warnings),
+                      size_limit=self.size_limit)
 
     def _first_span(self) -> Span:
         return self.main.span(self.statements[0][0]) if self.statements else Span(self.main.name, 1, 1)
@@ -171,14 +189,14 @@ class _Builder:
         if ranges:
             left, lo, hi, right = ranges[0].children
             lower, upper = self.expr(lo), self.expr(hi)
-            if not (lower.is_real and upper.is_real and lower.is_number and upper.is_number) or bool(lower >= upper):
+            if not (lower.is_real and upper.is_real and lower.is_number and upper.is_number) or _undecided_or(lower >= upper):
                 raise InputError("a range needs two real numbers, the lower first", self.span(ranges[0]))
             lower_open, upper_open = left.data == "open_end", right.data == "open_end"
         flags = {"real": True}
         for a in assumptions:
             flags[a] = True
-        if lower is not None and bool(lower >= 0) and "positive" not in flags:
-            if lower > 0 or lower_open:
+        if lower is not None and not _undecided_or(lower < 0) and "positive" not in flags:
+            if not _undecided_or(lower <= 0) or lower_open:
                 flags["positive"] = True
             else:
                 flags["nonnegative"] = True
@@ -201,12 +219,12 @@ class _Builder:
             seen[kind] = prop
             if prop.data == "prop_mass":
                 mass = self.expr(prop.children[0])
-                if not (mass.is_positive or (mass.is_number and mass.is_positive)):
+                if not _decide(lambda: mass.is_positive, self.span(prop.children[0]), "the mass is positive"):
                     raise InputError("mass must be positive (a positive number, or a parameter declared positive)",
                                      self.span(prop.children[0]))
             elif prop.data == "prop_exchange":
                 exchange = self.expr(prop.children[0])
-                if exchange.is_real is False:
+                if _decide(lambda: exchange.is_real, self.span(prop.children[0]), "the exchange parameter is real") is False:
                     raise InputError("the exchange parameter must be real", self.span(prop.children[0]))
             else:
                 statistics = prop.data[len("prop_"):]
@@ -227,7 +245,7 @@ class _Builder:
         if any({m.first, m.second} == {a, b} for m in self.mutuals):
             raise InputError(f"mutual parameter of {a} and {b} is given twice", self.span(first))
         expr = self.expr(value)
-        if expr.is_real is False:
+        if _decide(lambda: expr.is_real, self.span(value), "the mutual parameter is real") is False:
             raise InputError("the mutual parameter must be real", self.span(value))
         self.mutuals.append(Mutual(a, b, expr, self.span(first)))
 
@@ -295,6 +313,14 @@ class _Builder:
 
     def _derive_named_list(self, tree):
         self.requests.append((tree, self.file))
+
+    def _size_limit(self, tree):
+        token = tree.children[0]
+        if self.size_limit is not None:
+            raise InputError("`size limit` is declared twice", self.span(token))
+        if int(token) < 1:
+            raise InputError("the size limit must be at least 1", self.span(token))
+        self.size_limit = int(token)
 
     def _output_format(self, tree):
         token = tree.children[0]
@@ -553,6 +579,22 @@ class _Builder:
         if not value.has(TRAP):
             raise InputError("this function of x = exp(-beta hbar omega) does not contain x", self.span(tree))
         return value
+
+
+def _undecided_or(relation) -> bool:
+    """bool(relation), counting "sympy cannot decide" (equal up to an unproved identity) as true."""
+    try:
+        return bool(relation)
+    except TypeError:
+        return True
+
+
+def _decide(question, span, what: str):
+    """Ask sympy a yes/no question about an input value; its failures become an input error."""
+    try:
+        return question()
+    except (OverflowError, RecursionError, ValueError, TypeError):
+        raise InputError(f"cannot decide whether {what}; give a simpler expression", span) from None
 
 
 def _total(request: Request) -> int:

@@ -26,22 +26,27 @@ def _parser() -> argparse.ArgumentParser:
                      help="with --format latex: a standalone document instead of a snippet")
     run.add_argument("-o", "--output", metavar="PATH", help="write to PATH instead of standard output")
     run.add_argument("--overwrite", action="store_true", help="allow -o to replace an existing file")
+    run.add_argument("--size-limit", type=int, metavar="TERMS", default=None,
+                     help="refuse derivations estimated above TERMS terms (default 200000; "
+                          "the input may also say `size limit N`)")
     return parser
 
 
 def main(argv: list[str] | None = None) -> int:
     args = _parser().parse_args(argv)
+    sys.set_int_max_str_digits(0)  # printing exact results; input literals are bounded in expressions.py
     from . import derive, derive_file
     from .export import FORMATTERS, latex_document
     try:
         if args.text is not None:
-            derivation = derive(args.text, filename="<command line>", base_dir=Path.cwd())
+            derivation = derive(args.text, filename="<command line>", base_dir=Path.cwd(),
+                                size_limit=args.size_limit)
         else:
             path = DEMO if args.file == "demo" else Path(args.file)
             if not path.is_file():
                 print(f"clusterexp: error: no such input file: {path}", file=sys.stderr)
                 return EXIT_INPUT_ERROR
-            derivation = derive_file(path)
+            derivation = derive_file(path, size_limit=args.size_limit)
         for message, span in derivation.system.warnings:
             print(f"{span}: warning: {message}" if span else f"warning: {message}", file=sys.stderr)
         fmt = args.format or derivation.system.output.format
@@ -65,11 +70,29 @@ def _write(path: Path, text: str, overwrite: bool) -> int:
     if path.exists() and not overwrite:
         print(f"clusterexp: error: {path} exists; pass --overwrite to replace it", file=sys.stderr)
         return EXIT_INPUT_ERROR
-    handle, temporary = tempfile.mkstemp(dir=path.parent or ".", prefix=f".{path.name}.", suffix=".part")
+    if path.is_dir():
+        print(f"clusterexp: error: {path} is a folder; give a file name", file=sys.stderr)
+        return EXIT_INPUT_ERROR
+    try:
+        handle, temporary = tempfile.mkstemp(dir=path.parent or ".", prefix=f".{path.name}.", suffix=".part")
+    except OSError as error:
+        print(f"clusterexp: error: cannot write {path}: {error.strerror}", file=sys.stderr)
+        return EXIT_INPUT_ERROR
     try:
         with os.fdopen(handle, "w", encoding="utf-8") as stream:
             stream.write(text)
-        os.replace(temporary, path)
+        if overwrite:
+            os.replace(temporary, path)
+        else:
+            try:
+                os.link(temporary, path)  # fails if the file appeared meanwhile
+            except FileExistsError:
+                Path(temporary).unlink(missing_ok=True)
+                print(f"clusterexp: error: {path} exists; pass --overwrite to replace it", file=sys.stderr)
+                return EXIT_INPUT_ERROR
+            except OSError:  # no hard links on this file system
+                os.replace(temporary, path)
+            Path(temporary).unlink(missing_ok=True)
     except BaseException:
         Path(temporary).unlink(missing_ok=True)
         raise

@@ -108,8 +108,11 @@ def _requested_indices(request: Request, K: int) -> list[Index]:
     return indices_up_to(K, request.up_to)
 
 
-def derive_system(system: System) -> Derivation:
-    """Derive every requested coefficient of a validated system (values computed lazily)."""
+def derive_system(system: System, size_limit: int | None = None) -> Derivation:
+    """Derive every requested coefficient of a validated system (values computed lazily).
+    A derivation estimated beyond the size limit is refused before anything is formed."""
+    from .limits import check_size
+    check_size(system, size_limit)
     plan = _Plan(system)
     names = system.species_names
     wanted: dict[str, set[Index]] = {}

@@ -52,11 +52,16 @@ class InputError(ClusterexpError):
         lines = [f"{where}error: {self.message}"]
         if self.span and self.span.line_text:
             text = self.span.line_text.rstrip("\n").expandtabs(1)
+            column = self.span.column
+            if len(text) > 120:  # a window around the column of a very long line
+                start = max(0, column - 60)
+                text = ("..." if start else "") + text[start:start + 100] + ("..." if start + 100 < len(text) else "")
+                column = column - start + (3 if start else 0)
             lines.append("    " + text)
             width = 1
             if self.span.end_line == self.span.line and self.span.end_column:
                 width = max(1, self.span.end_column - self.span.column)
-            lines.append("    " + " " * (self.span.column - 1) + "^" * min(width, max(1, len(text) - self.span.column + 1)))
+            lines.append("    " + " " * (column - 1) + "^" * min(width, max(1, len(text) - column + 1)))
         if self.hint:
             lines.append(f"hint: {self.hint}")
         return "\n".join(lines)

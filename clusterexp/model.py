@@ -146,6 +146,7 @@ class System:
     output: OutputSettings = field(default_factory=OutputSettings)
     files: tuple[str, ...] = ()
     warnings: tuple[tuple[str, Span | None], ...] = ()
+    size_limit: int | None = None  # from `size limit N`; None: limits.DEFAULT_SIZE_LIMIT
 
     @property
     def species_names(self) -> tuple[str, ...]:
