@@ -10,15 +10,15 @@ import sympy
 
 from .errors import InputError, NotSupportedYet, Span
 from .expressions import CONSTANTS, FUNCTIONS, ExpressionBuilder
-from .model import (FORMATS, QUANTITIES, GivenValue, Mutual, OutputSettings, Parameter, Request, Source, Species,
-                    Spectrum, System)
+from .model import (FORMATS, QUANTITIES, Expansion, GivenValue, Mutual, OutputSettings, Parameter, Request, Source,
+                    Species, Spectrum, System, Tubes)
 from .parse import parse
 
 MAX_ORDER = 200
 MAX_INCLUDE_BYTES = 4_000_000
-LATER_REGIMES = ("pairphase",)
+LATER_REGIMES = ()
 REGIME_FORMS = {"generic": (None,), "ideal": (None,), "exclusion": ("continuum", "level"),
-                "landau": ("exclusion", "spectrum")}
+                "landau": ("exclusion", "spectrum"), "pairphase": (None,)}
 TRAP = sympy.Symbol("x")
 RESERVED = {"b", "a", "z", "rho", "pi", "I", "E"} | set(FUNCTIONS)
 GENERATED = re.compile(r"^(b|a|z|rho)_")
@@ -113,6 +113,8 @@ class _Builder:
         self.spectrum_items: list[tuple[lark.Tree, _File]] = []
         self.warnings: list[tuple[str, Span | None]] = []
         self.size_limit = None
+        self.tubes = None
+        self.expansions: list[tuple[lark.Tree, _File]] = []
 
     def span(self, item) -> Span:
         return self.file.span(item)
@@ -149,7 +151,7 @@ class _Builder:
                       requests=tuple(requests), order=order, reference=self.reference or names[0],
                       parameters=tuple(self.parameters.values()), mutuals=tuple(self.mutuals),
                       output=self.output, files=tuple(self.files), warnings=tuple(self.warnings),
-                      size_limit=self.size_limit)
+                      size_limit=self.size_limit, tubes=self.tubes, expansions=self._expansions())
 
     def _first_span(self) -> Span:
         return self.main.span(self.statements[0][0]) if self.statements else Span(self.main.name, 1, 1)
@@ -314,6 +316,38 @@ class _Builder:
     def _derive_named_list(self, tree):
         self.requests.append((tree, self.file))
 
+    def _clusters_block(self, tree):
+        token, *entries = tree.children
+        if str(token) != "pairphase":
+            raise InputError(f"only `clusters pairphase` takes a block of given values, not '{token}'"
+                             + ("; use `clusters given { ... }`" if str(token) == "generic" else ""), self.span(token))
+        kinds = {str(e.children[0].children[0]) for e in entries}
+        if not kinds <= {"a", "b"} or len(kinds) > 1:
+            bad = next((e.children[0].children[0] for e in entries if str(e.children[0].children[0]) not in "ab"),
+                       entries[-1].children[0].children[0] if entries else token)
+            raise InputError("a pairphase block gives either b[...] or a[...] values", self.span(bad))
+        values = [(e.children[0], e.children[1], self.file) for e in entries]
+        self._set_source(Source("pairphase", self.span(token)), tree)
+        self._pending_given = ("virial" if kinds == {"a"} else "cluster", values)
+
+    def _tubes(self, tree):
+        if self.tubes is not None:
+            raise InputError("`tubes` is declared twice", self.span(tree))
+        flux, coverage = (self.expr(c) for c in tree.children)
+        for value, child, what in ((flux, tree.children[0], "flux"), (coverage, tree.children[1], "coverage")):
+            if _decide(lambda: value.is_real, self.span(child), f"the tube {what} is real") is False:
+                raise InputError(f"the tube {what} must be real", self.span(child))
+        if coverage.is_number and coverage < 0:
+            raise InputError("the tube coverage (tubes per lambda^2) cannot be negative", self.span(tree.children[1]))
+        self.tubes = Tubes(flux, coverage, self.span(tree))
+        self.warnings.append(("flux tubes enter to first order in their coverage (independent tubes); results "
+                              "carry O(coverage^2)" if not coverage.is_number else
+                              "flux tubes enter to first order in their coverage (independent tubes); the "
+                              "multi-tube corrections of order coverage^2 are not included", self.span(tree)))
+
+    def _expand(self, tree):
+        self.expansions.append((tree, self.file))
+
     def _size_limit(self, tree):
         token = tree.children[0]
         if self.size_limit is not None:
@@ -390,15 +424,36 @@ class _Builder:
         finally:
             self.file = self.main
 
+    def _expansions(self) -> tuple[Expansion, ...]:
+        out = []
+        for tree, file in self.expansions:
+            self.file = file
+            name, point, order, *side = tree.children
+            if str(name) not in self.parameters:
+                raise InputError(f"`expand` needs a declared parameter; '{name}' is not one", self.span(name))
+            if not 0 <= int(order) <= 40:
+                raise InputError("`expand ... to k` needs 0 <= k <= 40", self.span(order))
+            value = self.expr(point)
+            if not value.is_number or value.is_real is False:
+                raise InputError("the expansion point must be a real number", self.span(point))
+            out.append(Expansion(self.parameters[str(name)].symbol, value, int(order),
+                                 None if not side else side[0].data[len("side_"):],
+                                 self.span(tree)))
+        self.file = self.main
+        return tuple(out)
+
     def _check_given(self, source: Source, names: list[str], order: int) -> Source:
         pending = getattr(self, "_pending_given", None)
-        if source.kind != "given" or not pending:
+        if source.kind not in ("given", "pairphase") or not pending:
             return source
         kind, entries = pending
         values, seen = [], {}
         for ref, value, file in entries:
             self.file = file
             index = self._index(ref, names)
+            if source.kind == "pairphase" and sum(index) == 2:
+                raise InputError("the two-body coefficients of pair phases are exact here; give only three-body "
+                                 "and higher ones", self.span(ref))
             if sum(index) == 1:
                 fixed = ("b for a single particle is fixed by the masses ((m_i/m_ref)^(d/2)); do not give it"
                          if kind == "cluster" else "a for a single particle is 1; do not give it")
@@ -411,7 +466,7 @@ class _Builder:
                                  "derived here", self.span(ref))
             values.append(GivenValue(kind, index, self.expr(value), self.span(ref)))
         self.file = self.main
-        return Source("given", source.span, tuple(values))
+        return Source(source.kind, source.span, tuple(values))
 
 
     # -- physical regimes -------------------------------------------------------------------------------
@@ -446,6 +501,18 @@ class _Builder:
                                       "carry the same charge, hence the same degeneracy per area)", source.span))
         elif source.kind == "spectrum":
             source = Source("spectrum", source.span, spectrum=self._spectrum(names, source.span))
+        elif source.kind == "pairphase":
+            if self.dimension != 2:
+                raise InputError(f"pair phases are a property of the plane; declare `dimension 2`, not {self.dimension}",
+                                 source.span)
+        if self.tubes is not None and source.kind != "pairphase":
+            raise InputError("flux tubes are used with `clusters pairphase`", self.tubes.span)
+        if self.tubes is not None:
+            anyonic = [s for s in self.species.values() if s.exchange not in (0, 1)]
+            if anyonic or self.mutuals:
+                raise NotSupportedYet("flux tubes with anyonic or mutually braiding mobile species (the cycle-around-"
+                                      "tube pieces of several mobile particles are many-body and not yet named)",
+                                      self.tubes.span)
         return source
 
     def _no_mutuals(self, what: str) -> None:

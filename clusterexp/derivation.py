@@ -10,7 +10,7 @@ from typing import Mapping
 
 import sympy
 
-from .errors import NotSupportedYet
+from .errors import InputError, NotSupportedYet
 from .model import Index, Request, System
 from .naming import cluster_symbol, virial_symbol
 from .results import Coefficient, Derivation
@@ -55,10 +55,55 @@ class _Plan:
         return physical_clusters(self.system, self.order)
 
     @cached_property
+    def truncation(self) -> dict:
+        """{symbol: first unknown power} over every truncated series the user gave (pair phases)."""
+        from .routes.pairphase import split_truncation
+        limits: dict = {}
+        for v in self.system.source.values:
+            _, found = split_truncation(v.value)
+            for symbol, k in found.items():
+                limits[symbol] = min(k, limits.get(symbol, k))
+        tubes = self.system.tubes
+        if tubes is not None and isinstance(tubes.coverage, sympy.Symbol):
+            limits[tubes.coverage] = min(2, limits.get(tubes.coverage, 2))
+        return limits
+
+    def depends_on_truncated(self, index: Index) -> bool:
+        """Whether coefficient `index` involves a given value that is a truncated series (one whose
+        multi-index fits inside this one)."""
+        from .routes.pairphase import split_truncation
+        if self.system.tubes is not None and isinstance(self.system.tubes.coverage, sympy.Symbol):
+            return True
+        return any(split_truncation(v.value)[1] and all(a <= b for a, b in zip(v.index, index))
+                   for v in self.system.source.values)
+
+    def _given_exact(self) -> dict:
+        from .routes.pairphase import split_truncation
+        return {v.index: split_truncation(v.value)[0] for v in self.system.source.values}
+
+    @cached_property
+    def pairphase(self) -> dict:
+        from .routes.pairphase import two_body_clusters
+        return two_body_clusters(self.system, self.order)
+
+    @cached_property
     def cluster(self) -> Mapping[Index, sympy.Expr]:
         kind = self.system.source.kind
         if self.physical is not None:
             return self.physical.values
+        if kind == "pairphase":
+            given = self._given_exact()
+            if self._given_kind() == "virial":
+                return virial_to_cluster(self.virial, self.order, self.K, linear=self.linear_pairphase)
+            out = {}
+            for n, value in self.pairphase.items():
+                if n in given:
+                    if value is not None:
+                        raise InputError(f"b{list(n)} is known exactly in this regime ({value}); do not give it",
+                                         next(v.span for v in self.system.source.values if v.index == n))
+                    value = given[n]
+                out[n] = cluster_symbol(n) if value is None else value
+            return out
         if kind == "generic" or (kind == "given" and self._given_kind() == "cluster"):
             b = {_unit(self.K, i): c for i, c in enumerate(self.linear)}
             for index in indices_up_to(self.K, self.order, start=2):
@@ -80,7 +125,31 @@ class _Plan:
         return cluster_to_virial(self.cluster, self.order, self.K)
 
     @cached_property
+    def linear_pairphase(self) -> list:
+        return [self.pairphase[_unit(self.K, i)] for i in range(self.K)]
+
+    @cached_property
     def virial(self) -> Mapping[Index, sympy.Expr]:
+        if self.system.source.kind == "pairphase" and self._given_kind() == "virial":
+            exact = {n: v for n, v in self.pairphase.items() if v is not None and sum(n) <= 2}
+            a = dict(cluster_to_virial(exact, 2, self.K).virial)
+            given = self._given_exact()
+            for n, value in self.pairphase.items():
+                if sum(n) <= 2:
+                    continue
+                if n in given:
+                    if value is not None:
+                        raise InputError(f"b{list(n)} is known exactly in this regime; give a{list(n)} only for "
+                                         "many-body pieces", next(v.span for v in self.system.source.values
+                                                                  if v.index == n))
+                    a[n] = given[n]
+                else:
+                    a[n] = virial_symbol(n) if value is None else None
+            if any(v is None for v in a.values()):
+                raise NotSupportedYet("giving virial coefficients when some higher cluster coefficients are known "
+                                      "exactly (an ideal species); give b[...] values instead",
+                                      self.system.source.span)
+            return a
         if self.system.source.kind == "given" and self._given_kind() == "virial":
             a = {_unit(self.K, i): sympy.Integer(1) for i in range(self.K)}
             for index in indices_up_to(self.K, self.order, start=2):
@@ -150,10 +219,19 @@ def _lookup(plan: _Plan, kind: str, index: Index, i: int | None = None):
 
     def compute() -> sympy.Expr:
         t = table()
-        value = t[index] if isinstance(t, CoefficientTable) else t.get(index, sympy.Integer(0))
-        return sympy.sympify(value)
+        value = sympy.sympify(t[index] if isinstance(t, CoefficientTable) else t.get(index, sympy.Integer(0)))
+        if plan.truncation and plan.depends_on_truncated(index) and not (kind == "virial" and sum(index) == 1):
+            from .routes.pairphase import truncate
+            try:
+                value = truncate(value, plan.truncation)
+            except ValueError as error:
+                raise InputError(f"{error}: declare the parameter's range inside one period so that the "
+                                 "two-body parts have a single polynomial branch", plan.system.source.span) from None
+        return value
 
     def compute_terms():
+        if plan.truncation:
+            return None
         t = table()
         if isinstance(t, CoefficientTable):
             return t.term_sum(index)

@@ -24,6 +24,7 @@ FUNCTIONS: dict[str, tuple[Callable, int]] = {
     "cos": (sympy.cos, 1), "tan": (sympy.tan, 1), "abs": (sympy.Abs, 1), "zeta": (sympy.zeta, 1),
     "gamma": (sympy.gamma, 1), "binomial": (sympy.binomial, 2), "factorial": (sympy.factorial, 1),
     "frac": (sympy.frac, 1), "floor": (sympy.floor, 1),
+    "O": (lambda x: sympy.Order(x), 1),  # truncation of a series given by the user: O(alpha^3)
 }
 CONSTANTS = {"pi": sympy.pi}
 

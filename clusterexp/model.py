@@ -114,6 +114,27 @@ class Spectrum:
 
 
 @dataclass(frozen=True)
+class Tubes:
+    """Static flux tubes (an infinite-mass species entering through its density): flux gamma in flux
+    quanta, coverage = tubes per lambda^2 of the reference species."""
+
+    flux: sympy.Expr
+    coverage: sympy.Expr
+    span: Span
+
+
+@dataclass(frozen=True)
+class Expansion:
+    """`expand p about x0 to k [from above|below]`: print coefficients as series in p."""
+
+    symbol: sympy.Symbol
+    point: sympy.Expr
+    order: int
+    side: str | None
+    span: Span
+
+
+@dataclass(frozen=True)
 class Request:
     """What to derive: a quantity ("cluster", "virial", "density", "fugacity"), either every
     multi-index up to total order `up_to`, or the explicit `indices`."""
@@ -147,6 +168,8 @@ class System:
     files: tuple[str, ...] = ()
     warnings: tuple[tuple[str, Span | None], ...] = ()
     size_limit: int | None = None  # from `size limit N`; None: limits.DEFAULT_SIZE_LIMIT
+    tubes: "Tubes | None" = None
+    expansions: tuple["Expansion", ...] = ()
 
     @property
     def species_names(self) -> tuple[str, ...]:

@@ -41,7 +41,7 @@ CASES = [
     ("dimension 2 species A derive density b[2]", "explicit indices are for cluster (b[...]) and virial (a[...]) requests", "1:30"),
     ("dimension 2 species A derive virial b[2]", "`derive virial` lists a[...], not b[...]", "1:37"),
     ("dimension 2 species A output format html", "unknown output format 'html'", "1:37"),
-    ("dimension 2 species A clusters pairphase", "regime 'pairphase' is not supported yet", "1:32"),
+    ("dimension 2 species A clusters lattice", "unknown regime 'lattice'", "1:32"),
     ("dimension 2 species A clusters magic", "unknown regime 'magic'", "1:32"),
     ("dimension 2 species A clusters generic clusters generic", "the coefficient source", "1:40"),
     ("dimension 2 species A exchange foo(1)", "unknown function 'foo'", "1:32"),

@@ -4,6 +4,7 @@ from __future__ import annotations
 import sympy
 
 from ..results import Derivation
+from ..routes.pairphase import expansion_of
 from .common import CONVENTIONS, KIND_TITLES, regime_lines, summary_lines
 
 
@@ -19,4 +20,8 @@ def to_text(derivation: Derivation) -> str:
             lines.append("")
             lines.append(KIND_TITLES[kind] + ":")
         lines.append(f"  {c.label} = {c.text}")
+        for e in derivation.system.expansions:
+            for side, series in expansion_of(c.label, c.value, e):
+                lines.append(f"    series in {e.symbol} about {e.point} through order {e.order} ({side}): "
+                             f"{sympy.sstr(series, order='lex')}")
     return "\n".join(lines) + "\n"

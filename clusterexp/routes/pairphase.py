@@ -1,0 +1,232 @@
+"""Pair phases in the plane (route R3): exact two-body cluster coefficients, and the truncation
+bookkeeping of the higher ones.
+
+Harmonic regulator (x = e^{-beta hbar omega}): the relative motion of two particles has energies
+hbar omega (2 n_r + |l + s| + 1). Summing the channels in closed form for s in its fundamental interval:
+
+    identical (l even, s = alpha in [0, 2)):   Z_rel = x (x^s + x^{2-s}) / (1 - x^2)^2,
+    distinct  (all l,  s = alpha_ij in [0, 1)): Z_rel = x (x^s + x^{1-s}) / ((1 - x)(1 - x^2)).
+
+The centre of mass (mass M = m_i + m_j, same omega) has the one-body spectrum, so with the R2 weight
+(M/m_ref)^{d/2}, d = 2,
+
+    b_2(alpha)  - b_2(0)  = 2 lim [Z_rel(s) - Z_rel(0)] = s^2/2 - s,
+    b_11(alpha) - b_11(0) = (M/m_ref) lim [Z_rel(s) - Z_rel(0)] = -(M/2 m_ref) s (1 - s).
+
+Hence b_2 = (m_i/m_ref)(1/4 - s + s^2/2) with s = alpha mod 2 (even, period 2, kink at the boson
+points), b_11 = -((m_i + m_j)/(2 m_ref)) s(1 - s) with s = alpha_ij mod 1. A static flux tube of flux
+gamma (in flux quanta) shifts a mobile particle's partition function by -s(1 - s)/2, s = gamma mod 1,
+independently of temperature and mass; each l-cycle of an ideal mobile species feels it once.
+"""
+from __future__ import annotations
+
+import sympy
+
+from ..model import Parameter
+
+
+class PeriodicPart(sympy.Function):
+    """x mod p as a function sympy can evaluate, differentiate (slope 1 away from the jumps, where the
+    two-body coefficients are continuous anyway) and print: `Mod(x, p)` in text, (x mod p) in LaTeX."""
+
+    nargs = 2
+
+    @classmethod
+    def eval(cls, x, p):
+        if x.is_number and p.is_number:
+            return sympy.Mod(x, p)
+        return None
+
+    def fdiff(self, argindex=1):
+        if argindex == 1:
+            return sympy.Integer(1)
+        raise sympy.ArgumentIndexError(self, argindex)
+
+    def _eval_evalf(self, prec):
+        x, p = self.args
+        value = sympy.Mod(x, p)
+        return None if value.has(PeriodicPart) else value.evalf(prec)
+
+    def _sympystr(self, printer):
+        return f"Mod({printer._print(self.args[0])}, {printer._print(self.args[1])})"
+
+    def _latex(self, printer, exp=None):
+        body = rf"\left({printer._print(self.args[0])} \bmod {printer._print(self.args[1])}\right)"
+        return body if exp is None else rf"{body}^{{{exp}}}"
+
+    def floor_form(self) -> sympy.Expr:
+        x, p = self.args
+        return x - p * sympy.floor(x / p)
+
+
+def reduced(value: sympy.Expr, period: int, parameters: dict[sympy.Symbol, Parameter]) -> sympy.Expr:
+    """value mod period, written without floor when the declared range keeps it in one branch."""
+    value = sympy.sympify(value)
+    if value.is_number:
+        return PeriodicPart(value, period)
+    low, high = _range_of(value, parameters)
+    if low is not None and high is not None:
+        k = sympy.floor(low / period)
+        if bool(high <= (k + 1) * period) or (bool(sympy.Eq(high, (k + 1) * period)) and _open_top(value, parameters)):
+            return sympy.expand(value - k * period)
+    return PeriodicPart(value, period)
+
+
+def _range_of(value, parameters):
+    """A range for a linear expression c*p + d in one declared parameter p, else (None, None)."""
+    symbols = list(value.free_symbols)
+    if len(symbols) != 1 or symbols[0] not in parameters:
+        return None, None
+    p = parameters[symbols[0]]
+    if p.lower is None or p.upper is None:
+        return None, None
+    poly = sympy.Poly(value, symbols[0]) if value.is_polynomial(symbols[0]) else None
+    if poly is None or poly.degree() > 1:
+        return None, None
+    ends = sorted([value.subs(symbols[0], p.lower), value.subs(symbols[0], p.upper)])
+    return ends[0], ends[1]
+
+
+def _open_top(value, parameters) -> bool:
+    return False
+
+
+def exchange_b2(alpha: sympy.Expr, mass_ratio: sympy.Expr, parameters) -> sympy.Expr:
+    """b_{2 e_i} of identical anyons with exchange parameter alpha (period 2)."""
+    s = reduced(alpha, 2, parameters)
+    return _tidy(mass_ratio * (sympy.Rational(1, 4) - s + s ** 2 / 2))
+
+
+def mutual_b11(alpha_ij: sympy.Expr, total_mass_ratio: sympy.Expr, parameters) -> sympy.Expr:
+    """b_{e_i + e_j} of two distinct species with mutual parameter alpha_ij (period 1)."""
+    s = reduced(alpha_ij, 1, parameters)
+    return _tidy(-total_mass_ratio * s * (1 - s) / 2)
+
+
+def flux_shift(gamma: sympy.Expr, parameters) -> sympy.Expr:
+    """Z(gamma) - Z(0) for one particle around one flux tube: -s(1 - s)/2, s = gamma mod 1."""
+    s = reduced(gamma, 1, parameters)
+    return _tidy(-s * (1 - s) / 2)
+
+
+def _tidy(expr: sympy.Expr) -> sympy.Expr:
+    """Expanded when polynomial in the parameters; the periodic (Mod) form is kept factored."""
+    return expr if expr.has(PeriodicPart) else sympy.expand(expr)
+
+
+def kinks(expr: sympy.Expr, symbol: sympy.Symbol, point) -> bool:
+    """True when expr has a floor (periodic extension) whose argument is an integer at the point, so
+    that left and right expansions differ in general."""
+    for f in expr.atoms(sympy.floor):
+        if symbol in f.free_symbols and f.args[0].subs(symbol, point).is_integer:
+            return True
+    for m in expr.atoms(sympy.Mod, PeriodicPart):
+        if symbol in m.free_symbols and (m.args[0].subs(symbol, point) / m.args[1]).is_integer:
+            return True
+    return False
+
+
+def one_sided_series(expr: sympy.Expr, symbol: sympy.Symbol, point, order: int, side: str) -> sympy.Expr:
+    """Taylor polynomial through (symbol - point)^order of expr approached from `side` ("above"/
+    "below"): floors are frozen at their one-sided limits, leaving a polynomial branch."""
+    eps = sympy.Rational(1, 10 ** 9)
+    probe = point + (eps if side == "above" else -eps)
+    expr = expr.replace(lambda e: isinstance(e, PeriodicPart), lambda e: e.floor_form())
+    frozen = expr.subs({f: sympy.floor(f.args[0].subs(symbol, probe)) for f in expr.atoms(sympy.floor)
+                        if symbol in f.free_symbols})
+    frozen = frozen.subs({m: m.args[0] - m.args[1] * sympy.floor((m.args[0] / m.args[1]).subs(symbol, probe))
+                          for m in frozen.atoms(sympy.Mod) if symbol in m.free_symbols})
+    u = sympy.Symbol("u_shift")
+    shifted = sympy.expand(frozen.subs(symbol, point + u))
+    taylor = sympy.series(shifted, u, 0, order + 1).removeO() if not shifted.is_polynomial(u) else shifted
+    poly = sympy.Poly(sympy.expand(taylor), u)
+    kept = sum(c * u ** k for (k,), c in zip(poly.monoms(), poly.coeffs()) if k <= order)
+    return sympy.expand(kept.subs(u, symbol - point))
+
+
+def two_body_clusters(system, order: int) -> dict:
+    """b_n for the pair-phase regime: b_{e_i} (with the first-order flux-tube shift), the exact
+    |n| = 2 coefficients, the ideal-gas b_{l e_i} of bose/fermi species (with their tube shift), and
+    for everything else None (a many-body piece: a named symbol unless given)."""
+    from ..series import indices_up_to
+    params = {p.symbol: p for p in system.parameters}
+    species = system.species
+    K = len(species)
+    m_ref = system.reference_mass
+    names = system.species_names
+    tubes = system.tubes
+    shift = flux_shift(tubes.flux, params) * tubes.coverage if tubes is not None else sympy.Integer(0)
+    out = {}
+    for n in indices_up_to(K, order):
+        occupied = [i for i in range(K) if n[i]]
+        if len(occupied) == 1:
+            i = occupied[0]
+            l = n[i]
+            ratio = species[i].mass / m_ref
+            alpha = species[i].exchange
+            if l == 1:
+                out[n] = ratio + shift
+            elif alpha in (0, 1):  # ideal within the species: every l-cycle exact
+                sign = 1 if alpha == 0 or l % 2 else -1
+                out[n] = sympy.expand(sign * (ratio / sympy.Integer(l) ** 2 + shift / l))
+            elif l == 2:
+                out[n] = exchange_b2(alpha, ratio, params)
+            else:
+                out[n] = None
+        elif len(occupied) == 2 and sum(n) == 2:
+            i, j = occupied
+            out[n] = mutual_b11(system.mutual(names[i], names[j]), (species[i].mass + species[j].mass) / m_ref,
+                                params)
+        else:
+            if all(system.mutual(names[i], names[j]) in (0, 1) for i in occupied for j in occupied if i < j) \
+                    and all(species[i].exchange in (0, 1) for i in occupied):
+                out[n] = sympy.Integer(0)  # no statistical coupling between ideal species: no mixed b
+            else:
+                out[n] = None
+    return out
+
+
+def split_truncation(value: sympy.Expr) -> tuple[sympy.Expr, dict]:
+    """A given value without its O(...) term, and {symbol: first unknown power} from that term."""
+    value = sympy.sympify(value)
+    order_term = value.getO() if hasattr(value, "getO") else None
+    if order_term is None:
+        return value, {}
+    expr = order_term.expr
+    limits = {}
+    for factor in sympy.Mul.make_args(expr):
+        base, e = factor.as_base_exp()
+        if isinstance(base, sympy.Symbol) and e.is_Integer and e > 0:
+            limits[base] = int(e)
+    return value.removeO(), limits
+
+
+def truncate(value: sympy.Expr, limits: dict) -> sympy.Expr:
+    """value as a polynomial in the truncated symbols with every power at or beyond its limit dropped,
+    plus the O term that says so."""
+    value = sympy.expand(value)
+    for symbol, k in sorted(limits.items(), key=lambda item: item[0].name):
+        if any(symbol in m.free_symbols for m in value.atoms(sympy.Mod, sympy.floor, PeriodicPart)):
+            raise ValueError(f"cannot truncate a periodic (piecewise) dependence on {symbol}")
+        if not value.is_polynomial(symbol):
+            value = sympy.expand(sympy.series(value, symbol, 0, k).removeO())
+        value = sum((term for term in sympy.Add.make_args(value) if sympy.degree(term, symbol) < k), sympy.Integer(0))
+    orders = [sympy.Order(s ** k) for s, k in sorted(limits.items(), key=lambda item: item[0].name)]
+    return sympy.Add(value, *orders) if orders else value
+
+
+def expansion_of(label: str, value: sympy.Expr, expansion) -> list[tuple[str, sympy.Expr]]:
+    """[(side description, polynomial)] for one coefficient and one `expand` request; refuses a kinked
+    expansion asked as if analytic."""
+    from ..errors import InputError
+    symbol, point, order, side = expansion.symbol, expansion.point, expansion.order, expansion.side
+    value = sympy.sympify(value).removeO() if value.has(sympy.Order) else value
+    kinked = kinks(value, symbol, point)
+    if kinked and side is None:
+        raise InputError(f"{label} is not analytic at {symbol} = {point} (a kink, |{symbol}| term): say "
+                         "`from above`, `from below` or `from both`", expansion.span)
+    if not kinked:
+        return [("analytic", one_sided_series(value, symbol, point, order, "above"))]
+    sides = ("above", "below") if side == "both" else (side,)
+    return [(f"non-analytic at {symbol} = {point}, from {s}", one_sided_series(value, symbol, point, order, s))
+            for s in sides]
