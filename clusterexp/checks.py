@@ -1,0 +1,581 @@
+"""Checking a researcher's hand result against a derived coefficient.
+
+`check_claim(claimed, derived, parameters)` decides, in this order:
+
+1. symbolically, with bounded effort: the difference claimed - derived is expanded; when it is a
+   rational function with rational coefficients its normal form (`cancel`) decides exactly, either
+   way; otherwise pure numbers go through their minimal polynomial and expressions through
+   `simplify`, each only below a size bound and within a time bound (`simplify_seconds`);
+2. when that cannot decide, numerically: both sides are evaluated exactly at random rational points
+   inside the declared parameter ranges (closed ends are among the candidates, open ends never;
+   open-ended ranges are completed as in `numbers.parameter_interval`), the results compared at
+   `digits` significant digits (exact comparison when both values are rational). Points where either
+   side is singular are skipped and replaced. The points depend only on `seed`.
+
+Status "proven" (equal), "numerically consistent, not proven" (equal at every point, no proof) or
+"mismatch" (a point where they differ, or a proof that the difference is not zero); a mismatch
+carries the simplified difference, its leading term in the parameters about a stated point (0 when
+0 lies in the ranges, else the lower range end) and a point where the two sides differ with both
+values.
+
+A claim that is a series truncated at total order k in some parameters is compared through that
+order only: `check_claim(..., up_to_order=k, in_parameters=["g"])` truncates the Taylor series of
+both sides about 0 in those parameters.
+"""
+from __future__ import annotations
+
+import itertools
+import math
+import random
+import signal
+import threading
+from dataclasses import dataclass, field
+from typing import Iterable, Sequence
+
+import mpmath
+import sympy
+
+from .errors import InputError
+from .numbers import Interval, parameter_interval
+
+PROVEN = "proven"
+CONSISTENT = "numerically consistent, not proven"
+MISMATCH = "mismatch"
+STATUSES = (PROVEN, CONSISTENT, MISMATCH)
+
+MAX_SIMPLIFY_OPS = 3000     # larger differences are not handed to simplify
+SHOWN_DIGITS = 20           # digits of the two values printed at a mismatch
+_EPS = sympy.Dummy("eps")
+
+
+@dataclass(frozen=True)
+class CheckResult:
+    """The outcome of one check. `difference` is claimed - derived (simplified; 0 when proven,
+    None when not known); `leading_term` its leading term about `expansion_point`; `witness` a
+    point where the sides differ, with `claimed_value` and `derived_value` there."""
+
+    status: str
+    claimed: sympy.Expr
+    derived: sympy.Expr
+    method: str
+    label: str | None = None
+    difference: sympy.Expr | None = None
+    leading_term: sympy.Expr | None = None
+    expansion_point: tuple[tuple[str, sympy.Expr], ...] = ()
+    witness: tuple[tuple[str, sympy.Expr], ...] = ()
+    claimed_value: str | None = None
+    derived_value: str | None = None
+    points: int = 0
+    skipped: int = 0
+    digits: int = 0
+    intervals: tuple[tuple[str, str], ...] = ()
+    truncation: tuple[int, tuple[str, ...]] | None = None
+    notes: tuple[str, ...] = field(default=())
+
+    @property
+    def ok(self) -> bool:
+        return self.status != MISMATCH
+
+    def _subject(self) -> str:
+        what = self.label or "the claim"
+        if self.truncation:
+            order, names = self.truncation
+            what += f" through total order {order} in {', '.join(names)}"
+        return what
+
+    def render(self) -> str:
+        """A short human-readable report (a few lines)."""
+        where = "; ".join(f"{n} in {i}" for n, i in self.intervals)
+        if self.status == PROVEN:
+            lines = [f"proven: {self._subject()} equals the derived value ({self.method})"]
+        elif self.status == CONSISTENT and not self.intervals:
+            lines = [f"numerically consistent, not proven: {self._subject()} and the derived value agree to "
+                     f"{self.digits} significant digits; {self.method}"]
+        elif self.status == CONSISTENT:
+            lines = [f"numerically consistent, not proven: {self._subject()} agrees with the derived value at "
+                     f"{self.points} rational point{'s' if self.points != 1 else ''}"
+                     + (f" ({where})" if where else "") + f" to {self.digits} significant digits; "
+                     + self.method]
+        else:
+            lines = [f"mismatch: {self._subject()} differs from the derived value ({self.method})"]
+            if self.difference is not None:
+                lines.append(f"  claimed - derived = {_text(self.difference)}")
+            if self.leading_term is not None:
+                about = ", ".join(f"{n} = {v}" for n, v in self.expansion_point)
+                lines.append(f"  leading term" + (f" about {about}" if about else "") + f": {_text(self.leading_term)}")
+            if self.witness:
+                at = ", ".join(f"{n} = {v}" for n, v in self.witness)
+                lines.append(f"  at {at}: claimed = {self.claimed_value}, derived = {self.derived_value}")
+            elif self.claimed_value is not None:
+                lines.append(f"  claimed = {self.claimed_value}, derived = {self.derived_value}")
+        if self.skipped:
+            lines.append(f"  ({self.skipped} singular point{'s' if self.skipped != 1 else ''} skipped)")
+        lines += [f"  note: {n}" for n in self.notes]
+        return "\n".join(lines)
+
+    def __str__(self) -> str:
+        return self.render()
+
+    def _repr_latex_(self) -> str:
+        head = {PROVEN: r"\text{proven}", CONSISTENT: r"\text{numerically consistent, not proven}",
+                MISMATCH: r"\text{mismatch}"}[self.status]
+        body = sympy.latex(self.claimed) + (r" = " if self.status != MISMATCH else r" \neq ") + sympy.latex(self.derived)
+        if self.status == MISMATCH and self.difference is not None:
+            body += r",\quad \Delta = " + sympy.latex(self.difference)
+        return f"$${head}:\\; {body}$$"
+
+
+def _text(expr) -> str:
+    return sympy.sstr(expr, order="lex")
+
+
+# ---------------------------------------------------------------------------------------------
+# the entry point
+
+
+def check_claim(claimed, derived, parameters: Sequence = (), *, points: int = 20, digits: int = 30,
+                seed: int = 0, up_to_order: int | None = None, in_parameters: Iterable | None = None,
+                label: str | None = None, simplify_seconds: float | None = 5.0,
+                symbolic: bool = True) -> CheckResult:
+    """Compare a claimed expression with a derived one; see the module documentation.
+
+    `parameters`: the declared `model.Parameter`s (their ranges bound the sampling; symbols are
+    matched by name, so a claim parsed without assumptions still refers to them). Symbols that are
+    neither declared nor in the derived value are refused. `symbolic=False` skips step 1.
+    """
+    if isinstance(points, bool) or not isinstance(points, int) or points < 1:
+        raise InputError(f"points must be a positive integer, not {points!r}")
+    if isinstance(digits, bool) or not isinstance(digits, int) or not 5 <= digits <= 1000:
+        raise InputError(f"digits must be an integer from 5 to 1000, not {digits!r}")
+    claimed, derived = sympy.sympify(claimed), sympy.sympify(derived)
+    for side, expr in (("claimed", claimed), ("derived", derived)):
+        floats = sorted({str(f) for f in expr.atoms(sympy.Float)})
+        if floats:
+            raise InputError(f"the {side} value contains the decimal number {floats[0]}; "
+                             "write it as an exact fraction")
+    declared = {p.name: p for p in parameters}
+    claimed, derived = _unify(claimed, declared), _unify(derived, declared)
+    stray = sorted(s.name for s in claimed.free_symbols - derived.free_symbols if s.name not in declared)
+    if stray:
+        raise InputError(f"the claim uses {', '.join(stray)}, which "
+                         f"{'is' if len(stray) == 1 else 'are'} neither a declared parameter nor in the "
+                         f"derived value; that depends on {_names_text(derived.free_symbols)}")
+    truncation = None
+    if up_to_order is not None or in_parameters is not None:
+        if up_to_order is None or in_parameters is None:
+            raise InputError("a truncated claim needs both up_to_order and in_parameters")
+        if isinstance(up_to_order, bool) or not isinstance(up_to_order, int) or up_to_order < 0:
+            raise InputError(f"up_to_order must be a nonnegative integer, not {up_to_order!r}")
+        variables = _series_variables(in_parameters, declared, claimed.free_symbols | derived.free_symbols)
+        claimed = truncate(claimed, variables, up_to_order, "claimed value")
+        derived = truncate(derived, variables, up_to_order, "derived value")
+        truncation = (up_to_order, tuple(v.name for v in variables))
+    common = dict(claimed=claimed, derived=derived, label=label, truncation=truncation, digits=digits)
+    difference = claimed - derived
+
+    decided, method, simplified = (None, "", difference)
+    if symbolic:
+        decided, method, simplified = _decide_zero(difference, simplify_seconds)
+        if decided is True:
+            return CheckResult(PROVEN, method=method, difference=sympy.Integer(0), **common)
+
+    symbols = sorted(difference.free_symbols | claimed.free_symbols | derived.free_symbols, key=lambda s: s.name)
+    intervals = {s: _interval(s, declared) for s in symbols}
+    shown_intervals = tuple((s.name, _interval_text(intervals[s])) for s in symbols)
+    notes = tuple(f"{s.name} is not a declared parameter; sampled in {intervals[s]}"
+                  for s in symbols if s.name not in declared)
+    sampler = _Sampler(symbols, intervals, seed)
+    good = skipped = 0
+    attempts = 0
+    max_attempts = 20 * points + 50
+    for point in sampler.points(points, max_attempts):
+        attempts += 1
+        left, right = _value(claimed, point, digits), _value(derived, point, digits)
+        if left is None or right is None:
+            skipped += 1
+            continue
+        good += 1
+        if not _agree(left, right, digits):
+            how = ("they differ" if not symbols else "they differ at a sampled point") \
+                + (f"; {method}: the difference is not zero" if decided is False else "")
+            return _mismatch(common, simplified, intervals, point, left, right, shown_intervals,
+                             good, skipped, notes, how)
+        if good >= points:
+            break
+    if good == 0:
+        raise InputError(f"cannot check {label or 'the claim'}: every sampled point is singular"
+                         + (f" ({'; '.join(f'{n} in {i}' for n, i in shown_intervals)})" if shown_intervals else ""))
+    if decided is False:
+        # A nonzero rational function that vanishes at every sampled point: possible only on integer
+        # (or a handful of) points.
+        notes += ("claimed - derived is not zero as a function, but vanishes at every sampled point",)
+    exhaustive = sampler.exhaustive and sampler.size <= good
+    if not symbols:
+        how = "they are not proven equal"
+    elif exhaustive:
+        how = "these are all the (integer) points of the ranges"
+    else:
+        how = "symbolic simplification did not decide" if symbolic else "symbolic simplification not tried"
+    if good < points and not exhaustive and symbols:
+        notes += (f"only {good} non-singular points found in {attempts} tries",)
+    return CheckResult(CONSISTENT, method=how, difference=None, points=good, skipped=skipped,
+                       intervals=shown_intervals, notes=notes, **common)
+
+
+def _mismatch(common, simplified, intervals, point, left, right, shown_intervals, good, skipped, notes,
+              method) -> CheckResult:
+    lead, about, lead_note = leading_term(simplified, intervals)
+    if lead_note:
+        notes = notes + (lead_note,)
+    return CheckResult(MISMATCH, method=method, difference=simplified, leading_term=lead,
+                       expansion_point=about,
+                       witness=tuple((s.name, v) for s, v in sorted(point.items(), key=lambda kv: kv[0].name)),
+                       claimed_value=_shown(left), derived_value=_shown(right), points=good, skipped=skipped,
+                       intervals=shown_intervals, notes=notes, **common)
+
+
+def _names_text(symbols) -> str:
+    names = sorted(s.name for s in symbols)
+    return ", ".join(names) if names else "no symbols (it is a number)"
+
+
+def _unify(expr: sympy.Expr, declared: dict) -> sympy.Expr:
+    """Replace symbols by the declared parameter symbols of the same name."""
+    swap = {s: declared[s.name].symbol for s in expr.free_symbols
+            if s.name in declared and s != declared[s.name].symbol}
+    return expr.xreplace(swap) if swap else expr
+
+
+def _series_variables(names, declared, present) -> list[sympy.Symbol]:
+    by_name = {s.name: s for s in present}
+    by_name.update({n: p.symbol for n, p in declared.items()})
+    out = []
+    for item in names:
+        name = getattr(item, "name", None) or str(item)
+        if name not in by_name:
+            raise InputError(f"cannot expand in {name}: it is not a declared parameter; "
+                             f"the values depend on {_names_text(present)}")
+        if by_name[name] not in out:
+            out.append(by_name[name])
+    if not out:
+        raise InputError("a truncated claim needs at least one parameter to expand in")
+    return sorted(out, key=lambda s: s.name)
+
+
+def _interval(symbol, declared) -> Interval:
+    return parameter_interval(declared.get(symbol.name, symbol))
+
+
+def _interval_text(interval: Interval) -> str:
+    return str(interval) + ("" if interval.origin == "declared range" else f" ({interval.origin})")
+
+
+# ---------------------------------------------------------------------------------------------
+# symbolic zero test with bounded effort
+
+
+class _OutOfTime(Exception):
+    pass
+
+
+def bounded(function, seconds: float | None):
+    """Run `function()`; give up (return None) after `seconds` when a timer can be armed (POSIX,
+    main thread, no timer already running), else run it unbounded."""
+    usable = (seconds is not None and hasattr(signal, "setitimer")
+              and threading.current_thread() is threading.main_thread()
+              and signal.getitimer(signal.ITIMER_REAL) == (0.0, 0.0))
+    if not usable:
+        return function()
+
+    def alarm(signum, frame):
+        raise _OutOfTime
+
+    previous = signal.signal(signal.SIGALRM, alarm)
+    try:
+        signal.setitimer(signal.ITIMER_REAL, seconds)
+        try:
+            return function()
+        finally:
+            signal.setitimer(signal.ITIMER_REAL, 0)
+    except _OutOfTime:
+        return None
+    finally:
+        signal.signal(signal.SIGALRM, previous)
+
+
+def _is_rational_over_q(expr) -> bool:
+    """Built from symbols and rationals by +, * and integer powers only."""
+    if expr.is_Symbol or expr.is_Rational:
+        return True
+    if expr.is_Add or expr.is_Mul:
+        return all(_is_rational_over_q(a) for a in expr.args)
+    if expr.is_Pow:
+        return expr.exp.is_Integer and _is_rational_over_q(expr.base)
+    return False
+
+
+def _decide_zero(difference, seconds) -> tuple[bool | None, str, sympy.Expr]:
+    """(True: zero, False: nonzero, None: undecided; how; the simplified difference)."""
+    expanded = sympy.expand(difference)
+    if expanded == 0:
+        return True, "by expansion", expanded
+    if _is_rational_over_q(expanded):
+        normal = sympy.cancel(sympy.together(expanded))
+        if normal == 0:
+            return True, "rational-function normal form", normal
+        return False, "rational-function normal form", sympy.factor(normal)
+    if not expanded.free_symbols:
+        x = sympy.Dummy("x")
+        polynomial = bounded(lambda: _minimal_polynomial(expanded, x), seconds)
+        if polynomial is not None:
+            if sympy.expand(polynomial - x) == 0:
+                return True, "minimal polynomial", sympy.Integer(0)
+            return False, "minimal polynomial", expanded
+    if sympy.count_ops(expanded) > MAX_SIMPLIFY_OPS:
+        return None, "", expanded
+    simplified = bounded(lambda: sympy.simplify(expanded), seconds)
+    if simplified is None:
+        return None, "", expanded
+    if simplified == 0:
+        return True, "simplify", simplified
+    return None, "", simplified
+
+
+def _minimal_polynomial(number, x):
+    try:
+        return sympy.minimal_polynomial(number, x)
+    except (NotImplementedError, sympy.polys.polyerrors.PolynomialError, sympy.polys.polyerrors.NotAlgebraic,
+            ArithmeticError, ValueError, TypeError):
+        return None
+
+
+# ---------------------------------------------------------------------------------------------
+# truncated series
+
+
+def truncate(expr, variables: Sequence[sympy.Symbol], order: int, what: str = "value") -> sympy.Expr:
+    """The Taylor polynomial of `expr` about 0 in `variables` through total order `order`."""
+    scaled = sympy.sympify(expr).xreplace({v: _EPS * v for v in variables})
+    names = ", ".join(v.name for v in variables)
+    if scaled.is_polynomial(_EPS):
+        coefficients = _poly_coefficients(sympy.expand(scaled), order)
+    elif scaled.is_rational_function(_EPS):
+        numerator, denominator = sympy.fraction(sympy.cancel(sympy.together(scaled), _EPS))
+        top = _poly_coefficients(sympy.expand(numerator), order)
+        bottom = _poly_coefficients(sympy.expand(denominator), order)
+        if sympy.simplify(bottom[0]) == 0:
+            raise InputError(f"the {what} has a pole at {names} = 0: not a power series there")
+        coefficients = []
+        for j in range(order + 1):
+            c = top[j] - sum(bottom[i] * coefficients[j - i] for i in range(1, j + 1))
+            coefficients.append(sympy.cancel(c / bottom[0]))
+    else:
+        series = bounded(lambda: sympy.series(scaled, _EPS, 0, order + 1).removeO(), 30.0)
+        if series is None or series.has(sympy.Order):
+            raise InputError(f"could not expand the {what} in {names} in the time allowed")
+        series = sympy.expand(series)
+        if not series.is_polynomial(_EPS):
+            raise InputError(f"the {what} is not a power series in {names} about 0 "
+                             f"(its expansion is {_text(series.subs(_EPS, 1))})")
+        coefficients = _poly_coefficients(series, order)
+    return sympy.Add(*coefficients)
+
+
+def _poly_coefficients(polynomial, order: int) -> list[sympy.Expr]:
+    """Coefficients of eps^0..eps^order, each times its eps-free monomial (eps set to 1)."""
+    out = [sympy.Integer(0)] * (order + 1)
+    for term in sympy.Add.make_args(polynomial):
+        rest, power = term.as_independent(_EPS, as_Add=False)
+        exponent = sympy.degree(power, _EPS) if power != 1 else 0
+        if exponent <= order:
+            out[int(exponent)] += rest
+    return out
+
+
+# ---------------------------------------------------------------------------------------------
+# leading term of a mismatch
+
+
+def leading_term(difference, intervals: dict) -> tuple[sympy.Expr | None, tuple, str | None]:
+    """The leading term of `difference` in its symbols, about 0 when 0 lies in a symbol's sampling
+    interval, else about the interval's lower end: (term, ((name, centre), ...), note)."""
+    symbols = sorted(difference.free_symbols, key=lambda s: s.name)
+    if not symbols:
+        return None, (), None
+    centres = {}
+    for s in symbols:
+        interval = intervals.get(s) or parameter_interval(s)
+        centres[s] = sympy.Integer(0) if interval.lower <= 0 <= interval.upper else interval.lower
+    shifted = {s: sympy.Dummy(s.name) for s in symbols}
+    scaled = difference.xreplace({s: centres[s] + _EPS * shifted[s] for s in symbols})
+    back = {shifted[s]: (s - centres[s]) if centres[s] != 0 else s for s in symbols}
+    about = tuple((s.name, centres[s]) for s in symbols)
+    term = None
+    if scaled.is_rational_function(_EPS):
+        numerator, denominator = sympy.fraction(sympy.together(scaled))
+        low_n = _lowest(sympy.expand(numerator))
+        low_d = _lowest(sympy.expand(denominator))
+        if low_n is not None and low_d is not None:
+            (a, ca), (b, cb) = low_n, low_d
+            term = sympy.factor(sympy.cancel(ca / cb))  # eps^(a - b) set to 1: the shifted symbols carry the degree
+    else:
+        found = bounded(lambda: _as_leading_term(scaled), 10.0)
+        if found is not None and not found.has(sympy.Order) and found != 0:
+            term = found.subs(_EPS, 1)
+    if term is None:
+        return None, about, "no leading term found"
+    return term.xreplace(back), about, None
+
+
+def _as_leading_term(expr):
+    try:
+        return expr.as_leading_term(_EPS)
+    except (NotImplementedError, ValueError, TypeError, ArithmeticError, sympy.PoleError):
+        return None  # sympy has no expansion of some function in it
+
+
+def _lowest(polynomial) -> tuple[int, sympy.Expr] | None:
+    """(lowest power of eps, its coefficient) of a polynomial in eps."""
+    by_power: dict[int, list] = {}
+    for term in sympy.Add.make_args(polynomial):
+        rest, power = term.as_independent(_EPS, as_Add=False)
+        exponent = int(sympy.degree(power, _EPS)) if power != 1 else 0
+        by_power.setdefault(exponent, []).append(rest)
+    for exponent in sorted(by_power):
+        coefficient = sympy.expand(sympy.Add(*by_power[exponent]))
+        if coefficient != 0:
+            return exponent, coefficient
+    return None
+
+
+# ---------------------------------------------------------------------------------------------
+# sampling and evaluation
+
+
+class _Sampler:
+    """Reproducible rational points in a box of intervals; closed ends first, then random points."""
+
+    DENOMINATORS = (50, 5000)
+
+    def __init__(self, symbols, intervals: dict, seed: int):
+        self.symbols = symbols
+        self.intervals = intervals
+        self.rng = random.Random(seed)
+        self.integers = {s: bool(s.is_integer) for s in symbols}
+        self.ranges = {s: _rational_ends(intervals[s]) for s in symbols}
+        self.exhaustive = False
+        self.size = math.inf
+        if symbols and all(self.integers.values()):
+            counts = 1
+            for s in symbols:
+                lo, hi = self._integer_range(s)
+                counts *= max(0, hi - lo + 1)
+            self.size = counts
+
+    def _integer_range(self, s) -> tuple[int, int]:
+        lo, hi, lo_open, hi_open = self.ranges[s]
+        first = math.floor(lo) + 1 if lo_open or lo != math.floor(lo) else int(lo)
+        last = math.ceil(hi) - 1 if hi_open or hi != math.ceil(hi) else int(hi)
+        return int(first), int(last)
+
+    def points(self, wanted: int, limit: int):
+        if not self.symbols:
+            yield {}
+            return
+        if self.size <= wanted:  # all integer points
+            self.exhaustive = True
+            axes = [range(self._integer_range(s)[0], self._integer_range(s)[1] + 1) for s in self.symbols]
+            for combo in itertools.product(*axes):
+                yield {s: sympy.Integer(v) for s, v in zip(self.symbols, combo)}
+            return
+        seen = set()
+        for attempt in range(limit):
+            point = {s: self._value(s, attempt) for s in self.symbols}
+            key = tuple(point[s] for s in self.symbols)
+            if key in seen:
+                continue
+            seen.add(key)
+            yield point
+
+    def _value(self, s, attempt: int):
+        lo, hi, lo_open, hi_open = self.ranges[s]
+        if self.integers[s]:
+            first, last = self._integer_range(s)
+            if first > last:
+                raise InputError(f"no integer lies in the range of {s.name}")
+            return sympy.Integer(self.rng.randint(first, last))
+        if attempt == 0 and not lo_open:
+            return lo
+        if attempt == 1 and not hi_open:
+            return hi
+        q = self.rng.randint(*self.DENOMINATORS)
+        k = self.rng.randint(1, q - 1)
+        return lo + (hi - lo) * sympy.Rational(k, q)
+
+
+def _rational_ends(interval: Interval):
+    """Rational ends inside the interval (irrational ends are moved inwards by at most 1e-12 and
+    then never hit, so they count as open)."""
+    lo, hi = interval.lower, interval.upper
+    lo_open, hi_open = interval.lower_open, interval.upper_open
+    if not lo.is_Rational:
+        lo, lo_open = sympy.ceiling(lo * 10**12) / sympy.Integer(10**12), False
+    if not hi.is_Rational:
+        hi, hi_open = sympy.floor(hi * 10**12) / sympy.Integer(10**12), False
+    return sympy.Rational(lo), sympy.Rational(hi), lo_open, hi_open
+
+
+_BAD = (sympy.zoo, sympy.oo, -sympy.oo, sympy.nan)
+
+
+def _value(expr, point: dict, digits: int):
+    """The exact value at the point (a sympy Rational), else an mpmath number with `digits` + 10
+    digits; None where the expression is singular."""
+    try:
+        exact = expr.xreplace(point) if point else expr
+    except (ZeroDivisionError, ValueError):
+        return None
+    if exact.has(*_BAD):
+        return None
+    if exact.is_Rational:
+        return exact
+    try:
+        number = sympy.N(exact, digits + 10)
+    except (ZeroDivisionError, ValueError, TypeError):
+        return None
+    if number.has(*_BAD) or not number.is_number:
+        return None
+    real, imag = number.as_real_imag()
+    if not (real.is_Number and imag.is_Number):
+        return None
+    with mpmath.workdps(digits + 10):
+        re = mpmath.mpf(sympy.Float(real, digits + 10)._mpf_)
+        im = mpmath.mpf(sympy.Float(imag, digits + 10)._mpf_)
+        return re if im == 0 else mpmath.mpc(re, im)
+
+
+def _agree(left, right, digits: int) -> bool:
+    if isinstance(left, sympy.Basic) and isinstance(right, sympy.Basic):
+        return left == right
+    with mpmath.workdps(digits + 10):
+        a, b = _mp(left, digits), _mp(right, digits)
+        scale = max(mpmath.mpf(1), abs(a), abs(b))
+        return abs(a - b) <= mpmath.mpf(10) ** (-digits) * scale
+
+
+def _mp(value, digits):
+    if isinstance(value, sympy.Basic):
+        return mpmath.mpf(sympy.Float(value, digits + 10)._mpf_)
+    return value
+
+
+def _shown(value) -> str:
+    if isinstance(value, sympy.Basic):
+        text = sympy.sstr(value)
+        if len(text) <= 40:
+            return text
+        value = _mp(value, SHOWN_DIGITS)
+    if isinstance(value, mpmath.mpc):
+        return f"{mpmath.nstr(value.real, SHOWN_DIGITS)}{'-' if value.imag < 0 else '+'}" \
+               f"{mpmath.nstr(abs(value.imag), SHOWN_DIGITS)}j"
+    return mpmath.nstr(value, SHOWN_DIGITS)
