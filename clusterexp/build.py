@@ -12,6 +12,7 @@ from .errors import InputError, NotSupportedYet, Span
 from .expressions import CONSTANTS, FUNCTIONS, ExpressionBuilder
 from .model import (FORMATS, QUANTITIES, Expansion, GivenValue, Mutual, OutputSettings, Parameter, Request, Source,
                     Species, Spectrum, System, Tubes)
+from .build_products import build_products, product_names, product_order
 from .parse import parse
 
 MAX_ORDER = 200
@@ -115,6 +116,7 @@ class _Builder:
         self.size_limit = None
         self.tubes = None
         self.expansions: list[tuple[lark.Tree, _File]] = []
+        self.products: list[tuple[lark.Tree, _File]] = []
 
     def span(self, item) -> Span:
         return self.file.span(item)
@@ -135,12 +137,17 @@ class _Builder:
             raise InputError("no species declared; add e.g. `species A bose`", self._first_span())
         names = list(self.species)
         requests = [self._request(tree, source, names) for tree, source in self.requests]
-        needed = max([_total(r) for r in requests], default=0)
+        products = build_products(self, self.products, names)
+        needed = max([_total(r) for r in requests] + [product_order(products)], default=0)
         order = self.order[0] if self.order else max(needed, DEFAULT_ORDER if not requests else 1)
         if self.order:
             for r in requests:
                 if _total(r) > order:
                     raise InputError(f"request needs total order {_total(r)} but `order {order}` is declared", r.span)
+            for name in product_names(products):
+                if sum(name.index) > order:
+                    raise InputError(f"{name.label} has total order {sum(name.index)} but `order {order}` is declared",
+                                     name.span)
         if not requests:
             span = self._first_span()
             requests = [Request("cluster", span, up_to=order), Request("virial", span, up_to=order)]
@@ -151,7 +158,7 @@ class _Builder:
                       requests=tuple(requests), order=order, reference=self.reference or names[0],
                       parameters=tuple(self.parameters.values()), mutuals=tuple(self.mutuals),
                       output=self.output, files=tuple(self.files), warnings=tuple(self.warnings),
-                      size_limit=self.size_limit, tubes=self.tubes, expansions=self._expansions())
+                      size_limit=self.size_limit, tubes=self.tubes, expansions=self._expansions(), **products)
 
     def _first_span(self) -> Span:
         return self.main.span(self.statements[0][0]) if self.statements else Span(self.main.name, 1, 1)
@@ -347,6 +354,11 @@ class _Builder:
 
     def _expand(self, tree):
         self.expansions.append((tree, self.file))
+
+    def _claim(self, tree):
+        self.products.append((tree, self.file))
+
+    _evaluate = _tabulate = _plot = _typeset = _typeset_wavelength = _claim
 
     def _size_limit(self, tree):
         token = tree.children[0]

@@ -5,7 +5,7 @@ import argparse
 import sys
 from pathlib import Path
 
-from .errors import EXIT_INPUT_ERROR, EXIT_OK, InputError, NotSupportedYet
+from .errors import EXIT_CHECK_FAILED, EXIT_INPUT_ERROR, EXIT_OK, InputError, NotSupportedYet
 
 DEMO = Path(__file__).resolve().parent / "demo.gas"
 
@@ -29,6 +29,9 @@ def _parser() -> argparse.ArgumentParser:
     run.add_argument("--size-limit", type=int, metavar="TERMS", default=None,
                      help="refuse derivations estimated above TERMS terms (default 200000; "
                           "the input may also say `size limit N`)")
+    run.add_argument("--files-into", metavar="FOLDER", default=".",
+                     help="folder for the tables and figures the input asks for (default: the current one)")
+    run.add_argument("--no-files", action="store_true", help="do not write the input's tables and figures")
     return parser
 
 
@@ -49,6 +52,14 @@ def main(argv: list[str] | None = None) -> int:
             derivation = derive_file(path, size_limit=args.size_limit)
         for message, span in derivation.system.warnings:
             print(f"{span}: warning: {message}" if span else f"warning: {message}", file=sys.stderr)
+        from .progress import Progress
+        derivation.compute_all(Progress())
+        if not args.no_files:
+            folder = Path(args.files_into)
+            if not folder.is_dir():
+                print(f"clusterexp: error: no such folder: {folder}", file=sys.stderr)
+                return EXIT_INPUT_ERROR
+            derivation.write_files(folder)
         fmt = args.format or derivation.system.output.format
         if fmt == "latex" and args.document:
             text = latex_document(derivation)
@@ -58,9 +69,15 @@ def main(argv: list[str] | None = None) -> int:
         print(error.render(), file=sys.stderr)
         return EXIT_INPUT_ERROR
     if args.output:
-        return _write(Path(args.output), text, args.overwrite)
-    sys.stdout.write(text)
-    return EXIT_OK
+        status = _write(Path(args.output), text, args.overwrite)
+        if status != EXIT_OK:
+            return status
+    else:
+        sys.stdout.write(text)
+    failed = [(claim, result) for claim, result in zip(derivation.system.claims, derivation.checks) if not result.ok]
+    for claim, result in failed:
+        print(f"{claim.span}: check failed: {result.label} differs from the derived value", file=sys.stderr)
+    return EXIT_CHECK_FAILED if failed else EXIT_OK
 
 
 def _write(path: Path, text: str, overwrite: bool) -> int:

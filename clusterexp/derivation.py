@@ -202,7 +202,12 @@ def derive_system(system: System, size_limit: int | None = None) -> Derivation:
                         value, terms = _lookup(plan, kind, index, i)
                         coefficients.append(Coefficient(kind, index, names, value, component=component,
                                                         compute_terms=terms))
-    return Derivation(system, coefficients)
+    def make(kind: str, index: Index, component: str | None = None) -> Coefficient:
+        i = names.index(component) if component is not None else None
+        value, terms = _lookup(plan, kind, tuple(index), i)
+        return Coefficient(kind, tuple(index), names, value, component=component, compute_terms=terms)
+
+    return Derivation(system, coefficients, make=make)
 
 
 def _lookup(plan: _Plan, kind: str, index: Index, i: int | None = None):

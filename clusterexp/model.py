@@ -153,6 +153,82 @@ class OutputSettings:
 
 
 @dataclass(frozen=True)
+class CoefficientName:
+    """A coefficient named in a claim, evaluation, table or figure: `b[2,1]`, `a[3]`, `rho_A[1,1]`
+    (kind "density", component "A") or `z_A[2,0]` (kind "fugacity")."""
+
+    kind: str
+    index: Index
+    span: Span
+    component: str | None = None
+
+    @property
+    def label(self) -> str:
+        from .naming import bracket_label
+        letter = {"cluster": "b", "virial": "a", "density": "rho", "fugacity": "z"}[self.kind]
+        return f"{letter}{'_' + self.component if self.component else ''}{bracket_label(self.index)}"
+
+
+@dataclass(frozen=True)
+class Claim:
+    """`claim a[3] = ...`: the user's own result for a derived coefficient. `limits` holds
+    {symbol: first power not claimed} when the claim ends in O(...): it is compared below those."""
+
+    target: CoefficientName
+    value: sympy.Expr
+    span: Span
+    limits: tuple[tuple[sympy.Symbol, int], ...] = ()
+
+
+@dataclass(frozen=True)
+class Evaluation:
+    """`evaluate a[2], ... at alpha = 1/2 digits 20`: numbers at one point."""
+
+    targets: tuple[CoefficientName, ...]
+    point: tuple[tuple[sympy.Symbol, sympy.Expr], ...]
+    digits: int
+    span: Span
+
+
+@dataclass(frozen=True)
+class Table:
+    """`tabulate ... over alpha from 0 to 2 step 1/4, nu in [..] at g = 1 into "t.csv"`: a CSV grid.
+    `axes` holds each grid parameter with its exact values; `fixed` the parameters kept at one value."""
+
+    targets: tuple[CoefficientName, ...]
+    axes: tuple[tuple[sympy.Symbol, tuple[sympy.Expr, ...]], ...]
+    fixed: tuple[tuple[sympy.Symbol, sympy.Expr], ...]
+    digits: int
+    path: str
+    span: Span
+
+
+@dataclass(frozen=True)
+class Figure:
+    """`plot ... over alpha [from x to y][, nu [...]] [at ...] into "f.png"`: one axis draws curves,
+    two a heat map. An axis range of None means one period (exchange [0, 2], mutual [0, 1]) or the
+    declared range."""
+
+    targets: tuple[CoefficientName, ...]
+    axes: tuple[tuple[sympy.Symbol, tuple[sympy.Expr, sympy.Expr] | None], ...]
+    fixed: tuple[tuple[sympy.Symbol, sympy.Expr], ...]
+    path: str
+    span: Span
+
+
+@dataclass(frozen=True)
+class Typesetting:
+    """LaTeX names the user chose: `symbols` maps parameter or species names to LaTeX, `wavelength`
+    replaces the thermal-wavelength symbol lambda."""
+
+    symbols: tuple[tuple[str, str], ...] = ()
+    wavelength: str = r"\lambda"
+
+    def symbol(self, name: str) -> str | None:
+        return dict(self.symbols).get(name)
+
+
+@dataclass(frozen=True)
 class System:
     """A validated gas: what the derivation stage consumes."""
 
@@ -170,6 +246,11 @@ class System:
     size_limit: int | None = None  # from `size limit N`; None: limits.DEFAULT_SIZE_LIMIT
     tubes: "Tubes | None" = None
     expansions: tuple["Expansion", ...] = ()
+    claims: tuple[Claim, ...] = ()
+    evaluations: tuple[Evaluation, ...] = ()
+    tables: tuple[Table, ...] = ()
+    figures: tuple[Figure, ...] = ()
+    typesetting: Typesetting = field(default_factory=Typesetting)
 
     @property
     def species_names(self) -> tuple[str, ...]:

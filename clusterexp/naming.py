@@ -50,9 +50,11 @@ def species_latex(name: str) -> str:
     return r"\mathrm{" + name.replace("_", r"\_") + "}"
 
 
-def generated_latex_names(indices: Sequence[Index], species: Sequence[str]) -> dict[sympy.Symbol, str]:
-    """LaTeX names for every generated b/a symbol of the given multi-indices."""
-    labels = [species_latex(s) for s in species]
+def generated_latex_names(indices: Sequence[Index], species: Sequence[str],
+                          labels: Sequence[str] | None = None) -> dict[sympy.Symbol, str]:
+    """LaTeX names for every generated b/a symbol of the given multi-indices (`labels`: the species'
+    LaTeX, default from their names)."""
+    labels = list(labels) if labels is not None else [species_latex(s) for s in species]
     names = {}
     for index in indices:
         sub = latex_subscript(index, labels)

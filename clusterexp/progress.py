@@ -46,7 +46,7 @@ class Progress:
     def message(self, what: str, order: int | None = None, total: int | None = None) -> str:
         """The text of one report (no control characters)."""
         kind, _, label = what.strip().partition(" ")
-        head = "deriving " + KIND_WORDS.get(kind, kind)
+        head = "checking the claim" if kind == "check" else "deriving " + KIND_WORDS.get(kind, kind)
         total = total if total is not None else self.total
         text = head
         if order is not None:

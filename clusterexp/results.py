@@ -74,10 +74,13 @@ class Coefficient:
 
 @dataclass
 class Derivation:
-    """All coefficients derived from one input, in a deterministic order."""
+    """All coefficients derived from one input, in a deterministic order, and what the input asks
+    of them: checks of the user's claims, numbers at points, tables and figures (computed on first
+    use; files are written only by `write_files`)."""
 
     system: System
     coefficients: list[Coefficient]
+    make: Callable[..., Coefficient] | None = field(default=None, repr=False, compare=False)
 
     def __iter__(self) -> Iterator[Coefficient]:
         return iter(self.coefficients)
@@ -96,6 +99,70 @@ class Derivation:
                 return c.value
         raise KeyError(f"no {kind} coefficient {bracket_label(index)}"
                        + (f" of {component}" if component else "") + " in this derivation")
+
+    def coefficient(self, kind: str, index: Index, component: str | None = None) -> Coefficient:
+        """One coefficient, derived on demand when the input did not request it (for claims, numbers
+        and figures). The multi-index must lie within the derivation's order."""
+        index = tuple(index)
+        for c in self.coefficients:
+            if c.kind == kind and c.index == index and c.component == component:
+                return c
+        extra = self.__dict__.setdefault("_extra", {})
+        key = (kind, index, component)
+        if key not in extra:
+            if self.make is None:
+                raise KeyError(f"no {kind} coefficient {bracket_label(index)} in this derivation")
+            extra[key] = self.make(kind, index, component)
+        return extra[key]
+
+    @property
+    def checks(self):
+        """The outcome of every `claim`, in input order (`checks.CheckResult`)."""
+        from .products import run_checks
+        return self._cached("_checks", run_checks)
+
+    @property
+    def evaluations(self):
+        """Every `evaluate` statement with its numbers: [(Evaluation, [(label, text)])]."""
+        from .products import run_evaluations
+        return self._cached("_evaluations", run_evaluations)
+
+    @property
+    def tables(self):
+        """Every `tabulate` statement with its rows (header first): [(Table, rows)]."""
+        from .products import run_tables
+        return self._cached("_tables", run_tables)
+
+    @property
+    def failed_checks(self) -> list:
+        return [c for c in self.checks if not c.ok]
+
+    def write_files(self, directory=".") -> list:
+        """Write the tables (CSV) and figures the input asks for, relative to `directory`; returns
+        the paths written."""
+        from .products import write_files
+        return write_files(self, directory)
+
+    def compute_all(self, progress=None) -> None:
+        """Compute every value now (printers then only read), reporting each coefficient to
+        `progress` (a `progress.Progress`) when given."""
+        top = max((c.order for c in self.coefficients), default=0)
+        for c in self.coefficients:
+            if progress is not None:
+                progress.step(f"{c.kind} {c.label}", order=c.order, total=top)
+            c.terms  # noqa: B018 -- the exact value, as printers read it
+        for claim in self.system.claims:
+            if progress is not None:
+                progress.step(f"check {claim.target.label}")
+            self.coefficient(claim.target.kind, claim.target.index, claim.target.component).value  # noqa: B018
+        self.checks, self.evaluations, self.tables  # noqa: B018
+        if progress is not None:
+            progress.done()
+
+    def _cached(self, key: str, compute):
+        if key not in self.__dict__:
+            self.__dict__[key] = compute(self)
+        return self.__dict__[key]
 
     def _repr_latex_(self) -> str:
         from .export.latex import latex_snippet

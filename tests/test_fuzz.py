@@ -12,6 +12,7 @@ import io
 import os
 import random
 import re
+import tempfile
 import signal
 import sys
 from functools import cache
@@ -354,12 +355,14 @@ def small_enough(text: str) -> bool:
 def test_command_line_exit_codes_on_fuzz(text):
     if not small_enough(text):
         return
-    code, out, err = run_main(["run", "-e", text])
-    assert code in (0, 2), (code, err)
+    with tempfile.TemporaryDirectory() as folder:  # tables and figures the input may ask for
+        code, out, err = run_main(["run", "-e", text, "--files-into", folder])
+    assert code in (0, 1, 2), (code, err)
     if code == 2:
         assert REFUSAL.match(err) and "Traceback" not in err, err
-    else:  # success: stderr holds warnings only (each `file:line:col: warning: ...`)
-        assert out and all(": warning: " in line for line in err.splitlines()), err
+    else:  # success: stderr holds warnings and failed claims only (each `file:line:col: ...`)
+        assert out and all(": warning: " in line or ": check failed: " in line for line in err.splitlines()), err
+        assert (code == 1) == (": check failed: " in err), err
 
 
 def cli_cases(count: int) -> list[str]:
@@ -380,8 +383,8 @@ def test_subprocess_exit_codes_on_fuzz(text, tmp_path):
     path = tmp_path / "case.gas"
     path.write_text(text, encoding="utf-8")
     for args in (("run", "-e", text), ("run", str(path))):
-        result = run_cli(*args)
-        assert result.returncode in (0, 2), result.stderr
+        result = run_cli(*args, "--files-into", str(tmp_path))
+        assert result.returncode in (0, 1, 2), result.stderr
         assert "Traceback" not in result.stderr, result.stderr
         if result.returncode == 2:
             assert re.match(r"^.+:\d+:\d+: error: ", result.stderr), result.stderr

@@ -1,6 +1,8 @@
 """Pieces every printer shares: the conventions sentence and the system summary."""
 from __future__ import annotations
 
+import sympy
+
 from ..model import System
 
 CONVENTIONS = (
@@ -86,3 +88,47 @@ def regime_lines(system: System) -> list[str]:
         argument = f"z_{n}" if kind == "landau" or system.source.form == "level" else f"z_{n} exp(-beta eps_{n}(k))"
         equations.append(f"u_{n} = {argument} " + " ".join(factors))
     return head + ["equation of state: " + "; ".join(equations), pressure]
+
+
+def check_record(result) -> dict:
+    """One check as plain data (JSON and the LaTeX document read it)."""
+    record = {"claim": result.label, "status": result.status, "method": result.method}
+    if result.difference is not None and result.status == "mismatch":
+        record["difference"] = sympy.sstr(result.difference, order="lex")
+    if result.leading_term is not None:
+        record["leading_term"] = sympy.sstr(result.leading_term, order="lex")
+        record["about"] = {n: sympy.sstr(v) for n, v in result.expansion_point}
+    if result.witness:
+        record["at"] = {n: sympy.sstr(v) for n, v in result.witness}
+        record["claimed_value"], record["derived_value"] = result.claimed_value, result.derived_value
+    if result.points:
+        record["points"] = result.points
+    if result.notes:
+        record["notes"] = list(result.notes)
+    return record
+
+
+def point_text(point) -> str:
+    return ", ".join(f"{s.name} = {sympy.sstr(v)}" for s, v in point)
+
+
+def product_lines(derivation) -> list[str]:
+    """Plain-text sections for the checks, numbers and files an input asks for."""
+    system = derivation.system
+    lines = []
+    if system.claims:
+        lines += ["", "checks of the claims:"]
+        for result in derivation.checks:
+            lines += ["  " + line for line in result.render().splitlines()]
+    if system.evaluations:
+        lines += ["", "values:"]
+        for evaluation, rows in derivation.evaluations:
+            where = f"at {point_text(evaluation.point)} " if evaluation.point else ""
+            lines.append(f"  {where}({evaluation.digits} significant digits):")
+            lines += [f"    {label} = {number}" for label, number in rows]
+    files = [(t.path, "table of " + ", ".join(n.label for n in t.targets)) for t in system.tables]
+    files += [(f.path, ("map of " if len(f.axes) == 2 else "plot of ") + ", ".join(n.label for n in f.targets))
+              for f in system.figures]
+    if files:
+        lines += ["", "files:"] + [f"  {path}: {what}" for path, what in files]
+    return lines

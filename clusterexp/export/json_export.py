@@ -6,7 +6,7 @@ import json
 import sympy
 
 from ..results import Derivation
-from .common import CONVENTIONS
+from .common import CONVENTIONS, check_record
 
 
 def to_json(derivation: Derivation) -> str:
@@ -32,4 +32,12 @@ def to_json(derivation: Derivation) -> str:
             for c in derivation
         ],
     }
+    if system.claims:
+        document["checks"] = [check_record(r) for r in derivation.checks]
+    if system.evaluations:
+        document["values"] = [{"at": {s.name: sympy.sstr(v) for s, v in e.point}, "digits": e.digits,
+                               "values": {label: number for label, number in rows}}
+                              for e, rows in derivation.evaluations]
+    if system.tables or system.figures:
+        document["files"] = [t.path for t in system.tables] + [f.path for f in system.figures]
     return json.dumps(document, indent=2, sort_keys=False, ensure_ascii=True) + "\n"

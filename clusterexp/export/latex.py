@@ -11,28 +11,39 @@ from ..series import indices_up_to
 LETTERS = {"cluster": "b", "virial": "a"}
 
 
+def species_labels(system) -> list[str]:
+    """The LaTeX of each species: the user's `typeset` choice, else the name."""
+    return [system.typesetting.symbol(s) or species_latex(s) for s in system.species_names]
+
+
 def _symbol_names(derivation: Derivation) -> dict:
     system = derivation.system
     order = max([system.order] + [c.order for c in derivation])
-    return generated_latex_names(indices_up_to(len(system.species), order), system.species_names)
+    names = generated_latex_names(indices_up_to(len(system.species), order), system.species_names,
+                                  species_labels(system))
+    names.update({p.symbol: system.typesetting.symbol(p.name) for p in system.parameters
+                  if system.typesetting.symbol(p.name)})
+    return names
 
 
-def _lhs(c: Coefficient, labels: list[str], d: int) -> str:
+def _lhs(c: Coefficient, labels: list[str], d: int, wavelength: str = r"\lambda") -> str:
+    """The LaTeX name of a coefficient (also of a `model.CoefficientName`)."""
     sub = latex_subscript(c.index, labels)
     if c.kind in LETTERS:
         return f"{LETTERS[c.kind]}_{{{sub}}}"
-    k = species_latex(c.component)
-    monomial = _monomial(c.index, labels, "z" if c.kind == "density" else r"\rho", d if c.kind == "fugacity" else None)
-    head = rf"\rho_{{{k}}}\lambda^{{{d}}}" if c.kind == "density" else f"z_{{{k}}}"
+    k = labels[c.species.index(c.component)] if c.component else ""
+    monomial = _monomial(c.index, labels, "z" if c.kind == "density" else r"\rho", d if c.kind == "fugacity" else None,
+                         wavelength)
+    head = rf"\rho_{{{k}}}{{{wavelength}}}^{{{d}}}" if c.kind == "density" else f"z_{{{k}}}"
     return rf"\left[{head}\right]_{{{monomial}}}"
 
 
-def _monomial(index, labels, letter, d) -> str:
+def _monomial(index, labels, letter, d, wavelength=r"\lambda") -> str:
     factors = []
     for n, label in zip(index, labels):
         if not n:
             continue
-        base = f"{letter}_{{{label}}}" if d is None else rf"({letter}_{{{label}}}\lambda^{{{d}}})"
+        base = f"{letter}_{{{label}}}" if d is None else rf"({letter}_{{{label}}}{{{wavelength}}}^{{{d}}})"
         factors.append(base if n == 1 else f"{base}^{{{n}}}")
     return " ".join(factors)
 
@@ -41,10 +52,10 @@ def latex_snippet(derivation: Derivation, environment: str = "align", align: boo
     """The coefficients as one LaTeX environment (`align`, `align*` or `aligned`)."""
     system = derivation.system
     names = _symbol_names(derivation)
-    labels = [species_latex(s) for s in system.species_names]
+    labels = species_labels(system)
     use_align = system.output.align if align is None else align
     amp = "&" if use_align else ""
-    rows = [f"  {_lhs(c, labels, system.dimension)} {amp}= {c.latex(names)}"
+    rows = [f"  {_lhs(c, labels, system.dimension, system.typesetting.wavelength)} {amp}= {c.latex(names)}"
             for c in derivation]
     body = " \\\\\n".join(rows)
     return f"\\begin{{{environment}}}\n{body}\n\\end{{{environment}}}\n"
@@ -53,7 +64,7 @@ def latex_snippet(derivation: Derivation, environment: str = "align", align: boo
 def regime_latex(system) -> list[str]:
     """Paragraphs stating the regime's conventions and, where there is one, its equation of state."""
     kind = system.source.kind
-    labels = [species_latex(s) for s in system.species_names]
+    labels = species_labels(system)
     if kind == "ideal":
         return [r"Ideal gases: $b_{l\,e_i}=(m_i/m_{\mathrm{ref}})^{d/2}(\pm1)^{l+1}l^{-1-d/2}$ "
                 r"(upper sign bosons, lower fermions; Boltzmann species have $b_{e_i}$ only); no mixed coefficients."]
@@ -89,28 +100,109 @@ def regime_latex(system) -> list[str]:
         text = (rf"Exclusion statistics in the continuum, $d={system.dimension}$, Haldane's "
                 r"$g_{ij}=-\partial d_i/\partial N_j$; the levels are momentum cells shared by all species, "
                 r"$\varepsilon_i(k)=\hbar^2k^2/2m_i$.")
-        pressure = rf"\beta P\lambda^d=\int\frac{{d^dk\,\lambda^d}}{{(2\pi)^d}}\,\bigl[{logs}\bigr]"
+        w = "{" + system.typesetting.wavelength + "}"
+        pressure = rf"\beta P{w}^d=\int\frac{{d^dk\,{w}^d}}{{(2\pi)^d}}\,\bigl[{logs}\bigr]"
     return [text + " Equation of state:",
             r"\begin{gather*}", r" \\ ".join(equations) + r" \\", pressure, r"\end{gather*}"]
 
 
 def latex_document(derivation: Derivation) -> str:
-    """A standalone document that compiles with pdflatex: conventions, the system, the equations."""
+    """A standalone document that compiles with pdflatex: conventions, the declared system, each
+    coefficient as a numbered equation, then the checks of the user's claims, the values asked for
+    and small tables."""
     system = derivation.system
-    species = ", ".join(
-        f"${species_latex(s.name)}$ (mass ${sympy.latex(s.mass)}$, exchange parameter ${sympy.latex(s.exchange)}$)"
-        for s in system.species)
+    names = _symbol_names(derivation)
+    labels = species_labels(system)
+    w = "{" + system.typesetting.wavelength + "}"
+
+    def math(expr) -> str:
+        return sympy.latex(expr, symbol_names=names)
+
+    species = ", ".join(f"${label}$ (mass ${math(s.mass)}$, exchange parameter ${math(s.exchange)}$)"
+                        for label, s in zip(labels, system.species))
     lines = [
         r"\documentclass{article}",
         r"\usepackage{amsmath}",
         r"\begin{document}",
         r"\section*{Cluster and virial coefficients}",
         rf"Dimension $d={system.dimension}$; species {species}; reference species "
-        rf"${species_latex(system.reference)}$ with thermal wavelength $\lambda$.",
-        r"Conventions: $\beta P\lambda^d=\sum_n b_n z^n=\sum_n a_n(\rho\lambda^d)^n$; exchange parameter "
-        r"$\alpha=0$ bosons, $\alpha=1$ fermions; single-particle $b=(m_i/m_{\mathrm{ref}})^{d/2}$.",
+        rf"${labels[system.species_names.index(system.reference)]}$ with thermal wavelength ${w}$.",
+    ]
+    if system.mutuals:
+        lines.append("Mutual (braiding) parameters: " + ", ".join(
+            rf"$\alpha_{{{labels[system.species_names.index(m.first)]}{labels[system.species_names.index(m.second)]}}}"
+            rf"={math(m.value)}$" for m in system.mutuals) + r" (period $1$).")
+    lines += [
+        rf"Conventions: $\beta P{w}^d=\sum_n b_n z^n=\sum_n a_n(\rho{w}^d)^n$; exchange parameter "
+        r"$\alpha=0$ bosons, $\alpha=1$ fermions (period $2$); single-particle $b=(m_i/m_{\mathrm{ref}})^{d/2}$.",
         *regime_latex(system),
         latex_snippet(derivation).rstrip("\n"),
+        *_checks_latex(derivation, labels, w, names),
+        *_values_latex(derivation, labels, w, names),
         r"\end{document}",
     ]
     return "\n".join(lines) + "\n"
+
+
+def _name(derivation, target, labels, w) -> str:
+    c = derivation.coefficient(target.kind, target.index, target.component)
+    return _lhs(c, labels, derivation.system.dimension, w)
+
+
+def _checks_latex(derivation: Derivation, labels, w, names) -> list[str]:
+    system = derivation.system
+    if not system.claims:
+        return []
+    out = [r"\subsection*{Checks of hand results}", r"\begin{itemize}"]
+    for claim, result in zip(system.claims, derivation.checks):
+        line = rf"\item ${_name(derivation, claim.target, labels, w)}$"
+        if claim.limits or result.label != claim.target.label:
+            line += " (compared below " + ", ".join(rf"${sympy.latex(s)}^{{{k}}}$" for s, k in
+                                                     sorted(dict(claim.limits).items(), key=lambda kv: kv[0].name)) \
+                if claim.limits else " (compared as a truncated series"
+            line += ")"
+        line += f": {result.status} ({_escape(result.method)})"
+        if result.status == "mismatch" and result.difference is not None:
+            line += rf"; claimed minus derived $= {sympy.latex(result.difference, symbol_names=names)}$"
+        out.append(line + ".")
+    out.append(r"\end{itemize}")
+    return out
+
+
+def _values_latex(derivation: Derivation, labels, w, names) -> list[str]:
+    system = derivation.system
+    out = []
+    for evaluation, rows in derivation.evaluations:
+        at = ", ".join(rf"${sympy.latex(s, symbol_names=names)}={sympy.latex(v)}$" for s, v in evaluation.point)
+        out += [rf"\subsection*{{Values{' at ' + at if at else ''}}}", r"\begin{tabular}{ll}"]
+        out += [rf"${_name(derivation, t, labels, w)}$ & ${number}$ \\" for t, (_, number) in zip(evaluation.targets, rows)]
+        out.append(r"\end{tabular}")
+    for table, rows in derivation.tables:
+        header = [rf"${sympy.latex(s, symbol_names=names)}$" for s, _ in table.axes] + \
+                 [rf"${sympy.latex(s, symbol_names=names)}$" for s, _ in table.fixed] + \
+                 [rf"${_name(derivation, t, labels, w)}$" for t in table.targets]
+        out.append(rf"\subsection*{{Table ({_escape(table.path)})}}")
+        if len(rows) > TABLE_ROWS_SHOWN + 1:
+            out.append(f"{len(rows) - 1} rows, written to the file {_escape(table.path)}.")
+            continue
+        out += [r"\begin{tabular}{" + "r" * len(header) + "}", " & ".join(header) + r" \\ \hline"]
+        out += [" & ".join(f"${_number_latex(cell)}$" for cell in row) + r" \\" for row in rows[1:]]
+        out.append(r"\end{tabular}")
+    return out
+
+
+TABLE_ROWS_SHOWN = 40
+
+
+def _number_latex(text: str) -> str:
+    if "/" in text:
+        p, q = text.lstrip("-").split("/", 1)
+        return ("-" if text.startswith("-") else "") + rf"\tfrac{{{p}}}{{{q}}}"
+    return text.replace("j", "i").replace("e", r"\times10^{") + ("}" if "e" in text else "")
+
+
+def _escape(text: str) -> str:
+    for char, replacement in (("\\", r"\textbackslash{}"), ("_", r"\_"), ("%", r"\%"), ("&", r"\&"), ("#", r"\#"),
+                              ("$", r"\$"), ("{", r"\{"), ("}", r"\}"), ("^", r"\^{}"), ("~", r"\~{}")):
+        text = text.replace(char, replacement) if char != "\\" else text.replace(char, "\0")
+    return text.replace("\0", r"\textbackslash{}")

@@ -5,7 +5,7 @@ import sympy
 
 from ..results import Derivation
 from ..routes.pairphase import expansion_of
-from .common import CONVENTIONS, KIND_TITLES, regime_lines, summary_lines
+from .common import CONVENTIONS, KIND_TITLES, product_lines, regime_lines, summary_lines
 
 
 def to_text(derivation: Derivation) -> str:
@@ -24,4 +24,5 @@ def to_text(derivation: Derivation) -> str:
             for side, series in expansion_of(c.label, c.value, e):
                 lines.append(f"    series in {e.symbol} about {e.point} through order {e.order} ({side}): "
                              f"{sympy.sstr(series, order='lex')}")
+    lines += product_lines(derivation)
     return "\n".join(lines) + "\n"

@@ -1,0 +1,160 @@
+"""What an input asks of its derived coefficients: checks of the user's claims, numbers at points,
+CSV tables and figures. Each error points at the statement that asked for it.
+
+The work itself is done by `checks`, `numbers` and `plots`; this module picks the coefficients out of
+a `Derivation`, handles truncated series (a claim ending in O(alpha^3), or a value known only to some
+order) and attaches spans.
+"""
+from __future__ import annotations
+
+from pathlib import Path
+
+import sympy
+
+from .checks import check_claim
+from .errors import InputError
+from .numbers import evaluate, format_number, grid_table, write_csv
+
+
+def _coefficient(derivation, name):
+    return derivation.coefficient(name.kind, name.index, name.component)
+
+
+def _limits_text(limits: dict) -> str:
+    return ", ".join(f"O({s.name}^{k})" for s, k in sorted(limits.items(), key=lambda kv: kv[0].name))
+
+
+def _at(error: InputError, span) -> InputError:
+    """The same message, placed at the statement when it had no place of its own."""
+    return error if error.span is not None else InputError(error.message, span, error.hint)
+
+
+def run_checks(derivation) -> list:
+    """One `checks.CheckResult` per `claim`, in input order.
+
+    A claim ending in O(p^k), or a derived value known only below some power (given truncated
+    series), is compared below the lower of the two limits in each parameter."""
+    from .routes.pairphase import split_truncation, truncate
+    system = derivation.system
+    results = []
+    for claim in system.claims:
+        derived, known = split_truncation(_coefficient(derivation, claim.target).value)
+        limits = dict(known)
+        for symbol, k in claim.limits:
+            limits[symbol] = min(k, limits.get(symbol, k))
+        claimed = claim.value
+        label = claim.target.label
+        notes = []
+        if limits:
+            try:
+                claimed = truncate(claimed, limits).removeO()
+                derived = truncate(derived, limits).removeO()
+            except ValueError as error:
+                raise InputError(f"{error}: declare the parameter's range inside one period so that the "
+                                 "coefficient has a single polynomial branch", claim.span) from None
+            label += f" up to {_limits_text(limits)}"
+            if set(known) - {s for s, _ in claim.limits} or any(known[s] < k for s, k in claim.limits if s in known):
+                notes.append(f"the derived value is known only up to {_limits_text(known)}")
+        try:
+            result = check_claim(claimed, derived, system.parameters, label=label)
+        except InputError as error:
+            raise _at(error, claim.span) from None
+        if notes:
+            from dataclasses import replace
+            result = replace(result, notes=result.notes + tuple(notes))
+        results.append(result)
+    return results
+
+
+def run_evaluations(derivation) -> list:
+    """[(Evaluation, [(label, text of the number)])] for every `evaluate` statement."""
+    out = []
+    for evaluation in derivation.system.evaluations:
+        point = {s: v for s, v in evaluation.point}
+        values = [_coefficient(derivation, t).value for t in evaluation.targets]
+        used = set().union(*(v.free_symbols for v in values))
+        unused = [s.name for s in point if s not in used]
+        if unused:
+            raise InputError(f"{', '.join(t.label for t in evaluation.targets)} "
+                             f"{'does' if len(values) == 1 else 'do'} not depend on {', '.join(unused)}",
+                             evaluation.span)
+        rows = []
+        for target, value in zip(evaluation.targets, values):
+            label = target.label
+            order = value.getO() if hasattr(value, "getO") else None
+            if order is not None:
+                value = value.removeO()
+                label += f" (truncated series, {sympy.sstr(order)} left out)"
+            try:
+                number = evaluate(value, point, evaluation.digits, allowed=[s.name for s in point])
+            except InputError as error:
+                raise InputError(f"{target.label}: {error.message}", evaluation.span) from None
+            rows.append((label, format_number(number, evaluation.digits)))
+        out.append((evaluation, rows))
+    return out
+
+
+class _Named:
+    """A coefficient under the label the user wrote (rho_A[1,1]), as `numbers`/`plots` expect."""
+
+    def __init__(self, name, coefficient, value=None):
+        self.kind, self.index, self.label = coefficient.kind, coefficient.index, name.label
+        self.component, self.species = coefficient.component, coefficient.species
+        self.value = coefficient.value if value is None else value
+
+
+def _plain(derivation, name, span):
+    """The coefficient, refusing a truncated series (a table or figure of it would hide the O(...))."""
+    coefficient = _coefficient(derivation, name)
+    order = coefficient.value.getO() if hasattr(coefficient.value, "getO") else None
+    if order is not None:
+        raise InputError(f"{name.label} is known only as a series ({sympy.sstr(order)} left out); tables and "
+                         "figures need a closed form", span)
+    return _Named(name, coefficient)
+
+
+def run_tables(derivation) -> list:
+    """[(Table, rows)] with the header row first, for every `tabulate` statement."""
+    out = []
+    for table in derivation.system.tables:
+        items = [_plain(derivation, t, table.span) for t in table.targets]
+        try:
+            rows = grid_table(items, {s.name: values for s, values in table.axes}, table.digits,
+                              fixed={s.name: v for s, v in table.fixed})
+        except InputError as error:
+            raise _at(error, table.span) from None
+        out.append((table, rows))
+    return out
+
+
+def write_files(derivation, directory=".") -> list[Path]:
+    """Write every table (CSV) and figure of the input into `directory`; returns the paths."""
+    from . import plots
+    directory = Path(directory)
+    written = []
+    for table, rows in derivation.tables:
+        try:
+            written.append(write_csv(rows, directory / table.path))
+        except OSError as error:
+            raise InputError(f"cannot write {table.path}: {error.strerror}", table.span) from None
+        except InputError as error:
+            raise _at(error, table.span) from None
+    system = derivation.system
+    for figure in system.figures:
+        items = [_plain(derivation, t, figure.span) for t in figure.targets]
+        other = {s.name: v for s, v in figure.fixed}
+        path = directory / figure.path
+        try:
+            if len(figure.axes) == 1:
+                (symbol, interval), = figure.axes
+                written.append(plots.plot_line(items, symbol.name, interval, path, other_values=other,
+                                               system=system, parameters=system.parameters))
+            else:
+                first, second = ((s.name, interval) for s, interval in figure.axes)
+                written.append(plots.plot_map(items[0], first, second, path, other_values=other,
+                                              system=system, parameters=system.parameters))
+        except OSError as error:
+            raise InputError(f"cannot write {figure.path}: {error.strerror}", figure.span) from None
+        except InputError as error:
+            raise _at(error, figure.span) from None
+    return written
