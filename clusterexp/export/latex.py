@@ -4,6 +4,7 @@ from __future__ import annotations
 import sympy
 
 from .common import eos_exponents, statistics_matrix
+from .latex_lines import aligned_rows
 from ..naming import generated_latex_names, latex_subscript, species_latex
 from ..results import Coefficient, Derivation
 from ..series import indices_up_to
@@ -55,8 +56,9 @@ def latex_snippet(derivation: Derivation, environment: str = "align", align: boo
     labels = species_labels(system)
     use_align = system.output.align if align is None else align
     amp = "&" if use_align else ""
-    rows = [f"  {_lhs(c, labels, system.dimension, system.typesetting.wavelength)} {amp}= {c.latex(names)}"
-            for c in derivation]
+    wavelength = system.typesetting.wavelength
+    rows = [aligned_rows(_lhs(c, labels, system.dimension, wavelength), c.latex(names)) if use_align else
+            f"  {_lhs(c, labels, system.dimension, wavelength)} = {c.latex(names)}" for c in derivation]
     body = " \\\\\n".join(rows)
     return f"\\begin{{{environment}}}\n{body}\n\\end{{{environment}}}\n"
 

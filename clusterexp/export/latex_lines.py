@@ -1,0 +1,42 @@
+"""Breaking a long LaTeX sum over several lines of an `align` environment, so that a coefficient with
+many terms fits the page of a manuscript. Only top-level `+` and `-` (outside braces, brackets and
+parentheses) are break points; the text of each term is kept as printed.
+"""
+from __future__ import annotations
+
+OPEN, CLOSE = "{([", "})]"
+
+
+def top_level_terms(latex: str) -> list[str]:
+    """The terms of a printed sum, each with its sign: "a + b - c" -> ["a", "+ b", "- c"]."""
+    terms, depth, start, i = [], 0, 0, 0
+    while i < len(latex):
+        char = latex[i]
+        if char == "\\" and i + 1 < len(latex) and latex[i + 1] in "{}":
+            i += 2  # escaped brace: not a group
+            continue
+        if char in OPEN:
+            depth += 1
+        elif char in CLOSE:
+            depth -= 1
+        elif depth == 0 and char in "+-" and i > 0 and latex[i - 1] == " " and latex[i + 1:i + 2] == " ":
+            piece = latex[start:i].strip()
+            if piece:
+                terms.append(piece)
+            start = i
+        i += 1
+    terms.append(latex[start:].strip())
+    return [t for t in terms if t]
+
+
+def aligned_rows(lhs: str, latex: str, per_line: int = 4) -> str:
+    """`lhs &= ...` over as many lines as needed, `per_line` terms each; every line but the last is
+    unnumbered so the coefficient keeps one equation number."""
+    terms = top_level_terms(latex)
+    if len(terms) <= per_line + 1:
+        return f"  {lhs} &= {latex}"
+    chunks = [terms[k:k + per_line] for k in range(0, len(terms), per_line)]
+    lines = [f"  {lhs} &= {' '.join(chunks[0])}"]
+    for chunk in chunks[1:]:
+        lines.append(r"  &\quad " + " ".join(chunk))
+    return " \\nonumber \\\\\n".join(lines)
