@@ -18,7 +18,7 @@ from clusterexp.build import build_system
 from clusterexp.errors import InputError
 from clusterexp.export import latex_document, latex_snippet, to_json
 from clusterexp.progress import Progress
-from conftest import run_cli
+from conftest import ROOT, run_cli
 
 ANYONS = """dimension 2
 parameter alpha in [0, 1]
@@ -273,3 +273,26 @@ def test_notebook_display_is_latex():
     shown = d._repr_latex_()
     assert shown.startswith("$$\\begin{aligned}") and "a_{2}" in shown
     assert d.checks[0]._repr_latex_().startswith("$$\\text{proven}")
+
+
+def test_progress_shows_on_a_terminal(tmp_path):
+    import pty
+    import sys
+    master, slave = pty.openpty()
+    env = dict(os.environ, PYTHONPATH=str(ROOT))
+    process = subprocess.run([sys.executable, "-m", "clusterexp", "run", "-e", ANYONS, "--no-files"], cwd=tmp_path,
+                             stdout=subprocess.PIPE, stderr=slave, env=env, timeout=300)
+    os.close(slave)
+    shown = b""
+    while True:
+        try:
+            chunk = os.read(master, 65536)
+        except OSError:
+            break
+        if not chunk:
+            break
+        shown += chunk
+    os.close(master)
+    assert process.returncode == 0
+    assert b"deriving virial coefficients: order 3/3 (a[3])" in shown
+    assert b"deriving" not in process.stdout
