@@ -7,6 +7,7 @@ from .common import eos_exponents, statistics_matrix
 from ..naming import generated_latex_names, latex_subscript, species_latex
 from ..results import Coefficient, Derivation
 from ..series import indices_up_to
+from .series_lines import pairphase_latex_paragraphs, series_latex_rows
 
 LETTERS = {"cluster": "b", "virial": "a"}
 
@@ -44,8 +45,9 @@ def latex_snippet(derivation: Derivation, environment: str = "align", align: boo
     labels = [species_latex(s) for s in system.species_names]
     use_align = system.output.align if align is None else align
     amp = "&" if use_align else ""
-    rows = [f"  {_lhs(c, labels, system.dimension)} {amp}= {c.latex(names)}"
-            for c in derivation]
+    rows = [row for c in derivation for row in
+            [f"  {_lhs(c, labels, system.dimension)} {amp}= {c.latex(names)}",
+             *series_latex_rows(derivation, c, amp, names)]]
     body = " \\\\\n".join(rows)
     return f"\\begin{{{environment}}}\n{body}\n\\end{{{environment}}}\n"
 
@@ -110,6 +112,7 @@ def latex_document(derivation: Derivation) -> str:
         r"Conventions: $\beta P\lambda^d=\sum_n b_n z^n=\sum_n a_n(\rho\lambda^d)^n$; exchange parameter "
         r"$\alpha=0$ bosons, $\alpha=1$ fermions; single-particle $b=(m_i/m_{\mathrm{ref}})^{d/2}$.",
         *regime_latex(system),
+        *pairphase_latex_paragraphs(derivation),
         latex_snippet(derivation).rstrip("\n"),
         r"\end{document}",
     ]
