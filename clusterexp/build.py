@@ -476,7 +476,13 @@ class _Builder:
             if sum(index) > order:
                 raise InputError(f"this coefficient has total order {sum(index)}, beyond the order {order} "
                                  "derived here", self.span(ref))
-            values.append(GivenValue(kind, index, self.expr(value), self.span(ref)))
+            expr = self.expr(value)
+            if source.kind == "pairphase":
+                from .routes.pairphase import truncation_problem
+                problem = truncation_problem(expr)
+                if problem:
+                    raise InputError(problem, self.span(value))
+            values.append(GivenValue(kind, index, expr, self.span(ref)))
         self.file = self.main
         return Source(source.kind, source.span, tuple(values))
 
@@ -517,6 +523,7 @@ class _Builder:
             if self.dimension != 2:
                 raise InputError(f"pair phases are a property of the plane; declare `dimension 2`, not {self.dimension}",
                                  source.span)
+            self._real_statistics()
         if self.tubes is not None and source.kind != "pairphase":
             raise InputError("flux tubes are used with `clusters pairphase`", self.tubes.span)
         if self.tubes is not None:
@@ -526,6 +533,18 @@ class _Builder:
                                       "tube pieces of several mobile particles are many-body and not yet named)",
                                       self.tubes.span)
         return source
+
+    def _real_statistics(self) -> None:
+        """Pair phases need real statistics parameters for every allowed value of the declared parameters
+        (the per-declaration checks only refuse what is surely complex, such as sqrt(-1))."""
+        entries = [(s.exchange, "the exchange parameter", s.span) for s in self.species.values()]
+        entries += [(m.value, f"the mutual parameter of {m.first} and {m.second}", m.span) for m in self.mutuals]
+        if self.tubes is not None:
+            entries.append((self.tubes.flux, "the tube flux", self.tubes.span))
+        for value, what, span in entries:
+            if _decide(lambda: value.is_real, span, f"{what} is real") is not True:
+                raise InputError(f"{what} must be real: {value} is not real for every value of its parameters "
+                                 "(a phase e^(i pi alpha) needs real alpha)", span)
 
     def _no_mutuals(self, what: str) -> None:
         if self.mutuals:

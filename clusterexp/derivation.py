@@ -57,25 +57,23 @@ class _Plan:
     @cached_property
     def truncation(self) -> dict:
         """{symbol: first unknown power} over every truncated series the user gave (pair phases)."""
+        return self.truncation_for(None)
+
+    def truncation_for(self, index: Index | None) -> dict:
+        """{symbol: first unknown power} over the truncated inputs coefficient `index` depends on: given
+        values whose multi-index fits inside it (a_n and z(rho) at n involve b_m for m <= n only, and
+        conversely), and the tube coverage, which every coefficient feels through b_{e_i}. None: all."""
         from .routes.pairphase import split_truncation
         limits: dict = {}
         for v in self.system.source.values:
-            _, found = split_truncation(v.value)
-            for symbol, k in found.items():
+            if index is not None and not all(a <= b for a, b in zip(v.index, index)):
+                continue
+            for symbol, k in split_truncation(v.value)[1].items():
                 limits[symbol] = min(k, limits.get(symbol, k))
         tubes = self.system.tubes
         if tubes is not None and isinstance(tubes.coverage, sympy.Symbol):
             limits[tubes.coverage] = min(2, limits.get(tubes.coverage, 2))
         return limits
-
-    def depends_on_truncated(self, index: Index) -> bool:
-        """Whether coefficient `index` involves a given value that is a truncated series (one whose
-        multi-index fits inside this one)."""
-        from .routes.pairphase import split_truncation
-        if self.system.tubes is not None and isinstance(self.system.tubes.coverage, sympy.Symbol):
-            return True
-        return any(split_truncation(v.value)[1] and all(a <= b for a, b in zip(v.index, index))
-                   for v in self.system.source.values)
 
     def _given_exact(self) -> dict:
         from .routes.pairphase import split_truncation
@@ -225,10 +223,11 @@ def _lookup(plan: _Plan, kind: str, index: Index, i: int | None = None):
     def compute() -> sympy.Expr:
         t = table()
         value = sympy.sympify(t[index] if isinstance(t, CoefficientTable) else t.get(index, sympy.Integer(0)))
-        if plan.truncation and plan.depends_on_truncated(index) and not (kind == "virial" and sum(index) == 1):
+        limits = plan.truncation_for(index) if plan.truncation else {}
+        if limits and not (kind == "virial" and sum(index) == 1):
             from .routes.pairphase import truncate
             try:
-                value = truncate(value, plan.truncation)
+                value = truncate(value, limits)
             except ValueError as error:
                 raise InputError(f"{error}: declare the parameter's range inside one period so that the "
                                  "two-body parts have a single polynomial branch", plan.system.source.span) from None

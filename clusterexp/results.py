@@ -81,6 +81,17 @@ class Derivation:
     system: System
     coefficients: list[Coefficient]
     make: Callable[..., Coefficient] | None = field(default=None, repr=False, compare=False)
+    _series: dict = field(default_factory=dict, repr=False, compare=False)
+
+    def series_of(self, c: Coefficient) -> list:
+        """The `expand` series of coefficient c (a list of `SeriesPiece`, one per request and side),
+        computed once and shared by every printer."""
+        key = (c.kind, c.index, c.component)
+        if key not in self._series:
+            from .routes.pairphase import expansion_of
+            self._series[key] = [piece for e in self.system.expansions
+                                 for piece in expansion_of(c.label, c.value, e, self.system.parameters)]
+        return self._series[key]
 
     def __iter__(self) -> Iterator[Coefficient]:
         return iter(self.coefficients)

@@ -45,3 +45,51 @@ def wu_iteration(g, N):
     log = lambda x: truncate(sum((-1) ** (k + 1) * x ** k / k for k in range(1, N + 1)))
     pressure = sympy.Poly(truncate(sum(log(ui) for ui in u)), *z)
     return dict(zip(pressure.monoms(), pressure.coeffs()))
+
+
+def virial_by_iteration(b, N):
+    """Independent cluster -> virial route written with plain sympy (no project code): solve
+    rho_i = z_i d/dz_i sum_n b_n z^n for z(rho) by the fixed-point iteration
+    z_i = (rho_i - sum_{|m|>=2} m_i b_m z^m) / b_{e_i} (one order gained per pass, N passes, truncated by
+    total degree N), substitute into beta P lambda^d = sum_n b_n z^n and return {multi-index: a_n}.
+    `b` maps every multi-index up to total order N (single particles included) to a polynomial in
+    any symbols; sympy's sparse polynomial ring in (s, rho) does the arithmetic, its coefficients
+    polynomials (or, when some b_{e_i} is not a number, rational functions) in those symbols."""
+    import sympy
+    K = len(next(iter(b)))
+    rho = sympy.symbols(f"r0:{K}")
+    s = sympy.Symbol("s")
+    others = sorted(set().union(*(sympy.sympify(v).free_symbols for v in b.values())), key=str)
+    unit = [tuple(int(j == i) for j in range(K)) for i in range(K)]
+    # coefficients: polynomials in the other symbols, or rational functions when a b_{e_i} depends on them
+    if not others:
+        domain = sympy.QQ
+    elif all(sympy.sympify(b[u]).is_number for u in unit):
+        domain = sympy.QQ.poly_ring(*others)
+    else:
+        domain = sympy.QQ.frac_field(*others)
+    R, s_, *rho_ = sympy.ring([s, *rho], domain)
+    values = {n: R.from_expr(sympy.sympify(v)) for n, v in b.items()}
+
+    def truncate(p):
+        return R.from_dict({m: c for m, c in p.items() if m[0] <= N})
+
+    def monomial(zs, n):
+        product = R.one
+        for v, k in zip(zs, n):
+            for _ in range(k):
+                product = truncate(product * v)
+        return product
+
+    inverse = [R.domain.convert(1) / R.domain.from_sympy(sympy.sympify(b[u])) for u in unit]
+    guess = [s_ * rho_[i] * inverse[i] for i in range(K)]
+    for _ in range(N):
+        powers = {n: monomial(guess, n) for n in b if sum(n) >= 2}
+        guess = [(s_ * rho_[i] - sum((n[i] * values[n] * powers[n] for n in powers), R.zero)) * inverse[i]
+                 for i in range(K)]
+    pressure = sum((values[n] * monomial(guess, n) for n in b), R.zero)
+    out = {}
+    for m, c in truncate(pressure).items():
+        if sum(m[1:]) == m[0]:
+            out[m[1:]] = sympy.expand(R.domain.to_sympy(c))
+    return out

@@ -33,3 +33,19 @@ def test_readme_commands_and_ci_agree():
     assert test_command in readme
     assert "pip install --quiet '.[test]' && python3 -m pytest -q" in ci
     assert "pip install . && clusterexp run demo" in readme
+
+
+def test_readme_example_commands_run():
+    """Every `clusterexp run ...` line in the README's fenced blocks works (exit 0) from the repository."""
+    import shlex
+    lines, fenced = [], False
+    for line in (ROOT / "README.md").read_text().splitlines():
+        if line.startswith("```"):
+            fenced = not fenced
+        elif fenced and line.startswith("clusterexp run"):
+            lines.append(line)
+    assert any("pairphase" in line for line in lines)
+    for line in lines:
+        result = subprocess.run([sys.executable, "-m", "clusterexp", *shlex.split(line)[1:]], cwd=ROOT,
+                                capture_output=True, text=True, timeout=300)
+        assert result.returncode == 0, (line, result.stderr)

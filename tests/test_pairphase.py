@@ -138,3 +138,184 @@ def test_pairphase_bad_input(text, message):
     with pytest.raises((InputError, clusterexp.NotSupportedYet)) as caught:
         clusterexp.derive(text)
     assert str(caught.value).split("error: ", 1)[-1].startswith(message) or message in str(caught.value)
+
+
+# -- several species: truncated many-body pieces composed into the mixed virial coefficients -------------
+
+from conftest import virial_by_iteration  # noqa: E402
+
+NU, W, X, Y, Z = sympy.symbols("nu w X Y Z")
+HALF, THIRD = sympy.Rational(1, 2), sympy.Rational(1, 3)
+
+
+def _by_name(value):
+    """The project's symbols carry assumptions; compare by name with the plain symbols used here."""
+    plain = {s: sympy.Symbol(s.name) for s in value.free_symbols}
+    orders = [sympy.Order(o.expr.subs(plain)) for o in sympy.Add.make_args(value.getO() or sympy.Integer(0))
+              if isinstance(o, sympy.Order)]
+    return sympy.Add(value.removeO().subs(plain, simultaneous=True), *orders)
+
+
+def _two_body(mass_a, alpha_a, mass_b, alpha_b, nu):
+    """Exact two-body b written here from the closed forms (physics.md, route R3; a_2 of
+    Arovas-Schrieffer-Wilczek-Zee 1985 for one species, -(M/2 m_ref) nu(1 - nu) for the pair), nu in [0, 1)."""
+    b2 = lambda m, a: m * (sympy.Rational(1, 4) - a + sympy.sympify(a) ** 2 / 2)
+    return {(1, 0): mass_a, (0, 1): mass_b, (2, 0): b2(mass_a, alpha_a), (0, 2): b2(mass_b, alpha_b),
+            (1, 1): -sympy.Integer(mass_a + mass_b) * nu * (1 - nu) / 2}
+
+
+def _assert_honest(got, reference, tails, limits):
+    """`got` = reference through the claimed orders, with exactly the O terms `limits` ({symbol: k});
+    `reference` carries the unknown tails (symbols in `tails`) of the inputs, and each claimed O term is
+    needed: the reference's coefficient of symbol^k does depend on a tail."""
+    got = _by_name(got)
+    assert set(sympy.Add.make_args(got.getO() or sympy.Integer(0))) - {0} == {sympy.Order(s ** k) for s, k in limits.items()}
+    difference = sympy.expand(reference - got.removeO())
+    for term in sympy.Add.make_args(difference):
+        assert any(sympy.degree(term, s) >= k for s, k in limits.items()), term
+    for s, k in limits.items():
+        assert sympy.expand(reference).coeff(s, k).free_symbols & tails, (s, k)
+
+
+def test_two_species_three_body_series_give_mixed_virials_to_the_honest_order():
+    """b[2,1] given to O(nu^2) and b[1,2] to O(nu^3): a_{2,1} comes to O(nu^2), a_{1,2} to O(nu^3), a_{1,1}
+    exact; checked against a plain-sympy b -> a iteration in which the unknown tails are symbols."""
+    d = clusterexp.derive("dimension 2 parameter nu in [0, 1) species A exchange 1/2 species B mass 2 fermi "
+                          "mutual A B = nu clusters pairphase { b[2,1] = 1/7 + nu/3 + O(nu^2) "
+                          "b[1,2] = 2*nu/5 - nu^2 + O(nu^3) } derive virial up to 3")
+    b = _two_body(1, HALF, 2, 1, NU)
+    b.update({(3, 0): sympy.Symbol("b_3_0"), (0, 3): 2 * sympy.Rational(1, 9),   # B: ideal Fermi, b_3 = (m/m_ref)/9
+              (2, 1): sympy.Rational(1, 7) + NU / 3 + X * NU ** 2, (1, 2): 2 * NU / 5 - NU ** 2 + Y * NU ** 3})
+    reference = virial_by_iteration(b, 3)
+    _assert_honest(d.value("virial", (2, 1)), reference[(2, 1)], {X}, {NU: 2})
+    _assert_honest(d.value("virial", (1, 2)), reference[(1, 2)], {Y}, {NU: 3})
+    assert sympy.expand(_by_name(d.value("virial", (1, 1))) - reference[(1, 1)]) == 0
+    assert sympy.expand(_by_name(d.value("virial", (3, 0))) - reference[(3, 0)]) == 0
+
+
+def test_mixed_exact_and_series_inputs_keep_the_lowest_order_of_what_each_coefficient_uses():
+    """b[2,1] exact, b[1,2] a series in w, b[2,2] a series in nu: a_{2,1} stays exact, a_{1,2} carries
+    O(w^2) only, a_{2,2} (which uses all three) O(nu^2) + O(w^2)."""
+    d = clusterexp.derive("dimension 2 parameter nu in [0, 1) parameter w species A bose species B mass 2 fermi "
+                          "mutual A B = nu clusters pairphase { b[2,1] = nu^3/5  b[1,2] = w/3 + O(w^2) "
+                          "b[2,2] = nu*w + O(nu^2) } derive virial a[2,1], a[1,2], a[2,2], a[3,1]")
+    b = _two_body(1, 0, 2, 1, NU)
+    b.update({(3, 0): sympy.Rational(1, 9), (0, 3): 2 * sympy.Rational(1, 9), (4, 0): sympy.Rational(1, 16),
+              (0, 4): -2 * sympy.Rational(1, 16), (2, 1): NU ** 3 / 5, (1, 2): W / 3 + Y * W ** 2,
+              (2, 2): NU * W + X * NU ** 2, (3, 1): sympy.Symbol("b_3_1"), (1, 3): sympy.Symbol("b_1_3")})
+    reference = virial_by_iteration(b, 4)
+    a21 = d.value("virial", (2, 1))
+    assert not a21.has(sympy.Order) and sympy.expand(_by_name(a21) - reference[(2, 1)]) == 0
+    _assert_honest(d.value("virial", (1, 2)), reference[(1, 2)], {Y}, {W: 2})
+    _assert_honest(d.value("virial", (2, 2)), reference[(2, 2)], {X, Y}, {NU: 2, W: 2})
+    a31 = d.value("virial", (3, 1))
+    assert not a31.has(sympy.Order) and sympy.expand(_by_name(a31) - reference[(3, 1)]) == 0
+
+
+def test_given_mixed_virial_series_gives_the_cluster_coefficients_to_the_same_order():
+    """a[2,1] given to O(nu^2): the derived b[2,1] carries O(nu^2) and, fed back through the independent
+    b -> a iteration (with an unknown nu^2 tail), returns the given a[2,1]; b[1,2] stays exact in a_1_2."""
+    d = clusterexp.derive("dimension 2 parameter nu in [0, 1) species A exchange 1/2 species B exchange 1/3 "
+                          "mutual A B = nu clusters pairphase { a[2,1] = 1/5 + nu/2 + O(nu^2) } "
+                          "derive cluster up to 3")
+    b21, b12 = d.value("cluster", (2, 1)), d.value("cluster", (1, 2))
+    assert _by_name(b21).getO() == sympy.Order(NU ** 2) and not b12.has(sympy.Order)
+    b = _two_body(1, HALF, 1, THIRD, NU)
+    b.update({n: _by_name(d.value("cluster", n)).removeO() for n in ((3, 0), (0, 3), (1, 2))})
+    b[(2, 1)] = _by_name(b21).removeO() + Z * NU ** 2
+    reference = virial_by_iteration(b, 3)
+    tail = sympy.expand(reference[(2, 1)] - (sympy.Rational(1, 5) + NU / 2))
+    assert all(sympy.degree(t, NU) >= 2 for t in sympy.Add.make_args(tail))
+    assert sympy.expand(reference[(1, 2)] - sympy.Symbol("a_1_2")) == 0
+
+
+# -- series output: text, JSON, LaTeX -----------------------------------------------------------------
+
+import json  # noqa: E402
+import os  # noqa: E402
+import shutil  # noqa: E402
+import subprocess  # noqa: E402
+
+from clusterexp.export import latex_document, latex_snippet, to_json  # noqa: E402
+
+KINKED = ("dimension 2 parameter alpha species A exchange alpha clusters pairphase derive virial up to 2 "
+          "expand alpha about 0 to 2 from both expand alpha about 1/2 to 1")
+ALPHA = sympy.Symbol("alpha")
+
+
+def test_json_series_of_a_kinked_coefficient_parse_back():
+    """Both sides at the boson point against a_2 = -1/4 + alpha - alpha^2/2 on [0, 2], even in alpha
+    [Arovas, Schrieffer, Wilczek, Zee 1985]: from below it is a_2(-alpha). About alpha = 1/2 the same
+    branch is analytic; its Taylor polynomial to first order is written out here by hand."""
+    data = json.loads(to_json(clusterexp.derive(KINKED)))
+    a2 = next(c for c in data["coefficients"] if c["index"] == [2])
+    assert [(s["side"], s["one_sided"], s["non_analytic"], s["point"], s["order"]) for s in a2["series"]] == [
+        ("above", True, True, "0", 2), ("below", True, True, "0", 2), (None, False, False, "1/2", 1)]
+    above, below, middle = (sympy.sympify(s["value"]) for s in a2["series"])
+    assert above.removeO() == -sympy.Rational(1, 4) + ALPHA - ALPHA ** 2 / 2 and above.getO() == sympy.Order(ALPHA ** 3)
+    assert below.removeO() == -sympy.Rational(1, 4) - ALPHA - ALPHA ** 2 / 2
+    taylor = sympy.Rational(1, 8) + sympy.Rational(1, 2) * (ALPHA - sympy.Rational(1, 2))
+    assert sympy.expand(middle.removeO() - taylor) == 0
+    assert middle.getO() == sympy.Order((ALPHA - sympy.Rational(1, 2)) ** 2, (ALPHA, sympy.Rational(1, 2)))
+
+
+def test_latex_series_rows_in_snippet_and_document():
+    d = clusterexp.derive(KINKED)
+    snippet = latex_snippet(d)
+    assert r"&= - \frac{\alpha^{2}}{2} + \alpha - \frac{1}{4} + O\left(\alpha^{3}\right)" in snippet
+    assert r"\alpha\to 0^{+},\ \text{non-analytic at }\alpha=0" in snippet
+    assert r"\alpha\to 0^{-}" in snippet and r"\text{series about }\alpha=\frac{1}{2}" in snippet
+    # rows: a_1 with its series about 0 and about 1/2; a_2 with two sides at 0 and one series about 1/2
+    assert snippet.count(r"\\") == 7 - 1
+    document = latex_document(d)
+    assert snippet.rstrip("\n") in document and "one-sided expansions" in document
+
+
+@pytest.mark.skipif(shutil.which("pdflatex") is None and not os.environ.get("CI"),
+                    reason="pdflatex not installed (CI installs it)")
+def test_document_with_series_compiles(tmp_path):
+    (tmp_path / "series.tex").write_text(latex_document(clusterexp.derive(KINKED)))
+    result = subprocess.run(["pdflatex", "-interaction=nonstopmode", "-halt-on-error", "series.tex"],
+                            cwd=tmp_path, capture_output=True, text=True, timeout=120)
+    assert result.returncode == 0, result.stdout[-2000:]
+
+
+def test_series_of_a_truncated_coefficient_stops_at_its_known_order():
+    """a_3 known to O(alpha^3) (the published 1/36 + alpha^2/12 near bosons, Myrheim & Olaussen,
+    cond-mat/9210028): asked through alpha^4 the series honestly stops at alpha^2. alpha = 0 ends the
+    declared range [0, 1], so the expansion is one-sided from above without being asked."""
+    d = clusterexp.derive("dimension 2 parameter alpha in [0, 1] species A exchange alpha clusters pairphase "
+                          "{ a[3] = 1/36 + alpha^2/12 + O(alpha^3) } derive virial a[3] expand alpha about 0 to 4")
+    (piece,) = json.loads(to_json(d))["coefficients"][0]["series"]
+    assert (piece["known_through"], piece["side"], piece["range_edge"], piece["non_analytic"]) == (2, "above", True, False)
+    assert sympy.sympify(piece["value"]) == sympy.Rational(1, 36) + ALPHA ** 2 / 12 + sympy.Order(ALPHA ** 3)
+    assert "the given series stop at order 2" in clusterexp.export.to_text(d)
+
+
+@pytest.mark.parametrize("text, message", [
+    ("dimension 2 parameter g species A exchange g*sqrt(-1) clusters pairphase derive virial up to 2",
+     "the exchange parameter must be real"),
+    ("dimension 2 parameter g species A species B mutual A B = sqrt(g) clusters pairphase derive virial up to 2",
+     "the mutual parameter of A and B must be real"),
+    ("dimension 2 parameter g in [0, 1] species A exchange g clusters pairphase { a[3] = 1 + g + O(1/g) } "
+     "derive virial up to 3", "cannot read O(1/g) as a truncation order"),
+    ("dimension 2 parameter g, h in [0, 1] species A exchange g clusters pairphase { a[3] = 1 + O(g*h) } "
+     "derive virial up to 3", "cannot read O(g*h) as a truncation order"),
+    ("dimension 2 parameter g in [0, 1] species A exchange g clusters pairphase { a[3] = 1 + g + O(g^2) } "
+     "derive virial up to 3 expand g about 1/2 to 2", "a[3] is known only as a series about g = 0"),
+    ("dimension 2 parameter g in [0, 1] species A exchange g clusters pairphase derive virial up to 2 "
+     "expand g about 0 to 2 from below", "g = 0 ends the declared range of g: only `from above`"),
+    ("dimension 2 parameter g species A exchange g clusters pairphase derive virial up to 2 expand g about 2 to 1",
+     "a[2] is not analytic at g = 2"),
+])
+def test_series_and_statistics_bad_input(text, message, cli):
+    result = cli("run", "-e", text)
+    assert result.returncode == 2 and "Traceback" not in result.stderr
+    assert message in result.stderr and "^" in result.stderr, result.stderr
+
+
+def test_truncation_orders_of_several_parameters():
+    from clusterexp.routes.pairphase import split_truncation, truncation_problem
+    g, h = sympy.symbols("g h")
+    value = 1 + g + h + sympy.Order(g ** 2) + sympy.Order(h ** 3)
+    assert split_truncation(value) == (1 + g + h, {g: 2, h: 3}) and truncation_problem(value) is None

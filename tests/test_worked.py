@@ -10,7 +10,7 @@ from pathlib import Path
 import pytest
 import sympy
 
-from conftest import ROOT, run_cli, wu_iteration
+from conftest import ROOT, run_cli, virial_by_iteration, wu_iteration
 
 WORKED = sorted(p for p in (ROOT / "worked").iterdir() if (p / "input.gas").is_file())
 
@@ -154,3 +154,47 @@ def test_bilayer_hand_check_against_the_two_body_phase_shift(tmp_path):
         assert abs(float(value) - float(a11.subs(theta, sympy.Rational(t)))) < 1e-9
     png = (tmp_path / "bilayer_a11.png").read_bytes()
     assert png.startswith(b"\x89PNG") and len(png) > 10_000
+
+
+def test_anyon_pair_mixture_against_the_published_a2_and_an_iteration_written_here():
+    # Each species alone: a_2(alpha) = -1/4 + alpha - alpha^2/2 (Arovas, Schrieffer, Wilczek, Zee,
+    # Nucl. Phys. B 251 (1985) 117), alpha = 1/3 -> 1/36, in the species' own rho lambda^2. For H
+    # (m_H = 5/2 m_L): lambda_L^2 = (m_H/m_L) lambda_H^2, so in the units of L a_(0,2) = (m_L/m_H) 1/36.
+    values = _values(ROOT / "worked" / "anyon_pair_mixture")
+    aswz = sympy.Rational(-1, 4) + sympy.Rational(1, 3) - sympy.Rational(1, 18)
+    mass = sympy.Rational(5, 2)
+    assert values[("virial", (2, 0))] == aswz
+    assert values[("virial", (0, 2))] == aswz / mass
+    # Mixed: b_11 = -(M/m_ref) nu(1 - nu)/2 (relative Aharonov-Bohm change -nu(1-nu)/2 independent of the
+    # reduced mass, centre of mass M = m_L + m_H; Comtet, Georgelin, Ouvry, J. Phys. A 22 (1989) 3917,
+    # from memory); b_20 = -a_20, b_02 = -a_02 b_01^2; three-body pieces as plain symbols; then the
+    # plain-sympy b -> a iteration of conftest.
+    nu = sympy.Symbol("nu")
+    b = {(1, 0): 1, (0, 1): mass, (2, 0): -aswz, (0, 2): -aswz / mass * mass ** 2,
+         (1, 1): -(1 + mass) * nu * (1 - nu) / 2}
+    b.update({n: sympy.Symbol("b_%d_%d" % n) for n in ((3, 0), (2, 1), (1, 2), (0, 3))})
+    expected = virial_by_iteration(b, 3)
+    for index in ((1, 1), (2, 1)):
+        assert sympy.expand(values[("virial", index)] - expected[index]) == 0, index
+
+
+def test_vortex_lattice_tracers_against_the_cycle_argument():
+    # Ideal bosons: an l-cycle is one particle at inverse temperature l beta, b_l = Z_1(l beta) lambda^2/(l A).
+    # A flux tube changes Z_1 by -f(1-f)/2 at any temperature (Comtet, Georgelin, Ouvry 1989, from memory),
+    # so with n tubes per lambda^2, to first order: b_l = 1/l^2 - n f(1 - f)/(2 l). Multi-tube terms are
+    # unknown: the output must say O(n^2), and it must be needed (the n^2 terms of a_2, a_3 depend on them).
+    values = _values(ROOT / "worked" / "vortex_lattice_tracers")
+    f, n = sympy.symbols("f n")
+    tails = sympy.symbols("t1:4")
+    first = {l: sympy.Rational(1, l ** 2) - n * f * (1 - f) / (2 * l) for l in (1, 2, 3)}
+    for l in (1, 2, 3):
+        got = values[("cluster", (l,))]
+        assert got.getO() == sympy.Order(n ** 2)
+        assert sympy.expand(got.removeO() - first[l]) == 0
+    expected = virial_by_iteration({(l,): first[l] + tails[l - 1] * n ** 2 for l in (1, 2, 3)}, 3)
+    for k in (2, 3):
+        got = values[("virial", (k,))]
+        assert got.getO() == sympy.Order(n ** 2)
+        reference = sympy.expand(expected[(k,)].series(n, 0, 2).removeO())
+        assert sympy.expand(got.removeO() - reference) == 0
+        assert sympy.expand(expected[(k,)].series(n, 0, 3).removeO()).coeff(n, 2).free_symbols & set(tails)

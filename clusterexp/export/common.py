@@ -65,6 +65,8 @@ def regime_lines(system: System) -> list[str]:
                 f"b_n = {weight} lim_(omega->0) [z^n] ln Xi_trap / Z_1,ref(x)",
                 "levels: " + "; ".join(f"{n}: {lv} ({fill})" for n, lv, fill in zip(names, spec.levels, spec.fill)),
                 f"energy shift / hbar omega: {spec.shift} (N_X = number of particles of species X)"]
+    if kind == "pairphase":
+        return pairphase_lines(system)
     if kind not in ("exclusion", "landau"):
         return []
     g = statistics_matrix(system)
@@ -131,4 +133,19 @@ def product_lines(derivation) -> list[str]:
               for f in system.figures]
     if files:
         lines += ["", "files:"] + [f"  {path}: {what}" for path, what in files]
+    return lines
+
+
+def pairphase_lines(system: System) -> list[str]:
+    """The pair-phase closed forms and what stays unknown (plain text)."""
+    lines = ["regime: pair phases in the plane (harmonic regulator on the relative motion): "
+             "b_(2 e_i) = (m_i/m_ref)(1/4 - s + s^2/2), s = alpha_i mod 2; "
+             "b_(e_i + e_j) = -((m_i + m_j)/(2 m_ref)) s(1 - s), s = alpha_ij mod 1; kinks where s = 0",
+             "many-body pieces (|n| >= 3 of anyonic or braiding species) are named symbols unless given; "
+             "O(p^k): terms from p^k on are unknown"]
+    tubes = system.tubes
+    if tubes is not None:
+        lines.append(f"flux tubes: flux {tubes.flux} (flux quanta), {tubes.coverage} tubes per lambda^2; b_(l e_i) gains "
+                     f"(+-1)^(l+1) ({tubes.coverage})/l (-s(1 - s)/2), s = ({tubes.flux}) mod 1, first order in "
+                     "the coverage")
     return lines

@@ -7,6 +7,7 @@ import sympy
 
 from ..results import Derivation
 from .common import CONVENTIONS, check_record
+from .series_lines import series_json
 
 
 def to_json(derivation: Derivation) -> str:
@@ -28,6 +29,7 @@ def to_json(derivation: Derivation) -> str:
                 "species": dict(zip(names, c.index)),
                 **({"component": c.component} if c.component else {}),
                 "value": c.text,
+                **series_json(derivation, c),
             }
             for c in derivation
         ],

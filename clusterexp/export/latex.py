@@ -8,6 +8,7 @@ from .latex_lines import aligned_rows
 from ..naming import generated_latex_names, latex_subscript, species_latex
 from ..results import Coefficient, Derivation
 from ..series import indices_up_to
+from .series_lines import pairphase_latex_paragraphs, series_latex_rows
 
 LETTERS = {"cluster": "b", "virial": "a"}
 
@@ -57,8 +58,10 @@ def latex_snippet(derivation: Derivation, environment: str = "align", align: boo
     use_align = system.output.align if align is None else align
     amp = "&" if use_align else ""
     wavelength = system.typesetting.wavelength
-    rows = [aligned_rows(_lhs(c, labels, system.dimension, wavelength), c.latex(names)) if use_align else
-            f"  {_lhs(c, labels, system.dimension, wavelength)} = {c.latex(names)}" for c in derivation]
+    rows = [row for c in derivation for row in
+            [aligned_rows(_lhs(c, labels, system.dimension, wavelength), c.latex(names)) if use_align else
+             f"  {_lhs(c, labels, system.dimension, wavelength)} = {c.latex(names)}",
+             *series_latex_rows(derivation, c, amp, names)]]
     body = " \\\\\n".join(rows)
     return f"\\begin{{{environment}}}\n{body}\n\\end{{{environment}}}\n"
 
@@ -138,6 +141,7 @@ def latex_document(derivation: Derivation) -> str:
         rf"Conventions: $\beta P{w}^d=\sum_n b_n z^n=\sum_n a_n(\rho{w}^d)^n$; exchange parameter "
         r"$\alpha=0$ bosons, $\alpha=1$ fermions (period $2$); single-particle $b=(m_i/m_{\mathrm{ref}})^{d/2}$.",
         *regime_latex(system),
+        *pairphase_latex_paragraphs(derivation),
         latex_snippet(derivation).rstrip("\n"),
         *_checks_latex(derivation, labels, w, names),
         *_values_latex(derivation, labels, w, names),

@@ -1,11 +1,9 @@
 """Plain-text printer."""
 from __future__ import annotations
 
-import sympy
-
 from ..results import Derivation
-from ..routes.pairphase import expansion_of
 from .common import CONVENTIONS, KIND_TITLES, product_lines, regime_lines, summary_lines
+from .series_lines import series_text_lines
 
 
 def to_text(derivation: Derivation) -> str:
@@ -20,9 +18,6 @@ def to_text(derivation: Derivation) -> str:
             lines.append("")
             lines.append(KIND_TITLES[kind] + ":")
         lines.append(f"  {c.label} = {c.text}")
-        for e in derivation.system.expansions:
-            for side, series in expansion_of(c.label, c.value, e):
-                lines.append(f"    series in {e.symbol} about {e.point} through order {e.order} ({side}): "
-                             f"{sympy.sstr(series, order='lex')}")
+        lines += [f"    {line}" for line in series_text_lines(derivation, c)]
     lines += product_lines(derivation)
     return "\n".join(lines) + "\n"

@@ -20,6 +20,8 @@ independently of temperature and mass; each l-cycle of an ideal mobile species f
 """
 from __future__ import annotations
 
+from dataclasses import dataclass
+
 import sympy
 
 from ..model import Parameter
@@ -187,18 +189,33 @@ def two_body_clusters(system, order: int) -> dict:
 
 
 def split_truncation(value: sympy.Expr) -> tuple[sympy.Expr, dict]:
-    """A given value without its O(...) term, and {symbol: first unknown power} from that term."""
+    """A given value without its O(...) terms, and {symbol: first unknown power} from those terms."""
     value = sympy.sympify(value)
-    order_term = value.getO() if hasattr(value, "getO") else None
-    if order_term is None:
+    if not value.has(sympy.Order):
         return value, {}
-    expr = order_term.expr
     limits = {}
-    for factor in sympy.Mul.make_args(expr):
-        base, e = factor.as_base_exp()
-        if isinstance(base, sympy.Symbol) and e.is_Integer and e > 0:
-            limits[base] = int(e)
+    for term in sympy.Add.make_args(value):
+        if isinstance(term, sympy.Order):
+            base, e = term.expr.as_base_exp()
+            if isinstance(base, sympy.Symbol) and e.is_Integer and e > 0:
+                limits[base] = min(int(e), limits.get(base, int(e)))
     return value.removeO(), limits
+
+
+def truncation_problem(value: sympy.Expr) -> str | None:
+    """Why the O(...) terms of a given value cannot be read as honest truncation orders, else None.
+    Each must be O(p^k) for one parameter p about 0 and k >= 1; sympy would silently swallow the
+    known terms into anything else (1 + g + O(1/g) is O(1/g))."""
+    value = sympy.sympify(value)
+    orders = [t for t in sympy.Add.make_args(value) if isinstance(t, sympy.Order)]
+    if not orders and value.has(sympy.Order):
+        return "an O(...) term must be added to the known terms, not multiplied or nested"
+    for term in orders:
+        base, e = term.expr.as_base_exp()
+        if not (isinstance(base, sympy.Symbol) and e.is_Integer and e > 0) or term.point[0] != 0:
+            return (f"cannot read O({sympy.sstr(term.expr)}) as a truncation order: write O(p^k) with one parameter p "
+                    "and k >= 1 (several parameters: O(p^k) + O(q^m))")
+    return None
 
 
 def truncate(value: sympy.Expr, limits: dict) -> sympy.Expr:
@@ -215,18 +232,87 @@ def truncate(value: sympy.Expr, limits: dict) -> sympy.Expr:
     return sympy.Add(value, *orders) if orders else value
 
 
-def expansion_of(label: str, value: sympy.Expr, expansion) -> list[tuple[str, sympy.Expr]]:
-    """[(side description, polynomial)] for one coefficient and one `expand` request; refuses a kinked
-    expansion asked as if analytic."""
+@dataclass(frozen=True)
+class SeriesPiece:
+    """One printed series of one coefficient: polynomial + remainder, through (variable - point)^known.
+
+    `side` is None for an analytic (two-sided) expansion, else "above"/"below"; `kink` says the
+    coefficient is not analytic at the point (the |alpha| term), `edge` that the point ends the
+    parameter's declared range. `remainder` holds the O terms: the expansion's own and those of
+    given truncated series in other parameters."""
+
+    variable: sympy.Symbol
+    point: sympy.Expr
+    order: int
+    known: int
+    side: str | None
+    kink: bool
+    edge: bool
+    polynomial: sympy.Expr
+    remainder: tuple
+
+    @property
+    def one_sided(self) -> bool:
+        return self.side is not None
+
+    @property
+    def description(self) -> str:
+        where = f"{self.variable} = {self.point}"
+        if self.side is None:
+            text = "analytic"
+        elif self.kink:
+            text = f"non-analytic at {where}, from {self.side}"
+        else:
+            text = f"one-sided: {where} ends the declared range, from {self.side}"
+        if self.known < self.order:
+            text += f"; the given series stop at order {self.known}"
+        return text
+
+
+def _range_edge(symbol, point, parameters) -> str | None:
+    p = next((p for p in (parameters or ()) if p.symbol == symbol), None)
+    if p is None:
+        return None
+    if p.lower is not None and sympy.simplify(point - p.lower) == 0:
+        return "lower"
+    if p.upper is not None and sympy.simplify(point - p.upper) == 0:
+        return "upper"
+    return None
+
+
+def expansion_of(label: str, value: sympy.Expr, expansion, parameters=()) -> list[SeriesPiece]:
+    """The series of one coefficient for one `expand` request (one piece per side); refuses a kinked
+    expansion asked as if analytic, a side outside the declared range, and a series about another
+    point than that of a given truncated series."""
     from ..errors import InputError
-    symbol, point, order, side = expansion.symbol, expansion.point, expansion.order, expansion.side
-    value = sympy.sympify(value).removeO() if value.has(sympy.Order) else value
-    kinked = kinks(value, symbol, point)
-    if kinked and side is None:
-        raise InputError(f"{label} is not analytic at {symbol} = {point} (a kink, |{symbol}| term): say "
-                         "`from above`, `from below` or `from both`", expansion.span)
-    if not kinked:
-        return [("analytic", one_sided_series(value, symbol, point, order, "above"))]
-    sides = ("above", "below") if side == "both" else (side,)
-    return [(f"non-analytic at {symbol} = {point}, from {s}", one_sided_series(value, symbol, point, order, s))
+    symbol, point, order, side, span = (expansion.symbol, expansion.point, expansion.order, expansion.side,
+                                        expansion.span)
+    exact, limits = split_truncation(value)
+    known = order
+    if symbol in limits:
+        if point != 0:
+            raise InputError(f"{label} is known only as a series about {symbol} = 0 (to O({symbol}^{limits[symbol]})); "
+                             f"it cannot be expanded about {symbol} = {point}", span)
+        known = min(order, limits[symbol] - 1)
+    kinked = kinks(exact, symbol, point)
+    edge = _range_edge(symbol, point, parameters)
+    inside = {"lower": "above", "upper": "below", None: None}[edge]
+    if side is None:
+        if kinked and edge is None:
+            raise InputError(f"{label} is not analytic at {symbol} = {point} (a kink, |{symbol}| term): say "
+                             "`from above`, `from below` or `from both`", span)
+        sides = (inside,)
+    else:
+        sides = ("above", "below") if side == "both" else (side,)
+        if edge is not None and any(s != inside for s in sides):
+            raise InputError(f"{symbol} = {point} ends the declared range of {symbol}: only `from {inside}` stays "
+                             "inside it", span)
+        if not kinked and edge is None:
+            sides = (None,)
+    step = (symbol - point) ** (known + 1)
+    own = sympy.Order(step) if point == 0 else sympy.Order(step, (symbol, point))
+    others = tuple(sympy.Order(s ** k) for s, k in sorted(limits.items(), key=lambda item: item[0].name)
+                   if s != symbol)
+    return [SeriesPiece(symbol, point, order, known, s, kinked, edge is not None,
+                        one_sided_series(exact, symbol, point, known, s or "above"), (own,) + others)
             for s in sides]

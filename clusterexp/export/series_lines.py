@@ -1,0 +1,90 @@
+"""How the `expand` series of a coefficient print: one text line, one JSON record or one LaTeX row per
+series piece (`Derivation.series_of` computes them; nothing is computed here)."""
+from __future__ import annotations
+
+import sympy
+
+from ..results import Coefficient, Derivation
+
+
+def _remainder_text(piece) -> str:
+    return " + ".join(sympy.sstr(o) for o in piece.remainder)
+
+
+def series_value_text(piece) -> str:
+    """Polynomial plus its O terms, sympy-parsable (the O terms printed apart so that sympy's own
+    addition cannot reorder or swallow the known terms)."""
+    return f"{sympy.sstr(piece.polynomial, order='lex')} + {_remainder_text(piece)}"
+
+
+def series_text_lines(derivation: Derivation, c: Coefficient) -> list[str]:
+    return [f"series in {p.variable} about {p.point} through order {p.known} ({p.description}): "
+            f"{series_value_text(p)}" for p in derivation.series_of(c)]
+
+
+def series_json(derivation: Derivation, c: Coefficient) -> dict:
+    """{"series": [...]} for a coefficient that has expansions, else {}."""
+    pieces = derivation.series_of(c)
+    if not pieces:
+        return {}
+    return {"series": [{
+        "variable": p.variable.name,
+        "point": sympy.sstr(p.point),
+        "order": p.order,
+        "known_through": p.known,
+        "side": p.side,
+        "one_sided": p.one_sided,
+        "non_analytic": p.kink,
+        "range_edge": p.edge,
+        "value": series_value_text(p),
+        "remainder": _remainder_text(p),
+    } for p in derivation.series_of(c)]}
+
+
+def _side_latex(p) -> str:
+    var, point = sympy.latex(p.variable), sympy.latex(p.point)
+    if p.side is None:
+        return rf"\text{{series about }}{var}={point}"
+    arrow = rf"{var}\to {point}^{{{'+' if p.side == 'above' else '-'}}}"
+    why = r"\text{non-analytic at }" if p.kink else r"\text{end of the declared range }"
+    return rf"{arrow},\ {why}{var}={point}"
+
+
+def series_latex_rows(derivation: Derivation, c: Coefficient, amp: str, symbol_names=None) -> list[str]:
+    """Extra rows under a coefficient: `&= polynomial + O(...) \\qquad (side)`."""
+    rows = []
+    for p in derivation.series_of(c):
+        body = sympy.latex(p.polynomial, symbol_names=symbol_names or {}, order="lex")
+        orders = " + ".join(_order_latex(o) for o in p.remainder)
+        rows.append(rf"  {amp}= {body} + {orders} \qquad \left({_side_latex(p)}\right)")
+    return rows
+
+
+def _order_latex(o) -> str:
+    return rf"O\left({sympy.latex(o.expr)}\right)"
+
+
+def pairphase_latex_paragraphs(derivation: Derivation) -> list[str]:
+    """For the standalone document: the pair-phase closed forms (regime `pairphase`) and, when there
+    are series rows, how to read them."""
+    system = derivation.system
+    out = []
+    if system.source.kind == "pairphase":
+        text = (r"Pair phases in the plane (harmonic regulator on the relative motion): "
+                r"$b_{2e_i}=\frac{m_i}{m_{\mathrm{ref}}}\bigl(\tfrac14-s+\tfrac{s^2}{2}\bigr)$ with "
+                r"$s=\alpha_i\bmod 2$, and $b_{e_i+e_j}=-\frac{m_i+m_j}{2m_{\mathrm{ref}}}\,s(1-s)$ with "
+                r"$s=\alpha_{ij}\bmod 1$; both have a kink where $s=0$. Many-body pieces are named symbols "
+                r"unless given; $O(p^k)$ marks the first unknown power of $p$.")
+        if system.tubes is not None:
+            flux, coverage = sympy.latex(system.tubes.flux), sympy.latex(system.tubes.coverage)
+            text += (rf" Static flux tubes of flux ${flux}$ (flux quanta), ${coverage}$ tubes per $\lambda^2$: "
+                     rf"$b_{{l e_i}}$ gains $(\pm1)^{{l+1}}\frac{{{coverage}}}{{l}}\bigl(-\tfrac{{s(1-s)}}{{2}}\bigr)$, "
+                     rf"$s=({flux})\bmod 1$, to first order in the coverage.")
+        out.append(text)
+    if system.expansions:
+        out.append(r"Below a coefficient, each further line is its series in a statistics parameter through "
+                   r"the stated order; $O(\cdot)$ marks the first unknown power (from the expansion or from a "
+                   r"given truncated many-body part). At a kink (the $|\alpha|$ term at the boson point) the "
+                   r"coefficient is not analytic and the one-sided expansions $\alpha\to\alpha_0^{\pm}$ are "
+                   r"printed, each marked.")
+    return out
