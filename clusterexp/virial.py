@@ -15,13 +15,15 @@ All public functions take {multi-index: value} (values: rationals or sympy expre
 from __future__ import annotations
 
 from fractions import Fraction
+from functools import cached_property
 from typing import Callable, Iterator, Mapping, Sequence
 
 import sympy
 
 from .errors import SeriesError
 from .series import PolynomialRing, Series, collect_atoms, indices_up_to, revert
-from .series.series import _by_total, _close_under_chain, _combine, balanced_sum, revert_coefficients, PowerTable
+from .series.horner import HornerComposition
+from .series.series import balanced_sum
 
 Index = tuple[int, ...]
 
@@ -33,14 +35,24 @@ class CoefficientTable(Mapping):
     Iteration order is deterministic: by total order, then descending lex.
     """
 
-    def __init__(self, ring: PolynomialRing, elements: Mapping[Index, object], order: int,
+    def __init__(self, ring: PolynomialRing, elements: Mapping[Index, object] | Series, order: int,
                  factor: Callable[[Index], sympy.Expr] | None = None):
         self.ring = ring
         self.order = order
-        self._elements = dict(elements)
+        # a Series is split into its coefficients only when first looked at: the split walks every
+        # term in Python and costs about as much as the whole kernel
+        self._source = elements
         self._factor = factor
         self._cache: dict[Index, sympy.Expr] = {}
-        self._keys = [n for n in indices_up_to(ring.nvars, order, start=0) if n in self._elements]
+
+    @cached_property
+    def _elements(self) -> dict[Index, object]:
+        source = self._source
+        return source.coefficients() if isinstance(source, Series) else dict(source)
+
+    @cached_property
+    def _keys(self) -> list[Index]:
+        return [n for n in indices_up_to(self.ring.nvars, self.order, start=0) if n in self._elements]
 
     def __getitem__(self, index: Index) -> sympy.Expr:
         index = tuple(index)
@@ -148,35 +160,33 @@ def reduced_to_virial(ring: PolynomialRing, beta: Mapping[Index, object], order:
     (Gibbs-Duhem) and P = F(w) = sum_i w_i + R(w), R = sum_{|n|>=2} beta_n w^n: the unknown degree-m
     parts enter linearly, and Euler's relation sum_i rho_i dP_m/drho_i = m P_m closes them,
         P_m = -(m - 1) (R_m + sum_i rho_i Q_i),
-    Q_i being the known part of [exp h_i]_{m-1}. So only R needs the powers of w: one combination
-    per order instead of one per species plus one for P. `revert` would give the same (tests compare).
+    Q_i being the known part of [exp h_i]_{m-1}. So only R needs the powers of w: one composition
+    per order instead of one per species plus one for P, formed by `HornerComposition` (Horner's rule
+    in the leading variables, a power table in the rest). `revert` would give the same (tests compare).
     """
     K = ring.nvars
     zero, is_zero = ring.zero, ring.is_zero
-    terms = _by_total({n: c for n, c in beta.items() if sum(n) >= 2})
-    closed = _close_under_chain([n for n, _, _ in terms])
     w = [[zero, ring.var(i)] for i in range(K)]
     exp_h = [[ring.one] for _ in range(K)]      # parts of exp(h_i)
-    h = [[zero] for _ in range(K)]              # parts of h_i
+    # slope[i][k] = d P_{k+1} / d rho_i = k [h_i]_k: the weight k of the exp recurrence comes free
+    slope = [[zero] for _ in range(K)]
     pressure = [zero, sum((ring.var(i) for i in range(1, K)), ring.var(0))]
-    table = PowerTable(ring, w, order)
+    higher = HornerComposition(ring, w, {n: c for n, c in beta.items() if sum(n) >= 2}, order)
+    higher.next_part(), higher.next_part()      # degrees 0 and 1 of R vanish
     for m in range(2, order + 1):
-        table.extend(m, [n for n in closed if sum(n) <= m])
-        known = _combine(ring, terms, table, m)
+        known = [higher.next_part()]
         q = []
         for i in range(K):
             # [exp h]_{m-1} = [h]_{m-1} + (1/(m-1)) sum_{k=1}^{m-2} k [h]_k [exp h]_{m-1-k}
-            acc = balanced_sum(ring, [h[i][k] * exp_h[i][m - 1 - k] * ring.rational(k)
-                                      for k in range(1, m - 1)
-                                      if not (is_zero(h[i][k]) or is_zero(exp_h[i][m - 1 - k]))])
+            acc = balanced_sum(ring, [slope[i][k] * exp_h[i][m - 1 - k] for k in range(1, m - 1)
+                                      if not (is_zero(slope[i][k]) or is_zero(exp_h[i][m - 1 - k]))])
             q.append(acc * ring.rational(Fraction(1, m - 1)))
-            known = known + ring.var(i) * q[i]
-        p_m = known * ring.rational(-(m - 1))
+            known.append(ring.var(i) * q[i])
+        p_m = balanced_sum(ring, known) * ring.rational(-(m - 1))
         pressure.append(p_m)
         for i in range(K):
-            h_i = ring.derivative(p_m, i) * ring.rational(Fraction(1, m - 1))
-            h[i].append(h_i)
-            exp_h[i].append(h_i + q[i])
+            slope[i].append(ring.derivative(p_m, i))
+            exp_h[i].append(slope[i][m - 1] * ring.rational(Fraction(1, m - 1)) + q[i])
             w[i].append(ring.var(i) * exp_h[i][m - 1])
     return VirialResult(ring, order, linear or [sympy.Integer(1)] * K,
                         Series(ring, order, pressure), [Series(ring, order, wi) for wi in w])
@@ -189,13 +199,13 @@ class VirialResult:
         self.ring, self.order, self.linear = ring, order, list(linear)
         self.pressure_series = pressure
         self.w_series = list(w)
-        self.virial = CoefficientTable(ring, pressure.coefficients(), order)
+        self.virial = CoefficientTable(ring, pressure, order)
 
     def fugacity(self, i: int) -> CoefficientTable:
         """z_i(rho) = w_i(rho) / b_{e_i}: coefficients of rho^n in the fugacity of species i."""
         c = self.linear[i]
         factor = None if c == 1 else (lambda index: 1 / c)
-        return CoefficientTable(self.ring, self.w_series[i].coefficients(), self.order, factor)
+        return CoefficientTable(self.ring, self.w_series[i], self.order, factor)
 
     def legendre_pressure(self) -> Series:
         """P(rho) recomputed from the fugacities alone (independent self-check):

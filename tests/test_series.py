@@ -99,3 +99,31 @@ def test_exp_of_log_is_identity(coefficients):
              (2, 0): coefficients[3], (0, 3): coefficients[4]}
     s = Series.from_coefficients(ring, 4, terms)
     assert s.log().exp().to_expr([x, y]) == s.to_expr([x, y])
+
+
+@pytest.mark.parametrize("backend", BACKENDS)
+@pytest.mark.parametrize("split", [0, 1, 2, 3])
+def test_horner_composition_against_sympy_expand(backend, split):
+    """R(w) part by part, for every split between Horner variables and the power table, against
+    sympy's expand of the substituted polynomial truncated by total degree (constant, linear and
+    missing coefficients included, one coefficient carrying a symbol)."""
+    from clusterexp.series.horner import HornerComposition
+    from clusterexp.series.series import indices_up_to
+    z = sympy.symbols("z0:3")
+    order = 5
+    ring = PolynomialRing(3, [g], backend=backend, var_names=[str(v) for v in z])
+    w_exprs = [z[0] + z[1] ** 2 / 3 - 2 * z[0] * z[2], z[1] - z[0] ** 2 * z[2] / 5 + g * z[2] ** 3,
+               z[2] + sympy.Rational(7, 2) * z[0] * z[1]]
+    w = [make(ring, order, e, z).parts for e in w_exprs]
+    coefficients = {n: sympy.Rational((3 * sum(n) + n[0] - 2 * n[2]) % 7 - 3, 1 + n[1])
+                    for n in indices_up_to(3, order, start=0)}
+    coefficients[(1, 1, 0)] = g
+    outer = sum(c * sympy.Mul(*(wi ** e for wi, e in zip(w_exprs, n))) for n, c in coefficients.items())
+    expected = sympy.Poly(sympy.expand(outer), *z)
+    composition = HornerComposition(ring, w, {n: ring.scalar_or_element(c) for n, c in coefficients.items()},
+                                    order, split=split)
+    for m in range(order + 1):
+        part = ring.to_expr(composition.next_part(), z)
+        wanted = sum((c * sympy.Mul(*(v ** e for v, e in zip(z, monom)))
+                      for monom, c in expected.terms() if sum(monom) == m), sympy.Integer(0))
+        assert sympy.expand(part - wanted) == 0, (split, m)

@@ -177,13 +177,19 @@ class PolynomialRing:
         return sympy.Add(*out)
 
     def split_by_variables(self, p) -> dict[tuple[int, ...], object]:
-        """{exponents of the expansion variables: coefficient (a ring element over the atoms only)}."""
-        grouped: dict[tuple[int, ...], dict] = {}
+        """{exponents of the expansion variables: coefficient (a ring element over the atoms only)}.
+        The backend's own coefficient objects go straight back in (no round trip through Python
+        fractions, which cost more than the grouping itself)."""
         k = self.nvars
-        for monom, num, den in self.terms(p):
-            key = tuple(monom[:k])
-            grouped.setdefault(key, {})[(0,) * k + tuple(monom[k:])] = Fraction(num, den)
-        return {key: self.from_terms(t) for key, t in grouped.items()}
+        grouped: dict[tuple[int, ...], dict] = {}
+        lowered = (0,) * k
+        for monom, c in (p.to_dict() if self.backend == "flint" else p).items():
+            key = monom[:k]
+            found = grouped.get(key)
+            if found is None:
+                found = grouped[key] = {}
+            found[lowered + monom[k:]] = c
+        return {key: self._ctx.from_dict(t) for key, t in grouped.items()}
 
 
 def collect_atoms(exprs: Iterable[sympy.Expr]) -> set[sympy.Expr]:
