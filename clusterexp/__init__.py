@@ -32,19 +32,19 @@ def __getattr__(name: str):
 
 
 def derive(text: str, filename: str = "<input>", base_dir: str | Path | None = None,
-           size_limit: int | None = None) -> Derivation:
+           size_limit: int | None = None, progress=None) -> Derivation:
     """Parse, validate and derive an input given as text. `size_limit` (estimated terms) overrides
-    the default and the input's own `size limit`."""
+    the default and the input's own `size limit`; `progress` is a `progress.Progress`."""
     from .build import build_system
     from .derivation import derive_system
-    return derive_system(build_system(text, filename, Path(base_dir) if base_dir else None), size_limit)
+    return derive_system(build_system(text, filename, Path(base_dir) if base_dir else None), size_limit, progress)
 
 
-def derive_file(path: str | Path, size_limit: int | None = None) -> Derivation:
+def derive_file(path: str | Path, size_limit: int | None = None, progress=None) -> Derivation:
     """Parse, validate and derive an input file."""
     from .build import build_system_from_file
     from .derivation import derive_system
-    return derive_system(build_system_from_file(Path(path)), size_limit)
+    return derive_system(build_system_from_file(Path(path)), size_limit, progress)
 
 
 __all__ = ["Coefficient", "Derivation", "InputError", "NotSupportedYet", "build_system",

@@ -40,20 +40,21 @@ def main(argv: list[str] | None = None) -> int:
     sys.set_int_max_str_digits(0)  # printing exact results; input literals are bounded in expressions.py
     from . import derive, derive_file
     from .export import FORMATTERS, latex_document
+    from .progress import Progress
+    progress = Progress()  # on stderr, and only when it is a terminal
     try:
         if args.text is not None:
             derivation = derive(args.text, filename="<command line>", base_dir=Path.cwd(),
-                                size_limit=args.size_limit)
+                                size_limit=args.size_limit, progress=progress)
         else:
             path = DEMO if args.file == "demo" else Path(args.file)
             if not path.is_file():
                 print(f"clusterexp: error: no such input file: {path}", file=sys.stderr)
                 return EXIT_INPUT_ERROR
-            derivation = derive_file(path, size_limit=args.size_limit)
+            derivation = derive_file(path, size_limit=args.size_limit, progress=progress)
         for message, span in derivation.system.warnings:
             print(f"{span}: warning: {message}" if span else f"warning: {message}", file=sys.stderr)
-        from .progress import Progress
-        derivation.compute_all(Progress())
+        derivation.compute_all(progress)
         if not args.no_files:
             folder = Path(args.files_into)
             if not folder.is_dir():
@@ -66,6 +67,7 @@ def main(argv: list[str] | None = None) -> int:
         else:
             text = FORMATTERS[fmt](derivation)
     except (InputError, NotSupportedYet) as error:
+        progress.done()
         print(error.render(), file=sys.stderr)
         return EXIT_INPUT_ERROR
     if args.output:

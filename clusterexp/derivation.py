@@ -36,8 +36,9 @@ def _unit(K: int, i: int) -> Index:
 class _Plan:
     """The tables a system needs, each built once on first use."""
 
-    def __init__(self, system: System):
+    def __init__(self, system: System, progress=None):
         self.system = system
+        self.progress = progress
         self.K = len(system.species)
         self.linear = single_particle_factors(system)
         self.order = max([system.order] + [_request_order(r) for r in system.requests])
@@ -115,12 +116,17 @@ class _Plan:
         kinds = {v.kind for v in self.system.source.values}
         return kinds.pop() if kinds else "cluster"
 
+    def _on_order(self, m: int) -> None:
+        if self.progress is not None:
+            self.progress.step("virial reversion of rho(z)", order=m, total=self.order)
+
     @cached_property
     def reversion(self) -> VirialResult:
         physical = self.physical
         if physical is not None and physical.ring is not None:
-            return reduced_to_virial(physical.ring, physical.elements, self.order, [sympy.Integer(1)] * self.K)
-        return cluster_to_virial(self.cluster, self.order, self.K)
+            return reduced_to_virial(physical.ring, physical.elements, self.order, [sympy.Integer(1)] * self.K,
+                                     self._on_order)
+        return cluster_to_virial(self.cluster, self.order, self.K, on_order=self._on_order)
 
     @cached_property
     def linear_pairphase(self) -> list:
@@ -175,12 +181,13 @@ def _requested_indices(request: Request, K: int) -> list[Index]:
     return indices_up_to(K, request.up_to)
 
 
-def derive_system(system: System, size_limit: int | None = None) -> Derivation:
+def derive_system(system: System, size_limit: int | None = None, progress=None) -> Derivation:
     """Derive every requested coefficient of a validated system (values computed lazily).
-    A derivation estimated beyond the size limit is refused before anything is formed."""
+    A derivation estimated beyond the size limit is refused before anything is formed. `progress`
+    (a `progress.Progress`) hears of each order of the reversion as it is computed."""
     from .limits import check_size
     check_size(system, size_limit)
-    plan = _Plan(system)
+    plan = _Plan(system, progress)
     names = system.species_names
     wanted: dict[str, set[Index]] = {}
     for request in system.requests:

@@ -137,7 +137,7 @@ def _pressure_in_w(ring: PolynomialRing, reduced: Mapping[Index, sympy.Expr], K:
 
 
 def cluster_to_virial(b: Mapping[Index, object], order: int, nspecies: int | None = None,
-                      backend: str | None = None) -> "VirialResult":
+                      backend: str | None = None, on_order=None) -> "VirialResult":
     """Virial coefficients a_n (and the fugacity expansion) from cluster coefficients b_n.
 
     >>> b = {(1,): 1, (2,): sympy.Symbol("b2"), (3,): sympy.Symbol("b3")}
@@ -148,11 +148,11 @@ def cluster_to_virial(b: Mapping[Index, object], order: int, nspecies: int | Non
     reduced, linear = reduced_clusters(b, K, order)
     ring = _working_ring(reduced, K, backend)
     beta = {n: ring.scalar_or_element(v) for n, v in reduced.items()}
-    return reduced_to_virial(ring, beta, order, linear)
+    return reduced_to_virial(ring, beta, order, linear, on_order)
 
 
 def reduced_to_virial(ring: PolynomialRing, beta: Mapping[Index, object], order: int,
-                      linear: Sequence[sympy.Expr] | None = None) -> "VirialResult":
+                      linear: Sequence[sympy.Expr] | None = None, on_order=None) -> "VirialResult":
     """The kernel of `cluster_to_virial` on ring elements: beta_n (|n| >= 2) already reduced by the
     single-particle factors.
 
@@ -163,6 +163,7 @@ def reduced_to_virial(ring: PolynomialRing, beta: Mapping[Index, object], order:
     Q_i being the known part of [exp h_i]_{m-1}. So only R needs the powers of w: one composition
     per order instead of one per species plus one for P, formed by `HornerComposition` (Horner's rule
     in the leading variables, a power table in the rest). `revert` would give the same (tests compare).
+    `on_order(m)`, when given, is called as each total order m starts (progress reports).
     """
     K = ring.nvars
     zero, is_zero = ring.zero, ring.is_zero
@@ -174,6 +175,8 @@ def reduced_to_virial(ring: PolynomialRing, beta: Mapping[Index, object], order:
     higher = HornerComposition(ring, w, {n: c for n, c in beta.items() if sum(n) >= 2}, order)
     higher.next_part(), higher.next_part()      # degrees 0 and 1 of R vanish
     for m in range(2, order + 1):
+        if on_order is not None:
+            on_order(m)
         known = [higher.next_part()]
         q = []
         for i in range(K):
