@@ -50,10 +50,16 @@ def main(argv: list[str] | None = None) -> int:
         for message, span in derivation.system.warnings:
             print(f"{span}: warning: {message}" if span else f"warning: {message}", file=sys.stderr)
         fmt = args.format or derivation.system.output.format
+        if derivation.system.samplings:  # before a long run: files it may not write
+            from .loops.report import check_files
+            check_files(derivation.system, overwrite=args.overwrite)
         if fmt == "latex" and args.document:
             text = latex_document(derivation)
         else:
             text = FORMATTERS[fmt](derivation)
+        if derivation.system.samplings:  # tables and maps asked for by `sample` statements
+            from .loops.report import write_files
+            write_files(derivation.sampled, derivation.system, overwrite=args.overwrite)
     except (InputError, NotSupportedYet) as error:
         print(error.render(), file=sys.stderr)
         return EXIT_INPUT_ERROR

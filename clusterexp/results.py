@@ -78,6 +78,18 @@ class Derivation:
 
     system: System
     coefficients: list[Coefficient]
+    compute_sampled: Callable[[], object] | None = field(default=None, repr=False, compare=False)
+
+    @property
+    def sampled(self):
+        """The Monte Carlo numbers of the input's `sample` statements (`loops.sampled.SampledNumbers`),
+        run on first use; None when there are none."""
+        if self.compute_sampled is None:
+            return None
+        cache = self.__dict__.setdefault("_sampled_cache", [])
+        if not cache:
+            cache.append(self.compute_sampled())
+        return cache[0]
 
     def __iter__(self) -> Iterator[Coefficient]:
         return iter(self.coefficients)

@@ -32,4 +32,7 @@ def to_json(derivation: Derivation) -> str:
             for c in derivation
         ],
     }
+    if system.samplings:
+        from ..loops.report import json_items
+        document["sampled"] = json_items(derivation.sampled)
     return json.dumps(document, indent=2, sort_keys=False, ensure_ascii=True) + "\n"

@@ -47,7 +47,11 @@ def latex_snippet(derivation: Derivation, environment: str = "align", align: boo
     rows = [f"  {_lhs(c, labels, system.dimension)} {amp}= {c.latex(names)}"
             for c in derivation]
     body = " \\\\\n".join(rows)
-    return f"\\begin{{{environment}}}\n{body}\n\\end{{{environment}}}\n"
+    snippet = f"\\begin{{{environment}}}\n{body}\n\\end{{{environment}}}\n"
+    if system.samplings and environment != "aligned":  # (aligned: inline display in notebooks)
+        from ..loops.report import latex_block
+        snippet += latex_block(derivation.sampled, system)
+    return snippet
 
 
 def regime_latex(system) -> list[str]:

@@ -24,4 +24,7 @@ def to_text(derivation: Derivation) -> str:
             for side, series in expansion_of(c.label, c.value, e):
                 lines.append(f"    series in {e.symbol} about {e.point} through order {e.order} ({side}): "
                              f"{sympy.sstr(series, order='lex')}")
+    if derivation.system.samplings:
+        from ..loops.report import text_lines
+        lines += text_lines(derivation.sampled)
     return "\n".join(lines) + "\n"
