@@ -20,12 +20,15 @@ from .sampled import SampledNumbers, SampledStatement
 
 METHOD = "Brownian-loop Monte Carlo, docs/loops.md"
 PLUS_MINUS_LATEX = r" \pm "
+EXACT_BELOW = 1e-12
 
 
 def plus_minus(value: float, error: float, separator: str = " +- ") -> str:
     """value and error, the error to two significant digits and the value to the same place."""
-    if not math.isfinite(error) or error <= 0:
-        return f"{value:.7g}{separator}0"
+    if not math.isfinite(error) or error < EXACT_BELOW:
+        # zero variance: the phases are trivial at this point (e.g. integer mutual parameter); what is
+        # left of the value below 1e-12 is rounding of the phases, not statistics
+        return f"{round(value, 12) + 0.0:.7g}{separator}0"
     place = math.floor(math.log10(error)) - 1
     decimals = max(0, -place)
     if place > 0:
