@@ -67,6 +67,7 @@ def main() -> None:
           f"wall incl. retries {wall:.1f} s")
     print(f"error of a_3 after one minute (scaled 1/sqrt(t)): {per_minute:.2e}")
     print(f"time to +-{TARGET_A3:g} on a_3: {'reached in ' + format(r.seconds, '.0f') + ' s' if reached else 'projected ' + format(to_target, '.0f') + ' s'}")
+    print(f"load average at the end (1, 5, 15 min): {', '.join(f'{v:.2f}' for v in os.getloadavg())}")
 
 
 if __name__ == "__main__":

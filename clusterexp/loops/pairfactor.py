@@ -100,15 +100,23 @@ def _reduced_factor(a: float, x: np.ndarray, phi: np.ndarray, accuracy=PRECISE) 
             hs = step[idx]
             t = hs[:, None] * grid[None, :]
             e = np.exp(-t)
-            cp, sp = cos_psi[idx][:, None], sin_psi[idx][:, None]
+            cp, sp = cos_psi[idx], sin_psi[idx]
+            xs = x[idx][:, None]
+            # exponent -x (cosh t - cos psi) - a t, built in place (the arrays are the cost here)
+            arg = 1.0 / e
+            arg += e
+            arg *= -0.5 * xs
+            arg += xs * cp[:, None]
+            arg -= a * t
             with np.errstate(under="ignore", over="ignore"):
-                h = np.exp(-x[idx][:, None] * (0.5 * (e + 1.0 / e) - cp) - a * t)
-            # 1 / (1 - e^{-t} e^{i psi}) = conj(D) / |D|^2 with D = (1 - e cos psi) - i e sin psi
-            dr = 1.0 - e * cp
-            di = -e * sp
-            scale = h / (dr * dr + di * di)
-            total_r = hs * np.einsum("ij,ij->i", scale, dr)
-            total_i = -hs * np.einsum("ij,ij->i", scale, di)
+                w = np.exp(arg, out=arg)
+            # 1 / (1 - e^{-t} e^{i psi}) = conj(D) / |D|^2, D = (1 - e cos psi) - i e sin psi, |D|^2 =
+            # 1 + e (e - 2 cos psi): with w = h / |D|^2 only sum(w) and sum(w e) are needed
+            w /= 1.0 + e * (e - 2.0 * cp[:, None])
+            s0 = w.sum(axis=1)
+            s1 = np.einsum("ij,ij->i", w, e)
+            total_r = hs * (s0 - cp * s1)
+            total_i = hs * sp * s1
             ps = psi[idx]
             q = np.exp(-2.0 * np.pi * ps / hs)
             pole = 2j * np.pi * np.exp(-1j * a * ps) * q / (1.0 + q)

@@ -2,8 +2,8 @@
 
 Printers only format what `clusterexp.loops.sampled` computed. A value prints with its error bar
 rounded to two significant digits and the value to the same decimal place ("0.0362 +- 0.0013"), so the
-text does not depend on digits below the statistical error. Run times appear only in JSON (they vary
-from run to run); the text says how to reproduce a run exactly.
+text does not depend on digits below the statistical error. Run times are left out (they vary from run
+to run and output is byte-stable; `SampledRun.seconds` has them); the text says how to repeat a run.
 """
 from __future__ import annotations
 
@@ -98,7 +98,7 @@ def json_items(numbers: SampledNumbers) -> list[dict]:
             "seed": s.seed,
             "budget": {"loops": s.loops, "seconds": s.time_cap, "target": s.target},
             "runs": [{"coefficient": r.label, "estimator": r.kind, "estimator_seed": r.run_seed, "loops": r.samples,
-                      "rounds": r.rounds, "slices": r.slices, "seconds": round(r.seconds, 3)} for r in statement.runs],
+                      "rounds": r.rounds, "slices": r.slices} for r in statement.runs],
             "points": [{"at": {name: sympy.sstr(value) for name, value in p.point},
                         "values": [{"coefficient": v.label, "kind": v.kind, "index": list(v.index), "value": v.value,
                                     "error": v.error} for v in p.values]} for p in statement.points],
