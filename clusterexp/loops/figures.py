@@ -6,6 +6,7 @@ expression: each grid point is one cell, and the caption gives the largest error
 """
 from __future__ import annotations
 
+import textwrap
 from pathlib import Path
 from types import SimpleNamespace
 
@@ -28,7 +29,6 @@ def sampled_map(statement, system, path: Path) -> Path:
     fixed = ", ".join(f"{s.name} = {value}" for s, value in sampling.fixed)
     caption = (f"{conventions_caption(system)}; {METHOD}, seed {sampling.seed}; largest error bar "
                f"{plus_minus(v.value, v.error)}" + (f"; fixed: {fixed}" if fixed else ""))
-    import textwrap
     caption = "\n".join(textwrap.wrap(caption, 95))
     figure = _figure(Figure, caption.count("\n") + 1)
     axes = figure.add_subplot()

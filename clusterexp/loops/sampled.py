@@ -23,8 +23,8 @@ import sympy
 from ..errors import InputError
 from ..model import Sampling, System
 from ..naming import bracket_label, cluster_symbol
-from .estimator import DEFAULT_SLICES, DEFAULT_UNIT, scan_third_order
-from .request import SUPPORTED, estimator_kind, grid_points, statistics_of
+from .estimator import DEFAULT_UNIT, scan_third_order
+from .request import estimator_kind, grid_points, statistics_of
 from .runner import LoopsError, TargetNotReachable
 
 WORKERS = 2
