@@ -117,6 +117,7 @@ class _Builder:
         self.tubes = None
         self.expansions: list[tuple[lark.Tree, _File]] = []
         self.products: list[tuple[lark.Tree, _File]] = []
+        self.samplings: list[tuple[lark.Tree, _File]] = []
 
     def span(self, item) -> Span:
         return self.file.span(item)
@@ -138,7 +139,7 @@ class _Builder:
         names = list(self.species)
         requests = [self._request(tree, source, names) for tree, source in self.requests]
         products = build_products(self, self.products, names)
-        needed = max([_total(r) for r in requests] + [product_order(products)], default=0)
+        needed = max([_total(r) for r in requests] + [product_order(products)] + [3] * bool(self.samplings), default=0)
         order = self.order[0] if self.order else max(needed, DEFAULT_ORDER if not requests else 1)
         if self.order:
             for r in requests:
@@ -152,13 +153,15 @@ class _Builder:
             span = self._first_span()
             requests = [Request("cluster", span, up_to=order), Request("virial", span, up_to=order)]
         source = self.source or Source("generic", self._first_span())
+        samplings = self._samplings(source, names, order)
         source = self._check_given(source, names, order)
         source = self._check_regime(source, names)
         return System(dimension=self.dimension, species=tuple(self.species.values()), source=source,
                       requests=tuple(requests), order=order, reference=self.reference or names[0],
                       parameters=tuple(self.parameters.values()), mutuals=tuple(self.mutuals),
                       output=self.output, files=tuple(self.files), warnings=tuple(self.warnings),
-                      size_limit=self.size_limit, tubes=self.tubes, expansions=self._expansions(), **products)
+                      size_limit=self.size_limit, tubes=self.tubes, expansions=self._expansions(),
+                      samplings=samplings, **products)
 
     def _first_span(self) -> Span:
         return self.main.span(self.statements[0][0]) if self.statements else Span(self.main.name, 1, 1)
@@ -359,6 +362,17 @@ class _Builder:
         self.products.append((tree, self.file))
 
     _evaluate = _tabulate = _plot = _typeset = _typeset_wavelength = _claim
+
+    def _sample(self, tree):
+        self.samplings.append((tree, self.file))
+
+    def _samplings(self, source: Source, names: list[str], order: int) -> tuple:
+        """`sample` statements, validated before the regime checks so that a request outside the loop
+        estimator's domain is reported at its own line (clusterexp/loops/request.py)."""
+        if not self.samplings:
+            return ()
+        from .loops.request import build_samplings
+        return build_samplings(self, source, names, order)
 
     def _size_limit(self, tree):
         token = tree.children[0]

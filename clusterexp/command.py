@@ -25,7 +25,8 @@ def _parser() -> argparse.ArgumentParser:
     run.add_argument("--document", action="store_true",
                      help="with --format latex: a standalone document instead of a snippet")
     run.add_argument("-o", "--output", metavar="PATH", help="write to PATH instead of standard output")
-    run.add_argument("--overwrite", action="store_true", help="allow -o to replace an existing file")
+    run.add_argument("--overwrite", action="store_true",
+                     help="allow -o and the input's tables and figures to replace existing files")
     run.add_argument("--size-limit", type=int, metavar="TERMS", default=None,
                      help="refuse derivations estimated above TERMS terms (default 200000; "
                           "the input may also say `size limit N`)")
@@ -54,13 +55,16 @@ def main(argv: list[str] | None = None) -> int:
             derivation = derive_file(path, size_limit=args.size_limit, progress=progress)
         for message, span in derivation.system.warnings:
             print(f"{span}: warning: {message}" if span else f"warning: {message}", file=sys.stderr)
-        derivation.compute_all(progress)
+        folder = Path(args.files_into)
         if not args.no_files:
-            folder = Path(args.files_into)
             if not folder.is_dir():
                 print(f"clusterexp: error: no such folder: {folder}", file=sys.stderr)
                 return EXIT_INPUT_ERROR
-            derivation.write_files(folder)
+            from .products import check_files
+            check_files(derivation.system, folder, args.overwrite)  # before any long computation
+        derivation.compute_all(progress)
+        if not args.no_files:
+            derivation.write_files(folder, args.overwrite)
         fmt = args.format or derivation.system.output.format
         if fmt == "latex" and args.document:
             text = latex_document(derivation)

@@ -212,7 +212,16 @@ def derive_system(system: System, size_limit: int | None = None, progress=None) 
         value, terms = _lookup(plan, kind, tuple(index), i)
         return Coefficient(kind, tuple(index), names, value, component=component, compute_terms=terms)
 
-    return Derivation(system, coefficients, make=make)
+    return Derivation(system, coefficients, make=make,
+                      compute_sampled=_sampled(plan) if system.samplings else None)
+
+
+def _sampled(plan: _Plan):
+    """The `sample` statements' numbers, computed when first looked at (clusterexp/loops/sampled.py)."""
+    def compute():
+        from .loops.sampled import run_samplings
+        return run_samplings(plan.system, lambda kind, index: _lookup(plan, kind, index)[0]())
+    return compute
 
 
 def _lookup(plan: _Plan, kind: str, index: Index, i: int | None = None):

@@ -135,6 +135,33 @@ class Expansion:
 
 
 @dataclass(frozen=True)
+class Sampling:
+    """`sample a[3] at alpha = 1/2 ...`: Brownian-loop Monte Carlo numbers for third-order coefficients
+    of the pair-phase regime (clusterexp.loops).
+
+    `coefficients`: (kind "cluster"/"virial", multi-index, span) as listed; `fixed`: (parameter symbol,
+    exact value) of `at`; `axes`: (symbol, exact values) of `over` (a Cartesian grid, first axis
+    slowest); `seed`; budget `time_cap` (seconds), `target` (error bar of every listed coefficient),
+    `loops` (total loop samples); `table` / `map` file names; `spans` of the clauses (for messages).
+    """
+
+    coefficients: tuple[tuple[str, Index, Span], ...]
+    span: Span
+    fixed: tuple[tuple[sympy.Symbol, sympy.Expr], ...] = ()
+    axes: tuple[tuple[sympy.Symbol, tuple[sympy.Expr, ...]], ...] = ()
+    seed: int = 0
+    time_cap: float | None = None
+    target: float | None = None
+    loops: int | None = None
+    table: str | None = None
+    map: str | None = None
+    spans: tuple[tuple[str, Span], ...] = ()
+
+    def clause_span(self, clause: str) -> Span:
+        return dict(self.spans).get(clause, self.span)
+
+
+@dataclass(frozen=True)
 class Request:
     """What to derive: a quantity ("cluster", "virial", "density", "fugacity"), either every
     multi-index up to total order `up_to`, or the explicit `indices`."""
@@ -251,6 +278,7 @@ class System:
     tables: tuple[Table, ...] = ()
     figures: tuple[Figure, ...] = ()
     typesetting: Typesetting = field(default_factory=Typesetting)
+    samplings: tuple["Sampling", ...] = ()
 
     @property
     def species_names(self) -> tuple[str, ...]:

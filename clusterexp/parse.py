@@ -12,7 +12,8 @@ from .resources import grammar_text
 
 MAX_LINE_LENGTH = 100_000    # characters; longer lines are refused before parsing (parse time grows with them)
 MAX_INPUT_LENGTH = 2_000_000  # characters in one file
-STATEMENTS = "dimension, order, parameter, species, mutual, reference, clusters, virials, derive, output, include"
+STATEMENTS = ("dimension, order, parameter, species, mutual, reference, clusters, virials, derive, output, include, "
+              "claim, evaluate, tabulate, plot, typeset, sample, expand, tubes, statistics, size limit")
 
 
 @cache

@@ -127,10 +127,29 @@ def run_tables(derivation) -> list:
     return out
 
 
-def write_files(derivation, directory=".") -> list[Path]:
-    """Write every table (CSV) and figure of the input into `directory`; returns the paths."""
+def check_files(system, directory=".", overwrite: bool = False) -> None:
+    """Refuse, before anything is computed, a file the input would write that exists already (unless
+    `overwrite`) or lies in a missing folder: `tabulate`, `plot` and the `sample` tables and maps."""
+    directory = Path(directory)
+    for item in (*system.tables, *system.figures):
+        path = directory / item.path
+        if path.is_dir() or not path.parent.is_dir():
+            raise InputError(f"cannot write {path}: " + ("it is a folder" if path.is_dir() else "no such folder"),
+                             item.span)
+        if path.exists() and not overwrite:
+            raise InputError(f"{path} exists; pass --overwrite to replace it", item.span)
+    if system.samplings:
+        from .loops.report import check_files as check_sampled_files
+        check_sampled_files(system, overwrite, directory)
+
+
+def write_files(derivation, directory=".", overwrite: bool = False) -> list[Path]:
+    """Write every table (CSV) and figure of the input into `directory`, the `sample` ones included;
+    an existing file is replaced only with `overwrite`. Returns the paths."""
     from . import plots
     directory = Path(directory)
+    system = derivation.system
+    check_files(system, directory, overwrite)
     written = []
     for table, rows in derivation.tables:
         try:
@@ -139,7 +158,6 @@ def write_files(derivation, directory=".") -> list[Path]:
             raise InputError(f"cannot write {table.path}: {error.strerror}", table.span) from None
         except InputError as error:
             raise _at(error, table.span) from None
-    system = derivation.system
     for figure in system.figures:
         items = [_plain(derivation, t, figure.span) for t in figure.targets]
         other = {s.name: v for s, v in figure.fixed}
@@ -157,4 +175,7 @@ def write_files(derivation, directory=".") -> list[Path]:
             raise InputError(f"cannot write {figure.path}: {error.strerror}", figure.span) from None
         except InputError as error:
             raise _at(error, figure.span) from None
+    if system.samplings:
+        from .loops.report import write_files as write_sampled_files
+        written += write_sampled_files(derivation.sampled, system, overwrite, directory)
     return written

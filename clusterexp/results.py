@@ -93,6 +93,19 @@ class Derivation:
                                  for piece in expansion_of(c.label, c.value, e, self.system.parameters)]
         return self._series[key]
 
+    compute_sampled: Callable[[], object] | None = field(default=None, repr=False, compare=False)
+
+    @property
+    def sampled(self):
+        """The Monte Carlo numbers of the input's `sample` statements (`loops.sampled.SampledNumbers`),
+        run on first use; None when there are none."""
+        if self.compute_sampled is None:
+            return None
+        cache = self.__dict__.setdefault("_sampled_cache", [])
+        if not cache:
+            cache.append(self.compute_sampled())
+        return cache[0]
+
     def __iter__(self) -> Iterator[Coefficient]:
         return iter(self.coefficients)
 
@@ -148,11 +161,11 @@ class Derivation:
     def failed_checks(self) -> list:
         return [c for c in self.checks if not c.ok]
 
-    def write_files(self, directory=".") -> list:
-        """Write the tables (CSV) and figures the input asks for, relative to `directory`; returns
-        the paths written."""
+    def write_files(self, directory=".", overwrite: bool = False) -> list:
+        """Write the tables (CSV) and figures the input asks for, relative to `directory`; an existing
+        file is replaced only with `overwrite`. Returns the paths written."""
         from .products import write_files
-        return write_files(self, directory)
+        return write_files(self, directory, overwrite)
 
     def compute_all(self, progress=None) -> None:
         """Compute every value now (printers then only read), reporting each coefficient to

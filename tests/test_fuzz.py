@@ -33,6 +33,7 @@ from conftest import ROOT, run_cli
 
 EXAMPLES = int(os.environ.get("CLUSTEREXP_FUZZ_EXAMPLES", "0")) or None
 FUZZ_SIZE = 3_000         # estimated terms above which a fuzz case only builds (keeps each case fast)
+FUZZ_SAMPLING_SECONDS = 5  # likewise for the Monte Carlo runs of `sample` statements (estimated seconds)
 HANG_SECONDS = 20         # one input taking longer than this is reported as a hang
 FUZZ = settings(max_examples=EXAMPLES or 120, deadline=None, derandomize=EXAMPLES is None,
                 suppress_health_check=[HealthCheck.too_slow, HealthCheck.data_too_large,
@@ -91,7 +92,7 @@ def derive_or_refuse(text: str, base_dir: Path | None = None, filename: str = "f
     with time_guard():
         try:
             system = build_system(text, filename, base_dir or ROOT)
-            if estimate(system).size > FUZZ_SIZE:
+            if too_large(system):
                 return "large"
             derivation = derive_system(system)
             FORMATTERS["text"](derivation)  # values are lazy: printing forces every one
@@ -343,9 +344,18 @@ def run_main(argv: list[str]) -> tuple[int, str, str]:
 REFUSAL = re.compile(r"^<command line>:\d+:\d+: error: ")
 
 
+def too_large(system) -> bool:
+    """Too big or too long for a fuzz case: only built, not derived."""
+    if system.samplings:
+        from clusterexp.loops.request import expected_seconds
+        if expected_seconds(system) > FUZZ_SAMPLING_SECONDS:
+            return True
+    return estimate(system).size > FUZZ_SIZE
+
+
 def small_enough(text: str) -> bool:
     try:
-        return estimate(build_system(text, "fuzz.gas", ROOT)).size <= FUZZ_SIZE
+        return not too_large(build_system(text, "fuzz.gas", ROOT))
     except (InputError, NotSupportedYet):
         return True
 

@@ -21,7 +21,7 @@ from clusterexp.command import main
 out, examples, formats = sys.argv[1], sys.argv[2].split("|"), [f.split(",") for f in sys.argv[3].split("|")]
 for k, example in enumerate(examples):
     for j, fmt in enumerate(formats):
-        args = ["run", example, "--format", fmt[0], *fmt[1:], "-o", f"{out}/{k}-{j}.out"]
+        args = ["run", example, "--format", fmt[0], *fmt[1:], "-o", f"{out}/{k}-{j}.out", "--no-files"]
         code = main(args)
         if code != 0:
             sys.exit(f"exit {code} for {args}")

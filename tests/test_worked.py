@@ -5,6 +5,7 @@ published values, textbook formulas or a route written here, independent of clus
 """
 import csv
 import json
+import math
 from pathlib import Path
 
 import pytest
@@ -198,3 +199,30 @@ def test_vortex_lattice_tracers_against_the_cycle_argument():
         reference = sympy.expand(expected[(k,)].series(n, 0, 2).removeO())
         assert sympy.expand(got.removeO() - reference) == 0
         assert sympy.expand(expected[(k,)].series(n, 0, 3).removeO()).coeff(n, 2).free_symbols & set(tails)
+
+
+def test_semion_bilayer_against_published_a3_and_the_vanishing_mixed_coefficient():
+    # Monte Carlo numbers, reproducible by seed (the golden file); the content is checked here against
+    # sources outside the project, within the run's own error bars.
+    result = run_cli("run", str(ROOT / "worked" / "semion_bilayer" / "input.gas"), "--format", "json")
+    assert result.returncode == 0, result.stderr
+    data = json.loads(result.stdout)
+    exact = {tuple(c["index"]): sympy.sympify(c["value"]) for c in data["coefficients"]}
+    nu, b30, b21 = sympy.symbols("nu b_3_0 b_2_1")
+    # a_3 = 4 b_2^2 - 2 b_3 and a_21 = b_11^2 + 4 b_11 b_20 - 2 b_21 (series inversion, checked numerically
+    # in tests/test_loops.py), with b_2(1/2) = -1/8 (Arovas, Schrieffer, Wilczek & Zee, Nucl. Phys. B 251
+    # (1985) 117) and b_11 = -nu (1 - nu) (harmonic-regulator result, physics.md)
+    b20, b11 = sympy.Rational(-1, 8), -nu * (1 - nu)
+    assert sympy.expand(exact[(3, 0)] - (4 * b20 ** 2 - 2 * b30)) == 0
+    assert sympy.expand(exact[(2, 1)] - (b11 ** 2 + 4 * b11 * b20 - 2 * b21)) == 0
+    first, second = data["sampled"]
+    (a3, b3), = [p["values"] for p in first["points"]]
+    # a_3(1/2) = 1/36 + 1/(12 pi^2) + c_2, c_2 = -1.65e-5: Myrheim & Olaussen, Phys. Lett. B 299 (1993) 267;
+    # Mashkevich, Myrheim & Olaussen (1996) for c_2
+    published = 1 / 36 + 1 / (12 * math.pi ** 2) - 1.65e-5
+    assert a3["coefficient"] == "a[3,0]" and abs(a3["value"] - published) < 4 * a3["error"] < 0.01
+    assert a3["value"] == pytest.approx(float(exact[(3, 0)].subs(b30, b3["value"])), abs=1e-15)
+    mixed = {p["at"]["nu"]: p["values"][0] for p in second["points"]}
+    for integer in ("0", "1"):  # no mutual statistics at integer nu (fact of the trade)
+        assert abs(mixed[integer]["value"]) < 1e-12 and mixed[integer]["error"] < 1e-12
+    assert mixed["1/2"]["error"] > 0  # no independent reference value at nu = 1/2 (not published)

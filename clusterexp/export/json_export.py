@@ -42,4 +42,7 @@ def to_json(derivation: Derivation) -> str:
                               for e, rows in derivation.evaluations]
     if system.tables or system.figures:
         document["files"] = [t.path for t in system.tables] + [f.path for f in system.figures]
+    if system.samplings:
+        from ..loops.report import json_items
+        document["sampled"] = json_items(derivation.sampled)
     return json.dumps(document, indent=2, sort_keys=False, ensure_ascii=True) + "\n"

@@ -63,7 +63,11 @@ def latex_snippet(derivation: Derivation, environment: str = "align", align: boo
              f"  {_lhs(c, labels, system.dimension, wavelength)} = {c.latex(names)}",
              *series_latex_rows(derivation, c, amp, names)]]
     body = " \\\\\n".join(rows)
-    return f"\\begin{{{environment}}}\n{body}\n\\end{{{environment}}}\n"
+    snippet = f"\\begin{{{environment}}}\n{body}\n\\end{{{environment}}}\n"
+    if system.samplings and environment != "aligned":  # (aligned: inline display in notebooks)
+        from ..loops.report import latex_block
+        snippet += latex_block(derivation.sampled, system)
+    return snippet
 
 
 def regime_latex(system) -> list[str]:

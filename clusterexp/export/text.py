@@ -20,4 +20,7 @@ def to_text(derivation: Derivation) -> str:
         lines.append(f"  {c.label} = {c.text}")
         lines += [f"    {line}" for line in series_text_lines(derivation, c)]
     lines += product_lines(derivation)
+    if derivation.system.samplings:
+        from ..loops.report import text_lines
+        lines += text_lines(derivation.sampled)
     return "\n".join(lines) + "\n"

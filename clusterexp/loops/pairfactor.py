@@ -31,8 +31,16 @@ import numpy as np
 # that a bridge strays a distance d sideways is exp(-2 d^2 / v), so far slices err by < exp(-18) (in fact far less: the path must also wind).
 NEAR_CUT = 18.0
 
+# Accuracy of the quadrature: the trapezoidal error is ~exp(-step shift) and the cut-off tails are
+# below exp(-reach) (see `_reduced_factor`).  PRECISE: |error| < 1e-11 (tested against the Bessel sum);
+# SAMPLING, used by the sampler: |error| < 1e-7 per slice (measured against PRECISE on 6e5 random
+# slices: at most 2e-8), so the phase of a sample with ~50 near slices is off by < 1e-6, a bias
+# below 1e-7 in b_3 -- three orders under the best error bars -- for 30% fewer quadrature points.
+PRECISE = (25.0, 30.0)
+SAMPLING = (16.0, 20.0)
+
 # Half-widths (in steps) of the quadrature grids; an entry uses the smallest bucket that covers it.
-_BUCKETS = (6, 8, 11, 16, 23, 32, 45, 64, 91, 128, 181, 256)
+_BUCKETS = (4, 5, 6, 7, 8, 10, 12, 14, 16, 19, 23, 27, 32, 38, 45, 54, 64, 76, 91, 108, 128, 152, 181, 215, 256)
 _CHUNK = 40000
 
 
@@ -65,17 +73,18 @@ def classify_segments(u: np.ndarray, v: float, cut: float = NEAR_CUT):
     return far_sum, rows, x, phi[rows, cols]
 
 
-def _reduced_factor(a: float, x: np.ndarray, phi: np.ndarray) -> np.ndarray:
+def _reduced_factor(a: float, x: np.ndarray, phi: np.ndarray, accuracy=PRECISE) -> np.ndarray:
     """R for 0 < a < 1 and 0 <= phi <= pi (1-d arrays of equal shape, x > 0).
 
     Step: the trapezoidal error is ~exp(-2 pi c / step) times the growth exp(x (cos psi - cos c)) of
     the integrand on the shifted contour; step = pi^2 / (x + 25) keeps it below ~exp(-25) for c near
     pi/2 at every x.  Reach: the integrand is below exp(-30) once x (cosh t - 1) > 30.
     """
+    step_shift, tail = accuracy
     psi = np.pi - phi
-    step = np.minimum(0.45, np.pi ** 2 / (x + 25.0))
+    step = np.minimum(0.45, np.pi ** 2 / (x + step_shift))
     with np.errstate(over="ignore", divide="ignore"):
-        reach = np.arccosh(1.0 + 30.0 / np.maximum(x, 1e-300))
+        reach = np.arccosh(1.0 + tail / np.maximum(x, 1e-300))
     reach = np.minimum(reach, 16.0)
     half = np.ceil(reach / step)
     which = np.searchsorted(np.array(_BUCKETS, dtype=float), half)
@@ -91,15 +100,23 @@ def _reduced_factor(a: float, x: np.ndarray, phi: np.ndarray) -> np.ndarray:
             hs = step[idx]
             t = hs[:, None] * grid[None, :]
             e = np.exp(-t)
-            cp, sp = cos_psi[idx][:, None], sin_psi[idx][:, None]
+            cp, sp = cos_psi[idx], sin_psi[idx]
+            xs = x[idx][:, None]
+            # exponent -x (cosh t - cos psi) - a t, built in place (the arrays are the cost here)
+            arg = 1.0 / e
+            arg += e
+            arg *= -0.5 * xs
+            arg += xs * cp[:, None]
+            arg -= a * t
             with np.errstate(under="ignore", over="ignore"):
-                h = np.exp(-x[idx][:, None] * (0.5 * (e + 1.0 / e) - cp) - a * t)
-            # 1 / (1 - e^{-t} e^{i psi}) = conj(D) / |D|^2 with D = (1 - e cos psi) - i e sin psi
-            dr = 1.0 - e * cp
-            di = -e * sp
-            scale = h / (dr * dr + di * di)
-            total_r = hs * (scale * dr).sum(axis=1)
-            total_i = hs * (-(scale * di)).sum(axis=1)
+                w = np.exp(arg, out=arg)
+            # 1 / (1 - e^{-t} e^{i psi}) = conj(D) / |D|^2, D = (1 - e cos psi) - i e sin psi, |D|^2 =
+            # 1 + e (e - 2 cos psi): with w = h / |D|^2 only sum(w) and sum(w e) are needed
+            w /= 1.0 + e * (e - 2.0 * cp[:, None])
+            s0 = w.sum(axis=1)
+            s1 = np.einsum("ij,ij->i", w, e)
+            total_r = hs * (s0 - cp * s1)
+            total_i = hs * sp * s1
             ps = psi[idx]
             q = np.exp(-2.0 * np.pi * ps / hs)
             pole = 2j * np.pi * np.exp(-1j * a * ps) * q / (1.0 + q)
@@ -108,8 +125,9 @@ def _reduced_factor(a: float, x: np.ndarray, phi: np.ndarray) -> np.ndarray:
     return out
 
 
-def pair_factor(alpha: float, x: np.ndarray, phi: np.ndarray) -> np.ndarray:
-    """E[exp(i alpha Theta) | slice endpoints] for any real alpha; x > 0, phi in (-pi, pi]."""
+def pair_factor(alpha: float, x: np.ndarray, phi: np.ndarray, accuracy=PRECISE) -> np.ndarray:
+    """E[exp(i alpha Theta) | slice endpoints] for any real alpha; x > 0, phi in (-pi, pi].
+    `accuracy`: PRECISE (default) or SAMPLING (see above)."""
     x = np.asarray(x, dtype=float)
     phi = np.asarray(phi, dtype=float)
     k = np.floor(alpha)
@@ -118,6 +136,6 @@ def pair_factor(alpha: float, x: np.ndarray, phi: np.ndarray) -> np.ndarray:
     if a == 0.0 or x.size == 0:
         return base.astype(complex)
     neg = phi < 0
-    r = _reduced_factor(a, x, np.abs(phi))
+    r = _reduced_factor(a, x, np.abs(phi), accuracy)
     r = np.where(neg, np.conj(r), r)
     return base * r

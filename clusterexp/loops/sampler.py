@@ -25,7 +25,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .pairfactor import classify_segments, pair_factor
+from .pairfactor import SAMPLING, classify_segments, pair_factor
 
 # Importance sampling of sampled offsets: a defensive mixture of two centred complex Gaussians, so that
 # the weight stays bounded where the integrand's Gaussian tail is wider than the main component.
@@ -60,7 +60,7 @@ class PhaseData:
     def phase(self, alpha: float) -> np.ndarray:
         out = np.exp(1j * alpha * self.far)
         if self.rows.size:
-            np.multiply.at(out, self.rows, pair_factor(alpha, self.x, self.phi))
+            np.multiply.at(out, self.rows, pair_factor(alpha, self.x, self.phi, SAMPLING))
         return out
 
     @property

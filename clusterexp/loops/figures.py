@@ -1,0 +1,49 @@
+"""Heat map of a sampled coefficient over two scanned parameters (e.g. alpha_1 and alpha_12).
+
+Built like `clusterexp.plots.plot_map` (a `Figure` without pyplot, the same caption and file
+handling, byte-stable files), but from Monte Carlo values on the statement's grid instead of an
+expression: each grid point is one cell, and the caption gives the largest error bar.
+"""
+from __future__ import annotations
+
+import textwrap
+from pathlib import Path
+from types import SimpleNamespace
+
+from ..errors import InputError
+from ..plots import (_figure, _format, _matplotlib, _place_caption, _save, coefficient_latex, conventions_caption,
+                     symbol_latex)
+from .report import METHOD, plus_minus
+
+
+def sampled_map(statement, system, path: Path) -> Path:
+    _, Figure, numpy = _matplotlib()
+    sampling = statement.sampling
+    (first, xs), (second, ys) = sampling.axes
+    x = numpy.array([float(v) for v in xs])
+    y = numpy.array([float(v) for v in ys])
+    values = numpy.array([p.values[0].value for p in statement.points]).reshape(len(x), len(y)).T
+    errors = [p.values[0].error for p in statement.points]
+    worst = max(range(len(errors)), key=errors.__getitem__)
+    v = statement.points[worst].values[0]
+    fixed = ", ".join(f"{s.name} = {value}" for s, value in sampling.fixed)
+    caption = (f"{conventions_caption(system)}; {METHOD}, seed {sampling.seed}; largest error bar "
+               f"{plus_minus(v.value, v.error)}" + (f"; fixed: {fixed}" if fixed else ""))
+    caption = "\n".join(textwrap.wrap(caption, 95))
+    figure = _figure(Figure, caption.count("\n") + 1)
+    axes = figure.add_subplot()
+    low, high = float(values.min()), float(values.max())
+    if low < 0 < high:
+        bound = max(-low, high)
+        mesh = axes.pcolormesh(x, y, values, shading="nearest", cmap="RdBu_r", vmin=-bound, vmax=bound)
+    else:
+        mesh = axes.pcolormesh(x, y, values, shading="nearest", cmap="viridis")
+    item = SimpleNamespace(kind=v.kind, index=v.index, species=system.species_names, component=None)
+    figure.colorbar(mesh, ax=axes).set_label(f"${coefficient_latex(item)}$ (sampled)")
+    axes.set_xlabel(f"${symbol_latex(first.name)}$")
+    axes.set_ylabel(f"${symbol_latex(second.name)}$")
+    _place_caption(figure, caption)
+    try:
+        return _save(figure, path, _format(path))
+    except OSError as error:
+        raise InputError(f"cannot write {path}: {error.strerror}", sampling.clause_span("map")) from None

@@ -1,0 +1,159 @@
+"""Printing and files of sampled numbers: text lines, a LaTeX block, JSON items, a CSV table, a heat map.
+
+Printers only format what `clusterexp.loops.sampled` computed. A value prints with its error bar
+rounded to two significant digits and the value to the same decimal place ("0.0362 +- 0.0013"), so the
+text does not depend on digits below the statistical error. Run times are left out (they vary from run
+to run and output is byte-stable; `SampledRun.seconds` has them); the text says how to repeat a run.
+"""
+from __future__ import annotations
+
+import csv
+import io
+import math
+from pathlib import Path
+
+import sympy
+
+from ..errors import InputError
+from ..naming import latex_subscript, species_latex
+from .sampled import SampledNumbers, SampledStatement
+
+METHOD = "Brownian-loop Monte Carlo, docs/loops.md"
+PLUS_MINUS_LATEX = r" \pm "
+EXACT_BELOW = 1e-12
+
+
+def plus_minus(value: float, error: float, separator: str = " +- ") -> str:
+    """value and error, the error to two significant digits and the value to the same place."""
+    if not math.isfinite(error) or error < EXACT_BELOW:
+        # zero variance: the phases are trivial at this point (e.g. integer mutual parameter); what is
+        # left of the value below 1e-12 is rounding of the phases, not statistics
+        return f"{round(value, 12) + 0.0:.7g}{separator}0"
+    place = math.floor(math.log10(error)) - 1
+    decimals = max(0, -place)
+    if place > 0:
+        step = 10 ** place
+        return f"{round(value / step) * step:.0f}{separator}{round(error / step) * step:.0f}"
+    return f"{value:.{decimals}f}{separator}{error:.{decimals}f}"
+
+
+def _point_text(point) -> str:
+    return ", ".join(f"{name} = {sympy.sstr(value)}" for name, value in point)
+
+
+def _budget_text(statement: SampledStatement) -> str:
+    s = statement.sampling
+    parts = []
+    if s.loops is not None:
+        parts.append(f"with {s.loops} loops")
+    if s.time_cap is not None:
+        parts.append(f"within {s.time_cap:g} seconds")
+    if s.target is not None:
+        parts.append(f"target {s.target:g}")
+    return ", ".join(parts)
+
+
+def text_lines(numbers: SampledNumbers) -> list[str]:
+    lines = []
+    for statement in numbers:
+        s = statement.sampling
+        lines += ["", f"sampled values ({METHOD}), `sample` at line {s.span.line}, seed {s.seed}, "
+                      f"{_budget_text(statement)}:"]
+        for run in statement.runs:
+            lines.append(f"  {run.label}: {run.samples} loops in {run.rounds} rounds, {run.slices} slices; "
+                         f"alone `sample {run.label} ... with {run.samples} loops seed {run.seed}` repeats it")
+        for point in statement.points:
+            where = f"at {_point_text(point.point)}: " if point.point else ""
+            lines.append("  " + where + "; ".join(f"{v.label} = {plus_minus(v.value, v.error)}" for v in point.values))
+    return lines
+
+
+def latex_block(numbers: SampledNumbers, system) -> str:
+    """An `align*` environment: one row per coefficient and point, value \\pm error."""
+    labels = [species_latex(n) for n in system.species_names]
+    rows = []
+    for statement in numbers:
+        for point in statement.points:
+            where = ", ".join(f"{_latex_name(name)}={sympy.latex(value)}" for name, value in point.point)
+            for v in point.values:
+                letter = "b" if v.kind == "cluster" else "a"
+                lhs = f"{letter}_{{{latex_subscript(v.index, labels)}}}" + (rf"\big|_{{{where}}}" if where else "")
+                rows.append(f"  {lhs} &= " + plus_minus(v.value, v.error, PLUS_MINUS_LATEX))
+    body = " \\\\\n".join(rows)
+    return f"% sampled values: {METHOD}\n\\begin{{align*}}\n{body}\n\\end{{align*}}\n"
+
+
+def _latex_name(name: str) -> str:
+    from ..plots import symbol_latex
+    return symbol_latex(name)
+
+
+def json_items(numbers: SampledNumbers) -> list[dict]:
+    out = []
+    for statement in numbers:
+        s = statement.sampling
+        out.append({
+            "line": s.span.line,
+            "method": METHOD,
+            "seed": s.seed,
+            "budget": {"loops": s.loops, "seconds": s.time_cap, "target": s.target},
+            "runs": [{"coefficient": r.label, "estimator": r.kind, "estimator_seed": r.run_seed, "loops": r.samples,
+                      "rounds": r.rounds, "slices": r.slices} for r in statement.runs],
+            "points": [{"at": {name: sympy.sstr(value) for name, value in p.point},
+                        "values": [{"coefficient": v.label, "kind": v.kind, "index": list(v.index), "value": v.value,
+                                    "error": v.error} for v in p.values]} for p in statement.points],
+        })
+    return out
+
+
+def table_rows(statement: SampledStatement) -> list[list[str]]:
+    """Header (parameters, then each coefficient and its error), then one row per point."""
+    header = statement.parameter_names + [x for label in statement.labels for x in (label, f"{label} error")]
+    rows = [header]
+    for point in statement.points:
+        rows.append([sympy.sstr(value) for _, value in point.point]
+                    + [x for v in point.values for x in (repr(v.value), repr(v.error))])
+    return rows
+
+
+def check_files(system, overwrite: bool = False, base: Path | None = None) -> None:
+    """Refuse, before any run, to replace an existing `table` or `map` file (unless `overwrite`) or to
+    write into a missing folder."""
+    base = base or Path.cwd()
+    for s in system.samplings:
+        for clause, name in (("table", s.table), ("map", s.map)):
+            if name is None:
+                continue
+            path = base / name
+            if path.exists() and not overwrite:
+                raise InputError(f"{path} exists; pass --overwrite to replace it", s.clause_span(clause))
+            if path.is_dir() or not path.parent.is_dir():
+                raise InputError(f"cannot write {path}: " + ("it is a folder" if path.is_dir() else
+                                                            "no such folder"), s.clause_span(clause))
+
+
+def write_files(numbers: SampledNumbers, system, overwrite: bool = False, base: Path | None = None) -> list[Path]:
+    """Write every statement's `table` (CSV) and `map` (figure); refuses to replace a file unless
+    `overwrite`. Returns the paths written."""
+    from ..numbers import atomic_write_bytes
+    base = base or Path.cwd()
+    check_files(system, overwrite, base)
+    written = []
+    for statement in numbers:
+        s = statement.sampling
+        for clause, name in (("table", s.table), ("map", s.map)):
+            if name is None:
+                continue
+            path = base / name
+            if clause == "table":
+                buffer = io.StringIO()
+                csv.writer(buffer, lineterminator="\n").writerows(table_rows(statement))
+                try:
+                    atomic_write_bytes(path, buffer.getvalue().encode("utf-8"))
+                except OSError as error:
+                    raise InputError(f"cannot write {path}: {error.strerror}", s.clause_span(clause)) from None
+            else:
+                from .figures import sampled_map
+                sampled_map(statement, system, path)
+            written.append(path)
+    return written
