@@ -132,8 +132,22 @@ class ProductBuilder:
             if symbol in seen:
                 raise InputError(f"{token} is given twice", self.b.span(token))
             seen.add(symbol)
-            out.append((symbol, self.number(value, f"the value of {token}")))
+            out.append((symbol, self.within_range(token, self.number(value, f"the value of {token}"), value)))
         return tuple(out)
+
+    def within_range(self, token, value: sympy.Expr, tree) -> sympy.Expr:
+        """A value of a declared parameter, refused outside the declared range: the derivation may
+        have used the range (e.g. one polynomial branch of a periodic closed form)."""
+        p = self.b.parameters[str(token)]
+        low = p.lower is not None and (value < p.lower or (p.lower_open and value == p.lower))
+        high = p.upper is not None and (value > p.upper or (p.upper_open and value == p.upper))
+        if low or high:
+            interval = (("(" if p.lower_open else "[") + f"{p.lower}, {p.upper}" + (")" if p.upper_open else "]")
+                        if p.lower is not None and p.upper is not None else
+                        (f"above {p.lower}" if p.lower is not None else f"below {p.upper}"))
+            raise InputError(f"{token} = {value} is outside its declared range {interval}; the results assume that "
+                             "range (widen the `parameter` declaration)", self.b.span(tree))
+        return value
 
     def digits(self, tree) -> int:
         if tree is None:
@@ -201,7 +215,7 @@ class ProductBuilder:
     def _axis_values(self, axis) -> tuple[sympy.Expr, ...]:
         name = axis.children[0]
         if axis.data == "axis_values":
-            values = [self.number(v, f"a grid value of {name}") for v in axis.children[1:]]
+            values = [self.within_range(name, self.number(v, f"a grid value of {name}"), v) for v in axis.children[1:]]
             if len(set(values)) != len(values):
                 raise InputError(f"a grid value of {name} is listed twice", self.b.span(axis))
             return tuple(values)
@@ -210,6 +224,8 @@ class ProductBuilder:
             raise InputError("the step must be positive", self.b.span(axis.children[3]))
         if not stop >= start:
             raise InputError(f"the grid of {name} must go from the lower end to the upper", self.b.span(axis))
+        self.within_range(name, start, axis.children[1])
+        self.within_range(name, stop, axis.children[2])
         count = int(sympy.floor((stop - start) / step)) + 1
         if count > MAX_AXIS_POINTS:
             raise InputError(f"{count:,} points on the axis {name} (at most {MAX_AXIS_POINTS:,})", self.b.span(axis))
@@ -234,7 +250,7 @@ class ProductBuilder:
             seen.add(symbol)
             span = None
             if ends:
-                low, high = (self.number(e, f"the plot range of {token}") for e in ends)
+                low, high = (self.within_range(token, self.number(e, f"the plot range of {token}"), e) for e in ends)
                 if not low < high:
                     raise InputError(f"the plot range of {token} must go from the lower end to the upper",
                                      self.b.span(axis))
@@ -299,6 +315,12 @@ def build_products(builder, trees, names: list[str]) -> dict:
         else:
             typeset.append(tree)
     builder.file = builder.main
+    seen = {}
+    for item in (*out["tables"], *out["figures"]):
+        if item.path in seen:
+            raise InputError(f"{item.path} is also written by the statement at line {seen[item.path].line}; "
+                             "give each table and figure its own file", item.span)
+        seen[item.path] = item.span
     result = {k: tuple(v) for k, v in out.items()}
     result["typesetting"] = products.typesetting(typeset)
     return result

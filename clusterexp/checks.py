@@ -227,10 +227,11 @@ def _mismatch(common, simplified, intervals, point, left, right, shown_intervals
     lead, about, lead_note = leading_term(simplified, intervals)
     if lead_note:
         notes = notes + (lead_note,)
+    shown = _shown_pair(left, right)
     return CheckResult(MISMATCH, method=method, difference=simplified, leading_term=lead,
                        expansion_point=about,
                        witness=tuple((s.name, v) for s, v in sorted(point.items(), key=lambda kv: kv[0].name)),
-                       claimed_value=_shown(left), derived_value=_shown(right), points=good, skipped=skipped,
+                       claimed_value=shown[0], derived_value=shown[1], points=good, skipped=skipped,
                        intervals=shown_intervals, notes=notes, **common)
 
 
@@ -569,13 +570,36 @@ def _mp(value, digits):
     return value
 
 
-def _shown(value) -> str:
+def _shown_pair(left, right) -> tuple[str, str]:
+    """The two values as text, with as many digits as it takes (up to 200) for them to read
+    differently; failing that, the second one says by how much they differ."""
+    pair = (_shown(left), _shown(right))
+    if all(isinstance(v, sympy.Basic) and len(sympy.sstr(v)) <= 40 for v in (left, right)):
+        return pair  # both exact and short
+    digits = SHOWN_DIGITS
+    pair = (_shown(left, digits, numeric=True), _shown(right, digits, numeric=True))
+    while pair[0] == pair[1] and digits < 200:
+        digits *= 2
+        pair = (_shown(left, digits, numeric=True), _shown(right, digits, numeric=True))
+    if pair[0] == pair[1]:
+        if isinstance(left, sympy.Basic) and isinstance(right, sympy.Basic):
+            difference = sympy.sstr(sympy.N(left - right, 5))
+        else:
+            with mpmath.workdps(400):
+                difference = mpmath.nstr(_mp(left, 400) - _mp(right, 400), 5)
+        pair = (pair[0], f"{pair[1]} (claimed - derived = {difference})")
+    return pair
+
+
+def _shown(value, digits: int = SHOWN_DIGITS, numeric: bool = False) -> str:
     if isinstance(value, sympy.Basic):
         text = sympy.sstr(value)
-        if len(text) <= 40:
+        if len(text) <= 40 and not numeric:
             return text
-        value = _mp(value, SHOWN_DIGITS)
-    if isinstance(value, mpmath.mpc):
-        return f"{mpmath.nstr(value.real, SHOWN_DIGITS)}{'-' if value.imag < 0 else '+'}" \
-               f"{mpmath.nstr(abs(value.imag), SHOWN_DIGITS)}j"
-    return mpmath.nstr(value, SHOWN_DIGITS)
+    with mpmath.workdps(digits + 10):
+        if isinstance(value, sympy.Basic):
+            value = _mp(value, digits)
+        if isinstance(value, mpmath.mpc):
+            return f"{mpmath.nstr(value.real, digits)}{'-' if value.imag < 0 else '+'}" \
+                   f"{mpmath.nstr(abs(value.imag), digits)}j"
+        return mpmath.nstr(value, digits)

@@ -25,7 +25,13 @@ FUNCTIONS: dict[str, tuple[Callable, int]] = {
     "gamma": (sympy.gamma, 1), "binomial": (sympy.binomial, 2), "factorial": (sympy.factorial, 1),
     "frac": (sympy.frac, 1), "floor": (sympy.floor, 1),
     "O": (lambda x: sympy.Order(x), 1),  # truncation of a series given by the user: O(alpha^3)
+    "Mod": (lambda x, p: _periodic(x, p), 2),  # as printed for the periodic pair-phase closed forms
 }
+
+
+def _periodic(x, period):
+    from .routes.pairphase import PeriodicPart
+    return PeriodicPart(x, period)
 CONSTANTS = {"pi": sympy.pi}
 
 
@@ -44,6 +50,11 @@ class ExpressionBuilder:
         self._depth += 1
         try:
             return self._build(tree)
+        except NotImplementedError as error:
+            # sympy gives up on some combinations, e.g. abs(x) + O(x^2) (no leading term of abs at 0)
+            raise InputError(f"cannot form this expression: {error}"
+                             + ("; O(...) needs the other terms to be series in its variable"
+                                if "leading_term" in str(error) else ""), self.span_of(tree)) from None
         except RecursionError:
             if not outermost:
                 raise

@@ -8,6 +8,8 @@ from __future__ import annotations
 
 from typing import Sequence
 
+import re
+
 import sympy
 
 Index = tuple[int, ...]
@@ -30,8 +32,20 @@ def bracket_label(index: Index) -> str:
     return "[" + ",".join(str(n) for n in index) + "]"
 
 
+_GROUP = r"\{(?:[^{}]|\{[^{}]*\})*\}"
+_ATOM = rf"(?:[A-Za-z0-9]|\\[A-Za-z]+(?:{_GROUP})*)"
+_SIMPLE_LATEX = re.compile(rf"{_ATOM}(?:_(?:[A-Za-z0-9]|{_GROUP}))?")
+
+
+def is_single_atom(latex: str) -> bool:
+    """Whether a LaTeX name reads as one symbol that can take a power: `A`, `\\nu_{AB}`,
+    `\\tilde{\\nu}`, `\\mathrm{He}` yes; `\\hbar\\omega`, `m_B/m_A`, `e^-` no."""
+    return bool(_SIMPLE_LATEX.fullmatch(latex.strip()))
+
+
 def latex_subscript(index: Index, species_latex: Sequence[str]) -> str:
-    """Species labels as subscripts: (2, 1) with A, B -> A^{2}B; one species: (3,) -> 3."""
+    """Species labels as subscripts: (2, 1) with A, B -> A^{2}B; one species: (3,) -> 3. A label
+    that is not a single symbol is put in parentheses before it takes a power."""
     if len(index) == 1:
         return str(index[0])
     parts = []
@@ -39,7 +53,8 @@ def latex_subscript(index: Index, species_latex: Sequence[str]) -> str:
         if n == 1:
             parts.append(label)
         elif n > 1:
-            parts.append(f"{label}^{{{n}}}")
+            base = label if is_single_atom(label) else rf"\left({label}\right)"
+            parts.append(f"{base}^{{{n}}}")
     return " ".join(parts)
 
 

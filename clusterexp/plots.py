@@ -219,13 +219,19 @@ def _prepare(items, axes: list[str], other_values, system, parameters) -> tuple[
         fixed = value.xreplace({s: other[s.name] for s in value.free_symbols if s.name in other})
         missing = [n for n in _names(fixed.free_symbols) if n not in axes]
         if missing:
-            raise PlotError(f"{_label(item)}: give values for {', '.join(missing)} (other_values); it depends on "
-                            f"{_depends(_names(value.free_symbols))}")
+            declared_missing = [n for n in missing if n in declared]
+            how = (f"fix {', '.join(declared_missing)} with `at {declared_missing[0]} = ...`" if declared_missing else
+                   f"{', '.join(missing)} {'is' if len(missing) == 1 else 'are'} not known here (give "
+                   f"{'it' if len(missing) == 1 else 'them'} in the coefficient source)")
+            raise PlotError(f"{_label(item)} depends on {_depends(_names(value.free_symbols))}: {how}")
         prepared.append(fixed)
     return prepared, other
 
 
 def _evaluator(expr: sympy.Expr, axes: list[str], numpy):
+    from .routes.pairphase import PeriodicPart
+    # periodic closed forms (pair phases) hold x mod p; numpy knows Mod, not our differentiable wrapper
+    expr = expr.replace(PeriodicPart, lambda x, period: sympy.Mod(x, period, evaluate=False))
     symbols = {s.name: s for s in expr.free_symbols}
     arguments = [symbols.get(a, sympy.Symbol(a)) for a in axes]
     function = sympy.lambdify(arguments, expr, modules="numpy")

@@ -52,6 +52,11 @@ def run_checks(derivation) -> list:
             except ValueError as error:
                 raise InputError(f"{error}: declare the parameter's range inside one period so that the "
                                  "coefficient has a single polynomial branch", claim.span) from None
+            except (NotImplementedError, TypeError, sympy.PolynomialError) as error:
+                # e.g. abs(alpha) has no Taylor series at 0: a truncated claim must be analytic there
+                raise InputError(f"cannot expand this claim as a series in {_limits_text(limits)[2:-1].split('^')[0]}"
+                                 f" ({type(error).__name__}: {error}); a truncated claim must be a polynomial or an "
+                                 "analytic function of its parameters", claim.span) from None
             label += f" up to {_limits_text(limits)}"
             if set(known) - {s for s, _ in claim.limits} or any(known[s] < k for s, k in claim.limits if s in known):
                 notes.append(f"the derived value is known only up to {_limits_text(known)}")

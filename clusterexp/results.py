@@ -165,7 +165,14 @@ class Derivation:
         """Write the tables (CSV) and figures the input asks for, relative to `directory`; an existing
         file is replaced only with `overwrite`. Returns the paths written."""
         from .products import write_files
-        return write_files(self, directory, overwrite)
+        written = write_files(self, directory, overwrite)
+        self.__dict__["_written"] = True
+        return written
+
+    @property
+    def files_written(self) -> bool:
+        """Whether `write_files` has written the input's tables and figures."""
+        return self.__dict__.get("_written", False)
 
     def compute_all(self, progress=None) -> None:
         """Compute every value now (printers then only read), reporting each coefficient to

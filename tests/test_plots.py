@@ -71,7 +71,7 @@ def test_heat_map_png(tmp_path, pair):
 def test_plotting_against_a_parameter_the_coefficient_lacks_names_those_it_has(tmp_path, pair):
     with pytest.raises(PlotError, match=r"cannot plot against g: a\[1,1\] does not depend on it; it depends on t"):
         plot_line(virial(pair, (1, 1)), "g", None, tmp_path / "x.png", system=pair.system)
-    with pytest.raises(InputError, match=r"give values for t"):
+    with pytest.raises(InputError, match=r"fix t with `at t = ...`"):
         plot_line(virial(pair, (2, 1)), "g", None, tmp_path / "x.png", system=pair.system)
     with pytest.raises(PlotError, match="values given for nu, which the plotted coefficients do not depend on"):
         plot_line(virial(pair, (2, 0)), "g", None, tmp_path / "x.png", other_values={"nu": 1})

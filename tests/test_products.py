@@ -4,6 +4,7 @@ Physics values here come from outside the project (named beside each check); the
 own decisions are tested in test_checks.py.
 """
 import csv
+import re
 import io
 import os
 import shutil
@@ -299,3 +300,61 @@ def test_progress_shows_on_a_terminal(tmp_path):
     assert b"deriving virial coefficients: order 2/3 (reversion of rho(z))" in shown
     assert b"deriving virial coefficients: order 3/3 (a[3,0])" in shown
     assert b"deriving" not in process.stdout
+
+
+# -- found in review ---------------------------------------------------------------------------------
+
+@pytest.mark.parametrize("text, message", [
+    ("evaluate a[2] at alpha = 3", "alpha = 3 is outside its declared range [0, 1]"),
+    ("tabulate a[2] over alpha from -1 to 1 step 1/2 into \"t.csv\"", "alpha = -1 is outside its declared range"),
+    ("tabulate a[2] over alpha in [0, 2] into \"t.csv\"", "alpha = 2 is outside its declared range"),
+    ("plot a[2] over alpha from 0 to 3 into \"p.png\"", "alpha = 3 is outside its declared range"),
+    ("claim a[2] = abs(sin(alpha) - alpha) + O(alpha^3)", "O(...) needs the other terms to be series in its variable"),
+    ("tabulate a[2] over alpha in [0, 1] into \"t.csv\"  tabulate a[3] over alpha in [0, 1] into \"t.csv\"",
+     "t.csv is also written by the statement at line 6"),
+])
+def test_values_outside_the_declared_range_and_other_refusals(text, message):
+    # the pair-phase a_2 is a single polynomial only inside the declared range: a value outside it
+    # would silently use the wrong branch (a_2(3) = a_2(1) = 1/4, not -7/4)
+    with pytest.raises(InputError, match=re.escape(message)) as error:
+        build_system(ANYONS + text, "hand.gas")
+    assert error.value.span.line == 6
+
+
+def test_periodic_closed_forms_plot_over_several_periods(tmp_path):
+    pytest.importorskip("matplotlib")
+    d = clusterexp.derive("dimension 2 parameter alpha species A exchange alpha clusters pairphase {} "
+                          "derive virial up to 2 plot a[2] over alpha from -1 to 3 into \"p.png\" "
+                          "evaluate a[2] at alpha = 3 claim a[2] = -1/4 + Mod(alpha, 2) - Mod(alpha, 2)^2/2")
+    (path,) = d.write_files(tmp_path)
+    assert path.read_bytes().startswith(b"\x89PNG")
+    # period 2 (Arovas, Schrieffer, Wilczek, Zee 1985): a_2(3) = a_2(1) = 1/4
+    assert d.evaluations[0][1] == [("a[2]", "0.25")]
+    assert d.checks[0].ok
+
+
+def test_mismatch_values_are_shown_with_the_digits_that_tell_them_apart():
+    d = clusterexp.derive("dimension 2 species A bose derive virial up to 2 claim a[2] = -b_2 + 10^(-40)")
+    (result,) = d.checks
+    assert result.status == "mismatch"
+    assert result.claimed_value != result.derived_value
+    assert result.claimed_value.rstrip("0").endswith("1")
+
+
+def test_composite_typeset_names_stay_one_factor():
+    d = clusterexp.derive("dimension 3 parameter r positive species A bose species B mass r bose clusters ideal "
+                          "derive cluster up to 2 typeset r as \"\\hbar\\omega\" typeset B as \"e^-\"")
+    snippet = latex_snippet(d)
+    assert r"\left(\hbar\omega\right)^{\frac{3}{2}}" in snippet
+    assert r"b_{\left(e^-\right)^{2}}" in snippet
+
+
+def test_files_section_says_whether_they_were_written(tmp_path):
+    text = ANYONS + "tabulate a[2] over alpha in [0, 1] into \"t.csv\""
+    skipped = run_cli("run", "-e", text, "--no-files", cwd=tmp_path)
+    assert "files asked for (not written in this run):" in skipped.stdout
+    written = run_cli("run", "-e", text, cwd=tmp_path)
+    assert "files written:" in written.stdout
+    again = run_cli("run", "-e", text, cwd=tmp_path)
+    assert again.returncode == 2 and "t.csv exists; pass --overwrite to replace it" in again.stderr
+    assert run_cli("run", "-e", text, "--overwrite", cwd=tmp_path).returncode == 0

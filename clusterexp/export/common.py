@@ -132,7 +132,8 @@ def product_lines(derivation) -> list[str]:
     files += [(f.path, ("map of " if len(f.axes) == 2 else "plot of ") + ", ".join(n.label for n in f.targets))
               for f in system.figures]
     if files:
-        lines += ["", "files:"] + [f"  {path}: {what}" for path, what in files]
+        title = "files written:" if derivation.files_written else "files asked for (not written in this run):"
+        lines += ["", title] + [f"  {path}: {what}" for path, what in files]
     return lines
 
 

@@ -5,7 +5,7 @@ import sympy
 
 from .common import eos_exponents, statistics_matrix
 from .latex_lines import aligned_rows
-from ..naming import generated_latex_names, latex_subscript, species_latex
+from ..naming import generated_latex_names, is_single_atom, latex_subscript, species_latex
 from ..results import Coefficient, Derivation
 from ..series import indices_up_to
 from .series_lines import pairphase_latex_paragraphs, series_latex_rows
@@ -23,8 +23,10 @@ def _symbol_names(derivation: Derivation) -> dict:
     order = max([system.order] + [c.order for c in derivation])
     names = generated_latex_names(indices_up_to(len(system.species), order), system.species_names,
                                   species_labels(system))
-    names.update({p.symbol: system.typesetting.symbol(p.name) for p in system.parameters
-                  if system.typesetting.symbol(p.name)})
+    for p in system.parameters:
+        chosen = system.typesetting.symbol(p.name)
+        if chosen:  # a name of several symbols (\hbar\omega, m_B/m_A) stays one factor in products and powers
+            names[p.symbol] = chosen if is_single_atom(chosen) else rf"\left({chosen}\right)"
     return names
 
 
@@ -132,6 +134,7 @@ def latex_document(derivation: Derivation) -> str:
     lines = [
         r"\documentclass{article}",
         r"\usepackage{amsmath}",
+        r"\allowdisplaybreaks",
         r"\begin{document}",
         r"\section*{Cluster and virial coefficients}",
         rf"Dimension $d={system.dimension}$; species {species}; reference species "
@@ -173,8 +176,11 @@ def _checks_latex(derivation: Derivation, labels, w, names) -> list[str]:
             line += ")"
         line += f": {result.status} ({_escape(result.method)})"
         if result.status == "mismatch" and result.difference is not None:
-            line += rf"; claimed minus derived $= {sympy.latex(result.difference, symbol_names=names)}$"
-        out.append(line + ".")
+            difference = aligned_rows(r"\Delta", sympy.latex(result.difference, symbol_names=names))
+            line += "; claimed minus derived:\n" + "\\begin{align*}\n" + difference + "\n\\end{align*}"
+        else:
+            line += "."
+        out.append(line)
     out.append(r"\end{itemize}")
     return out
 
@@ -193,7 +199,8 @@ def _values_latex(derivation: Derivation, labels, w, names) -> list[str]:
                  [rf"${_name(derivation, t, labels, w)}$" for t in table.targets]
         out.append(rf"\subsection*{{Table ({_escape(table.path)})}}")
         if len(rows) > TABLE_ROWS_SHOWN + 1:
-            out.append(f"{len(rows) - 1} rows, written to the file {_escape(table.path)}.")
+            where = "written to" if derivation.files_written else "for"
+            out.append(f"{len(rows) - 1} rows, {where} the file {_escape(table.path)}.")
             continue
         out += [r"\begin{tabular}{" + "r" * len(header) + "}", " & ".join(header) + r" \\ \hline"]
         out += [" & ".join(f"${_number_latex(cell)}$" for cell in row) + r" \\" for row in rows[1:]]
