@@ -371,7 +371,8 @@ def plot_map(coefficient, first, second, path="coefficient_map.png", *, other_va
     axes = figure.add_subplot()
     masked = numpy.ma.masked_invalid(z)
     low, high = float(masked.min()), float(masked.max())
-    if low < 0 < high:
+    noise = 1e-9 * max(abs(low), abs(high), 1e-300)  # rounding at exact zeros (e.g. integer mutual parameter)
+    if low < -noise and high > noise:
         bound = max(-low, high)
         mesh = axes.pcolormesh(grid_x, grid_y, masked, shading="auto", cmap="RdBu_r", vmin=-bound, vmax=bound)
         axes.contour(grid_x, grid_y, masked, levels=[0.0], colors="k", linewidths=0.8)
