@@ -55,6 +55,20 @@ def _matplotlib():
 # labels and captions
 
 
+def axis_latex(name: str, system=None) -> str:
+    """The axis label of a parameter: the user's `typeset` LaTeX when matplotlib's mathtext can draw
+    it, else `symbol_latex(name)`."""
+    chosen = getattr(getattr(system, "typesetting", None), "symbol", lambda _: None)(name)
+    if chosen:
+        try:
+            from matplotlib.mathtext import MathTextParser
+            MathTextParser("path").parse(f"${chosen}$")
+            return chosen
+        except Exception:  # noqa: BLE001 -- mathtext knows less than LaTeX; fall back to the plain name
+            pass
+    return symbol_latex(name)
+
+
 def symbol_latex(name: str) -> str:
     """mathtext for a symbol name: alpha -> \\alpha, nu_AB -> \\nu_{AB}, g2 -> g_{2},
     alpha_top_mid -> \\alpha_{\\mathrm{top},\\mathrm{mid}}."""
@@ -327,7 +341,7 @@ def plot_line(coefficients, parameter, interval=None, path="coefficients.png", *
     if low < 0 < high:
         axes.axhline(0.0, color="0.6", linewidth=0.6, zorder=0)
     axes.set_xlim(float(span.lower), float(span.upper))
-    axes.set_xlabel(f"${symbol_latex(name)}$")
+    axes.set_xlabel(f"${axis_latex(name, system)}$")
     kinds = {getattr(i, "kind", None) for i in items}
     if len(items) == 1:
         axes.set_ylabel(f"${coefficient_latex(items[0])}$")
@@ -380,8 +394,8 @@ def plot_map(coefficient, first, second, path="coefficient_map.png", *, other_va
         mesh = axes.pcolormesh(grid_x, grid_y, masked, shading="auto", cmap="viridis")
     bar = figure.colorbar(mesh, ax=axes)
     bar.set_label(f"${coefficient_latex(items[0])}$")
-    axes.set_xlabel(f"${symbol_latex(name1)}$")
-    axes.set_ylabel(f"${symbol_latex(name2)}$")
+    axes.set_xlabel(f"${axis_latex(name1, system)}$")
+    axes.set_ylabel(f"${axis_latex(name2, system)}$")
     if title:
         axes.set_title(title)
     _place_caption(figure, caption_text)

@@ -87,3 +87,14 @@ def test_without_matplotlib_the_message_says_how_to_install_it(tmp_path, pair, m
     monkeypatch.setitem(sys.modules, "matplotlib.figure", None)
     with pytest.raises(InputError, match=r"plots need matplotlib: pip install 'clusterexp\[plot\]'"):
         plot_line(virial(pair, (2, 0)), "g", None, tmp_path / "x.png")
+
+
+def test_axis_labels_use_the_typeset_names_mathtext_can_draw():
+    pytest.importorskip("matplotlib")
+    from clusterexp.build import build_system
+    from clusterexp.plots import axis_latex
+    system = build_system('dimension 2 parameter nu in [0, 1] parameter t species A bose '
+                          'typeset nu as "\\tilde{\\nu}_{AB}" typeset t as "\\textrm{t}"')
+    assert axis_latex("nu", system) == r"\tilde{\nu}_{AB}"
+    assert axis_latex("t", system) == "t"  # \textrm compiles in LaTeX but not in mathtext: plain name
+    assert axis_latex("nu") == r"\nu"
