@@ -4,27 +4,28 @@ parentheses) are break points; the text of each term is kept as printed.
 """
 from __future__ import annotations
 
-OPEN, CLOSE = "{([", "})]"
+import re
+
+_EVENTS = re.compile(r"\\[{}]|[{(\[]|[})\]]| [+-] ")
 
 
 def top_level_terms(latex: str) -> list[str]:
-    """The terms of a printed sum, each with its sign: "a + b - c" -> ["a", "+ b", "- c"]."""
-    terms, depth, start, i = [], 0, 0, 0
-    while i < len(latex):
-        char = latex[i]
-        if char == "\\" and i + 1 < len(latex) and latex[i + 1] in "{}":
-            i += 2  # escaped brace: not a group
-            continue
-        if char in OPEN:
+    """The terms of a printed sum, each with its sign: "a + b - c" -> ["a", "+ b", "- c"]. Only the
+    characters that matter are visited (a printed coefficient can run to megabytes)."""
+    terms, depth, start = [], 0, 0
+    for match in _EVENTS.finditer(latex):
+        token = match.group()
+        if token[0] == "\\":
+            continue  # an escaped brace is no group
+        if token in "{([":
             depth += 1
-        elif char in CLOSE:
+        elif token in "})]":
             depth -= 1
-        elif depth == 0 and char in "+-" and i > 0 and latex[i - 1] == " " and latex[i + 1:i + 2] == " ":
-            piece = latex[start:i].strip()
+        elif depth == 0:
+            piece = latex[start:match.start()].strip()
             if piece:
                 terms.append(piece)
-            start = i
-        i += 1
+            start = match.start() + 1
     terms.append(latex[start:].strip())
     return [t for t in terms if t]
 
