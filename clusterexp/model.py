@@ -191,9 +191,8 @@ class CoefficientName:
 
     @property
     def label(self) -> str:
-        from .naming import bracket_label
-        letter = {"cluster": "b", "virial": "a", "density": "rho", "fugacity": "z"}[self.kind]
-        return f"{letter}{'_' + self.component if self.component else ''}{bracket_label(self.index)}"
+        from .naming import coefficient_label
+        return coefficient_label(self.kind, self.index, self.component)
 
 
 @dataclass(frozen=True)

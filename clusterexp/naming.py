@@ -43,6 +43,14 @@ def is_single_atom(latex: str) -> bool:
     return bool(_SIMPLE_LATEX.fullmatch(latex.strip()))
 
 
+KIND_LETTERS = {"cluster": "b", "virial": "a", "density": "rho", "fugacity": "z"}
+
+
+def coefficient_label(kind: str, index: Index, component: str | None = None) -> str:
+    """The plain-text name of a coefficient: b[2,1], a[3], rho_A[1,1], z_B[0,2]."""
+    return f"{KIND_LETTERS[kind]}{'_' + component if component else ''}{bracket_label(index)}"
+
+
 def latex_subscript(index: Index, species_latex: Sequence[str]) -> str:
     """Species labels as subscripts: (2, 1) with A, B -> A^{2}B; one species: (3,) -> 3. A label
     that is not a single symbol is put in parentheses before it takes a power."""

@@ -7,7 +7,7 @@ from typing import Callable, Iterator
 import sympy
 
 from .model import System
-from .naming import bracket_label
+from .naming import bracket_label, coefficient_label
 
 KINDS = ("cluster", "virial", "density", "fugacity")
 Index = tuple[int, ...]
@@ -62,10 +62,7 @@ class Coefficient:
 
     @property
     def label(self) -> str:
-        letter = {"cluster": "b", "virial": "a", "density": "rho", "fugacity": "z"}[self.kind]
-        if self.component is not None:
-            return f"{letter}_{self.component}{bracket_label(self.index)}"
-        return f"{letter}{bracket_label(self.index)}"
+        return coefficient_label(self.kind, self.index, self.component)
 
     @property
     def order(self) -> int:
