@@ -126,7 +126,18 @@ class _Plan:
         if physical is not None and physical.ring is not None:
             return reduced_to_virial(physical.ring, physical.elements, self.order, [sympy.Integer(1)] * self.K,
                                      self._on_order)
-        return cluster_to_virial(self.cluster, self.order, self.K, on_order=self._on_order)
+        return cluster_to_virial(self.cluster, self.order, self.K, on_order=self._on_order,
+                                 truncation=self.shared_truncation)
+
+    @cached_property
+    def shared_truncation(self) -> dict:
+        """Truncation orders every coefficient is subject to, so that the kernel may apply them: the
+        tube coverage, known to first order (a given series in the coverage may cut some coefficients
+        lower still; the per-coefficient truncation does that)."""
+        tubes = self.system.tubes
+        if tubes is not None and isinstance(tubes.coverage, sympy.Symbol):
+            return {tubes.coverage: 2}
+        return {}
 
     @cached_property
     def linear_pairphase(self) -> list:
@@ -136,7 +147,7 @@ class _Plan:
     def virial(self) -> Mapping[Index, sympy.Expr]:
         if self.system.source.kind == "pairphase" and self._given_kind() == "virial":
             exact = {n: v for n, v in self.pairphase.items() if v is not None and sum(n) <= 2}
-            a = dict(cluster_to_virial(exact, 2, self.K).virial)
+            a = dict(cluster_to_virial(exact, 2, self.K, truncation=self.shared_truncation).virial)
             given = self._given_exact()
             for n, value in self.pairphase.items():
                 if sum(n) <= 2:

@@ -60,6 +60,11 @@ class Coefficient:
             return terms.latex(symbol_names)
         return sympy.latex(self.value, symbol_names=symbol_names or {}, order="lex")
 
+    def latex_terms(self, symbol_names=None) -> list[str] | None:
+        """The printed terms with their signs when the value is a `TermSum`, else None."""
+        terms = self.terms
+        return terms.latex_terms(symbol_names) if terms is not None else None
+
     @property
     def label(self) -> str:
         return coefficient_label(self.kind, self.index, self.component)

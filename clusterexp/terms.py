@@ -53,30 +53,45 @@ class TermSum:
     @classmethod
     def from_ring(cls, ring, element, factor: sympy.Expr = sympy.Integer(1)) -> "TermSum | None":
         """A ring element over the atoms, times a power-product factor; None if it does not fit."""
-        atoms = []
-        for a in ring.atoms:  # symbols, or powers of a symbol such as 1/mu
-            found = _power_product(a)
-            if found is None or found[0] != 1 or len(found[1]) != 1:
-                return None
-            atoms.append(next(iter(found[1].items())))
         pref = _power_product(factor)
-        if pref is None:
+        reader = _AtomReader.of(ring, pref[1] if pref is not None else None)
+        if reader is None:
             return None
-        scale, extra = pref
-        order = {s: n for n, s in enumerate(sorted({s for s, _ in atoms} | set(extra), key=default_sort_key))}
+        rows = list(ring.sparse_terms(element))
+        if any(j < ring.nvars for powers, _, _ in rows for j, _ in powers):
+            raise ValueError("a coefficient still carries expansion variables")
+        return reader.term_sum(rows, pref[0])
+
+    @classmethod
+    def _presorted(cls, terms: list[tuple[Monomial, Fraction]]) -> "TermSum":
+        out = cls.__new__(cls)
+        out.terms = terms
+        return out
+
+    @classmethod
+    def split_ring_part(cls, ring, part) -> "dict[tuple[int, ...], TermSum] | None":
+        """Every coefficient of a homogeneous part (a ring element in the expansion variables), keyed by
+        its multi-index, in one pass over the part's terms; None unless every atom is a power of one
+        symbol. Same terms, same order as `from_ring` on each coefficient (tests compare); it skips
+        splitting the part into ring elements and reading each back, which cost more than the kernel."""
+        reader = _AtomReader.of(ring)
+        if reader is None:
+            return None
         k = ring.nvars
-        terms: dict[Monomial, Fraction] = {}
-        for monom, num, den in ring.terms(element):
-            if any(monom[:k]):
-                raise ValueError("a coefficient still carries expansion variables")
-            powers = dict(extra)
-            for (symbol, unit), e in zip(atoms, monom[k:]):
-                if e:
-                    powers[symbol] = powers.get(symbol, 0) + unit * int(e)
-            key = tuple(sorted(((s, e) for s, e in powers.items() if e != 0), key=lambda p: order[p[0]]))
-            c = Fraction(num, den) if scale == 1 else Fraction(num, den) * scale
-            terms[key] = terms[key] + c if key in terms else c
-        return cls(terms)
+        groups: dict[tuple[int, ...], list] = {}
+        for powers, num, den in ring.sparse_terms(part):
+            split = 0
+            while split < len(powers) and powers[split][0] < k:
+                split += 1
+            key = [0] * k
+            for j, e in powers[:split]:
+                key[j] = e
+            key = tuple(key)
+            found = groups.get(key)
+            if found is None:
+                found = groups[key] = []
+            found.append((powers[split:], num, den))
+        return {key: reader.term_sum(rows) for key, rows in groups.items()}
 
     @classmethod
     def from_expr(cls, expr: sympy.Expr) -> "TermSum | None":
@@ -131,15 +146,106 @@ class TermSum:
             pieces.append((negative, body))
         return self._join(pieces, "-")
 
-    def latex(self, symbol_names: Mapping[sympy.Symbol, str] | None = None) -> str:
+    def latex_terms(self, symbol_names: Mapping[sympy.Symbol, str] | None = None) -> list[str]:
+        """The printed terms with their signs, ["a", "+ b", "- c"] (what `latex_lines.top_level_terms`
+        reads off the joined text, without scanning it)."""
         names = dict(symbol_names or {})
-        pieces = []
+        out = []
         for negative, up, down in self._fractions(lambda s, e: _latex_power(names.get(s) or sympy.latex(s), e)):
             body = " ".join(up)
             if down:
                 body = rf"\frac{{{body}}}{{{' '.join(down)}}}"
-            pieces.append((negative, body))
-        return self._join(pieces, "- ")
+            out.append(("- " if negative else "") + body if not out else ("- " if negative else "+ ") + body)
+        return out or ["0"]
+
+    def latex(self, symbol_names: Mapping[sympy.Symbol, str] | None = None) -> str:
+        return " ".join(self.latex_terms(symbol_names))
+
+
+class _AtomReader:
+    """Turns sparse ring terms over the atoms into TermSum monomials: each atom is a power of one symbol
+    (s, or 1/mu, sqrt(mu)); powers of one symbol from several atoms are added."""
+
+    def __init__(self, nvars: int, atoms: list[tuple[sympy.Symbol, Fraction]], extra: Mapping):
+        symbols = sorted({s for s, _ in atoms} | set(extra), key=default_sort_key)
+        rank = {s: n for n, s in enumerate(symbols)}
+        # generator j of the ring (j >= nvars) -> (rank of its symbol, symbol, exponent per unit power)
+        self.atoms = {nvars + j: (rank[s], s, unit) for j, (s, unit) in enumerate(atoms)}
+        self.extra = sorted((rank[s], s, e) for s, e in extra.items())
+        # distinct: one atom per symbol, so nothing to merge; monotone: ranks follow the generators
+        self.distinct = not extra and len(rank) == len(atoms)
+        ranks = [rank[s] for s, _ in atoms]
+        self.monotone = ranks == sorted(ranks)
+
+    @classmethod
+    def of(cls, ring, extra: Mapping | None = {}) -> "_AtomReader | None":
+        if extra is None:
+            return None
+        atoms = []
+        for a in ring.atoms:
+            found = _power_product(a)
+            if found is None or found[0] != 1 or len(found[1]) != 1:
+                return None
+            atoms.append(next(iter(found[1].items())))
+        return cls(ring.nvars, atoms, extra)
+
+    def term_sum(self, rows, scale: Fraction = Fraction(1)) -> "TermSum":
+        """rows: (sparse atom powers by generator, numerator, denominator), each times scale * extra."""
+        if self.distinct:
+            return self._distinct_term_sum(rows, scale)
+        atoms = self.atoms
+        terms: dict[Monomial, Fraction] = {}
+        ranked_of: dict[Monomial, list] = {}
+        for powers, num, den in rows:
+            ranked = sorted(self.extra + [(atoms[j][0], atoms[j][1], atoms[j][2] * e) for j, e in powers], key=_first)
+            merged: list = []
+            for item in ranked:    # equal ranks are adjacent: one symbol from several atoms
+                if merged and merged[-1][0] == item[0]:
+                    merged[-1] = (item[0], item[1], merged[-1][2] + item[2])
+                else:
+                    merged.append(item)
+            ranked = [item for item in merged if item[2] != 0]
+            monomial = tuple([(s, e) for _, s, e in ranked])
+            c = Fraction(num, den) if scale == 1 else Fraction(num, den) * scale
+            if monomial in terms:
+                terms[monomial] += c
+            else:
+                terms[monomial] = c
+                ranked_of[monomial] = ranked
+
+        def key(monomial):
+            return _descending(ranked_of[monomial])
+        return TermSum._presorted([(m, terms[m]) for m in sorted(terms, key=key) if terms[m] != 0])
+
+    def _distinct_term_sum(self, rows, scale: Fraction) -> "TermSum":
+        """One atom per symbol: distinct ring terms are distinct monomials, nothing to merge or to
+        look up (hashing sympy symbols costs more than the rest)."""
+        atoms = self.atoms
+        entries = []
+        for powers, num, den in rows:
+            ranked = [(atoms[j][0], atoms[j][1], atoms[j][2] * e) for j, e in powers]
+            if not self.monotone:
+                ranked.sort(key=_first)
+            if num:
+                entries.append((_descending(ranked), tuple([(s, e) for _, s, e in ranked]),
+                                Fraction(num, den) if scale == 1 else Fraction(num, den) * scale))
+        entries.sort(key=_first)
+        return TermSum._presorted([(monomial, c) for _, monomial, c in entries])
+
+
+def _descending(ranked) -> tuple:
+    """A key that sorts exponent vectors (zero where a symbol is absent) in descending lex order, read
+    off the sparse (rank, symbol, exponent) list: compared position by position, a positive exponent
+    at a lower rank comes first, then a vector that has ended (zeros), then negative exponents, the one
+    at the higher rank first. Same order as `TermSum`'s dense key (tests compare)."""
+    return tuple([(0, r, -e) if e > 0 else (2, -r, -e) for r, _, e in ranked]) + _ENDED
+
+
+_ENDED = ((1, 0, 0),)
+
+
+def _first(item):
+    return item[0]
 
 
 HALF = Fraction(1, 2)

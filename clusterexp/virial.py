@@ -24,6 +24,7 @@ from .errors import SeriesError
 from .series import PolynomialRing, Series, collect_atoms, indices_up_to, revert
 from .series.horner import HornerComposition
 from .series.series import balanced_sum
+from .series.truncation import drop_high_powers, reciprocal_power
 
 Index = tuple[int, ...]
 
@@ -31,19 +32,23 @@ Index = tuple[int, ...]
 class CoefficientTable(Mapping):
     """{multi-index: sympy value}, converted lazily from exact ring elements.
 
-    `factor` (optional) gives, per multi-index, a sympy factor applied at the edge (a mass factor).
+    `factor` (optional) gives, per multi-index, a sympy factor applied at the edge (a mass factor);
+    `limits` ({symbol: first unknown power}) drops the powers a truncated-series factor brings beyond them.
     Iteration order is deterministic: by total order, then descending lex.
     """
 
     def __init__(self, ring: PolynomialRing, elements: Mapping[Index, object] | Series, order: int,
-                 factor: Callable[[Index], sympy.Expr] | None = None):
+                 factor: Callable[[Index], sympy.Expr] | None = None,
+                 limits: Mapping[sympy.Symbol, int] | None = None):
         self.ring = ring
         self.order = order
         # a Series is split into its coefficients only when first looked at: the split walks every
         # term in Python and costs about as much as the whole kernel
         self._source = elements
         self._factor = factor
+        self._limits = dict(limits or {})
         self._cache: dict[Index, sympy.Expr] = {}
+        self._split_parts: dict[int, object] = {}
 
     @cached_property
     def _elements(self) -> dict[Index, object]:
@@ -63,6 +68,8 @@ class CoefficientTable(Mapping):
             value = sympy.Integer(0) if element is None else self.ring.to_expr(element)
             if self._factor is not None:
                 value = value * self._factor(index)
+                if self._limits:
+                    value = drop_high_powers(value, self._limits)
             self._cache[index] = value
         return self._cache[index]
 
@@ -80,9 +87,21 @@ class CoefficientTable(Mapping):
         """The value as a `TermSum` read straight off the ring (no sympy expression is built), or
         None when an atom or the edge factor is not a plain power product of symbols."""
         from .terms import TermSum
+        if self._limits:
+            return None
         index = tuple(index)
+        if self._factor is None and isinstance(self._source, Series) and sum(index) <= self._source.order:
+            found = self._part_term_sums(sum(index))
+            if found is not None:
+                return found.get(index, TermSum({}))
         factor = sympy.Integer(1) if self._factor is None else self._factor(index)
         return TermSum.from_ring(self.ring, self.element(index), factor)
+
+    def _part_term_sums(self, degree: int):
+        if degree not in self._split_parts:
+            from .terms import TermSum
+            self._split_parts[degree] = TermSum.split_ring_part(self.ring, self._source.parts[degree])
+        return self._split_parts[degree]
 
     def __repr__(self) -> str:
         return f"CoefficientTable(order={self.order}, {len(self)} nonzero coefficients)"
@@ -112,9 +131,13 @@ def _working_ring(values: Mapping[Index, sympy.Expr], K: int, backend: str | Non
     return PolynomialRing(K, collect_atoms(values.values()), backend=backend)
 
 
-def reduced_clusters(b: Mapping[Index, object], K: int, order: int) -> tuple[dict[Index, sympy.Expr], list]:
-    """beta_n = b_n / prod b_{e_i}^{n_i} for 2 <= |n| <= order, and the linear coefficients."""
+def reduced_clusters(b: Mapping[Index, object], K: int, order: int,
+                     truncation: Mapping[sympy.Symbol, int] | None = None) -> tuple[dict[Index, sympy.Expr], list]:
+    """beta_n = b_n / prod b_{e_i}^{n_i} for 2 <= |n| <= order, and the linear coefficients.
+    With `truncation` ({symbol: first unknown power}), a b_{e_i} that depends on such a symbol is
+    divided out as a truncated power series in it, so that beta stays polynomial in it."""
     linear = _linear(b, K)
+    divide = _Divider(linear, truncation)
     for i, c in enumerate(linear):
         if c == 0:
             raise SeriesError(f"b for a single particle of species {i + 1} is zero; the gas has no ideal limit")
@@ -126,8 +149,28 @@ def reduced_clusters(b: Mapping[Index, object], K: int, order: int) -> tuple[dic
         if 2 <= sum(index) <= order:
             value = sympy.sympify(value)
             if value != 0:
-                reduced[index] = value if all(c == 1 for c in linear) else value / _mass_power(linear, index)
+                reduced[index] = value if all(c == 1 for c in linear) else divide(value, index)
     return reduced, linear
+
+
+class _Divider:
+    """value / prod_i c_i^{n_i}, by truncated reciprocal series where `truncation` allows."""
+
+    def __init__(self, linear: Sequence[sympy.Expr], truncation: Mapping[sympy.Symbol, int] | None):
+        self.linear, self.truncation = linear, dict(truncation or {})
+        self._reciprocals: dict[tuple[int, int], sympy.Expr | None] = {}
+
+    def reciprocal(self, i: int, e: int) -> sympy.Expr | None:
+        if (i, e) not in self._reciprocals:
+            self._reciprocals[i, e] = reciprocal_power(self.linear[i], e, self.truncation)
+        return self._reciprocals[i, e]
+
+    def __call__(self, value: sympy.Expr, index: Index) -> sympy.Expr:
+        if self.truncation:
+            factors = [self.reciprocal(i, e) for i, e in enumerate(index) if e]
+            if all(f is not None for f in factors):
+                return drop_high_powers(value * sympy.Mul(*factors), self.truncation)
+        return value / _mass_power(self.linear, index)
 
 
 def _pressure_in_w(ring: PolynomialRing, reduced: Mapping[Index, sympy.Expr], K: int, order: int) -> Series:
@@ -137,18 +180,23 @@ def _pressure_in_w(ring: PolynomialRing, reduced: Mapping[Index, sympy.Expr], K:
 
 
 def cluster_to_virial(b: Mapping[Index, object], order: int, nspecies: int | None = None,
-                      backend: str | None = None, on_order=None) -> "VirialResult":
+                      backend: str | None = None, on_order=None,
+                      truncation: Mapping[sympy.Symbol, int] | None = None) -> "VirialResult":
     """Virial coefficients a_n (and the fugacity expansion) from cluster coefficients b_n.
+
+    `truncation` ({symbol: first unknown power}) names parameters known only to some order: results
+    are polynomials in them with every power at or beyond its limit dropped (exact below it).
 
     >>> b = {(1,): 1, (2,): sympy.Symbol("b2"), (3,): sympy.Symbol("b3")}
     >>> cluster_to_virial(b, 3).virial[(3,)]
     4*b2**2 - 2*b3
     """
     K = _nspecies(b, nspecies)
-    reduced, linear = reduced_clusters(b, K, order)
+    reduced, linear = reduced_clusters(b, K, order, truncation)
     ring = _working_ring(reduced, K, backend)
     beta = {n: ring.scalar_or_element(v) for n, v in reduced.items()}
-    return reduced_to_virial(ring, beta, order, linear, on_order)
+    result = reduced_to_virial(ring, beta, order, linear, on_order)
+    return result.truncated(truncation) if truncation else result
 
 
 def reduced_to_virial(ring: PolynomialRing, beta: Mapping[Index, object], order: int,
@@ -204,11 +252,27 @@ class VirialResult:
         self.w_series = list(w)
         self.virial = CoefficientTable(ring, pressure, order)
 
+    def truncated(self, limits: Mapping[sympy.Symbol, int]) -> "VirialResult":
+        """The same result with every power of a limited symbol at or beyond its limit dropped."""
+        ring = self.ring
+
+        def cut(s: Series) -> Series:
+            return Series(ring, s.order, [ring.drop_powers(p, limits) for p in s.parts])
+        result = VirialResult(ring, self.order, self.linear, cut(self.pressure_series), [cut(w) for w in self.w_series])
+        result.limits = dict(limits)
+        return result
+
+    limits: Mapping[sympy.Symbol, int] = {}
+
     def fugacity(self, i: int) -> CoefficientTable:
         """z_i(rho) = w_i(rho) / b_{e_i}: coefficients of rho^n in the fugacity of species i."""
         c = self.linear[i]
-        factor = None if c == 1 else (lambda index: 1 / c)
-        return CoefficientTable(self.ring, self.w_series[i], self.order, factor)
+        if c == 1:
+            return CoefficientTable(self.ring, self.w_series[i], self.order)
+        inverse = reciprocal_power(c, 1, self.limits) if self.limits else None
+        if inverse is None:
+            return CoefficientTable(self.ring, self.w_series[i], self.order, lambda index: 1 / c)
+        return CoefficientTable(self.ring, self.w_series[i], self.order, lambda index: inverse, self.limits)
 
     def legendre_pressure(self) -> Series:
         """P(rho) recomputed from the fugacities alone (independent self-check):

@@ -7,6 +7,7 @@ import pytest
 import sympy
 
 import clusterexp
+from clusterexp.series import available_backends
 from clusterexp.export import latex_document, latex_snippet, to_json, to_text
 from clusterexp.terms import TermSum
 from conftest import ROOT
@@ -81,3 +82,61 @@ def test_standalone_documents_of_worked_examples_compile(tmp_path):
                                 cwd=tmp_path, capture_output=True, text=True, timeout=120)
         assert result.returncode == 0, result.stdout[-2000:]
         assert (tmp_path / f"{folder.name}.pdf").stat().st_size > 1000
+
+
+@pytest.mark.parametrize("backend", available_backends())
+def test_one_pass_split_of_a_part_matches_the_coefficient_by_coefficient_reading(backend):
+    """TermSum.split_ring_part reads all coefficients of a homogeneous part at once; it must give the
+    same terms in the same order as splitting the part and reading each coefficient (TermSum.from_ring),
+    and both must agree with sympy's own conversion of the same polynomial."""
+    from clusterexp.series import PolynomialRing
+    a, b, mu = sympy.symbols("a b mu")
+    ring = PolynomialRing(2, [a, b, mu], backend=backend)
+    x, y = ring.var(0), ring.var(1)
+    part = (ring.from_expr(a ** 3 * mu / 7 - b + 2) * x ** 2 * y + ring.from_expr(mu ** 2 - a * b ** 4) * x * y ** 2
+            + ring.from_expr(-sympy.Rational(5, 3) * b * mu) * y ** 3)
+    split = TermSum.split_ring_part(ring, part)
+    pieces = ring.split_by_variables(part)
+    assert set(split) == set(pieces) == {(2, 1), (1, 2), (0, 3)}
+    for index, element in pieces.items():
+        slow = TermSum.from_ring(ring, element)
+        assert split[index].terms == slow.terms
+        assert sympy.sympify(split[index].text()) == ring.to_expr(element)
+    odd = PolynomialRing(1, [sympy.sqrt(2)], backend=backend)
+    assert TermSum.split_ring_part(odd, odd.var(0)) is None   # sqrt(2) is left to sympy
+
+
+@pytest.mark.parametrize("backend", available_backends())
+def test_one_pass_split_merges_powers_of_one_symbol(backend):
+    """Atoms mu, 1/mu and sqrt(mu) are powers of one symbol: their exponents are added (mu * (1/mu) is
+    1), as sympy's own conversion does."""
+    from clusterexp.series import PolynomialRing
+    a, mu = sympy.symbols("a mu", positive=True)
+    ring = PolynomialRing(2, [a, mu, 1 / mu, sympy.sqrt(mu)], backend=backend)
+    x, y = ring.var(0), ring.var(1)
+    inv, root = ring.from_expr(1 / mu), ring.from_expr(sympy.sqrt(mu))
+    part = (ring.from_expr(mu) * inv * 3 + ring.from_expr(a * mu ** 2) * inv * root) * x * y \
+        + (inv * inv - ring.from_expr(a)) * y ** 2
+    split = TermSum.split_ring_part(ring, part)
+    for index, element in ring.split_by_variables(part).items():
+        assert split[index].terms == TermSum.from_ring(ring, element).terms
+        assert split[index].terms == TermSum(dict(split[index].terms)).terms   # the dense-key order
+        assert sympy.simplify(sympy.sympify(split[index].text(), locals={"a": a, "mu": mu})
+                              - ring.to_expr(element)) == 0
+    from fractions import Fraction
+    # by hand: 3 mu (1/mu) = 3 and a mu^2 (1/mu) sqrt(mu) = a mu^(3/2)
+    assert split[(1, 1)].terms == [(((a, 1), (mu, Fraction(3, 2))), Fraction(1)), ((), Fraction(3))]
+
+
+def test_sparse_term_order_is_the_dense_descending_order():
+    """TermSum's order is descending lex on dense exponent vectors (zeros for absent symbols); the
+    sparse key of the one-pass reader must give the same order, negative exponents (1/mu) included.
+    Reference: sorting the dense vectors with Python's own tuple comparison."""
+    import random
+    from clusterexp.terms import _ENDED, _descending
+    rnd = random.Random(5)
+    vectors = {tuple(rnd.choice((-2, -1, 0, 0, 0, 1, 2)) for _ in range(4)) for _ in range(300)}
+    sparse = {v: [(r, None, e) for r, e in enumerate(v) if e] for v in vectors}
+    by_key = sorted(vectors, key=lambda v: _descending(sparse[v]))
+    assert by_key == sorted(vectors, reverse=True)
+    assert _descending([]) == _ENDED

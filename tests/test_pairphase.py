@@ -319,3 +319,30 @@ def test_truncation_orders_of_several_parameters():
     g, h = sympy.symbols("g h")
     value = 1 + g + h + sympy.Order(g ** 2) + sympy.Order(h ** 3)
     assert split_truncation(value) == (1 + g + h, {g: 2, h: 3}) and truncation_problem(value) is None
+
+
+def test_tube_coverage_truncated_in_the_kernel_agrees_with_series_of_the_exact_rational_functions():
+    """A Bose and a heavier Fermi species among flux tubes of symbolic coverage n, to total order 4: the kernel divides by
+    b_(e_i) = m_i/m_ref - n f(1-f)/2 as a truncated series in n. Reference: the plain-sympy fixed-point
+    iteration (conftest.virial_by_iteration, rational functions in n, no project code) with each
+    coefficient then expanded by sympy.series in n (independent route)."""
+    from conftest import virial_by_iteration
+    text = ("dimension 2 parameter n nonnegative species T bose species U fermi mass 3 "
+            "tubes flux 1/3 coverage n clusters pairphase derive cluster up to 4 derive virial up to 4 "
+            "derive fugacity up to 3")
+    d = clusterexp.derive(text)
+    got = {(c.kind, c.index, c.component): c.value for c in d}
+    n = next(s for v in got.values() for s in v.free_symbols if s.name == "n")
+    b = {index: got[("cluster", index, None)].removeO() for index in
+         [k[1] for k in got if k[0] == "cluster"]}
+    expected = virial_by_iteration(b, 4)
+    for index, value in expected.items():
+        if sum(index) < 2:
+            continue
+        mine = got[("virial", index, None)]
+        assert mine.getO() == sympy.Order(n ** 2), index
+        reference = sympy.expand(sympy.series(value, n, 0, 2).removeO())
+        assert sympy.expand(mine.removeO() - reference) == 0, index
+    # z_T = w_T / b_(e_T) to first order in n, against the same route's fugacity: rho = z d/dz F at z(rho)
+    zT = got[("fugacity", (1, 0), "T")]
+    assert sympy.expand(zT.removeO() - (1 + n * sympy.Rational(1, 9))) == 0  # 1/b_1 = 1 + n f(1-f)/2, f = 1/3

@@ -127,3 +127,29 @@ def test_horner_composition_against_sympy_expand(backend, split):
         wanted = sum((c * sympy.Mul(*(v ** e for v, e in zip(z, monom)))
                       for monom, c in expected.terms() if sum(monom) == m), sympy.Integer(0))
         assert sympy.expand(part - wanted) == 0, (split, m)
+
+
+def test_truncated_reciprocal_powers_against_sympy_series():
+    """c^(-e) as a polynomial truncated in two symbols, against sympy.series applied one symbol at a
+    time (general-purpose library)."""
+    from clusterexp.series.truncation import reciprocal_power
+    n, g, m = sympy.symbols("n g m", positive=True)
+    c = m - n * g * (1 - g) / 2 + 3 * g * n ** 2 + n * g ** 2
+    limits = {n: 3, g: 2}
+    for e in (1, 2, 5):
+        got = reciprocal_power(c, e, limits)
+        reference = sympy.series(sympy.series(c ** (-e), n, 0, 3).removeO(), g, 0, 2).removeO()
+        assert sympy.expand(got - reference) == 0, e
+    assert reciprocal_power(n + g, 1, {n: 2}) is not None        # constant part g, nonzero symbolically
+    assert reciprocal_power(n * g, 1, {n: 2}) is None             # no constant part: not a power series
+    assert reciprocal_power(sympy.sqrt(1 + n), 1, {n: 2}) is None  # not polynomial in n: divide exactly
+
+
+@pytest.mark.parametrize("backend", available_backends())
+def test_drop_powers_keeps_exactly_the_low_powers(backend):
+    n, g = sympy.symbols("n g")
+    ring = PolynomialRing(1, [n, g], backend=backend)
+    p = ring.from_expr(1 + n + n ** 2 * g + g ** 5 + n ** 3)
+    assert ring.to_expr(ring.drop_powers(p, {n: 2})) == 1 + n + g ** 5
+    assert ring.to_expr(ring.drop_powers(p, {n: 1, g: 1})) == 1
+    assert ring.drop_powers(p, {sympy.Symbol("other"): 1}) is p

@@ -61,7 +61,8 @@ def latex_snippet(derivation: Derivation, environment: str = "align", align: boo
     amp = "&" if use_align else ""
     wavelength = system.typesetting.wavelength
     rows = [row for c in derivation for row in
-            [aligned_rows(_lhs(c, labels, system.dimension, wavelength), c.latex(names)) if use_align else
+            [aligned_rows(_lhs(c, labels, system.dimension, wavelength), c.latex_terms(names) or c.latex(names))
+             if use_align else
              f"  {_lhs(c, labels, system.dimension, wavelength)} = {c.latex(names)}",
              *series_latex_rows(derivation, c, amp, names)]]
     body = " \\\\\n".join(rows)

@@ -30,12 +30,13 @@ def top_level_terms(latex: str) -> list[str]:
     return [t for t in terms if t]
 
 
-def aligned_rows(lhs: str, latex: str, per_line: int = 4) -> str:
+def aligned_rows(lhs: str, latex: str | list[str], per_line: int = 4) -> str:
     """`lhs &= ...` over as many lines as needed, `per_line` terms each; every line but the last is
-    unnumbered so the coefficient keeps one equation number."""
-    terms = top_level_terms(latex)
+    unnumbered so the coefficient keeps one equation number. `latex` is the printed sum, or its terms
+    with their signs when the printer has them already."""
+    terms = top_level_terms(latex) if isinstance(latex, str) else latex
     if len(terms) <= per_line + 1:
-        return f"  {lhs} &= {latex}"
+        return f"  {lhs} &= {latex if isinstance(latex, str) else ' '.join(terms)}"
     chunks = [terms[k:k + per_line] for k in range(0, len(terms), per_line)]
     lines = [f"  {lhs} &= {' '.join(chunks[0])}"]
     for chunk in chunks[1:]:

@@ -136,8 +136,47 @@ class PolynomialRing:
             else:
                 yield monom, int(c.numerator), int(c.denominator)
 
+    def sparse_terms(self, p) -> Iterable[tuple[tuple[tuple[int, int], ...], int, int]]:
+        """(((generator, exponent) for the nonzero exponents, by generator), numerator, denominator)
+        of every term of p. With many atoms (a fully symbolic b has dozens) this is several times
+        cheaper than `terms`: python-flint's printer runs in C, where `to_dict` builds one Python
+        integer per generator and term. The printed form is checked against `to_dict` once per ring."""
+        if self.backend == "flint" and self._printed_form_readable:
+            yield from _read_printed(str(p), self._gen_position)
+            return
+        for monom, num, den in self.terms(p):
+            yield tuple((j, int(e)) for j, e in enumerate(monom) if e), num, den
+
+    @cached_property
+    def _gen_position(self) -> dict[str, int]:
+        return {str(g): j for j, g in enumerate(self._gens)}
+
+    @cached_property
+    def _printed_form_readable(self) -> bool:
+        gens = self._gens
+        probe = (gens[0] ** 3 * self.rational(Fraction(-7, 12)) + gens[-1] * 2 - self.one * self.rational(Fraction(5, 3))
+                 + gens[0] * gens[-1] ** 2 + gens[-1] ** 11 * self.rational(Fraction(-1, 1)))
+        try:
+            read = {m: (n, d) for m, n, d in _read_printed(str(probe), self._gen_position)}
+        except (ValueError, KeyError, IndexError):
+            return False
+        wanted = {tuple((j, int(e)) for j, e in enumerate(monom) if e): (n, d) for monom, n, d in self.terms(probe)}
+        return read == wanted
+
     def is_zero(self, p) -> bool:
         return p.is_zero() if self.backend == "flint" else not p
+
+    def drop_powers(self, p, limits: Mapping[sympy.Expr, int]):
+        """p without every term in which some atom a of `limits` has a power of limits[a] or more
+        (truncation in parameters that are known only to some order, e.g. a flux-tube coverage)."""
+        positions = [(self.nvars + self._atom_index[a], k) for a, k in limits.items() if a in self._atom_index]
+        if not positions:
+            return p
+        items = p.to_dict() if self.backend == "flint" else p
+        kept = {m: c for m, c in items.items() if all(m[j] < k for j, k in positions)}
+        if len(kept) == len(items):
+            return p
+        return self._ctx.from_dict(kept) if kept or self.backend == "flint" else self._ctx.zero
 
     def derivative(self, p, i: int):
         """d/dx_i of p."""
@@ -190,6 +229,34 @@ class PolynomialRing:
                 found = grouped[key] = {}
             found[lowered + monom[k:]] = c
         return {key: self._ctx.from_dict(t) for key, t in grouped.items()}
+
+
+def _read_printed(text: str, position: Mapping[str, int]):
+    """Terms of python-flint's printed form: '-t3^2*x0 + 5/3*t1 - 7' (generators named x<k>, t<k>)."""
+    if text == "0":
+        return
+    factor_of: dict[str, tuple[int, int]] = {}   # "t3^2" -> (generator, exponent): factors repeat a lot
+    for chunk in text.replace(" - ", " + -").split(" + "):
+        negative = chunk[0] == "-"
+        if negative:
+            chunk = chunk[1:]
+        factors = chunk.split("*")
+        head = factors[0]
+        if head[0].isdigit():
+            num, _, den = head.partition("/")
+            num, den = int(num), int(den) if den else 1
+            del factors[0]
+        else:
+            num, den = 1, 1
+        powers = []
+        for factor in factors:
+            found = factor_of.get(factor)
+            if found is None:
+                name, _, e = factor.partition("^")
+                found = factor_of[factor] = (position[name], int(e) if e else 1)  # KeyError: not our format
+            powers.append(found)
+        powers.sort()
+        yield tuple(powers), -num if negative else num, den
 
 
 def collect_atoms(exprs: Iterable[sympy.Expr]) -> set[sympy.Expr]:
@@ -253,6 +320,10 @@ def _flat_monomials(expr: sympy.Expr):
                     if base.is_Add or base.is_Mul:
                         return None
                     powers.append((base, int(e)))
+                    continue
+                if e.is_Integer and e.p < -1 and base.is_Symbol:
+                    # mu**(-3) is (1/mu)**3: one atom 1/mu for every power (reduced b carry many)
+                    powers.append((sympy.Pow(base, -1), -int(e)))
                     continue
             if factor.is_Number:  # a float or other non-rational number: refuse silently inexact input
                 raise ValueError(f"inexact number {factor} in an exact derivation")
