@@ -9,6 +9,7 @@ itself as text (sympy-parsable) and LaTeX in one linear pass. Whatever does not 
 from __future__ import annotations
 
 from fractions import Fraction
+from functools import cached_property
 from typing import Mapping
 
 import sympy
@@ -219,18 +220,35 @@ class _AtomReader:
 
     def _distinct_term_sum(self, rows, scale: Fraction) -> "TermSum":
         """One atom per symbol: distinct ring terms are distinct monomials, nothing to merge or to
-        look up (hashing sympy symbols costs more than the rest)."""
-        atoms = self.atoms
+        look up (hashing sympy symbols costs more than the rest). Each (generator, exponent) pair is
+        translated once: (rank, its key element, its monomial factor)."""
+        factor = self._factors
         entries = []
         for powers, num, den in rows:
-            ranked = [(atoms[j][0], atoms[j][1], atoms[j][2] * e) for j, e in powers]
+            try:
+                ranked = [factor[p] for p in powers]
+            except KeyError:
+                ranked = [self._factor(p) for p in powers]
             if not self.monotone:
                 ranked.sort(key=_first)
             if num:
-                entries.append((_descending(ranked), tuple([(s, e) for _, s, e in ranked]),
+                entries.append((tuple([r[1] for r in ranked]) + _ENDED, tuple([r[2] for r in ranked]),
                                 Fraction(num, den) if scale == 1 else Fraction(num, den) * scale))
         entries.sort(key=_first)
         return TermSum._presorted([(monomial, c) for _, monomial, c in entries])
+
+    @cached_property
+    def _factors(self) -> dict:
+        return {}
+
+    def _factor(self, pair):
+        found = self._factors.get(pair)
+        if found is None:
+            j, e = pair
+            r, symbol, unit = self.atoms[j]
+            e = unit * e
+            found = self._factors[pair] = (r, _descending([(r, symbol, e)])[0], (symbol, e))
+        return found
 
 
 def _descending(ranked) -> tuple:

@@ -140,3 +140,24 @@ def test_sparse_term_order_is_the_dense_descending_order():
     by_key = sorted(vectors, key=lambda v: _descending(sparse[v]))
     assert by_key == sorted(vectors, reverse=True)
     assert _descending([]) == _ENDED
+
+
+@pytest.mark.parametrize("backend", available_backends())
+def test_one_pass_split_with_negative_powers_in_the_distinct_path(backend):
+    """Atoms z and 1/mu (one atom per symbol: the reader's fast path) with the exponent of mu
+    negative: the order must still be the dense descending one, also when the ranks are re-sorted."""
+    from clusterexp.series import PolynomialRing
+    from clusterexp.terms import _AtomReader
+    z, mu = sympy.symbols("z mu", positive=True)
+    ring = PolynomialRing(1, [z, 1 / mu], backend=backend)
+    reader = _AtomReader.of(ring)
+    assert reader.distinct
+    inv, zz = ring.atom(1 / mu), ring.atom(z)
+    part = (inv * zz * 3 + zz ** 2 - inv ** 2 + 5 + zz * inv ** 3) * ring.var(0) ** 2
+    split = TermSum.split_ring_part(ring, part)[(2,)]
+    assert split.terms == TermSum(dict(split.terms)).terms
+    reader.monotone = False     # the re-sorting path (atoms whose expression order differs from the symbols')
+    rows = [(powers[1:], num, den) for powers, num, den in ring.sparse_terms(part)]
+    assert reader.term_sum(rows).terms == split.terms
+    assert sympy.expand(sympy.sympify(split.text(), locals={"z": z, "mu": mu}) -
+                        (3 * z / mu + z ** 2 - mu ** -2 + 5 + z / mu ** 3)) == 0

@@ -61,7 +61,7 @@ class PolynomialRing:
             names = ["_unused"]
         self._ngens = len(names)
         if self.backend == "flint":
-            self._ctx = _flint.fmpq_mpoly_ctx.get(tuple(names), "deglex")
+            self._ctx = _flint.fmpq_mpoly_ctx.get(tuple(names), "lex")  # lex: 1.4x faster products than deglex (benchmarks/last-run.txt)
             self._gens = self._ctx.gens()
             self._rational = _flint.fmpq
             self.zero = self._ctx.from_dict({})
