@@ -1,6 +1,7 @@
 """Text -> lark tree, with lark's errors turned into `InputError`s that point at the user's text."""
 from __future__ import annotations
 
+import hashlib
 import os
 import sys
 import unicodedata
@@ -21,19 +22,31 @@ STATEMENTS = ("dimension, order, parameter, species, mutual, reference, clusters
 
 @cache
 def parser() -> lark.Lark:
-    """The LALR parser. Building its tables takes about 0.2 s, a tenth of a typical run; lark keeps
-    them in a per-user cache file (checked against the grammar's hash on load) when one can be written."""
-    options = dict(parser="lalr", propagate_positions=True, maybe_placeholders=False)
-    where = _cache_file()
+    """The LALR parser. Building its tables takes about 0.2 s, a tenth of a typical run, so they are
+    kept in a per-user cache file named by the grammar's hash; a damaged file is rebuilt and replaced."""
+    text = grammar_text()
+    where = _cache_file(text)
     if where is not None:
         try:
-            return lark.Lark(grammar_text(), cache=str(where), **options)
+            with open(where, "rb") as stream:
+                return lark.Lark.load(stream)
+        except FileNotFoundError:
+            pass
+        except Exception:  # noqa: BLE001 - a damaged cache is only a slower start: rebuilt below
+            pass
+    built = lark.Lark(text, parser="lalr", propagate_positions=True, maybe_placeholders=False)
+    if where is not None:
+        try:
+            partial = where.with_name(f"{where.name}.{os.getpid()}.part")
+            with open(partial, "wb") as stream:
+                built.save(stream)
+            os.replace(partial, where)   # atomic: a concurrent run reads the old file or the new one
         except OSError:
             pass
-    return lark.Lark(grammar_text(), **options)
+    return built
 
 
-def _cache_file() -> Path | None:
+def _cache_file(text: str) -> Path | None:
     """~/.cache/clusterexp (or $XDG_CACHE_HOME/clusterexp); never a shared temporary directory, whose
     files other users could plant. CLUSTEREXP_NO_CACHE=1 turns the cache off."""
     if os.environ.get("CLUSTEREXP_NO_CACHE"):
@@ -44,8 +57,9 @@ def _cache_file() -> Path | None:
         folder.mkdir(parents=True, exist_ok=True, mode=0o700)
     except OSError:
         return None
+    digest = hashlib.sha256(text.encode()).hexdigest()[:16]
     version = "%d.%d" % sys.version_info[:2]
-    return folder / f"grammar-lark{lark.__version__}-py{version}.pickle"
+    return folder / f"grammar-{digest}-lark{lark.__version__}-py{version}.pickle"
 
 
 def span_at(text: str, filename: str, line: int, column: int, end_column: int | None = None) -> Span:

@@ -53,3 +53,29 @@ def test_readme_example_commands_run(tmp_path):
                                 env={**os.environ, "PYTHONPATH": str(ROOT)}, capture_output=True, text=True,
                                 timeout=300)
         assert result.returncode == 0, (line, result.stderr)
+
+
+def test_parser_cache_is_per_user_and_survives_damage(tmp_path):
+    """lark's tables are cached under $XDG_CACHE_HOME/clusterexp; a damaged or unwritable cache
+    changes nothing in the output, and CLUSTEREXP_NO_CACHE leaves no file."""
+    from conftest import run_cli
+    args = ("run", "-e", "dimension 2 species A bose derive virial up to 3")
+    plain = run_cli(*args, env_extra={"CLUSTEREXP_NO_CACHE": "1", "XDG_CACHE_HOME": str(tmp_path / "none")})
+    assert plain.returncode == 0, plain.stderr
+    assert not (tmp_path / "none").exists()
+    cached = tmp_path / "cache"
+    for _ in range(2):
+        again = run_cli(*args, env_extra={"XDG_CACHE_HOME": str(cached)})
+        assert (again.returncode, again.stdout) == (0, plain.stdout), again.stderr
+    files = list((cached / "clusterexp").iterdir())
+    assert len(files) == 1 and files[0].stat().st_size > 1000
+    files[0].write_bytes(b"not a pickle\n" * 10)
+    damaged = run_cli(*args, env_extra={"XDG_CACHE_HOME": str(cached)})
+    assert (damaged.returncode, damaged.stdout, damaged.stderr) == (0, plain.stdout, "")
+    assert files[0].stat().st_size > 1000 and list((cached / "clusterexp").iterdir()) == files  # replaced
+    caret = run_cli("run", "-e", "dimension 2 specis A bose", env_extra={"XDG_CACHE_HOME": str(cached)})
+    assert caret.returncode == 2 and "1:13: error" in caret.stderr   # positions survive the cache
+    blocked = tmp_path / "blocked"
+    blocked.write_text("a file where the cache folder would go")
+    unwritable = run_cli(*args, env_extra={"XDG_CACHE_HOME": str(blocked)})
+    assert (unwritable.returncode, unwritable.stdout) == (0, plain.stdout), unwritable.stderr
