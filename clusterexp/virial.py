@@ -24,7 +24,7 @@ from .errors import SeriesError
 from .series import PolynomialRing, Series, collect_atoms, indices_up_to, revert
 from .series.horner import HornerComposition
 from .series.series import balanced_sum
-from .series.truncation import drop_high_powers, reciprocal_power
+from .series.truncation import drop_high_powers, polynomial_limits, reciprocal_power
 
 Index = tuple[int, ...]
 
@@ -166,7 +166,7 @@ class _Divider:
         return self._reciprocals[i, e]
 
     def __call__(self, value: sympy.Expr, index: Index) -> sympy.Expr:
-        if self.truncation:
+        if self.truncation and polynomial_limits(self.truncation, [value]) == self.truncation:
             factors = [self.reciprocal(i, e) for i, e in enumerate(index) if e]
             if all(f is not None for f in factors):
                 return drop_high_powers(value * sympy.Mul(*factors), self.truncation)
@@ -196,7 +196,10 @@ def cluster_to_virial(b: Mapping[Index, object], order: int, nspecies: int | Non
     ring = _working_ring(reduced, K, backend)
     beta = {n: ring.scalar_or_element(v) for n, v in reduced.items()}
     result = reduced_to_virial(ring, beta, order, linear, on_order)
-    return result.truncated(truncation) if truncation else result
+    # a symbol entering some value otherwise than polynomially is left whole here (exact, slower):
+    # the caller's truncation expands it
+    limits = polynomial_limits(truncation or {}, list(reduced.values()) + linear)
+    return result.truncated(limits) if limits else result
 
 
 def reduced_to_virial(ring: PolynomialRing, beta: Mapping[Index, object], order: int,

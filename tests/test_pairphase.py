@@ -346,3 +346,21 @@ def test_tube_coverage_truncated_in_the_kernel_agrees_with_series_of_the_exact_r
     # z_T = w_T / b_(e_T) to first order in n, against the same route's fugacity: rho = z d/dz F at z(rho)
     zT = got[("fugacity", (1, 0), "T")]
     assert sympy.expand(zT.removeO() - (1 + n * sympy.Rational(1, 9))) == 0  # 1/b_1 = 1 + n f(1-f)/2, f = 1/3
+
+
+def test_truncation_with_a_value_not_polynomial_in_the_symbol_stays_exact():
+    """cluster_to_virial(truncation=...) with b_3 not polynomial in n (n^2/sin(n) = n + n^3/6 + ...):
+    it must not be cut term by term. Reference: a_3 = (4 b_2^2 - 2 b_3 b_1)/b_1^4 (the textbook
+    inversion formula with b_1 != 1, common practice) expanded by sympy.series to first order."""
+    from clusterexp.virial import cluster_to_virial
+    n = sympy.Symbol("n")
+    b1, b2, b3 = 1 - n / 8, sympy.Rational(1, 4) - n / 16, n ** 2 / sympy.sin(n)
+    result = cluster_to_virial({(1,): b1, (2,): b2, (3,): b3}, 3, truncation={n: 2})
+    a3 = result.virial[(3,)]
+    reference = sympy.series((4 * b2 ** 2 - 2 * b3 * b1) / b1 ** 4, n, 0, 2).removeO()
+    assert sympy.expand(sympy.series(a3, n, 0, 2).removeO() - reference) == 0
+    assert reference.coeff(n, 1) != 0
+    # the polynomial part alone is truncated in the ring: exact below n^2, nothing at or above
+    poly = cluster_to_virial({(1,): b1, (2,): b2, (3,): n ** 3 + n}, 3, truncation={n: 2}).virial[(3,)]
+    exact = sympy.series((4 * b2 ** 2 - 2 * (n ** 3 + n) * b1) / b1 ** 4, n, 0, 2).removeO()
+    assert sympy.expand(poly - exact) == 0

@@ -12,6 +12,14 @@ from typing import Mapping
 import sympy
 
 
+def polynomial_limits(limits: Mapping[sympy.Symbol, int], exprs) -> dict:
+    """The limits whose symbol enters every expression polynomially. Only for those is dropping
+    high powers term by term sound: in n^2/sin(n) = n + ..., a factor not analytic or vanishing at
+    n = 0 would move a dropped term below the limit."""
+    exprs = [sympy.sympify(e) for e in exprs]
+    return {s: k for s, k in limits.items() if all(not e.has(s) or e.is_polynomial(s) for e in exprs)}
+
+
 def drop_high_powers(expr: sympy.Expr, limits: Mapping[sympy.Symbol, int]) -> sympy.Expr:
     """The expanded expr without its terms at or beyond a limit (expr polynomial in the symbols)."""
     expr = sympy.expand(expr)
