@@ -14,8 +14,10 @@ The estimate needs only the validated `System`: no series is formed.
   layers for K <= 4, N <= 10). A stated value adds as many
   distinct monomials as it has non-constant terms; a stated number adds none, it only fills weight.
   The largest single coefficient is estimated as the layer's share of the most central multi-index.
-- A computed regime (anything but `generic` and `given`) has no unknown symbols; its coefficients
-  are taken as polynomials of degree about N in the P declared parameters, C(N + P, P) terms each.
+- Pair phases count like `given`: the exact two-body coefficients (and those of ideal species) are
+  stated values, the many-body pieces unknown symbols unless given.
+- Any other computed regime has no unknown symbols; its coefficients are taken as polynomials of
+  degree about N in the P declared parameters, C(N + P, P) terms each.
 
 `check_size` refuses, with an `InputError` at the deciding `derive` request, any derivation whose
 estimated top-layer terms exceed the limit.
@@ -81,6 +83,13 @@ def estimate(system) -> SizeEstimate:
     indices = count_multi_indices(K, N)
     higher = indices - K                                 # generated coefficients with |n| >= 2
     given = {v.index: v.value for v in getattr(system.source, "values", ())}
+    kind = getattr(system.source, "kind", "generic")
+    if kind == "pairphase":
+        # like `given`: the exact two-body (and ideal-species) coefficients are stated values, the
+        # many-body pieces are unknown symbols unless the input gives them
+        from .routes.pairphase import split_truncation, two_body_clusters
+        known = {n: v for n, v in two_body_clusters(system, N).items() if v is not None and sum(n) >= 2}
+        given = {**known, **{n: split_truncation(v)[0] for n, v in given.items()}}
     # weight w = |m| - 1 >= 1; parts of weight w: all multi-indices of total w + 1
     kinds = {w: comb(w + K, K - 1) for w in range(1, N)}
     fills = False
@@ -92,7 +101,7 @@ def estimate(system) -> SizeEstimate:
         kinds[w] += varying - 1                          # the symbol is replaced by its value's terms
         fills = fills or constant
     top = comb(N + K - 1, K - 1)                         # multi-indices of total order N
-    if getattr(system.source, "kind", "generic") not in ("generic", "given"):
+    if kind not in ("generic", "given", "pairphase"):
         # a computed regime: no unknown symbols; its b's are functions of the declared parameters,
         # taken as polynomials of degree about N (monomials of degree <= N in P parameters)
         largest = comb(N + len(system.parameters), len(system.parameters))

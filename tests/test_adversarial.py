@@ -156,6 +156,20 @@ def test_estimate_is_within_a_factor_three_of_the_real_size(K, N):
     assert sum(sizes) / 3 <= found.layer_terms <= 3 * sum(sizes), (found, sum(sizes))
 
 
+@pytest.mark.parametrize("N", [6, 8])
+def test_pair_phase_estimate_counts_the_named_many_body_pieces(N):
+    """Pair phases: exact two-body parts plus named many-body symbols. The estimate must be within a
+    factor three of the real size (it once took the regime for a fully computed one and let an
+    order-16 derivation start that ran for minutes)."""
+    d = clusterexp.derive("dimension 2 parameter nu in [0, 1) species L exchange 1/3 species H mass 5/2 "
+                          f"exchange 1/3 mutual L H = nu clusters pairphase derive virial up to {N}")
+    sizes = [len(c.terms) for c in d if c.order == N]
+    found = estimate(d.system)
+    assert found.unknown_symbols > 0
+    assert max(sizes) / 3 <= found.largest_terms <= 3 * max(sizes), (found, max(sizes))
+    assert sum(sizes) / 3 <= found.layer_terms <= 3 * sum(sizes), (found, sum(sizes))
+
+
 def test_stated_numbers_shrink_the_estimate():
     generic = estimate(build_system("dimension 2 species A derive virial up to 30"))
     given = estimate(build_system("dimension 2 species A clusters given { "
