@@ -3,7 +3,9 @@ from __future__ import annotations
 
 import hashlib
 import os
+import stat
 import sys
+import tempfile
 import unicodedata
 from functools import cache
 from pathlib import Path
@@ -20,46 +22,81 @@ STATEMENTS = ("dimension, order, parameter, species, mutual, reference, clusters
               "claim, evaluate, tabulate, plot, typeset, sample, expand, tubes, statistics, size limit")
 
 
+OPTIONS = dict(parser="lalr", propagate_positions=True, maybe_placeholders=False)
+CACHE_FORMAT = 1   # raise when what is cached changes in a way the grammar text does not show
+
+
 @cache
 def parser() -> lark.Lark:
     """The LALR parser. Building its tables takes about 0.2 s, a tenth of a typical run, so they are
-    kept in a per-user cache file named by the grammar's hash; a damaged file is rebuilt and replaced."""
+    kept in a per-user cache file named by the hash of the grammar and the options (lark restores
+    the options from the file); a damaged file is rebuilt and replaced."""
     text = grammar_text()
     where = _cache_file(text)
-    if where is not None:
+    if where is not None and _private(where):
         try:
             with open(where, "rb") as stream:
                 return lark.Lark.load(stream)
-        except FileNotFoundError:
-            pass
         except Exception:  # noqa: BLE001 - a damaged cache is only a slower start: rebuilt below
             pass
-    built = lark.Lark(text, parser="lalr", propagate_positions=True, maybe_placeholders=False)
+    built = lark.Lark(text, **OPTIONS)
     if where is not None:
-        try:
-            partial = where.with_name(f"{where.name}.{os.getpid()}.part")
-            with open(partial, "wb") as stream:
-                built.save(stream)
-            os.replace(partial, where)   # atomic: a concurrent run reads the old file or the new one
-        except OSError:
-            pass
+        _save(built, where)
     return built
 
 
 def _cache_file(text: str) -> Path | None:
-    """~/.cache/clusterexp (or $XDG_CACHE_HOME/clusterexp); never a shared temporary directory, whose
-    files other users could plant. CLUSTEREXP_NO_CACHE=1 turns the cache off."""
-    if os.environ.get("CLUSTEREXP_NO_CACHE"):
+    """$XDG_CACHE_HOME/clusterexp (absolute paths only, as the XDG rules say) or ~/.cache/clusterexp,
+    a folder of the current user's that nobody else may write to; else no cache.
+    CLUSTEREXP_NO_CACHE=1 turns the cache off."""
+    if os.environ.get("CLUSTEREXP_NO_CACHE", "").strip().lower() in ("1", "true", "yes", "on"):
         return None
-    base = os.environ.get("XDG_CACHE_HOME") or os.path.join(os.path.expanduser("~"), ".cache")
+    if not hasattr(os, "getuid"):
+        return None
+    base = os.environ.get("XDG_CACHE_HOME", "")
+    if not os.path.isabs(base):
+        base = os.path.join(os.path.expanduser("~"), ".cache")
     folder = Path(base) / "clusterexp"
     try:
         folder.mkdir(parents=True, exist_ok=True, mode=0o700)
     except OSError:
         return None
-    digest = hashlib.sha256(text.encode()).hexdigest()[:16]
+    if not _private(folder):
+        return None
+    key = "\n".join([text, repr(sorted(OPTIONS.items())), str(CACHE_FORMAT)])
+    digest = hashlib.sha256(key.encode()).hexdigest()[:16]
     version = "%d.%d" % sys.version_info[:2]
     return folder / f"grammar-{digest}-lark{lark.__version__}-py{version}.pickle"
+
+
+def _private(path: Path) -> bool:
+    """Owned by the current user and writable by nobody else (the file is a pickle: loading it runs
+    whatever its writer put there)."""
+    try:
+        info = path.stat()
+    except OSError:
+        return False
+    return info.st_uid == os.getuid() and not info.st_mode & (stat.S_IWGRP | stat.S_IWOTH)
+
+
+def _save(built: lark.Lark, where: Path) -> None:
+    """Write through a private temporary file in the same folder, then rename (atomic: a concurrent
+    run reads the old file or the new one); nothing is left behind on failure."""
+    partial = None
+    try:
+        handle, partial = tempfile.mkstemp(dir=where.parent, prefix=".grammar-", suffix=".part")
+        with os.fdopen(handle, "wb") as stream:
+            built.save(stream)
+        os.replace(partial, where)
+        partial = None
+    except OSError:
+        pass
+    finally:
+        if partial is not None:
+            try:
+                os.unlink(partial)
+            except OSError:
+                pass
 
 
 def span_at(text: str, filename: str, line: int, column: int, end_column: int | None = None) -> Span:

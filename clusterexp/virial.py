@@ -135,9 +135,10 @@ def reduced_clusters(b: Mapping[Index, object], K: int, order: int,
                      truncation: Mapping[sympy.Symbol, int] | None = None) -> tuple[dict[Index, sympy.Expr], list]:
     """beta_n = b_n / prod b_{e_i}^{n_i} for 2 <= |n| <= order, and the linear coefficients.
     With `truncation` ({symbol: first unknown power}), a b_{e_i} that depends on such a symbol is
-    divided out as a truncated power series in it, so that beta stays polynomial in it."""
+    divided out as a truncated power series in it, so that beta stays polynomial in it (only for the
+    symbols `sound_truncation` keeps)."""
     linear = _linear(b, K)
-    divide = _Divider(linear, truncation)
+    divide = _Divider(linear, sound_truncation(b, linear, truncation, order))
     for i, c in enumerate(linear):
         if c == 0:
             raise SeriesError(f"b for a single particle of species {i + 1} is zero; the gas has no ideal limit")
@@ -153,6 +154,19 @@ def reduced_clusters(b: Mapping[Index, object], K: int, order: int,
     return reduced, linear
 
 
+def sound_truncation(b: Mapping[Index, object], linear: Sequence[sympy.Expr],
+                     truncation: Mapping[sympy.Symbol, int] | None, order: int) -> dict:
+    """The part of `truncation` that may be applied term by term, decided once for the whole input:
+    symbols that every b (up to the order) and every b_{e_i} contain only polynomially, and whose
+    b_{e_i} have a nonzero constant part (so that 1/b_{e_i} is a power series). One value with a pole
+    (x/n) would carry a cut made elsewhere below the limit."""
+    if not truncation:
+        return {}
+    values = [v for n, v in b.items() if 1 <= sum(n) <= order] + list(linear)
+    limits = polynomial_limits(truncation, values)
+    return {s: k for s, k in limits.items() if all(reciprocal_power(c, 1, {s: k}) is not None for c in linear)}
+
+
 class _Divider:
     """value / prod_i c_i^{n_i}, by truncated reciprocal series where `truncation` allows."""
 
@@ -166,7 +180,7 @@ class _Divider:
         return self._reciprocals[i, e]
 
     def __call__(self, value: sympy.Expr, index: Index) -> sympy.Expr:
-        if self.truncation and polynomial_limits(self.truncation, [value]) == self.truncation:
+        if self.truncation:
             factors = [self.reciprocal(i, e) for i, e in enumerate(index) if e]
             if all(f is not None for f in factors):
                 return drop_high_powers(value * sympy.Mul(*factors), self.truncation)
@@ -196,9 +210,9 @@ def cluster_to_virial(b: Mapping[Index, object], order: int, nspecies: int | Non
     ring = _working_ring(reduced, K, backend)
     beta = {n: ring.scalar_or_element(v) for n, v in reduced.items()}
     result = reduced_to_virial(ring, beta, order, linear, on_order)
-    # a symbol entering some value otherwise than polynomially is left whole here (exact, slower):
-    # the caller's truncation expands it
-    limits = polynomial_limits(truncation or {}, list(reduced.values()) + linear)
+    # a symbol entering some value otherwise than polynomially is left whole (exact, slower): the
+    # caller's truncation expands it
+    limits = sound_truncation(b, linear, truncation, order)
     return result.truncated(limits) if limits else result
 
 
@@ -280,7 +294,10 @@ class VirialResult:
     def legendre_pressure(self) -> Series:
         """P(rho) recomputed from the fugacities alone (independent self-check):
         the degree-m part of P is (m - 1)/m times that of sum_i rho_i ln(w_i / rho_i)."""
-        return legendre_pressure(self.w_series)
+        pressure = legendre_pressure(self.w_series)
+        if self.limits:
+            pressure = Series(self.ring, pressure.order, [self.ring.drop_powers(p, self.limits) for p in pressure.parts])
+        return pressure
 
 
 def legendre_pressure(w: Sequence[Series]) -> Series:

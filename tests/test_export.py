@@ -161,3 +161,21 @@ def test_one_pass_split_with_negative_powers_in_the_distinct_path(backend):
     assert reader.term_sum(rows).terms == split.terms
     assert sympy.expand(sympy.sympify(split.text(), locals={"z": z, "mu": mu}) -
                         (3 * z / mu + z ** 2 - mu ** -2 + 5 + z / mu ** 3)) == 0
+
+
+def test_numbers_beyond_python_digit_limit_print_through_the_api():
+    """Python refuses int() of decimal strings over 4300 digits; a coefficient with such numbers must
+    still be read off the ring (the printed flint form is read through flint). Reference: the same
+    coefficient converted by sympy from the ring's own term dictionary."""
+    from fractions import Fraction
+    d = clusterexp.derive("dimension 2 parameter g species A clusters given { b[2] = 3^2000*g } derive virial up to 6")
+    d.compute_all()
+    a6 = next(c for c in d if c.kind == "virial" and c.index == (6,))
+    g = sympy.Symbol("g")
+    from_terms = {dict(m).get(g, 0): c for m, c in a6.terms.terms if all(s.name in ("g", "b_3", "b_4", "b_5", "b_6")
+                                                                            for s, _ in m) and len(m) <= 1}
+    assert max(abs(c.numerator) for c in from_terms.values()) > 10 ** 4300
+    top = sympy.Poly(a6.value, g).as_dict()
+    for (k,), c in top.items():
+        if c.is_Rational:
+            assert from_terms[k] == Fraction(int(c.p), int(c.q))

@@ -79,3 +79,27 @@ def test_parser_cache_is_per_user_and_survives_damage(tmp_path):
     blocked.write_text("a file where the cache folder would go")
     unwritable = run_cli(*args, env_extra={"XDG_CACHE_HOME": str(blocked)})
     assert (unwritable.returncode, unwritable.stdout) == (0, plain.stdout), unwritable.stderr
+
+
+def test_parser_cache_never_loads_a_file_others_could_have_written(tmp_path):
+    """The cache is a pickle (loading it runs what its writer put there): a file writable by others is
+    replaced, never loaded, and a folder writable by others is not used at all."""
+    import pickle
+    from conftest import run_cli
+
+    class Planted:
+        def __reduce__(self):
+            return (print, ("PLANTED",))
+    args = ("run", "-e", "dimension 2 species A bose derive virial up to 2")
+    first = run_cli(*args, env_extra={"XDG_CACHE_HOME": str(tmp_path)})
+    (cached,) = (tmp_path / "clusterexp").iterdir()
+    cached.write_bytes(pickle.dumps(Planted()))
+    cached.chmod(0o666)
+    again = run_cli(*args, env_extra={"XDG_CACHE_HOME": str(tmp_path)})
+    assert "PLANTED" not in again.stdout + again.stderr and again.stdout == first.stdout
+    assert cached.stat().st_mode & 0o077 == 0 and cached.stat().st_size > 1000   # replaced by a private file
+    shared = tmp_path / "shared"
+    (shared / "clusterexp").mkdir(parents=True)
+    (shared / "clusterexp").chmod(0o777)
+    run = run_cli(*args, env_extra={"XDG_CACHE_HOME": str(shared)})
+    assert run.stdout == first.stdout and not list((shared / "clusterexp").iterdir())

@@ -364,3 +364,21 @@ def test_truncation_with_a_value_not_polynomial_in_the_symbol_stays_exact():
     poly = cluster_to_virial({(1,): b1, (2,): b2, (3,): n ** 3 + n}, 3, truncation={n: 2}).virial[(3,)]
     exact = sympy.series((4 * b2 ** 2 - 2 * (n ** 3 + n) * b1) / b1 ** 4, n, 0, 2).removeO()
     assert sympy.expand(poly - exact) == 0
+
+
+def test_truncation_is_decided_for_the_whole_input():
+    """One b with a pole in n (x/n) forbids cutting any other b term by term: the cut of beta_2 would be
+    carried below the limit by the 1/n. Reference: the exact rational function of the plain-sympy
+    iteration (conftest.virial_by_iteration), expanded by sympy.series. Also the Legendre self-check
+    of a truncated result agrees with its pressure."""
+    from conftest import virial_by_iteration
+    from clusterexp.virial import cluster_to_virial
+    n, x = sympy.symbols("n x")
+    b = {(1,): 1 - n / 8, (2,): sympy.Rational(1, 4) - n / 16, (3,): x / n, (4,): sympy.Rational(1, 7)}
+    got = cluster_to_virial(b, 4, truncation={n: 2}).virial[(4,)]
+    exact = virial_by_iteration(b, 4)[(4,)]
+    assert sympy.expand(sympy.series(got - exact, n, 0, 2).removeO()) == 0
+    polynomial = {(1,): 1 - n / 8, (2,): sympy.Rational(1, 4) - n / 16, (3,): x * n + 1, (4,): n ** 2 + x}
+    result = cluster_to_virial(polynomial, 5, truncation={n: 2})
+    assert [result.ring.to_expr(p, ["r"]) for p in result.legendre_pressure().parts] == \
+        [result.ring.to_expr(p, ["r"]) for p in result.pressure_series.parts]

@@ -244,7 +244,7 @@ def _read_printed(text: str, position: Mapping[str, int]):
         head = factors[0]
         if head[0].isdigit():
             num, _, den = head.partition("/")
-            num, den = int(num), int(den) if den else 1
+            num, den = _integer(num), _integer(den) if den else 1
             del factors[0]
         else:
             num, den = 1, 1
@@ -257,6 +257,11 @@ def _read_printed(text: str, position: Mapping[str, int]):
             powers.append(found)
         powers.sort()
         yield tuple(powers), -num if negative else num, den
+
+
+def _integer(digits: str) -> int:
+    # int() of a decimal string is capped at 4300 digits (Python's guard); flint reads any length
+    return int(digits) if len(digits) < 4000 else int(_flint.fmpz(digits))
 
 
 def collect_atoms(exprs: Iterable[sympy.Expr]) -> set[sympy.Expr]:
