@@ -12,6 +12,7 @@ Also here: the default sampling interval of a declared parameter (`parameter_int
 from __future__ import annotations
 
 import csv
+import decimal
 import io
 import itertools
 import os
@@ -226,7 +227,7 @@ def grid_table(coefficients: Sequence, grid: Mapping[str, Sequence], digits: int
     rows = [names + labels]
     for combination in itertools.product(*axes):
         point = dict(zip(names, combination))
-        row = [_exact_text(v) for v in combination]
+        row = [_grid_text(v, digits) for v in combination]
         for label, value, own in zip(labels, values, symbols):
             exact = value.xreplace({s: point[n] for n, s in own.items()})
             try:
@@ -237,8 +238,22 @@ def grid_table(coefficients: Sequence, grid: Mapping[str, Sequence], digits: int
     return rows
 
 
-def _exact_text(number: sympy.Expr) -> str:
-    return sympy.sstr(number)
+def _grid_text(number: sympy.Expr, digits: int) -> str:
+    """A grid value as a decimal, never a fraction (spreadsheets read 1/8 as the 8th of January):
+    exact when it terminates (1/8 -> 0.125), else to `digits` significant digits."""
+    if number.is_Integer:
+        return str(number)
+    if number.is_Rational:
+        q = int(number.q)
+        for prime in (2, 5):
+            while q % prime == 0:
+                q //= prime
+        if q == 1:
+            with decimal.localcontext() as context:
+                context.prec = len(str(abs(int(number.p)))) + len(str(int(number.q))) + 2
+                text = format(decimal.Decimal(int(number.p)) / decimal.Decimal(int(number.q)), "f")
+            return text
+    return format_number(_to_mpmath(number, digits), digits)
 
 
 def write_csv(rows: Sequence[Sequence[str]], path) -> Path:

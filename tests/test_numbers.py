@@ -63,9 +63,12 @@ def test_grid_table_reproduces_the_exact_values(pair):
     grid = {"g": ["0", "1/2", "1"], "t": [0, Fraction(1, 3)]}
     rows = grid_table(coefficients, grid, digits=12)
     assert rows[0] == ["g", "t", "a[2,0]", "a[1,1]", "a[2,1]"]
-    assert [r[:2] for r in rows[1:]] == [["0", "0"], ["0", "1/3"], ["1/2", "0"], ["1/2", "1/3"], ["1", "0"], ["1", "1/3"]]
+    # grid values as decimals (a spreadsheet reads 1/2 as a date): exact when they terminate
+    third = "0.333333333333"
+    assert [r[:2] for r in rows[1:]] == [["0", "0"], ["0", third], ["0.5", "0"], ["0.5", third], ["1", "0"], ["1", third]]
+    exact_grid = {"0": 0, "0.5": Fraction(1, 2), "1": 1, third: Fraction(1, 3)}
     for row in rows[1:]:
-        point = {g: sympy.Rational(row[0]), t: sympy.Rational(row[1])}
+        point = {g: sympy.Rational(exact_grid[row[0]]), t: sympy.Rational(exact_grid[row[1]])}
         for c, cell in zip(coefficients, row[2:]):
             exact = Fraction(str(c.value.subs(point)))  # exact rational arithmetic, no evalf
             assert abs(Fraction(cell) - exact) <= Fraction(1, 10 ** 11) * max(1, abs(exact)), (c.label, row)
@@ -77,7 +80,9 @@ def test_grid_table_digits_and_fixed_parameters():
     rows = grid_table([2 * g * t + t ** 2 - t], {"g": ["1/3"]}, digits=8, fixed={"t": "1/7"})
     assert rows[0] == ["g", "t", "2*g*t + t**2 - t"]
     # at g = 1/3, t = 1/7: 2/21 + 1/49 - 1/7 = (14 + 3 - 21)/147 = -4/147 = -0.0272108843537...
-    assert rows[1] == ["1/3", "1/7", "-0.027210884"]
+    assert rows[1] == ["0.33333333", "0.14285714", "-0.027210884"]
+    assert grid_table([g], {"g": ["1/8", "-3/40", "1/1024"]}, digits=2)[1:] == \
+        [["0.125", "0.13"], ["-0.075", "-0.075"], ["0.0009765625", "0.00098"]]  # terminating: exact
 
 
 def test_grid_table_refuses_unknown_and_missing_parameters(pair):
