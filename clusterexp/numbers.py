@@ -227,7 +227,7 @@ def grid_table(coefficients: Sequence, grid: Mapping[str, Sequence], digits: int
     rows = [names + labels]
     for combination in itertools.product(*axes):
         point = dict(zip(names, combination))
-        row = [_grid_text(v, digits) for v in combination]
+        row = [grid_text(v, digits) for v in combination]
         for label, value, own in zip(labels, values, symbols):
             exact = value.xreplace({s: point[n] for n, s in own.items()})
             try:
@@ -238,7 +238,7 @@ def grid_table(coefficients: Sequence, grid: Mapping[str, Sequence], digits: int
     return rows
 
 
-def _grid_text(number: sympy.Expr, digits: int) -> str:
+def grid_text(number: sympy.Expr, digits: int) -> str:
     """A grid value as a decimal, never a fraction (spreadsheets read 1/8 as the 8th of January):
     exact when it terminates (1/8 -> 0.125), else to `digits` significant digits."""
     if number.is_Integer:

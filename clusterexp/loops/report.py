@@ -16,6 +16,7 @@ import sympy
 
 from ..errors import InputError
 from ..naming import latex_subscript, species_latex
+from ..numbers import grid_text
 from .sampled import SampledNumbers, SampledStatement
 
 METHOD = "Brownian-loop Monte Carlo, docs/loops.md"
@@ -111,7 +112,7 @@ def table_rows(statement: SampledStatement) -> list[list[str]]:
     header = statement.parameter_names + [x for label in statement.labels for x in (label, f"{label} error")]
     rows = [header]
     for point in statement.points:
-        rows.append([sympy.sstr(value) for _, value in point.point]
+        rows.append([grid_text(sympy.sympify(value), 15) for _, value in point.point]
                     + [x for v in point.values for x in (repr(v.value), repr(v.error))])
     return rows
 
