@@ -91,7 +91,8 @@ class Derivation:
         key = (c.kind, c.index, c.component)
         if key not in self._series:
             from .routes.pairphase import expansion_of
-            self._series[key] = [piece for e in self.system.expansions
+            # a coefficient free of the variable is its own series: no line for it
+            self._series[key] = [piece for e in self.system.expansions if c.value.has(e.symbol)
                                  for piece in expansion_of(c.label, c.value, e, self.system.parameters)]
         return self._series[key]
 
