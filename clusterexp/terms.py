@@ -9,7 +9,6 @@ itself as text (sympy-parsable) and LaTeX in one linear pass. Whatever does not 
 from __future__ import annotations
 
 from fractions import Fraction
-from functools import cached_property
 from typing import Mapping
 
 import sympy
@@ -177,6 +176,7 @@ class _AtomReader:
         self.distinct = not extra and len(rank) == len(atoms)
         ranks = [rank[s] for s, _ in atoms]
         self.monotone = ranks == sorted(ranks)
+        self._factors: dict = {}   # (generator, exponent) -> (rank, key element, monomial factor)
 
     @classmethod
     def of(cls, ring, extra: Mapping | None = {}) -> "_AtomReader | None":
@@ -236,10 +236,6 @@ class _AtomReader:
                                 Fraction(num, den) if scale == 1 else Fraction(num, den) * scale))
         entries.sort(key=_first)
         return TermSum._presorted([(monomial, c) for _, monomial, c in entries])
-
-    @cached_property
-    def _factors(self) -> dict:
-        return {}
 
     def _factor(self, pair):
         found = self._factors.get(pair)

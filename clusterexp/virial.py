@@ -134,11 +134,11 @@ def _working_ring(values: Mapping[Index, sympy.Expr], K: int, backend: str | Non
 def reduced_clusters(b: Mapping[Index, object], K: int, order: int,
                      truncation: Mapping[sympy.Symbol, int] | None = None) -> tuple[dict[Index, sympy.Expr], list]:
     """beta_n = b_n / prod b_{e_i}^{n_i} for 2 <= |n| <= order, and the linear coefficients.
-    With `truncation` ({symbol: first unknown power}), a b_{e_i} that depends on such a symbol is
-    divided out as a truncated power series in it, so that beta stays polynomial in it (only for the
-    symbols `sound_truncation` keeps)."""
+    With `truncation` ({symbol: first unknown power}, as `sound_truncation` returns it), a b_{e_i}
+    that depends on such a symbol is divided out as a truncated power series in it, so that beta
+    stays polynomial in it."""
     linear = _linear(b, K)
-    divide = _Divider(linear, sound_truncation(b, linear, truncation, order))
+    divide = _Divider(linear, truncation)
     for i, c in enumerate(linear):
         if c == 0:
             raise SeriesError(f"b for a single particle of species {i + 1} is zero; the gas has no ideal limit")
@@ -187,12 +187,6 @@ class _Divider:
         return value / _mass_power(self.linear, index)
 
 
-def _pressure_in_w(ring: PolynomialRing, reduced: Mapping[Index, sympy.Expr], K: int, order: int) -> Series:
-    coefficients = {_unit(K, i): 1 for i in range(K)}
-    coefficients.update(reduced)
-    return Series.from_coefficients(ring, order, coefficients)
-
-
 def cluster_to_virial(b: Mapping[Index, object], order: int, nspecies: int | None = None,
                       backend: str | None = None, on_order=None,
                       truncation: Mapping[sympy.Symbol, int] | None = None) -> "VirialResult":
@@ -206,13 +200,13 @@ def cluster_to_virial(b: Mapping[Index, object], order: int, nspecies: int | Non
     4*b2**2 - 2*b3
     """
     K = _nspecies(b, nspecies)
-    reduced, linear = reduced_clusters(b, K, order, truncation)
+    # a symbol entering some value otherwise than polynomially is left whole (exact, slower): the
+    # caller's truncation expands it
+    limits = sound_truncation(b, _linear(b, K), truncation, order)
+    reduced, linear = reduced_clusters(b, K, order, limits)
     ring = _working_ring(reduced, K, backend)
     beta = {n: ring.scalar_or_element(v) for n, v in reduced.items()}
     result = reduced_to_virial(ring, beta, order, linear, on_order)
-    # a symbol entering some value otherwise than polynomially is left whole (exact, slower): the
-    # caller's truncation expands it
-    limits = sound_truncation(b, linear, truncation, order)
     return result.truncated(limits) if limits else result
 
 
@@ -271,11 +265,8 @@ class VirialResult:
 
     def truncated(self, limits: Mapping[sympy.Symbol, int]) -> "VirialResult":
         """The same result with every power of a limited symbol at or beyond its limit dropped."""
-        ring = self.ring
-
-        def cut(s: Series) -> Series:
-            return Series(ring, s.order, [ring.drop_powers(p, limits) for p in s.parts])
-        result = VirialResult(ring, self.order, self.linear, cut(self.pressure_series), [cut(w) for w in self.w_series])
+        result = VirialResult(self.ring, self.order, self.linear, _dropped(self.pressure_series, limits),
+                              [_dropped(w, limits) for w in self.w_series])
         result.limits = dict(limits)
         return result
 
@@ -295,9 +286,12 @@ class VirialResult:
         """P(rho) recomputed from the fugacities alone (independent self-check):
         the degree-m part of P is (m - 1)/m times that of sum_i rho_i ln(w_i / rho_i)."""
         pressure = legendre_pressure(self.w_series)
-        if self.limits:
-            pressure = Series(self.ring, pressure.order, [self.ring.drop_powers(p, self.limits) for p in pressure.parts])
-        return pressure
+        return _dropped(pressure, self.limits) if self.limits else pressure
+
+
+def _dropped(s: Series, limits: Mapping[sympy.Symbol, int]) -> Series:
+    """s with every power of a limited symbol at or beyond its limit dropped, part by part."""
+    return Series(s.ring, s.order, [s.ring.drop_powers(p, limits) for p in s.parts])
 
 
 def legendre_pressure(w: Sequence[Series]) -> Series:
