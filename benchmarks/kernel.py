@@ -4,8 +4,10 @@ Run:  python benchmarks/kernel.py            (about 5 minutes; the sympy route i
       python benchmarks/kernel.py --quick    (kernel only, seconds)
 
 Prints one table: kernel seconds with python-flint and with sympy's rings, the time to convert every
-result to sympy expressions, and the straightforward route (sympy expressions: expand, substitution,
-solve) at the largest size it finishes within its budget, with the ratio measured in this same run.
+result to sympy expressions, the reference power-table design of the performance notes on the same
+flint rings (`table s`, checked to give the same pressure; `ratio` = table / kernel), and the
+straightforward route (sympy expressions: expand, substitution, solve) at the largest size it finishes
+within its budget, with the ratio measured in this same run.
 Run it on an idle machine; the two cores interfere.
 """
 from __future__ import annotations
@@ -23,6 +25,7 @@ sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 import sympy  # noqa: E402
 
 from clusterexp.series import PolynomialRing, Series, available_backends, collect_atoms, indices_up_to  # noqa: E402
+from clusterexp.series.series import PowerTable, balanced_sum  # noqa: E402
 from clusterexp.virial import cluster_to_virial, reduced_clusters, reduced_to_virial  # noqa: E402
 
 G1, G2, G12 = sympy.symbols("g1 g2 g12")
@@ -71,6 +74,43 @@ def kernel_seconds(b: dict, N: int, backend: str, repeats: int = 3) -> tuple[flo
         convert.append(time.perf_counter() - start)
     terms = sum(len(sympy.Add.make_args(v)) for v in values)
     return statistics.median(times), statistics.median(convert), terms
+
+
+def power_table_kernel(ring: PolynomialRing, beta: dict, N: int) -> list:
+    """The reference design of the performance notes, on the same rings: z_i = rho_i - sum_n n_i beta_n z^n
+    solved order by order, every needed part of every power z^n formed once (a `PowerTable`), and
+    P_m = sum_i [z_i]_m + sum_n beta_n [z^n]_m. Returns the parts of P (compared with the kernel's)."""
+    K = ring.nvars
+    z = [[ring.zero, ring.var(i)] for i in range(K)]
+    indices = sorted((n for n in beta if sum(n) >= 2), key=lambda n: (sum(n), n))
+    table = PowerTable(ring, z, N)
+    pressure = [ring.zero, sum((ring.var(i) for i in range(1, K)), ring.var(0))]
+    for m in range(2, N + 1):
+        table.extend(m, [n for n in indices if sum(n) <= m])
+        pieces = {n: table.part(n, m) for n in indices if sum(n) <= m}
+        pieces = {n: piece for n, piece in pieces.items() if not ring.is_zero(piece)}
+        for i in range(K):
+            z[i].append(balanced_sum(ring, [beta[n] * piece * ring.rational(-n[i])
+                                            for n, piece in pieces.items() if n[i]]))
+        pressure.append(balanced_sum(ring, [z[i][m] for i in range(K)]
+                                     + [beta[n] * piece for n, piece in pieces.items()]))
+    return pressure
+
+
+def power_table_seconds(b: dict, N: int, repeats: int = 3) -> float:
+    """Median seconds of `power_table_kernel` with python-flint; checks it agrees with the kernel."""
+    K = len(next(iter(b)))
+    reduced, linear = reduced_clusters(b, K, N)
+    ring = PolynomialRing(K, collect_atoms(reduced.values()), backend="flint")
+    beta = {tuple(int(e) for e in n): ring.scalar_or_element(v) for n, v in reduced.items()}
+    times = []
+    for _ in range(repeats):
+        start = time.perf_counter()
+        pressure = power_table_kernel(ring, beta, N)
+        times.append(time.perf_counter() - start)
+    if pressure != reduced_to_virial(ring, beta, N, linear).pressure_series.parts:
+        raise AssertionError("the power-table kernel and clusterexp's kernel disagree")
+    return statistics.median(times)
 
 
 def straightforward(b: dict, K: int, N: int) -> dict:
@@ -150,7 +190,7 @@ def main() -> None:
     print("kernel seconds (median of 3; b as ring elements), sympy-expression conversion of all results,")
     print("and end-to-end cluster_to_virial from sympy b (input conversion included), flint:")
     print(f"{'case':62s} " + " ".join(f"{b + ' s':>10s}" for b in backends)
-          + f" {'convert s':>10s} {'total s':>9s} {'terms':>7s}")
+          + f" {'convert s':>10s} {'total s':>9s} {'terms':>7s} {'table s':>8s} {'ratio':>6s}")
     for name, K, N, make in CASES:
         b = make()
         row, convert, terms = [], None, None
@@ -165,7 +205,9 @@ def main() -> None:
         result = cluster_to_virial(b, N)
         [result.virial[n] for n in result.virial]
         total = time.perf_counter() - start
-        print(f"{name:62s} " + " ".join(f"{s:10.4f}" for s in row) + f" {convert:10.4f} {total:9.4f} {terms:7d}")
+        table = power_table_seconds(b, N, repeats=1 if K == 4 else 3)
+        print(f"{name:62s} " + " ".join(f"{s:10.4f}" for s in row) + f" {convert:10.4f} {total:9.4f} {terms:7d}"
+              f" {table:8.4f} {table / row[0]:5.1f}x")
     if args.quick:
         return
     print()
