@@ -6,6 +6,7 @@ from __future__ import annotations
 
 import re
 
+import lark
 import sympy
 
 from .errors import InputError
@@ -182,8 +183,9 @@ class ProductBuilder:
             value = exact
             if value.has(sympy.Order):
                 raise InputError("O(...) may only end the claim", self.b.span(value_tree))
-            return Claim(target, value, self.b.span(tree), tuple(sorted(limits.items(), key=lambda kv: kv[0].name)))
-        return Claim(target, value, self.b.span(tree))
+            return Claim(target, value, self.b.span(tree), tuple(sorted(limits.items(), key=lambda kv: kv[0].name)),
+                         decimals=_decimals(value_tree))
+        return Claim(target, value, self.b.span(tree), decimals=_decimals(value_tree), rounded=_one_decimal(value_tree))
 
     def evaluation(self, tree) -> Evaluation:
         targets, *rest = tree.children
@@ -337,3 +339,23 @@ def product_names(fields: dict) -> list[CoefficientName]:
 def product_order(fields: dict) -> int:
     """The highest total order any product names."""
     return max((sum(n.index) for n in product_names(fields)), default=0)
+
+
+def _is_decimal(token) -> bool:
+    return isinstance(token, lark.Token) and token.type == "NUMBER" and ("." in token or "e" in token.lower())
+
+
+def _decimals(tree) -> tuple[str, ...]:
+    """The decimal numbers written in an expression, in order."""
+    return tuple(str(t) for t in tree.scan_values(_is_decimal)) if isinstance(tree, lark.Tree) else ()
+
+
+def _one_decimal(tree) -> str | None:
+    """The text (sign included) of an expression that is one decimal number, else None."""
+    sign = ""
+    while isinstance(tree, lark.Tree) and tree.data == "neg":
+        sign = "" if sign else "-"
+        tree = tree.children[0]
+    if isinstance(tree, lark.Tree) and tree.data == "number" and _is_decimal(tree.children[0]):
+        return sign + str(tree.children[0])
+    return None

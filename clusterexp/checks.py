@@ -21,6 +21,11 @@ values.
 A claim that is a series truncated at total order k in some parameters is compared through that
 order only: `check_claim(..., up_to_order=k, in_parameters=["g"])` truncates the Taylor series of
 both sides about 0 in those parameters.
+
+A claim that is one decimal number copied from a table (`-0.0033001`) states its value only to the
+digits written: `check_decimal_claim(text, derived)` accepts it when the derived number rounds to it
+(within half a unit of the last written digit), as "numerically consistent, not proven" at that
+many significant digits, and proves it only when the decimal is the exact value.
 """
 from __future__ import annotations
 
@@ -220,6 +225,58 @@ def check_claim(claimed, derived, parameters: Sequence = (), *, points: int = 20
         notes += (f"only {good} non-singular points found in {attempts} tries",)
     return CheckResult(CONSISTENT, method=how, difference=None, points=good, skipped=skipped,
                        intervals=shown_intervals, notes=notes, **common)
+
+
+def decimal_places(text: str) -> tuple[int, int]:
+    """(significant digits, exponent of the last written digit) of a decimal such as -1.25e-3."""
+    body = text.strip().lstrip("+-")
+    mantissa, _, exponent = body.lower().partition("e")
+    whole, _, decimals = mantissa.partition(".")
+    significant = len((whole + decimals).lstrip("0")) or 1
+    return significant, int(exponent or 0) - len(decimals)
+
+
+def check_decimal_claim(text: str, derived, *, label: str | None = None) -> CheckResult:
+    """Check a claim written as one decimal number against a derived number: consistent when the
+    derived value lies within half a unit of the last written digit (a rounded table value), proven
+    when the decimal is the exact value, a mismatch otherwise."""
+    claimed = sympy.Rational(text.strip().replace(" ", ""))
+    derived = sympy.sympify(derived)
+    if derived.free_symbols:
+        raise ValueError("check_decimal_claim compares numbers; the derived value has symbols")
+    significant, last = decimal_places(text)
+    common = dict(claimed=claimed, derived=derived, label=label, digits=significant)
+    if claimed - derived == 0:
+        return CheckResult(PROVEN, method=f"the decimal {text} is the exact value",
+                           difference=sympy.Integer(0), **common)
+    half_unit = sympy.Rational(1, 2) * sympy.Rational(10) ** last
+    guard = significant + 30
+    gap = abs(claimed - derived)
+    shown = format_number_digits(derived, significant + 6)
+    if gap.is_Rational:
+        within = gap <= half_unit
+    else:
+        value = sympy.N(gap, guard)
+        if not value.is_real:
+            within = False
+        else:
+            within = bool(value <= half_unit)
+    if within:
+        return CheckResult(CONSISTENT, method=f"the claim is the decimal {text}, and the derived value {shown} "
+                           "rounds to it", difference=None, **common)
+    digits = f"{significant} significant digit{'s' if significant != 1 else ''}"
+    return CheckResult(MISMATCH, method=f"the claim is the decimal {text} ({digits}); the derived value "
+                       f"{shown} does not round to it",
+                       difference=claimed - derived, claimed_value=text, derived_value=shown, **common)
+
+
+def format_number_digits(value, digits: int) -> str:
+    """A sympy number as text with `digits` significant digits (mpmath's nstr)."""
+    with mpmath.workdps(digits + 10):
+        number = sympy.N(value, digits + 10)
+        if number.is_real:
+            return mpmath.nstr(mpmath.mpf(sympy.Float(number, digits + 10)._mpf_), digits)
+        return sympy.sstr(number.evalf(digits))
 
 
 def _mismatch(common, simplified, intervals, point, left, right, shown_intervals, good, skipped, notes,

@@ -198,12 +198,16 @@ class CoefficientName:
 @dataclass(frozen=True)
 class Claim:
     """`claim a[3] = ...`: the user's own result for a derived coefficient. `limits` holds
-    {symbol: first power not claimed} when the claim ends in O(...): it is compared below those."""
+    {symbol: first power not claimed} when the claim ends in O(...): it is compared below those.
+    `decimals`: the decimal numbers as written in the claim (read as exact fractions in `value`);
+    `rounded`: the text of the claim when it is one decimal number, compared at its written digits."""
 
     target: CoefficientName
     value: sympy.Expr
     span: Span
     limits: tuple[tuple[sympy.Symbol, int], ...] = ()
+    decimals: tuple[str, ...] = ()
+    rounded: str | None = None
 
 
 @dataclass(frozen=True)

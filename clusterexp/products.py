@@ -11,7 +11,7 @@ from pathlib import Path
 
 import sympy
 
-from .checks import check_claim
+from .checks import check_claim, check_decimal_claim
 from .errors import InputError
 from .numbers import evaluate, format_number, grid_table, write_csv
 
@@ -61,9 +61,16 @@ def run_checks(derivation) -> list:
             if set(known) - {s for s, _ in claim.limits} or any(known[s] < k for s, k in claim.limits if s in known):
                 notes.append(f"the derived value is known only up to {_limits_text(known)}")
         try:
-            result = check_claim(claimed, derived, system.parameters, label=label)
+            if claim.rounded and not limits and not derived.free_symbols:
+                result = check_decimal_claim(claim.rounded, derived, label=label)
+            else:
+                result = check_claim(claimed, derived, system.parameters, label=label)
         except InputError as error:
             raise _at(error, claim.span) from None
+        if not result.ok and claim.decimals and not (claim.rounded and not limits and not derived.free_symbols):
+            exact = ", ".join(f"{d} = {sympy.Rational(d)}" for d in claim.decimals[:3])
+            notes.append(f"decimals inside a claim are read as exact fractions ({exact}); a claim that is one "
+                         "decimal number is compared at its written digits when the derived value is a number")
         if notes:
             from dataclasses import replace
             result = replace(result, notes=result.notes + tuple(notes))

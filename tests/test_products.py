@@ -97,7 +97,45 @@ def test_claim_of_an_irrational_value_is_proven():
                           "claim a[3] = 1/8 - 2/(9*sqrt(3))  claim a[2] = -0.17678")
     proven, rounded = d.checks
     assert proven.status == "proven"
-    assert rounded.status == "mismatch"  # four decimals are not the exact value
+    assert rounded.status == "numerically consistent, not proven"  # five digits, not the exact value
+    assert rounded.digits == 5
+
+
+def test_decimal_claims_against_the_textbook_table():
+    # 3D ideal Bose a_2..a_5 = -0.17678, -0.0033001, -0.00011129, -0.0000035405 (Pathria & Beale,
+    # Statistical Mechanics, 3rd ed., sec. 7.1): each rounds the exact value, so each is accepted at
+    # its written digits; the same numbers one unit off in the last digit are refused
+    table = ["-0.17678", "-0.0033001", "-0.00011129", "-0.0000035405"]
+    claims = " ".join(f"claim a[{n}] = {v}" for n, v in zip(range(2, 6), table))
+    off = ["-0.17677", "-0.0033002", "-1.1128e-4", "-3.5406e-6"]
+    claims += " " + " ".join(f"claim a[{n}] = {v}" for n, v in zip(range(2, 6), off))
+    d = clusterexp.derive("dimension 3 species A bose clusters ideal derive virial up to 5 " + claims)
+    statuses = [c.status for c in d.checks]
+    assert statuses == ["numerically consistent, not proven"] * 4 + ["mismatch"] * 4
+    assert [c.digits for c in d.checks] == [5] * 8
+    assert "does not round to it" in d.checks[4].method and "-0.17677" in d.checks[4].render()
+
+
+def test_decimal_claim_rounding_edges_and_exact_decimals():
+    # 2D ideal Fermi a_2 = +1/4 (a_n = B_{n-1}/n!, physics.md; sign from the Fermi point): 0.25 is the
+    # exact value; 0.2 and 0.3 are the two roundings at one decimal (0.25 lies half a unit from
+    # each); 0.35 is not; 0.250 with three decimals is exact too
+    d = clusterexp.derive("dimension 2 species A fermi clusters ideal derive virial up to 2 "
+                          "claim a[2] = 0.25  claim a[2] = 0.2  claim a[2] = 0.3  claim a[2] = 0.35 "
+                          "claim a[2] = 2.5e-1  claim a[2] = -0.25")
+    assert [c.status for c in d.checks] == ["proven", "numerically consistent, not proven",
+                                            "numerically consistent, not proven", "mismatch", "proven",
+                                            "mismatch"]
+
+
+def test_decimals_inside_expressions_stay_exact_fractions():
+    # a decimal against a value with parameters, or inside a longer expression, is an exact fraction,
+    # and a mismatch says so (ASWZ a_2(alpha) is not the constant 1/8)
+    d = clusterexp.derive(ANYONS + "claim a[2] = 0.125\nclaim a[2] = -0.25 + alpha - 0.5*alpha^2")
+    constant, polynomial = d.checks
+    assert constant.status == "mismatch"
+    assert any("0.125 = 1/8" in n for n in constant.notes)
+    assert polynomial.status == "proven"
 
 
 def test_evaluate_against_textbook_decimals():
