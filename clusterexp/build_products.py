@@ -351,11 +351,14 @@ def _decimals(tree) -> tuple[str, ...]:
 
 
 def _one_decimal(tree) -> str | None:
-    """The text (sign included) of an expression that is one decimal number, else None."""
+    """The text (sign included) of an expression that is one nonzero decimal number, else None."""
     sign = ""
     while isinstance(tree, lark.Tree) and tree.data == "neg":
         sign = "" if sign else "-"
         tree = tree.children[0]
     if isinstance(tree, lark.Tree) and tree.data == "number" and _is_decimal(tree.children[0]):
+        mantissa = str(tree.children[0]).lower().partition("e")[0]
+        if not mantissa.replace(".", "").strip("0"):
+            return None  # 0.0 claims that the value vanishes: exactly
         return sign + str(tree.children[0])
     return None

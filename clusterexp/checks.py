@@ -76,6 +76,7 @@ class CheckResult:
     intervals: tuple[tuple[str, str], ...] = ()
     truncation: tuple[int, tuple[str, ...]] | None = None
     notes: tuple[str, ...] = field(default=())
+    rounding: str | None = None
 
     @property
     def ok(self) -> bool:
@@ -93,6 +94,8 @@ class CheckResult:
         where = "; ".join(f"{n} in {i}" for n, i in self.intervals)
         if self.status == PROVEN:
             lines = [f"proven: {self._subject()} equals the derived value ({self.method})"]
+        elif self.status == CONSISTENT and self.rounding:
+            lines = [f"numerically consistent, not proven: {self._subject()}: {self.method}"]
         elif self.status == CONSISTENT and not self.intervals:
             lines = [f"numerically consistent, not proven: {self._subject()} and the derived value agree to "
                      f"{self.digits} significant digits; {self.method}"]
@@ -236,38 +239,56 @@ def decimal_places(text: str) -> tuple[int, int]:
     return significant, int(exponent or 0) - len(decimals)
 
 
-def check_decimal_claim(text: str, derived, *, label: str | None = None) -> CheckResult:
+def check_decimal_claim(text: str, derived, *, label: str | None = None,
+                        simplify_seconds: float | None = 5.0) -> CheckResult:
     """Check a claim written as one decimal number against a derived number: consistent when the
-    derived value lies within half a unit of the last written digit (a rounded table value), proven
-    when the decimal is the exact value, a mismatch otherwise."""
+    derived value is real and lies within half a unit of the last written digit (a rounded table
+    value; a value exactly on the boundary counts), proven when the decimal is the exact value, a
+    mismatch otherwise. The comparison with the boundary is exact (sympy's adaptive evaluation to the
+    precision that decides it)."""
     claimed = sympy.Rational(text.strip().replace(" ", ""))
     derived = sympy.sympify(derived)
     if derived.free_symbols:
         raise ValueError("check_decimal_claim compares numbers; the derived value has symbols")
+    if derived.has(sympy.zoo, sympy.oo, -sympy.oo, sympy.nan):
+        raise InputError(f"cannot check {label or 'the claim'}: the derived value is {_text(derived)}")
     significant, last = decimal_places(text)
-    common = dict(claimed=claimed, derived=derived, label=label, digits=significant)
-    if claimed - derived == 0:
-        return CheckResult(PROVEN, method=f"the decimal {text} is the exact value",
+    unit = f"1e{last}" if last else "1"
+    common = dict(claimed=claimed, derived=derived, label=label, digits=significant, rounding=text)
+    decided, how, _ = _decide_zero(claimed - derived, simplify_seconds)
+    if decided is True:
+        return CheckResult(PROVEN, method=f"the decimal {text} is the exact value ({how})",
                            difference=sympy.Integer(0), **common)
     half_unit = sympy.Rational(1, 2) * sympy.Rational(10) ** last
-    guard = significant + 30
-    gap = abs(claimed - derived)
     shown = format_number_digits(derived, significant + 6)
-    if gap.is_Rational:
-        within = gap <= half_unit
+    imaginary = sympy.im(derived)
+    if _sign(imaginary) != 0:
+        reason = "is not real"
+    elif _sign(derived - (claimed - half_unit)) >= 0 and _sign(claimed + half_unit - derived) >= 0:
+        return CheckResult(CONSISTENT, method=f"the derived value {shown} rounds to the claimed decimal {text} "
+                           f"at its last written digit ({unit})", difference=None, **common)
     else:
-        value = sympy.N(gap, guard)
-        if not value.is_real:
-            within = False
-        else:
-            within = bool(value <= half_unit)
-    if within:
-        return CheckResult(CONSISTENT, method=f"the claim is the decimal {text}, and the derived value {shown} "
-                           "rounds to it", difference=None, **common)
+        reason = "does not round to it"
     digits = f"{significant} significant digit{'s' if significant != 1 else ''}"
     return CheckResult(MISMATCH, method=f"the claim is the decimal {text} ({digits}); the derived value "
-                       f"{shown} does not round to it",
-                       difference=claimed - derived, claimed_value=text, derived_value=shown, **common)
+                       f"{shown} {reason}", difference=claimed - derived, claimed_value=text,
+                       derived_value=shown, **common)
+
+
+def _sign(value) -> int:
+    """The sign of a real number given exactly: -1, 0 or 1, at whatever precision decides it (an
+    expression that stays below 10^-4000 after cancellation counts as 0)."""
+    value = sympy.sympify(value)
+    if value.is_Rational:
+        return int(bool(value > 0)) - int(bool(value < 0))
+    if value.is_zero:
+        return 0
+    try:
+        number = value.evalf(30, strict=True, maxn=13300)   # maxn in bits: about 4000 digits
+    except sympy.core.evalf.PrecisionExhausted:
+        return 0
+    re = sympy.re(number)
+    return int(bool(re > 0)) - int(bool(re < 0))
 
 
 def format_number_digits(value, digits: int) -> str:

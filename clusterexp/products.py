@@ -70,7 +70,8 @@ def run_checks(derivation) -> list:
         if not result.ok and claim.decimals and not (claim.rounded and not limits and not derived.free_symbols):
             exact = ", ".join(f"{d} = {sympy.Rational(d)}" for d in claim.decimals[:3])
             notes.append(f"decimals inside a claim are read as exact fractions ({exact}); a claim that is one "
-                         "decimal number is compared at its written digits when the derived value is a number")
+                         "decimal number is compared at its written digits only against a derived value that is "
+                         "an exact number (no parameters, not a truncated series)")
         if notes:
             from dataclasses import replace
             result = replace(result, notes=result.notes + tuple(notes))

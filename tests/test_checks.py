@@ -6,7 +6,8 @@ import pytest
 import sympy
 
 import clusterexp
-from clusterexp.checks import CONSISTENT, MISMATCH, PROVEN, bounded, check_claim, truncate
+from clusterexp.checks import (CONSISTENT, MISMATCH, PROVEN, bounded, check_claim, check_decimal_claim,
+                               decimal_places, truncate)
 from clusterexp.errors import InputError, Span
 from clusterexp.model import Parameter
 
@@ -198,3 +199,32 @@ def test_bounded_effort_gives_up_in_time():
 def test_latex_display_of_a_result(landau):
     result = check_claim(lll_equation_of_state_virial(2, G), landau.value("virial", (2,)), landau.system.parameters)
     assert result._repr_latex_().startswith("$$\\text{proven}")
+
+
+def test_decimal_places_of_written_numbers():
+    # (significant digits, exponent of the last written digit), by the usual reading of a decimal
+    assert decimal_places("-0.0033001") == (5, -7)
+    assert decimal_places("-3.3001e-3") == (5, -7)
+    assert decimal_places("1E+2") == (1, 2)
+    assert decimal_places("120.") == (3, 0)
+    assert decimal_places("0.250") == (3, -3)
+
+
+def test_decimal_claims_are_decided_exactly_at_the_rounding_boundary():
+    # 0.2 rounds everything in [0.15, 0.25]; 1/4 -+ sqrt(2) 10^-45 lies just inside / just outside,
+    # far below any fixed working precision of 30 digits
+    quarter, tiny = sympy.Rational(1, 4), sympy.sqrt(2) / sympy.Integer(10) ** 45
+    assert check_decimal_claim("0.2", quarter - tiny).status == CONSISTENT
+    assert check_decimal_claim("0.2", quarter + tiny).status == MISMATCH
+    assert check_decimal_claim("0.3", quarter + tiny).status == CONSISTENT
+    assert check_decimal_claim("0.2", quarter).status == CONSISTENT     # on the boundary: both roundings
+
+
+def test_decimal_claims_of_non_real_exact_and_singular_values():
+    # a complex number is not the rounding of a real decimal, however small its imaginary part
+    result = check_decimal_claim("0.25", sympy.Rational(1, 4) + sympy.I / 1000)
+    assert result.status == MISMATCH and "is not real" in result.method
+    # the exact value in another form is proven ((sqrt 2 + 1)(sqrt 2 - 1) = 1)
+    assert check_decimal_claim("0.25", (sympy.sqrt(2) + 1) * (sympy.sqrt(2) - 1) / 4).status == PROVEN
+    with pytest.raises(InputError, match="derived value is zoo"):
+        check_decimal_claim("0.5", sympy.zoo, label="a[3]")

@@ -4,8 +4,9 @@ Physics values here come from outside the project (named beside each check); the
 own decisions are tested in test_checks.py.
 """
 import csv
-import re
 import io
+import json
+import re
 import os
 import shutil
 import subprocess
@@ -126,6 +127,24 @@ def test_decimal_claim_rounding_edges_and_exact_decimals():
     assert [c.status for c in d.checks] == ["proven", "numerically consistent, not proven",
                                             "numerically consistent, not proven", "mismatch", "proven",
                                             "mismatch"]
+
+
+def test_a_decimal_zero_claims_that_the_value_vanishes():
+    # 3D Bose a_2 = -2^(-5/2) (Pathria & Beale 3rd ed., sec. 7.1) is not zero: 0.0 and 0e3 are exact
+    # zeros, not the loose roundings +-0.05 and +-500 their last digits would allow
+    d = clusterexp.derive("dimension 3 species A bose clusters ideal derive virial up to 2 "
+                          "claim a[2] = 0.0  claim a[2] = 0e3  claim a[2] = -0.2")
+    assert [c.status for c in d.checks] == ["mismatch", "mismatch", "numerically consistent, not proven"]
+
+
+def test_decimal_claim_in_json_names_both_values(tmp_path):
+    path = tmp_path / "t.gas"
+    path.write_text("dimension 3 species A bose clusters ideal derive virial up to 3 claim a[3] = -0.0034")
+    run = run_cli("run", str(path), "--format", "json")
+    assert run.returncode == 1
+    record, = json.loads(run.stdout)["checks"]
+    assert record["status"] == "mismatch" and record["compared_as_decimal"] == "-0.0034"
+    assert record["claimed_value"] == "-0.0034" and record["derived_value"].startswith("-0.00330005")
 
 
 def test_decimals_inside_expressions_stay_exact_fractions():

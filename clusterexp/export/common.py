@@ -100,8 +100,11 @@ def check_record(result) -> dict:
     if result.leading_term is not None:
         record["leading_term"] = sympy.sstr(result.leading_term, order="lex")
         record["about"] = {n: sympy.sstr(v) for n, v in result.expansion_point}
+    if result.rounding:
+        record["compared_as_decimal"] = result.rounding
     if result.witness:
         record["at"] = {n: sympy.sstr(v) for n, v in result.witness}
+    if result.claimed_value is not None:
         record["claimed_value"], record["derived_value"] = result.claimed_value, result.derived_value
     if result.points:
         record["points"] = result.points
