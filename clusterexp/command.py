@@ -36,8 +36,22 @@ def _parser() -> argparse.ArgumentParser:
     return parser
 
 
+def _text_arguments(argv: list[str]) -> list[str]:
+    """`-e TEXT` with TEXT taken whole even when it starts with '-' (argparse would read it as an
+    option and refuse the input without pointing into it)."""
+    out, i = [], 0
+    while i < len(argv):
+        if argv[i] in ("-e", "--expression") and i + 1 < len(argv):
+            out.append("--expression=" + argv[i + 1])
+            i += 2
+        else:
+            out.append(argv[i])
+            i += 1
+    return out
+
+
 def main(argv: list[str] | None = None) -> int:
-    args = _parser().parse_args(argv)
+    args = _parser().parse_args(_text_arguments(sys.argv[1:] if argv is None else list(argv)))
     sys.set_int_max_str_digits(0)  # printing exact results; input literals are bounded in expressions.py
     from . import derive, derive_file
     from .export import FORMATTERS, latex_document

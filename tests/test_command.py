@@ -87,3 +87,13 @@ def test_output_is_identical_across_hash_seeds(cli):
     args = ("run", str(ROOT / "worked" / "film_mixture" / "input.gas"), "--format", "json")
     outputs = {cli(*args, env_extra={"PYTHONHASHSEED": seed}).stdout for seed in ("1", "2", "12345")}
     assert len(outputs) == 1
+
+
+def test_expression_text_starting_with_a_dash_is_read_as_input(cli):
+    # found by the long fuzz run: argparse took '-dimension' for an option and refused without a caret
+    for args in (["-e", "-dimension 2"], ["--expression", "- 2"]):
+        result = cli("run", *args)
+        assert result.returncode == 2
+        assert result.stderr.startswith("<command line>:1:1: error:") and "^" in result.stderr
+        assert "Traceback" not in result.stderr
+    assert cli("run", "-e", "dimension 2 species A bose derive virial up to 2", "--format", "json").returncode == 0
