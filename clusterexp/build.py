@@ -511,6 +511,16 @@ class _Builder:
             raise InputError("a statistics matrix is only used with `clusters exclusion`"
                              + ("; the lowest Landau level takes it from the exchange and mutual parameters"
                                 if source.kind == "landau" else ""), span)
+        boltzmann = [s for s in self.species.values() if s.statistics == "boltzmann"]
+        if boltzmann and source.kind in ("pairphase", "landau", "exclusion"):
+            s = boltzmann[0]
+            if source.kind == "pairphase":
+                raise NotSupportedYet(f"a boltzmann species ({s.name}) with `clusters pairphase`: its own b_l vanish "
+                                      "for l >= 2 but its braiding with other species is not yet derived; declare "
+                                      "it bose, fermi or with an exchange parameter", s.span)
+            what = "the lowest Landau level" if source.kind == "landau" else "exclusion statistics"
+            raise InputError(f"species {s.name} is boltzmann (distinguishable particles), which {what} does not "
+                             "describe; declare it bose, fermi or with an exchange parameter", s.span)
         if source.kind == "ideal":
             for s in self.species.values():
                 if s.statistics is None and s.exchange not in (0, 1):
@@ -603,22 +613,34 @@ class _Builder:
         g[i][j] = value
 
     def _landau_range_warnings(self) -> None:
-        values = [(f"exchange parameter of {s.name}", s.exchange, s.span) for s in self.species.values()]
-        values += [(f"mutual parameter of {m.first} and {m.second}", m.value, m.span) for m in self.mutuals]
-        for what, value, span in values:
+        """Warn where the linear lowest-Landau-level interpolation is not the physics: exchange
+        parameters outside [0, 1]; mutual parameters outside [0, 1), since a mutual parameter 1 is
+        no coupling (period 1) while the interpolated states at 1 are the left limit (the relative
+        state l = -1 joins the lowest level exactly there)."""
+        values = [(f"exchange parameter of {s.name}", s.exchange, s.span, False) for s in self.species.values()]
+        values += [(f"mutual parameter of {m.first} and {m.second}", m.value, m.span, True) for m in self.mutuals]
+        for what, value, span, mutual in values:
             if value.is_number:
-                if not (0 <= value <= 1):
+                if mutual and value == 1:
+                    self.warnings.append((f"the {what} is 1, which means no braiding (period 1), but the "
+                                          "lowest-Landau-level interpolation holds on [0, 1) only: the results are "
+                                          "its left limit, not the uncoupled gas (declare 0 for that)", span))
+                elif not (0 <= value <= 1):
                     self.warnings.append((f"the {what} is {value}, outside [0, 1] where the lowest-Landau-level "
                                           "states interpolate linearly; results there are the linear continuation",
                                           span))
                 continue
-            inside = all(self._within_unit(symbol) for symbol in value.free_symbols) and value.is_polynomial() \
-                and sympy.Poly(value, *value.free_symbols).total_degree() <= 1 and \
-                all(c >= 0 for c in sympy.Poly(value, *value.free_symbols).coeffs()) and \
-                sum(sympy.Poly(value, *value.free_symbols).coeffs()) <= 1
+            poly = sympy.Poly(value, *value.free_symbols) if value.is_polynomial() else None
+            inside = poly is not None and poly.total_degree() <= 1 and all(c >= 0 for c in poly.coeffs()) \
+                and all(self._within_unit(symbol) for symbol in value.free_symbols) and sum(poly.coeffs()) <= 1
+            if inside and mutual and sum(poly.coeffs()) == 1:
+                # the value reaches 1 when every parameter is at its upper end: open there, or not inside
+                inside = any(self.parameters[sym.name].upper_open or self.parameters[sym.name].upper < 1
+                             for sym in value.free_symbols if poly.coeff_monomial(sym) != 0)
             if not inside:
-                self.warnings.append((f"the lowest-Landau-level states interpolate linearly only for parameters in "
-                                      f"[0, 1]; declare a range inside [0, 1] for the {what} ({value}) to say so",
+                interval = "[0, 1)" if mutual else "[0, 1]"
+                self.warnings.append((f"the lowest-Landau-level states interpolate linearly only for the {what} in "
+                                      f"{interval}; declare a range that keeps {value} inside {interval} to say so",
                                       span))
 
     def _within_unit(self, symbol) -> bool:

@@ -170,6 +170,32 @@ def test_lll_warns_outside_the_linear_interpolation_range():
     assert any("declare a range" in message for message, _ in d.system.warnings)
 
 
+def test_lll_mutual_parameter_one_is_not_the_interpolated_value():
+    # Mutual parameters have period 1 (physics.md sec. 2: alpha_12 = 1 is no coupling, every mixed
+    # coefficient vanishes), while the interpolated LLL states reach only the left limit at 1: the
+    # two-body relative states l + alpha_12 >= 0 gain l = -1 exactly at alpha_12 = 1 [derived].
+    # The left limit is the one-level exclusion b_11 = -(g_12 + g_21) = -2 (physics.md, derived).
+    d = clusterexp.derive("dimension 2 species A bose species B bose mutual A B = 1 clusters landau "
+                          "derive cluster b[1,1]")
+    assert d.coefficient("cluster", (1, 1)).value == -2
+    assert any("left limit" in message for message, _ in d.system.warnings)
+    closed = "dimension 2 parameter nu in [0, 1] species A bose species B bose mutual A B = nu clusters landau"
+    assert any("[0, 1)" in message for message, _ in clusterexp.derive(closed).system.warnings)
+    assert not clusterexp.derive(closed.replace("[0, 1]", "[0, 1)")).system.warnings
+    assert not clusterexp.derive(closed.replace("= nu", "= nu/2").replace("[0, 1]", "[0, 1]")).system.warnings
+
+
+@pytest.mark.parametrize("regime", ["pairphase", "landau", "exclusion"])
+def test_boltzmann_species_are_refused_where_no_route_describes_them(regime):
+    # a Boltzmann species has b_l = 0 for l >= 2 (physics.md R1); these routes would have treated it
+    # as a boson (a_2 = -1/4 printed for a gas whose a_2 is 0)
+    text = "dimension 2\nspecies A boltzmann\nspecies B bose\nclusters " + regime + "\nderive virial up to 2"
+    with pytest.raises(clusterexp.errors.ClusterexpError, match="boltzmann") as error:
+        clusterexp.derive(text)
+    assert error.value.span.line == 2
+    assert clusterexp.derive(text.replace(regime, "ideal")).coefficient("virial", (2, 0)).value == 0
+
+
 # -- declared spectra: the harmonic regulator ---------------------------------------------------------------
 @pytest.mark.parametrize("d", [1, 2, 3])
 @pytest.mark.parametrize("word", ["bose", "fermi"])
