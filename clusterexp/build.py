@@ -689,8 +689,8 @@ class _Builder:
                 trapped[index] = self._trap_expr(value)
             else:
                 word = "mass" if kind == "area_mass" else str(item.children[0])
-                if word not in ("mass", "count"):
-                    raise InputError(f"`area` is mass or count, not '{word}'", self.span(item.children[0]))
+                if word not in ("mass", "count", "one"):
+                    raise InputError(f"`area` is mass, count or one, not '{word}'", self.span(item.children[0]))
                 if area is not None:
                     raise InputError("`area` is given twice", self.span(item))
                 area = word

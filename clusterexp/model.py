@@ -101,7 +101,8 @@ class Spectrum:
     `levels[i]`: one-body level generating function of species i in the symbol x; `fill[i]`: "bose"
     or "fermi" occupation of those levels; `shift`: energy shift as an expression in `counts` (one
     symbol per species standing for its particle number); `trapped`: explicit Z_n(x) for chosen n;
-    `area`: "mass" (weight (M_n/m_ref)^(d/2)) or "count" (weight |n|, lowest Landau level).
+    `area`: "mass" (weight (M_n/m_ref)^(d/2)), "count" (weight |n|, lowest Landau level) or "one"
+    (weight 1: the trapped gas itself, in units of its one-body partition function).
     """
 
     levels: tuple[sympy.Expr, ...]

@@ -228,6 +228,38 @@ def test_spectrum_with_explicit_levels_shift_and_trapped_override():
         assert same(hand[n], ready[n]), n
 
 
+CALOGERO = ("dimension 1 parameter g in [0, 1] species A bose clusters spectrum { shift = g*A*(A - 1)/2 AREA } "
+            "derive virial up to 6")
+
+
+def test_calogero_spectrum_in_a_trap_is_the_one_dimensional_exclusion_gas():
+    """Bosonic oscillator levels shifted by g N(N-1)/2 (the Calogero-Sutherland model in a harmonic
+    trap), through the harmonic regulator, give Wu's exclusion-statistics gas in d = 1 with statistics
+    g [published equivalence: Murthy & Shankar, Phys. Rev. Lett. 73 (1994) 3331, cond-mat/9404096]:
+    two independent routes (R2 on a declared spectrum, R5 by Lagrange inversion), and a_2 =
+    (2g-1)/(2 sqrt 2) (physics.md, derived)."""
+    trap = values(CALOGERO.replace("AREA", ""), "virial")
+    wu = values("dimension 1 parameter g in [0, 1] species A bose clusters exclusion statistics A A = g "
+                "derive virial up to 6", "virial")
+    for n in wu:
+        assert same(trap[n], wu[n]), n
+    g = next(iter(trap[(2,)].free_symbols))
+    assert same(trap[(2,)], (2 * g - 1) / (2 * sympy.sqrt(2)))
+    assert trap[(3,)].has(g)  # the homogeneous 1D gas: a_3 does depend on g
+
+
+def test_harmonically_confined_exclusion_gas_only_a2_carries_the_statistics():
+    """Counted per one-body partition function (`area one`), the trapped Calogero gas has a_2 = (2g-1)/4
+    and g-independent a_n = B_{n-1}/n! for n >= 3 [published: Murthy & Shankar, Phys. Rev. Lett. 73
+    (1994) 3331 (only a_2 carries the statistics); the values are those of the 2D gas, whose density
+    of states is the same constant (physics.md); Bernoulli numbers from sympy]."""
+    a = values(CALOGERO.replace("AREA", "area one"), "virial")
+    g = next(iter(a[(2,)].free_symbols))
+    assert same(a[(2,)], (2 * g - 1) / 4)
+    for n in range(3, 7):
+        assert a[(n,)] == sympy.bernoulli(n - 1) / sympy.factorial(n), n
+
+
 # -- bad input ----------------------------------------------------------------------------------------------
 @pytest.mark.parametrize("text, message", [
     ("dimension 2 species A species B statistics matrix [[1, 0, 0], [0, 1, 0]] clusters exclusion",
@@ -247,7 +279,7 @@ def test_spectrum_with_explicit_levels_shift_and_trapped_override():
     ("dimension 2 species A clusters spectrum { levels A = 3 }", "this function of x"),
     ("dimension 2 species A clusters spectrum { levels A = sin(x) }", "cannot expand sin(x)"),
     ("dimension 2 species A exchange 1/2 clusters spectrum { }", "say how A fills the levels"),
-    ("dimension 2 species A clusters spectrum { area volume }", "`area` is mass or count"),
+    ("dimension 2 species A clusters spectrum { area volume }", "`area` is mass, count or one"),
     ("dimension 2 parameter x species A clusters spectrum { }", "`x` stands for exp(-beta hbar omega)"),
     ("dimension 2 species A clusters spectrum { trapped Z[1] = 1/(1 - x)^3 }",
      "the trapped partition function is more singular"),

@@ -60,9 +60,9 @@ def regime_lines(system: System) -> list[str]:
                 "(+ bose, - fermi; boltzmann: b_1 only); no mixed coefficients"]
     if kind == "spectrum":
         spec = system.source.spectrum
-        weight = "|n|" if spec.area == "count" else "(M_n/m_ref)^(d/2)"
+        weight = {"count": "|n| ", "one": ""}.get(spec.area, "(M_n/m_ref)^(d/2) ")
         return ["regime: declared trapped spectrum, x = exp(-beta hbar omega); "
-                f"b_n = {weight} lim_(omega->0) [z^n] ln Xi_trap / Z_1,ref(x)",
+                f"b_n = {weight}lim_(omega->0) [z^n] ln Xi_trap / Z_1,ref(x)",
                 "levels: " + "; ".join(f"{n}: {lv} ({fill})" for n, lv, fill in zip(names, spec.levels, spec.fill)),
                 f"energy shift / hbar omega: {spec.shift} (N_X = number of particles of species X)"]
     if kind == "pairphase":

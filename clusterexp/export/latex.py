@@ -82,7 +82,7 @@ def regime_latex(system) -> list[str]:
                 r"(upper sign bosons, lower fermions; Boltzmann species have $b_{e_i}$ only); no mixed coefficients."]
     if kind == "spectrum":
         spec = system.source.spectrum
-        weight = r"|n|" if spec.area == "count" else r"(M_n/m_{\mathrm{ref}})^{d/2}"
+        weight = {"count": r"|n|", "one": ""}.get(spec.area, r"(M_n/m_{\mathrm{ref}})^{d/2}")
         rows = ", ".join(f"${l}$: $L(x)={sympy.latex(lv)}$ ({fill})" for l, lv, fill in zip(labels, spec.levels, spec.fill))
         return [r"Declared trapped spectrum, $x=e^{-\beta\hbar\omega}$: "
                 rf"$b_n={weight}\lim_{{\omega\to0}}[z^n]\ln\Xi_{{\mathrm{{trap}}}}/Z_{{1,\mathrm{{ref}}}}(x)$; "

@@ -11,7 +11,9 @@ and the thermodynamic limit divides by the reference one-body function and weigh
 effective area for the cluster:
 
     b_n = W_n lim_{t -> 0} c_n(x) / Z_{1,ref}(x),   W_n = (M_n / m_ref)^{d/2} ("area mass")
-                                                   or W_n = |n| ("area count", lowest Landau level).
+                                                   or W_n = |n| ("area count", lowest Landau level)
+                                                   or W_n = 1 ("area one": the trapped gas itself,
+                                                   densities counted per one-body partition function).
 
 Everything is a truncated power series in t with exact coefficients (polynomials in the parameters):
 with p_i the order of the pole of L_i at t = 0, the rescaled functions t^{sum_i p_i n_i} Z_n are
@@ -310,6 +312,8 @@ def trapped_clusters(species: Sequence[SpeciesSpectrum], shift: Callable[[Index]
 def area_weight(index: Index, masses: Sequence[sympy.Expr], m_ref: sympy.Expr, d: int, area: str) -> sympy.Expr:
     if area == "count":
         return sympy.Integer(sum(index))
+    if area == "one":
+        return sympy.Integer(1)
     total = sympy.Add(*(n * m for n, m in zip(index, masses)))
     return sympy.powsimp(sympy.Pow(total / m_ref, sympy.Rational(d, 2)))
 
