@@ -259,6 +259,20 @@ def test_json_series_of_a_kinked_coefficient_parse_back():
     assert middle.getO() == sympy.Order((ALPHA - sympy.Rational(1, 2)) ** 2, (ALPHA, sympy.Rational(1, 2)))
 
 
+def test_series_about_a_nonzero_point_print_in_powers_of_the_shift(cli):
+    # a_2 = -1/4 + alpha - alpha^2/2 on [0, 2] [Arovas, Schrieffer, Wilczek, Zee 1985]: about the
+    # fermion point its Taylor polynomial is 1/4 - (alpha - 1)^2/2 (value 1/4, slope 0, curvature -1;
+    # by hand), printed as such rather than re-expanded in powers of alpha
+    result = cli("run", "-e", "dimension 2 parameter alpha species A exchange alpha clusters pairphase "
+                 "derive virial up to 2 expand alpha about 1 to 3")
+    assert result.returncode == 0, result.stderr
+    line, = [l for l in result.stdout.splitlines() if "series in alpha" in l]
+    assert line.endswith("(analytic): 1/4 - (alpha - 1)**2/2 + O((alpha - 1)**4, (alpha, 1))")
+    latex = cli("run", "-e", "dimension 2 parameter alpha species A exchange alpha clusters pairphase "
+                "derive virial up to 2 expand alpha about 1 to 3", "--format", "latex").stdout
+    assert r"\frac{1}{4} - \frac{\left(\alpha - 1\right)^{2}}{2} + O\left(" in latex
+
+
 def test_latex_series_rows_in_snippet_and_document():
     d = clusterexp.derive(KINKED)
     snippet = latex_snippet(d)

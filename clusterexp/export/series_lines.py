@@ -11,10 +11,38 @@ def _remainder_text(piece) -> str:
     return " + ".join(sympy.sstr(o) for o in piece.remainder)
 
 
+def about_point(piece) -> sympy.Expr:
+    """The polynomial of a series piece in powers of (p - p0), lowest power first when printed: a
+    series about p0 = 1 reads 1/4 - (alpha - 1)**2/2, not -alpha**2/2 + alpha - 1/4 (the same value)."""
+    polynomial, variable, point = piece.polynomial, piece.variable, piece.point
+    if point == 0 or not polynomial.has(variable):
+        return polynomial
+    shift = sympy.Dummy("u")
+    coefficients = sympy.Poly(sympy.expand(polynomial.subs(variable, shift + point)), shift).all_coeffs()[::-1]
+    terms = [sympy.expand(c) if k == 0 else
+             sympy.Mul(sympy.expand(c), (variable - point) ** k if k > 1 else variable - point, evaluate=False)
+             for k, c in enumerate(coefficients) if c != 0]
+    return sympy.Add(*terms, evaluate=False)
+
+
 def series_value_text(piece) -> str:
-    """Polynomial plus its O terms, sympy-parsable (the O terms printed apart so that sympy's own
-    addition cannot reorder or swallow the known terms)."""
-    return f"{sympy.sstr(piece.polynomial, order='lex')} + {_remainder_text(piece)}"
+    """Polynomial (in powers of p - p0) plus its O terms, sympy-parsable (the O terms printed apart so
+    that sympy's own addition cannot reorder or swallow the known terms)."""
+    return f"{_ordered_text(about_point(piece), piece)} + {_remainder_text(piece)}"
+
+
+def _ordered_text(expr, piece) -> str:
+    if piece.point == 0 or not isinstance(expr, sympy.Add):
+        return sympy.sstr(expr, order="lex")
+    return _joined([sympy.sstr(term, order="lex") for term in expr.args])
+
+
+def _joined(texts: list[str]) -> str:
+    """Terms joined by signs: a term printed with a leading minus takes the place of the plus."""
+    out = texts[0]
+    for text in texts[1:]:
+        out += f" - {text[1:].lstrip()}" if text.startswith("-") else f" + {text}"
+    return out
 
 
 def series_text_lines(derivation: Derivation, c: Coefficient) -> list[str]:
@@ -54,7 +82,11 @@ def series_latex_rows(derivation: Derivation, c: Coefficient, amp: str, symbol_n
     """Extra rows under a coefficient: `&= polynomial + O(...) \\qquad (side)`."""
     rows = []
     for p in derivation.series_of(c):
-        body = sympy.latex(p.polynomial, symbol_names=symbol_names or {}, order="lex")
+        shifted = about_point(p)
+        if p.point != 0 and isinstance(shifted, sympy.Add):
+            body = _joined([sympy.latex(t, symbol_names=symbol_names or {}) for t in shifted.args])
+        else:
+            body = sympy.latex(shifted, symbol_names=symbol_names or {}, order="lex")
         orders = " + ".join(_order_latex(o) for o in p.remainder)
         rows.append(rf"  {amp}= {body} + {orders} \qquad \left({_side_latex(p)}\right)")
     return rows
