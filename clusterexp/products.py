@@ -60,14 +60,15 @@ def run_checks(derivation) -> list:
             label += f" up to {_limits_text(limits)}"
             if set(known) - {s for s, _ in claim.limits} or any(known[s] < k for s, k in claim.limits if s in known):
                 notes.append(f"the derived value is known only up to {_limits_text(known)}")
+        as_decimal = bool(claim.rounded) and not limits and not derived.free_symbols
         try:
-            if claim.rounded and not limits and not derived.free_symbols:
+            if as_decimal:
                 result = check_decimal_claim(claim.rounded, derived, label=label)
             else:
                 result = check_claim(claimed, derived, system.parameters, label=label)
         except InputError as error:
             raise _at(error, claim.span) from None
-        if not result.ok and claim.decimals and not (claim.rounded and not limits and not derived.free_symbols):
+        if not result.ok and claim.decimals and not as_decimal:
             exact = ", ".join(f"{d} = {sympy.Rational(d)}" for d in claim.decimals[:3])
             notes.append(f"decimals inside a claim are read as exact fractions ({exact}); a claim that is one "
                          "decimal number is compared at its written digits only against a derived value that is "
