@@ -41,7 +41,7 @@ import mpmath
 import sympy
 
 from .errors import InputError
-from .numbers import Interval, parameter_interval
+from .numbers import Interval, evaluate, format_number, parameter_interval
 
 PROVEN = "proven"
 CONSISTENT = "numerically consistent, not proven"
@@ -260,7 +260,7 @@ def check_decimal_claim(text: str, derived, *, label: str | None = None,
         return CheckResult(PROVEN, method=f"the decimal {text} is the exact value ({how})",
                            difference=sympy.Integer(0), **common)
     half_unit = sympy.Rational(1, 2) * sympy.Rational(10) ** last
-    shown = format_number_digits(derived, significant + 6)
+    shown = format_number(evaluate(derived, {}, significant + 6), significant + 6)
     imaginary = sympy.im(derived)
     if _sign(imaginary) != 0:
         reason = "is not real"
@@ -289,15 +289,6 @@ def _sign(value) -> int:
         return 0
     re = sympy.re(number)
     return int(bool(re > 0)) - int(bool(re < 0))
-
-
-def format_number_digits(value, digits: int) -> str:
-    """A sympy number as text with `digits` significant digits (mpmath's nstr)."""
-    with mpmath.workdps(digits + 10):
-        number = sympy.N(value, digits + 10)
-        if number.is_real:
-            return mpmath.nstr(mpmath.mpf(sympy.Float(number, digits + 10)._mpf_), digits)
-        return sympy.sstr(number.evalf(digits))
 
 
 def _mismatch(common, simplified, intervals, point, left, right, shown_intervals, good, skipped, notes,
