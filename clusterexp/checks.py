@@ -46,7 +46,8 @@ from .numbers import Interval, evaluate, format_number, parameter_interval
 PROVEN = "proven"
 CONSISTENT = "numerically consistent, not proven"
 MISMATCH = "mismatch"
-STATUSES = (PROVEN, CONSISTENT, MISMATCH)
+UNDECIDED = "undecided"  # the claim holds exactly when named many-body pieces take stated values
+STATUSES = (PROVEN, CONSISTENT, MISMATCH, UNDECIDED)
 
 MAX_SIMPLIFY_OPS = 3000     # larger differences are not handed to simplify
 SHOWN_DIGITS = 20           # digits of the two values printed at a mismatch
@@ -77,6 +78,12 @@ class CheckResult:
     truncation: tuple[int, tuple[str, ...]] | None = None
     notes: tuple[str, ...] = field(default=())
     rounding: str | None = None
+    conditions: tuple = ()  # UNDECIDED: the equations on named pieces under which the claim holds
+
+    @property
+    def condition(self):
+        """The conditions as one expression (a tuple of equations), or None."""
+        return sympy.Tuple(*self.conditions) if self.conditions else None
 
     @property
     def ok(self) -> bool:
@@ -104,6 +111,9 @@ class CheckResult:
                      f"{self.points} rational point{'s' if self.points != 1 else ''}"
                      + (f" ({where})" if where else "") + f" to {self.digits} significant digits; "
                      + self.method]
+        elif self.status == UNDECIDED:
+            lines = [f"undecided: {self._subject()} holds if and only if the named many-body pieces satisfy "
+                     f"({self.method}):"] + [f"  {_text(e.lhs)} = {_text(e.rhs)}" for e in self.conditions]
         else:
             lines = [f"mismatch: {self._subject()} differs from the derived value ({self.method})"]
             if self.difference is not None:
@@ -126,7 +136,7 @@ class CheckResult:
 
     def _repr_latex_(self) -> str:
         head = {PROVEN: r"\text{proven}", CONSISTENT: r"\text{numerically consistent, not proven}",
-                MISMATCH: r"\text{mismatch}"}[self.status]
+                MISMATCH: r"\text{mismatch}", UNDECIDED: r"\text{undecided}"}[self.status]
         body = sympy.latex(self.claimed) + (r" = " if self.status != MISMATCH else r" \neq ") + sympy.latex(self.derived)
         if self.status == MISMATCH and self.difference is not None:
             body += r",\quad \Delta = " + sympy.latex(self.difference)
@@ -228,6 +238,24 @@ def check_claim(claimed, derived, parameters: Sequence = (), *, points: int = 20
         notes += (f"only {good} non-singular points found in {attempts} tries",)
     return CheckResult(CONSISTENT, method=how, difference=None, points=good, skipped=skipped,
                        intervals=shown_intervals, notes=notes, **common)
+
+
+def check_with_pieces(claimed, derived, system, *, label: str | None = None,
+                      truncation=None) -> CheckResult | None:
+    """A claim whose difference from the derived value involves named many-body pieces (unknown
+    functions, not free symbols): undecided, with the equations on the pieces under which it holds,
+    or a mismatch when some part of it is wrong whatever the pieces are. None: no piece involved."""
+    from .pieces import conditions
+    claimed, derived = sympy.sympify(claimed), sympy.sympify(derived)
+    equations = conditions(system, claimed - derived)
+    if equations is None:
+        return None
+    common = dict(claimed=claimed, derived=derived, label=label, truncation=truncation)
+    if sympy.false in equations:
+        return CheckResult(MISMATCH, method="a part of claimed - derived that no unknown piece enters is not "
+                           "zero", difference=sympy.expand(claimed - derived), **common)
+    return CheckResult(UNDECIDED, method="the derived value contains many-body pieces the tool cannot compute",
+                       difference=sympy.expand(claimed - derived), conditions=tuple(equations), **common)
 
 
 def decimal_places(text: str) -> tuple[int, int]:

@@ -224,7 +224,8 @@ def derive_system(system: System, size_limit: int | None = None, progress=None) 
         return Coefficient(kind, tuple(index), names, value, component=component, compute_terms=terms)
 
     return Derivation(system, coefficients, make=make,
-                      compute_sampled=_sampled(plan) if system.samplings else None)
+                      compute_sampled=_sampled(plan) if system.samplings else None,
+                      truncated=bool(plan.truncation))
 
 
 def _sampled(plan: _Plan):
@@ -252,7 +253,12 @@ def _lookup(plan: _Plan, kind: str, index: Index, i: int | None = None):
         value = sympy.sympify(t[index] if isinstance(t, CoefficientTable) else t.get(index, sympy.Integer(0)))
         limits = plan.truncation_for(index) if plan.truncation else {}
         if limits and not (kind == "virial" and sum(index) == 1):
+            from .pieces import truncate_pieces
             from .routes.pairphase import truncate
+            try:
+                value = truncate_pieces(plan.system, value, limits)[0]
+            except InputError as error:
+                raise InputError(error.message, plan.system.source.span) from None
             try:
                 value = truncate(value, limits)
             except ValueError as error:

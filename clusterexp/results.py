@@ -92,11 +92,14 @@ class Derivation:
         if key not in self._series:
             from .routes.pairphase import expansion_of
             # a coefficient free of the variable is its own series: no line for it
-            self._series[key] = [piece for e in self.system.expansions if c.value.has(e.symbol)
-                                 for piece in expansion_of(c.label, c.value, e, self.system.parameters)]
+            from .pieces import depends_through_pieces
+            self._series[key] = [piece for e in self.system.expansions
+                                 if c.value.has(e.symbol) or depends_through_pieces(self.system, c.value, e.symbol)
+                                 for piece in expansion_of(c.label, c.value, e, self.system)]
         return self._series[key]
 
     compute_sampled: Callable[[], object] | None = field(default=None, repr=False, compare=False)
+    truncated: bool = field(default=False, repr=False, compare=False)  # values truncated by given series
 
     @property
     def sampled(self):
@@ -159,6 +162,17 @@ class Derivation:
         """Every `tabulate` statement with its rows (header first): [(Table, rows)]."""
         from .products import run_tables
         return self._cached("_tables", run_tables)
+
+    def unknowns(self) -> list:
+        """The named Taylor coefficients of many-body pieces (`pieces.Unknown`) that the printed
+        values, series and checks use, sorted by name."""
+        from .pieces import unknowns_in
+        values = [p.polynomial for c in self.coefficients for p in self.series_of(c)]
+        if self.truncated:
+            values += [c.value for c in self.coefficients]
+        if self.system.claims:
+            values += [e for r in self.checks for e in (r.difference, r.condition) if e is not None]
+        return unknowns_in(values)
 
     @property
     def failed_checks(self) -> list:

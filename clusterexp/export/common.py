@@ -110,6 +110,9 @@ def check_record(result) -> dict:
         record["points"] = result.points
     if result.notes:
         record["notes"] = list(result.notes)
+    if result.conditions:
+        record["holds_if"] = [f"{sympy.sstr(e.lhs, order='lex')} = {sympy.sstr(e.rhs, order='lex')}"
+                              for e in result.conditions]
     return record
 
 

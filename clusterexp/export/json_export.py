@@ -42,6 +42,9 @@ def to_json(derivation: Derivation) -> str:
                               for e, rows in derivation.evaluations]
     if system.tables or system.figures:
         document["files"] = [t.path for t in system.tables] + [f.path for f in system.figures]
+    unknowns = derivation.unknowns()
+    if unknowns:
+        document["unknowns"] = {u.symbol.name: u.description for u in unknowns}
     if system.samplings:
         from ..loops.report import json_items
         document["sampled"] = json_items(derivation.sampled)

@@ -27,6 +27,8 @@ def _symbol_names(derivation: Derivation) -> dict:
         chosen = system.typesetting.symbol(p.name)
         if chosen:  # a name of several symbols (\hbar\omega, m_B/m_A) stays one factor in products and powers
             names[p.symbol] = chosen if is_single_atom(chosen) else rf"\left({chosen}\right)"
+    for unknown in derivation.unknowns():
+        names[unknown.symbol] = unknown.latex(names)
     return names
 
 
@@ -151,6 +153,7 @@ def latex_document(derivation: Derivation) -> str:
         *regime_latex(system),
         *pairphase_latex_paragraphs(derivation),
         latex_snippet(derivation).rstrip("\n"),
+        *_unknowns_latex(derivation, names),
         *_checks_latex(derivation, labels, w, names),
         *_values_latex(derivation, labels, w, names),
         r"\end{document}",
@@ -161,6 +164,16 @@ def latex_document(derivation: Derivation) -> str:
 def _name(derivation, target, labels, w) -> str:
     c = derivation.coefficient(target.kind, target.index, target.component)
     return _lhs(c, labels, derivation.system.dimension, w)
+
+
+def _unknowns_latex(derivation: Derivation, names) -> list[str]:
+    """What each named Taylor coefficient of a many-body piece stands for."""
+    unknowns = derivation.unknowns()
+    if not unknowns:
+        return []
+    return [r"Unknown Taylor coefficients of the named many-body pieces (the pieces are continuous; at a kink "
+            r"each side has its own coefficients):", r"\begin{itemize}"] + \
+        [rf"\item ${names[u.symbol]}$: {u.latex_description(names)}." for u in unknowns] + [r"\end{itemize}"]
 
 
 def _checks_latex(derivation: Derivation, labels, w, names) -> list[str]:
@@ -179,6 +192,10 @@ def _checks_latex(derivation: Derivation, labels, w, names) -> list[str]:
         if result.status == "mismatch" and result.difference is not None:
             difference = aligned_rows(r"\Delta", sympy.latex(result.difference, symbol_names=names))
             line += "; claimed minus derived:\n" + "\\begin{align*}\n" + difference + "\n\\end{align*}"
+        elif result.conditions:
+            rows = r" \\ ".join(f"{sympy.latex(e.lhs, symbol_names=names)} &= {sympy.latex(e.rhs, symbol_names=names)}"
+                                for e in result.conditions)
+            line += "; it holds if and only if\n\\begin{align*}\n" + rows + "\n\\end{align*}"
         else:
             line += "."
         out.append(line)

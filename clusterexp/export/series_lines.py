@@ -15,12 +15,13 @@ def about_point(piece) -> sympy.Expr:
     """The polynomial of a series piece in powers of (p - p0), lowest power first when printed: a
     series about p0 = 1 reads 1/4 - (alpha - 1)**2/2, not -alpha**2/2 + alpha - 1/4 (the same value)."""
     polynomial, variable, point = piece.polynomial, piece.variable, piece.point
-    if point == 0 or not polynomial.has(variable):
+    if (point == 0 and not piece.unknowns) or not polynomial.has(variable):
         return polynomial
     shift = sympy.Dummy("u")
     coefficients = sympy.Poly(sympy.expand(polynomial.subs(variable, shift + point)), shift).all_coeffs()[::-1]
+    base = variable - point if point != 0 else variable
     terms = [sympy.expand(c) if k == 0 else
-             sympy.Mul(sympy.expand(c), (variable - point) ** k if k > 1 else variable - point, evaluate=False)
+             sympy.Mul(sympy.expand(c), base ** k if k > 1 else base, evaluate=False)
              for k, c in enumerate(coefficients) if c != 0]
     return sympy.Add(*terms, evaluate=False)
 
@@ -32,7 +33,7 @@ def series_value_text(piece) -> str:
 
 
 def _ordered_text(expr, piece) -> str:
-    if piece.point == 0 or not isinstance(expr, sympy.Add):
+    if (piece.point == 0 and not piece.unknowns) or not isinstance(expr, sympy.Add):
         return sympy.sstr(expr, order="lex")
     return _joined([sympy.sstr(term, order="lex") for term in expr.args])
 
@@ -66,6 +67,7 @@ def series_json(derivation: Derivation, c: Coefficient) -> dict:
         "range_edge": p.edge,
         "value": series_value_text(p),
         "remainder": _remainder_text(p),
+        **({"unknowns": [u.symbol.name for u in p.unknowns]} if p.unknowns else {}),
     } for p in derivation.series_of(c)]}
 
 
@@ -83,7 +85,7 @@ def series_latex_rows(derivation: Derivation, c: Coefficient, amp: str, symbol_n
     rows = []
     for p in derivation.series_of(c):
         shifted = about_point(p)
-        if p.point != 0 and isinstance(shifted, sympy.Add):
+        if (p.point != 0 or p.unknowns) and isinstance(shifted, sympy.Add):
             body = _joined([sympy.latex(t, symbol_names=symbol_names or {}) for t in shifted.args])
         else:
             body = sympy.latex(shifted, symbol_names=symbol_names or {}, order="lex")

@@ -20,6 +20,10 @@ def to_text(derivation: Derivation) -> str:
         lines.append(f"  {c.label} = {c.text}")
         lines += [f"    {line}" for line in series_text_lines(derivation, c)]
     lines += product_lines(derivation)
+    unknowns = derivation.unknowns()
+    if unknowns:
+        lines += ["", "unknown Taylor coefficients of the named many-body pieces (pieces are continuous; at a kink "
+                  "each side has its own):"] + [f"  {u.symbol} = {u.description}" for u in unknowns]
     if derivation.system.samplings:
         from ..loops.report import text_lines
         lines += text_lines(derivation.sampled)

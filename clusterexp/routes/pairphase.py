@@ -250,6 +250,7 @@ class SeriesPiece:
     edge: bool
     polynomial: sympy.Expr
     remainder: tuple
+    unknowns: tuple = ()  # `pieces.Unknown`s: named Taylor coefficients of many-body pieces in `polynomial`
 
     @property
     def one_sided(self) -> bool:
@@ -280,11 +281,14 @@ def _range_edge(symbol, point, parameters) -> str | None:
     return None
 
 
-def expansion_of(label: str, value: sympy.Expr, expansion, parameters=()) -> list[SeriesPiece]:
+def expansion_of(label: str, value: sympy.Expr, expansion, system) -> list[SeriesPiece]:
     """The series of one coefficient for one `expand` request (one piece per side); refuses a kinked
     expansion asked as if analytic, a side outside the declared range, and a series about another
-    point than that of a given truncated series."""
+    point than that of a given truncated series. Named many-body pieces that depend on the variable
+    are expanded too, with named Taylor coefficients (`pieces.expand_pieces`)."""
     from ..errors import InputError
+    from ..pieces import any_kink, expand_pieces
+    parameters = system.parameters
     symbol, point, order, side, span = (expansion.symbol, expansion.point, expansion.order, expansion.side,
                                         expansion.span)
     exact, limits = split_truncation(value)
@@ -294,7 +298,7 @@ def expansion_of(label: str, value: sympy.Expr, expansion, parameters=()) -> lis
             raise InputError(f"{label} is known only as a series about {symbol} = 0 (to O({symbol}^{limits[symbol]})); "
                              f"it cannot be expanded about {symbol} = {point}", span)
         known = min(order, limits[symbol] - 1)
-    kinked = kinks(exact, symbol, point)
+    kinked = kinks(exact, symbol, point) or any_kink(system, exact, symbol, point)
     edge = _range_edge(symbol, point, parameters)
     inside = {"lower": "above", "upper": "below", None: None}[edge]
     if side is None:
@@ -313,6 +317,10 @@ def expansion_of(label: str, value: sympy.Expr, expansion, parameters=()) -> lis
     own = sympy.Order(step) if point == 0 else sympy.Order(step, (symbol, point))
     others = tuple(sympy.Order(s ** k) for s, k in sorted(limits.items(), key=lambda item: item[0].name)
                    if s != symbol)
-    return [SeriesPiece(symbol, point, order, known, s, kinked, edge is not None,
-                        one_sided_series(exact, symbol, point, known, s or "above"), (own,) + others)
-            for s in sides]
+    out = []
+    for s in sides:
+        expanded, unknowns = expand_pieces(system, exact, [(symbol, point, known, s)])
+        out.append(SeriesPiece(symbol, point, order, known, s, kinked, edge is not None,
+                               one_sided_series(expanded, symbol, point, known, s or "above"), (own,) + others,
+                               tuple(unknowns)))
+    return out

@@ -1,0 +1,319 @@
+"""Named many-body pieces (b_3, b_2_1, a_3, ...) as the functions they are.
+
+A piece the tool cannot compute stays a named symbol, but it is not a constant: it is an unknown
+function of every parameter in the definition of the species it involves (their masses and exchange
+parameters, the mutual parameters among them, and the flux tubes). A series or a truncated
+comparison in such a parameter must therefore expand the piece too. This module names its Taylor
+coefficients,
+
+    b_3 = b_3_alpha_0 + b_3_alpha_1_above alpha + b_3_alpha_2_above alpha^2 + O(alpha^3)   (alpha -> 0+),
+
+so that every O term printed through a piece is one the tool can back.
+
+Where the expansion point is a kink of the piece, the expansion is one-sided and its coefficients
+from above and from below are different unknowns; the value at the point itself (order 0) is shared,
+pieces being continuous. A piece is taken to have a kink wherever its pair phases can: an exchange
+parameter at a boson point (0 mod 2), a mutual parameter or a tube flux at 0 mod 1 (the |alpha| term
+of the exact two-body coefficients; physics.md, route R3). Elsewhere it is taken to be analytic.
+"""
+from __future__ import annotations
+
+import itertools
+import re
+from dataclasses import dataclass
+from typing import Iterable, Mapping, Sequence
+
+import sympy
+
+from .naming import bracket_label
+
+_PIECE = re.compile(r"^([ab])_(\d+(?:_\d+)*)$")
+SIDE_SIGNS = {"above": "+", "below": "-"}
+
+
+@dataclass(frozen=True)
+class Unknown:
+    """One named Taylor coefficient of a piece: the coefficient of prod_v (v - v0)^k_v in `piece`
+    about the point, approached from `sides[v]` in the variables where the point is a kink."""
+
+    symbol: sympy.Symbol
+    piece: sympy.Symbol
+    monomial: tuple[tuple[sympy.Symbol, sympy.Expr, int, str | None], ...]  # (variable, point, power, side)
+
+    @property
+    def description(self) -> str:
+        """E.g. `coefficient of alpha^2 in b[3] about alpha = 0 from above`, `value of b[3] at alpha = 0`."""
+        powers = " ".join(_power_text(v, p, k) for v, p, k, _ in self.monomial if k)
+        where = ", ".join(f"{v} = {p}" + (f" from {s}" if s and k else "") for v, p, k, s in self.monomial)
+        what = piece_label(self.piece)
+        return f"coefficient of {powers} in {what} about {where}" if powers else f"value of {what} at {where}"
+
+    def latex(self, names: Mapping | None = None) -> str:
+        """{b_3}^{[alpha^2]+}: the coefficient of alpha^2 from above; b_3|_{alpha=0}: the value there."""
+        names = dict(names or {})
+        base = names.get(self.piece) or sympy.latex(self.piece)
+        factors = []
+        for v, p, k, _ in self.monomial:
+            if not k:
+                continue
+            var = sympy.latex(v - p if p != 0 else v, symbol_names=names)
+            var = var if p == 0 else rf"({var})"
+            factors.append(var if k == 1 else f"{var}^{{{k}}}")
+        if not factors:
+            where = ",".join(f"{sympy.latex(v, symbol_names=names)}={sympy.latex(p)}" for v, p, _, _ in self.monomial)
+            return rf"\left.{base}\right|_{{{where}}}"
+        signs = "".join(SIDE_SIGNS[s] for _, _, k, s in self.monomial if s and k)
+        return rf"{{{base}}}^{{[{' '.join(factors)}]{signs}}}"
+
+    def latex_description(self, names: Mapping | None = None) -> str:
+        """The description with the symbols typeset (for the LaTeX document)."""
+        names = dict(names or {})
+        powers = [sympy.latex((v - p) ** k if p != 0 else v ** k, symbol_names=names)
+                  for v, p, k, _ in self.monomial if k]
+        where = ", ".join(f"${sympy.latex(v, symbol_names=names)}={sympy.latex(p)}$"
+                          + (f" from {s}" if s and k else "") for v, p, k, s in self.monomial)
+        what = f"${names.get(self.piece) or sympy.latex(self.piece)}$"
+        if not powers:
+            return f"the value of {what} at {where}"
+        return f"the coefficient of ${' '.join(powers)}$ in {what} about {where}"
+
+
+def _power_text(v, p, k) -> str:
+    base = str(v) if p == 0 else f"({v} - {p})"
+    return base if k == 1 else f"{base}^{k}"
+
+
+# Every unknown ever named, by its symbol's name. A name is a function of what it means (piece,
+# variables, points, powers, sides), so one table serves every derivation.
+_NAMED: dict[str, Unknown] = {}
+
+
+def piece_label(piece: sympy.Symbol) -> str:
+    match = _PIECE.match(piece.name)
+    if match is None:
+        return piece.name
+    return f"{match.group(1)}{bracket_label(tuple(int(n) for n in match.group(2).split('_')))}"
+
+
+def _root(symbol: sympy.Symbol) -> tuple[sympy.Symbol, set]:
+    """The generated piece an unknown descends from, and the names of the variables already expanded
+    on the way."""
+    expanded = set()
+    while symbol.name in _NAMED:
+        unknown = _NAMED[symbol.name]
+        expanded |= {v.name for v, _, _, _ in unknown.monomial}  # names: a symbol's assumptions may differ
+        symbol = unknown.piece
+    return symbol, expanded
+
+
+def piece_index(symbol: sympy.Symbol, K: int) -> tuple[int, ...] | None:
+    """The multi-index of a generated b/a symbol (or of a named Taylor coefficient of one) of a system
+    of K species, else None."""
+    root, _ = _root(symbol) if isinstance(symbol, sympy.Symbol) else (symbol, set())
+    match = _PIECE.match(getattr(root, "name", ""))
+    if not match:
+        return None
+    index = tuple(int(n) for n in match.group(2).split("_"))
+    return index if len(index) == K else None
+
+
+def pieces_in(value: sympy.Expr, K: int) -> list[sympy.Symbol]:
+    return sorted((s for s in sympy.sympify(value).free_symbols if piece_index(s, K) is not None),
+                  key=lambda s: s.name)
+
+
+def unknowns_in(values: Iterable) -> list[Unknown]:
+    """The named Taylor coefficients that occur in the given values, sorted by name."""
+    names = set()
+    for value in values:
+        names |= {s.name for s in sympy.sympify(value).free_symbols if s.name in _NAMED}
+    return [_NAMED[n] for n in sorted(names)]
+
+
+def _definitions(system, index) -> list[tuple[str, sympy.Expr]]:
+    """(kind, expression) of everything a piece with this multi-index depends on: kind "exchange"
+    (period 2), "mutual" and "flux" (period 1), "smooth" (masses, the tube coverage)."""
+    occupied = [i for i, n in enumerate(index) if n]
+    names = system.species_names
+    out = []
+    for i in occupied:
+        out += [("smooth", system.species[i].mass), ("exchange", system.species[i].exchange)]
+    out.append(("smooth", system.reference_mass))
+    for i, j in itertools.combinations(occupied, 2):
+        out.append(("mutual", system.mutual(names[i], names[j])))
+    if system.tubes is not None:
+        out += [("flux", system.tubes.flux), ("smooth", system.tubes.coverage)]
+    return out
+
+
+_PERIODS = {"exchange": 2, "mutual": 1, "flux": 1}
+
+
+def depends_on(system, piece: sympy.Symbol) -> set[sympy.Symbol]:
+    """The parameters a piece (or an unknown Taylor coefficient of one) is a function of."""
+    index = piece_index(piece, len(system.species))
+    _, expanded = _root(piece)
+    return {s for _, e in _definitions(system, index) for s in sympy.sympify(e).free_symbols if s.name not in expanded}
+
+
+def kinked(system, piece: sympy.Symbol, variable: sympy.Symbol, point) -> bool:
+    """Whether the piece may have a kink in `variable` at `point` (a pair phase at its boson point;
+    a point where that cannot be decided counts as a kink)."""
+    index = piece_index(piece, len(system.species))
+    for kind, expr in _definitions(system, index):
+        expr = sympy.sympify(expr)
+        if kind == "smooth" or variable not in expr.free_symbols:
+            continue
+        at = expr.subs(variable, point)
+        if not at.is_number:
+            return True
+        if (at / _PERIODS[kind]).is_integer:
+            return True
+    return False
+
+
+def any_kink(system, value, variable, point) -> bool:
+    return any(variable in depends_on(system, p) and kinked(system, p, variable, point)
+               for p in pieces_in(value, len(system.species)))
+
+
+def depends_through_pieces(system, value, variable) -> bool:
+    return any(variable in depends_on(system, p) for p in pieces_in(value, len(system.species)))
+
+
+def _name(piece, monomial) -> str:
+    parts = [piece.name]
+    for v, p, k, s in monomial:
+        part = f"{v.name}_{k}"
+        if p != 0:
+            part += "_about_" + re.sub(r"[^0-9a-z]", "_", sympy.sstr(p).replace("-", "m"))
+        if s and k:
+            part += f"_{s}"
+        parts.append(part)
+    return "_".join(parts)
+
+
+def expand_pieces(system, value: sympy.Expr, variables: Sequence[tuple[sympy.Symbol, sympy.Expr, int, str | None]]
+                  ) -> tuple[sympy.Expr, list[Unknown]]:
+    """`value` with every named piece that depends on one of the `variables` replaced by its Taylor
+    polynomial with named coefficients. `variables`: (symbol, point, highest power kept, side) with
+    side "above"/"below" used where the point is a kink of the piece (None: the caller has checked
+    there is none). Returns the new value and the unknowns introduced, in a fixed order."""
+    K = len(system.species)
+    unknowns: list[Unknown] = []
+    replacements = {}
+    for piece in pieces_in(value, K):
+        own = depends_on(system, piece)
+        used = [(v, p, k, s if kinked(system, piece, v, p) else None) for v, p, k, s in variables if v in own]
+        if not used:
+            continue
+        for v, p, _, s in used:
+            if s is None and kinked(system, piece, v, p):
+                raise ValueError(f"{piece_label(piece)} is not analytic at {v} = {p}")
+        polynomial = sympy.Integer(0)
+        for powers in itertools.product(*(range(k + 1) for _, _, k, _ in used)):
+            monomial = tuple((v, p, e, s) for (v, p, _, s), e in zip(used, powers))
+            coefficient = value_at(system, piece, {v: p for v, p, _, _ in used}) if not any(powers) else None
+            if coefficient is None:
+                unknown = Unknown(sympy.Symbol(_name(piece, monomial)), piece, monomial)
+                _NAMED.setdefault(unknown.symbol.name, unknown)
+                unknowns.append(unknown)
+                coefficient = unknown.symbol
+            polynomial += coefficient * sympy.Mul(*((v - p) ** e for v, p, e, _ in monomial))
+        replacements[piece] = polynomial
+    if not replacements:
+        return value, []
+    return sympy.expand(sympy.sympify(value).xreplace(replacements)), unknowns
+
+
+def value_at(system, piece: sympy.Symbol, point: Mapping) -> sympy.Expr | None:
+    """The exact value of a cluster piece at a point of its parameters where the regime knows it
+    (e.g. every pair phase at a boson or fermion point, or no braiding left inside the cluster),
+    else None. The pieces are continuous there, so this is also the order-0 Taylor coefficient from
+    either side."""
+    import dataclasses
+    from .routes.pairphase import two_body_clusters
+    if piece.name in _NAMED or system.source.kind != "pairphase" or not piece.name.startswith("b_"):
+        return None
+    index = piece_index(piece, len(system.species))
+    point = {v: sympy.sympify(p) for v, p in point.items()}
+
+    def at(expr):
+        return sympy.sympify(expr).subs(point)
+    species = tuple(dataclasses.replace(s, mass=at(s.mass), exchange=at(s.exchange)) for s in system.species)
+    mutuals = tuple(dataclasses.replace(m, value=at(m.value)) for m in system.mutuals)
+    tubes = system.tubes and dataclasses.replace(system.tubes, flux=at(system.tubes.flux),
+                                                 coverage=at(system.tubes.coverage))
+    there = dataclasses.replace(system, species=species, mutuals=mutuals, tubes=tubes)
+    value = two_body_clusters(there, sum(index)).get(index)
+    return None if value is None else sympy.expand(value)
+
+
+def side_in_range(parameters: Iterable, symbol: sympy.Symbol, point) -> str | None:
+    """The side of `point` on which the declared range of `symbol` lies, when the point ends it."""
+    p = next((p for p in parameters if p.symbol == symbol), None)
+    if p is None:
+        return None
+    if p.lower is not None and sympy.simplify(p.lower - point) == 0:
+        return "above"
+    if p.upper is not None and sympy.simplify(p.upper - point) == 0:
+        return "below"
+    if p.lower is not None and bool(p.lower > point):
+        return "above"
+    if p.upper is not None and bool(p.upper < point):
+        return "below"
+    return None
+
+
+def truncate_pieces(system, value, limits: Mapping[sympy.Symbol, int]) -> tuple[sympy.Expr, list[Unknown]]:
+    """For a comparison or value truncated at O(p^k) (about p = 0): the pieces expanded through p^(k-1),
+    one-sided on the side of 0 where p's declared range lies; a piece with a kink at 0 whose range
+    lies on both sides is refused (InputError without a place: the caller adds it)."""
+    variables = []
+    for symbol, k in sorted(limits.items(), key=lambda item: item[0].name):
+        side = side_in_range(system.parameters, symbol, 0)
+        if side is None and any_kink(system, value, symbol, 0):
+            from .errors import InputError
+            raise InputError(f"the named many-body pieces are not analytic at {symbol} = 0 (boson point): "
+                             f"declare the range of {symbol} on one side of 0")
+        variables.append((symbol, sympy.Integer(0), k - 1, side))
+    return expand_pieces(system, value, variables)
+
+
+def unknowns_text(unknowns: Sequence[Unknown]) -> list[str]:
+    """One line per unknown: `name = coefficient of ... in b[3] about ...`."""
+    return [f"{u.symbol} = {u.description}" for u in unknowns]
+
+
+
+
+def conditions(system, difference: sympy.Expr) -> list[sympy.Expr] | None:
+    """What must hold for `difference` (claimed - derived) to vanish, when it involves named pieces:
+    one equation per monomial in the parameters no piece there depends on, when it is a polynomial
+    in them (each solved for a piece where it is linear in one), else the whole difference = 0. None:
+    no piece involved. A part free of pieces that is not 0 comes back as `sympy.false` (refuted
+    whatever the pieces are)."""
+    K = len(system.species)
+    difference = sympy.expand(difference)
+    unknown = pieces_in(difference, K)
+    if not unknown:
+        return None
+    felt = set().union(*(depends_on(system, p) for p in unknown))
+    others = sorted(difference.free_symbols - set(unknown) - felt, key=lambda s: s.name)
+    parts = [difference]
+    if others and difference.is_polynomial(*others):
+        parts = [c for c in sympy.Poly(difference, *others).coeffs() if c != 0]
+    out = []
+    for part in parts:
+        involved = pieces_in(part, K)
+        if not involved:
+            return [sympy.false]
+        solved = None
+        for piece in reversed(involved):  # the highest-named piece first: b_3_alpha_2 before b_3_alpha_0
+            if sympy.degree(part, piece) == 1:
+                solution = sympy.solve(part, piece, dict=True)
+                if len(solution) == 1:
+                    solved = sympy.Eq(piece, sympy.expand(solution[0][piece]), evaluate=False)
+                    break
+        out.append(solved if solved is not None else sympy.Eq(part, 0, evaluate=False))
+    return sorted(out, key=lambda e: sympy.sstr(e))
