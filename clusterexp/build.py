@@ -24,6 +24,8 @@ TRAP = sympy.Symbol("x")
 RESERVED = {"b", "a", "z", "rho", "pi", "I", "E"} | set(FUNCTIONS)
 GENERATED = re.compile(r"^(b|a|z|rho)_")
 DEFAULT_ORDER = 4
+# stands for a tube coverage declared as a number or an expression (reserved: GENERATED matches it)
+TUBE_COVERAGE = sympy.Symbol("rho_tubes", nonnegative=True)
 
 
 class _File:
@@ -349,11 +351,14 @@ class _Builder:
                 raise InputError(f"the tube {what} must be real", self.span(child))
         if coverage.is_number and coverage < 0:
             raise InputError("the tube coverage (tubes per lambda^2) cannot be negative", self.span(tree.children[1]))
-        self.tubes = Tubes(flux, coverage, self.span(tree))
-        self.warnings.append(("flux tubes enter to first order in their coverage (independent tubes); results "
-                              "carry O(coverage^2)" if not coverage.is_number else
-                              "flux tubes enter to first order in their coverage (independent tubes); the "
-                              "multi-tube corrections of order coverage^2 are not included", self.span(tree)))
+        if isinstance(coverage, sympy.Symbol):
+            self.tubes = Tubes(flux, coverage, self.span(tree))
+        else:  # a number or an expression: the results are still only first order in it
+            self.tubes = Tubes(flux, TUBE_COVERAGE, self.span(tree), value=coverage)
+        name = "coverage" if self.tubes.value is None else f"{TUBE_COVERAGE} = {sympy.sstr(coverage)}"
+        self.warnings.append((f"flux tubes enter to first order in their coverage (independent tubes); results "
+                              f"carry O({'coverage' if self.tubes.value is None else TUBE_COVERAGE}^2)"
+                              + ("" if self.tubes.value is None else f", {name}"), self.span(tree)))
 
     def _expand(self, tree):
         self.expansions.append((tree, self.file))

@@ -264,6 +264,11 @@ def _lookup(plan: _Plan, kind: str, index: Index, i: int | None = None):
             except ValueError as error:
                 raise InputError(f"{error}: declare the parameter's range inside one period so that the "
                                  "two-body parts have a single polynomial branch", plan.system.source.span) from None
+        tubes = plan.system.tubes
+        if tubes is not None and tubes.value is not None and value.has(tubes.coverage):
+            known = value.removeO()   # the first-order value at the declared coverage, with its O term kept
+            orders = [t for t in sympy.Add.make_args(value) if isinstance(t, sympy.Order)]
+            value = sympy.Add(sympy.expand(known.subs(tubes.coverage, tubes.value)), *orders)
         return value
 
     def compute_terms():

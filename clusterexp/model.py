@@ -120,8 +120,14 @@ class Tubes:
     quanta, coverage = tubes per lambda^2 of the reference species."""
 
     flux: sympy.Expr
-    coverage: sympy.Expr
+    coverage: sympy.Expr  # always a symbol: the results are series in it, first order known
     span: Span
+    value: sympy.Expr | None = None  # the declared coverage when it is not a bare symbol (`rho_tubes` stands for it)
+
+    @property
+    def declared(self) -> sympy.Expr:
+        """The coverage as the input declared it."""
+        return self.coverage if self.value is None else self.value
 
 
 @dataclass(frozen=True)

@@ -108,16 +108,15 @@ def coefficient_latex(coefficient) -> str:
 
 def conventions_caption(system=None) -> str:
     """The conventions a figure of coefficients needs, in one or two plain-text lines."""
+    from .export.quantities import quantities
     d = "d" if system is None else str(system.dimension)
     statistics = "exchange alpha = 0 bosons, 1 fermions (period 2); mutual alpha_ij period 1"
-    kind = getattr(getattr(system, "source", None), "kind", None)
-    form = getattr(getattr(system, "source", None), "form", None)
-    if kind == "landau":
-        expansion = "beta P / rho_L = sum_n b_n z^n = sum_n a_n nu^n, nu = rho / rho_L (lowest Landau level)"
-    elif kind == "exclusion" and form == "level":
-        expansion = "beta P / (states) = sum_n b_n z^n = sum_n a_n (density per state)^n (one level)"
-    else:
-        expansion = f"beta P lambda^{d} = sum_n b_n z^n = sum_n a_n (rho lambda^{d})^n"
+    q = quantities(system)
+    expansion = f"{q.pressure} = sum_n b_n z^n = sum_n a_n {q.variable}^n".replace("^d", f"^{d}")
+    if q.unit == "rho_L":
+        expansion += ", nu = rho / rho_L (lowest Landau level)"
+    elif q.unit != "lambda^d":
+        expansion += f" ({q.single.split(';')[0]})"
     return f"{statistics}; {expansion}"
 
 

@@ -1,4 +1,5 @@
 """Printers: deterministic, parsable, compilable."""
+import json
 import os
 import shutil
 import subprocess
@@ -179,3 +180,52 @@ def test_numbers_beyond_python_digit_limit_print_through_the_api():
     for (k,), c in top.items():
         if c.is_Rational:
             assert from_terms[k] == Fraction(int(c.p), int(c.q))
+
+
+# --- every printer states the quantity its regime computes, and what the input assumed -----------------
+
+LANDAU_INPUT = ("dimension 2 parameter t in [0, 1) species A exchange t species B exchange 1/3 mutual A B = t "
+                "clusters landau derive virial up to 2 derive density up to 2 derive fugacity up to 2")
+
+
+def test_lowest_landau_level_output_speaks_of_rho_L_not_lambda():
+    from clusterexp.export import latex_document, latex_snippet, to_json, to_text
+    d = clusterexp.derive(LANDAU_INPUT)
+    text = to_text(d)
+    assert "lambda" not in text and "beta P / rho_L = sum_n b_n z^n = sum_n a_n nu^n" in text
+    assert "density expansion nu_i in the fugacities z" in text
+    assert "fugacity expansion z_i in the densities nu" in text
+    snippet = latex_snippet(d)
+    assert r"\left[\nu_{A}\right]_{z_{A} z_{B}}" in snippet and r"\left[z_{B}\right]_{\nu_{A} \nu_{B}}" in snippet
+    assert r"\lambda" not in snippet
+    document = latex_document(d)
+    assert r"\beta P/\rho_L=\sum_n b_n z^n=\sum_n a_n\nu^n" in document
+    record = json.loads(to_json(d))
+    assert record["regime"]["kind"] == "landau" and record["regime"]["measured_per"] == "rho_L"
+    assert record["conventions"].startswith("beta P / rho_L")
+    assert any(line.startswith("equation of state: u_A = z_A") for line in record["regime"]["statement"])
+
+
+def test_one_level_exclusion_output_speaks_per_state():
+    from clusterexp.export import to_json, to_text
+    d = clusterexp.derive("dimension 1 species R species S statistics matrix [[1/2, 1], [1/4, 1/3]] clusters exclusion level "
+                          "derive virial up to 2 derive density up to 2")
+    text = to_text(d)
+    assert "lambda" not in text and "density expansion N_i / (states) in the fugacities z" in text
+    assert json.loads(to_json(d))["regime"]["measured_per"] == "states"
+
+
+def test_ranges_and_given_pieces_are_echoed_in_every_format():
+    from clusterexp.export import latex_document, to_json, to_text
+    d = clusterexp.derive("dimension 2 parameter alpha in [0, 1) species A exchange alpha clusters pairphase "
+                          "{ b[3] = 1/9 - alpha + O(alpha^2) } derive virial up to 3")
+    text = to_text(d)
+    assert "# parameters: alpha in [0, 1)" in text
+    assert "# given: b[3] = 1/9 - alpha + O(alpha**2)" in text
+    record = json.loads(to_json(d))
+    (alpha,) = record["parameters"]
+    assert alpha["name"] == "alpha" and alpha["range"] == "[0, 1)"
+    assert record["given"] == [{"coefficient": "b[3]", "value": "1/9 - alpha + O(alpha**2)"}]
+    document = latex_document(d)
+    assert r"Parameters: $\alpha\in[0,1)$" in document
+    assert r"Given as input: $b_{3}=" in document and r"+O\left(\alpha^{2}\right)$" in document

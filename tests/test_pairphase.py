@@ -396,3 +396,32 @@ def test_truncation_is_decided_for_the_whole_input():
     result = cluster_to_virial(polynomial, 5, truncation={n: 2})
     assert [result.ring.to_expr(p, ["r"]) for p in result.legendre_pressure().parts] == \
         [result.ring.to_expr(p, ["r"]) for p in result.pressure_series.parts]
+
+
+@pytest.mark.parametrize("word,sign", [("bose", 1), ("fermi", -1)])
+@pytest.mark.parametrize("flux", ["1/2", "1/3"])
+def test_numeric_tube_coverage_stays_first_order_and_leaves_every_virial_coefficient_unchanged(word, sign, flux):
+    """Derived here: one tube shifts a particle's partition function by c = -s(1 - s)/2, s = flux mod 1
+    [Comtet, Georgelin, Ouvry, J. Phys. A 22 (1989) 3917, from memory]; each l-cycle of an ideal species
+    feels it once, so at fixed fugacity beta P lambda^2 gains n c sum_l (+-1)^(l+1) z^l / l = n c rho_0
+    lambda^2, n the coverage and rho_0 the density of the free gas. At first order the shift of the free
+    energy at fixed density is minus that at fixed fugacity, -n c rho; then beta P = rho f' - f changes by
+    rho (-n c) + n c rho = 0: every a_l is the free gas's to O(n^2) (2D Bose and Fermi a_l from the
+    Bernoulli numbers [Viefers, Ravndal, Haugset, Am. J. Phys. 63 (1995) 369]). A numeric coverage used
+    to give rational functions of it (a_2 = 159600/638401 for fermions) with no O term."""
+    d = clusterexp.derive(f"dimension 2 species A {word} tubes flux {flux} coverage 1/100 clusters pairphase "
+                          "derive virial up to 5 derive cluster up to 3")
+    c = -sympy.Rational(flux) * (1 - sympy.Rational(flux)) / 2
+    for l in range(1, 6):
+        a = d.value("virial", (l,))
+        # a_l = B_(l-1)/l! with B_1 = -1/2 for bosons; fermions differ only in a_2 = +1/4
+        free = {1: 1, 2: sympy.Rational(-sign, 4)}.get(l, sympy.bernoulli(l - 1) / sympy.factorial(l))
+        assert a.removeO() == free, (l, a)
+        if l > 1:
+            assert a.getO() is not None and str(a.getO().expr) == "rho_tubes**2"
+    for l in range(1, 4):
+        b = d.value("cluster", (l,))
+        expected = sign ** (l + 1) * (sympy.Rational(1, l ** 2) + c * sympy.Rational(1, 100) / l)
+        assert b.removeO() == expected and b.getO() is not None
+    text = clusterexp.export.to_text(d)
+    assert "rho_tubes = 1/100 (as declared)" in text and "O(rho_tubes**2)" in text

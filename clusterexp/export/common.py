@@ -4,21 +4,7 @@ from __future__ import annotations
 import sympy
 
 from ..model import System
-
-CONVENTIONS = (
-    "beta P lambda^d = sum_n b_n z^n = sum_n a_n (rho lambda^d)^n; "
-    "exchange parameter alpha: 0 bosons, 1 fermions (period 2); "
-    "mutual parameter alpha_ij: period 1; lambda = thermal wavelength of the reference species; "
-    "b_(single particle of i) = (m_i/m_ref)^(d/2), a_(single particle) = 1"
-)
-
-KIND_TITLES = {
-    "cluster": "cluster coefficients b",
-    "virial": "virial coefficients a",
-    "density": "density expansion rho_i lambda^d in the fugacities z",
-    "fugacity": "fugacity expansion z_i in the densities rho lambda^d",
-}
-
+from .quantities import given_line, parameter_line
 
 def summary_lines(system: System) -> list[str]:
     species = ", ".join(
@@ -29,6 +15,7 @@ def summary_lines(system: System) -> list[str]:
     if system.mutuals:
         lines.append("mutual parameters: " + ", ".join(
             f"{m.first}-{m.second} = {m.value}" for m in system.mutuals))
+    lines += [line for line in (parameter_line(system), given_line(system)) if line]
     return lines
 
 
@@ -152,6 +139,9 @@ def pairphase_lines(system: System) -> list[str]:
              "O(p^k): terms from p^k on are unknown"]
     tubes = system.tubes
     if tubes is not None:
+        if tubes.value is not None:
+            lines.append(f"tube coverage {tubes.coverage} = {tubes.value} (as declared); the values below are first "
+                         f"order in it, O({tubes.coverage}^2) unknown")
         lines.append(f"flux tubes: flux {tubes.flux} (flux quanta), {tubes.coverage} tubes per lambda^2; b_(l e_i) gains "
                      f"(+-1)^(l+1) ({tubes.coverage})/l (-s(1 - s)/2), s = ({tubes.flux}) mod 1, first order in "
                      "the coverage")

@@ -6,7 +6,8 @@ import json
 import sympy
 
 from ..results import Derivation
-from .common import CONVENTIONS, check_record
+from .common import check_record, regime_lines
+from .quantities import conventions, given_records, parameter_records, quantities
 from .series_lines import series_json
 
 
@@ -14,11 +15,14 @@ def to_json(derivation: Derivation) -> str:
     system = derivation.system
     names = list(system.species_names)
     document = {
-        "conventions": CONVENTIONS,
+        "conventions": conventions(system),
+        "regime": _regime(system),
         "dimension": system.dimension,
         "species": [{"name": s.name, "mass": sympy.sstr(s.mass), "exchange": sympy.sstr(s.exchange)}
                     for s in system.species],
         "mutual": [{"species": [m.first, m.second], "value": sympy.sstr(m.value)} for m in system.mutuals],
+        "parameters": parameter_records(system),
+        **({"given": given_records(system)} if system.source.values else {}),
         "reference": system.reference,
         "order": system.order,
         "source": system.source.kind,
@@ -49,3 +53,19 @@ def to_json(derivation: Derivation) -> str:
         from ..loops.report import json_items
         document["sampled"] = json_items(derivation.sampled)
     return json.dumps(document, indent=2, sort_keys=False, ensure_ascii=True) + "\n"
+
+
+def _regime(system) -> dict:
+    """The regime, the quantities it computes and its statement (closed forms or the implicit
+    equation of state), as the text header says them."""
+    q = quantities(system)
+    record = {"kind": system.source.kind, "pressure": q.pressure, "density": q.density_of("i"),
+              "measured_per": q.unit, "statement": regime_lines(system)}
+    if system.source.form:
+        record["form"] = system.source.form
+    if system.tubes is not None:
+        record["tubes"] = {"flux": sympy.sstr(system.tubes.flux), "coverage": sympy.sstr(system.tubes.coverage),
+                           **({"coverage_value": sympy.sstr(system.tubes.value)} if system.tubes.value is not None
+                              else {}),
+                           "known_to": "first order in the coverage"}
+    return record

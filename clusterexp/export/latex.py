@@ -4,6 +4,7 @@ from __future__ import annotations
 import sympy
 
 from .common import eos_exponents, statistics_matrix
+from .quantities import assumptions_latex, conventions_latex, quantities
 from .latex_lines import aligned_rows
 from ..naming import generated_latex_names, is_single_atom, latex_subscript, species_latex
 from ..results import Coefficient, Derivation
@@ -32,24 +33,28 @@ def _symbol_names(derivation: Derivation) -> dict:
     return names
 
 
-def _lhs(c: Coefficient, labels: list[str], d: int, wavelength: str = r"\lambda") -> str:
-    """The LaTeX name of a coefficient (also of a `model.CoefficientName`)."""
+def _lhs(c: Coefficient, labels: list[str], d: int, wavelength: str = r"\lambda", q=None) -> str:
+    """The LaTeX name of a coefficient (also of a `model.CoefficientName`); densities in the regime's
+    quantities `q` (`quantities.Quantities`; default per lambda^d)."""
+    q = q or quantities(None)
     sub = latex_subscript(c.index, labels)
     if c.kind in LETTERS:
         return f"{LETTERS[c.kind]}_{{{sub}}}"
     k = labels[c.species.index(c.component)] if c.component else ""
-    monomial = _monomial(c.index, labels, "z" if c.kind == "density" else r"\rho", d if c.kind == "fugacity" else None,
-                         wavelength)
-    head = rf"\rho_{{{k}}}{{{wavelength}}}^{{{d}}}" if c.kind == "density" else f"z_{{{k}}}"
-    return rf"\left[{head}\right]_{{{monomial}}}"
+    if c.kind == "density":
+        return rf"\left[{q.density_tex(k, wavelength, d)}\right]_{{{_monomial(c.index, labels, lambda l: f'z_{{{l}}}')}}}"
+    thermal = q.unit == "lambda^d"
+    monomial = _monomial(c.index, labels, lambda l: f"({q.density_tex(l, wavelength, d)})" if thermal
+                         else q.density_tex(l, wavelength, d))
+    return rf"\left[z_{{{k}}}\right]_{{{monomial}}}"
 
 
-def _monomial(index, labels, letter, d, wavelength=r"\lambda") -> str:
+def _monomial(index, labels, factor) -> str:
     factors = []
     for n, label in zip(index, labels):
         if not n:
             continue
-        base = f"{letter}_{{{label}}}" if d is None else rf"({letter}_{{{label}}}{{{wavelength}}}^{{{d}}})"
+        base = factor(label)
         factors.append(base if n == 1 else f"{base}^{{{n}}}")
     return " ".join(factors)
 
@@ -61,11 +66,12 @@ def latex_snippet(derivation: Derivation, environment: str = "align", align: boo
     labels = species_labels(system)
     use_align = system.output.align if align is None else align
     amp = "&" if use_align else ""
+    q = quantities(system)
     wavelength = system.typesetting.wavelength
     rows = [row for c in derivation for row in
-            [aligned_rows(_lhs(c, labels, system.dimension, wavelength), c.latex_terms(names) or c.latex(names))
+            [aligned_rows(_lhs(c, labels, system.dimension, wavelength, q), c.latex_terms(names) or c.latex(names))
              if use_align else
-             f"  {_lhs(c, labels, system.dimension, wavelength)} = {c.latex(names)}",
+             f"  {_lhs(c, labels, system.dimension, wavelength, q)} = {c.latex(names)}",
              *series_latex_rows(derivation, c, amp, names)]]
     body = " \\\\\n".join(rows)
     snippet = f"\\begin{{{environment}}}\n{body}\n\\end{{{environment}}}\n"
@@ -148,8 +154,8 @@ def latex_document(derivation: Derivation) -> str:
             rf"$\alpha_{{{labels[system.species_names.index(m.first)]}{labels[system.species_names.index(m.second)]}}}"
             rf"={math(m.value)}$" for m in system.mutuals) + r" (period $1$).")
     lines += [
-        rf"Conventions: $\beta P{w}^d=\sum_n b_n z^n=\sum_n a_n(\rho{w}^d)^n$; exchange parameter "
-        r"$\alpha=0$ bosons, $\alpha=1$ fermions (period $2$); single-particle $b=(m_i/m_{\mathrm{ref}})^{d/2}$.",
+        *assumptions_latex(system, math),
+        conventions_latex(system, system.typesetting.wavelength),
         *regime_latex(system),
         *pairphase_latex_paragraphs(derivation),
         latex_snippet(derivation).rstrip("\n"),
@@ -163,7 +169,7 @@ def latex_document(derivation: Derivation) -> str:
 
 def _name(derivation, target, labels, w) -> str:
     c = derivation.coefficient(target.kind, target.index, target.component)
-    return _lhs(c, labels, derivation.system.dimension, w)
+    return _lhs(c, labels, derivation.system.dimension, w.strip("{}"), quantities(derivation.system))
 
 
 def _unknowns_latex(derivation: Derivation, names) -> list[str]:

@@ -114,6 +114,9 @@ def pairphase_latex_paragraphs(derivation: Derivation) -> list[str]:
             text += (rf" Static flux tubes of flux ${flux}$ (flux quanta), ${coverage}$ tubes per $\lambda^2$: "
                      rf"$b_{{l e_i}}$ gains $(\pm1)^{{l+1}}\frac{{{coverage}}}{{l}}\bigl(-\tfrac{{s(1-s)}}{{2}}\bigr)$, "
                      rf"$s=({flux})\bmod 1$, to first order in the coverage.")
+            if system.tubes.value is not None:
+                text += (rf" The coverage is declared as ${coverage}={sympy.latex(system.tubes.value)}$; the values "
+                         rf"are first order in it, $O({coverage}^2)$ unknown.")
         out.append(text)
     if system.expansions:
         out.append(r"Below a coefficient, each further line is its series in a statistics parameter through "

@@ -2,21 +2,23 @@
 from __future__ import annotations
 
 from ..results import Derivation
-from .common import CONVENTIONS, KIND_TITLES, product_lines, regime_lines, summary_lines
+from .common import product_lines, regime_lines, summary_lines
+from .quantities import conventions, kind_titles
 from .series_lines import series_text_lines
 
 
 def to_text(derivation: Derivation) -> str:
     """One line per coefficient, grouped by kind, after a commented header with the conventions."""
     lines = ["# clusterexp"] + [f"# {line}" for line in summary_lines(derivation.system)]
-    lines.append(f"# conventions: {CONVENTIONS}")
+    lines.append(f"# conventions: {conventions(derivation.system)}")
     lines += [f"# {line}" for line in regime_lines(derivation.system)]
     kind = None
+    titles = kind_titles(derivation.system)
     for c in derivation:
         if c.kind != kind:
             kind = c.kind
             lines.append("")
-            lines.append(KIND_TITLES[kind] + ":")
+            lines.append(titles[kind] + ":")
         lines.append(f"  {c.label} = {c.text}")
         lines += [f"    {line}" for line in series_text_lines(derivation, c)]
     lines += product_lines(derivation)
