@@ -95,7 +95,7 @@ class Derivation:
             from .pieces import depends_through_pieces
             self._series[key] = [piece for e in self.system.expansions
                                  if c.value.has(e.symbol) or depends_through_pieces(self.system, c.value, e.symbol)
-                                 for piece in expansion_of(c.label, c.value, e, self.system)]
+                                 for piece in expansion_of(c.label, c.value, e, self.system, c.index)]
         return self._series[key]
 
     compute_sampled: Callable[[], object] | None = field(default=None, repr=False, compare=False)

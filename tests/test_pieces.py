@@ -163,3 +163,16 @@ def test_document_with_named_coefficients_compiles(tmp_path):
     run = subprocess.run(["pdflatex", "-interaction=nonstopmode", "-halt-on-error", "doc.tex"], cwd=tmp_path,
                          capture_output=True, text=True, timeout=120)
     assert run.returncode == 0, run.stdout[-2000:]
+
+
+def test_a_given_exact_piece_free_of_the_variable_is_flagged_in_the_series():
+    """b[2,1] given as nu/5 says nothing about alpha although b[2,1] depends on the exchange parameter of
+    A: the series in alpha takes it as given and says so (text and JSON)."""
+    d = clusterexp.derive("dimension 2 parameter alpha in [0, 1] parameter nu in [0, 1] species A exchange alpha "
+                          "species B bose mutual A B = nu clusters pairphase { b[2,1] = nu/5 } derive virial up to 3 "
+                          "expand alpha about 0 to 1")
+    (piece,) = _series(d, "virial", (2, 1))
+    assert piece.notes == ("b[2,1] as given, taken as independent of alpha",)
+    record = json.loads(to_json(d))
+    (a21,) = [c for c in record["coefficients"] if c["index"] == [2, 1]]
+    assert a21["series"][0]["notes"] == ["b[2,1] as given, taken as independent of alpha"]

@@ -68,6 +68,7 @@ def series_json(derivation: Derivation, c: Coefficient) -> dict:
         "value": series_value_text(p),
         "remainder": _remainder_text(p),
         **({"unknowns": [u.symbol.name for u in p.unknowns]} if p.unknowns else {}),
+        **({"notes": list(p.notes)} if p.notes else {}),
     } for p in derivation.series_of(c)]}
 
 

@@ -251,6 +251,7 @@ class SeriesPiece:
     polynomial: sympy.Expr
     remainder: tuple
     unknowns: tuple = ()  # `pieces.Unknown`s: named Taylor coefficients of many-body pieces in `polynomial`
+    notes: tuple = ()
 
     @property
     def one_sided(self) -> bool:
@@ -267,6 +268,8 @@ class SeriesPiece:
             text = f"one-sided: {where} ends the declared range, from {self.side}"
         if self.known < self.order:
             text += f"; the given series stop at order {self.known}"
+        for note in self.notes:
+            text += f"; {note}"
         return text
 
 
@@ -281,7 +284,23 @@ def _range_edge(symbol, point, parameters) -> str | None:
     return None
 
 
-def expansion_of(label: str, value: sympy.Expr, expansion, system) -> list[SeriesPiece]:
+def _constant_givens(system, symbol, index) -> tuple[str, ...]:
+    """Notes on given exact pieces the coefficient uses that do not contain `symbol` although the piece
+    depends on it: the series takes them as the user gave them, constant in `symbol`."""
+    from ..naming import cluster_symbol, coefficient_label, virial_symbol
+    from ..pieces import depends_on
+    out = []
+    for v in system.source.values:
+        if v.value.has(sympy.Order) or v.value.has(symbol) or index is None \
+                or not all(a <= b for a, b in zip(v.index, index)):
+            continue
+        piece = (cluster_symbol if v.kind == "cluster" else virial_symbol)(v.index)
+        if symbol in depends_on(system, piece):
+            out.append(f"{coefficient_label(v.kind, v.index)} as given, taken as independent of {symbol}")
+    return tuple(out)
+
+
+def expansion_of(label: str, value: sympy.Expr, expansion, system, index=None) -> list[SeriesPiece]:
     """The series of one coefficient for one `expand` request (one piece per side); refuses a kinked
     expansion asked as if analytic, a side outside the declared range, and a series about another
     point than that of a given truncated series. Named many-body pieces that depend on the variable
@@ -318,9 +337,10 @@ def expansion_of(label: str, value: sympy.Expr, expansion, system) -> list[Serie
     others = tuple(sympy.Order(s ** k) for s, k in sorted(limits.items(), key=lambda item: item[0].name)
                    if s != symbol)
     out = []
+    notes = _constant_givens(system, symbol, index)
     for s in sides:
         expanded, unknowns = expand_pieces(system, exact, [(symbol, point, known, s)])
         out.append(SeriesPiece(symbol, point, order, known, s, kinked, edge is not None,
                                one_sided_series(expanded, symbol, point, known, s or "above"), (own,) + others,
-                               tuple(unknowns)))
+                               tuple(unknowns), notes))
     return out
