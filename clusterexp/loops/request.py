@@ -18,6 +18,7 @@ import sympy
 from ..errors import InputError
 from ..model import Sampling
 from ..naming import bracket_label
+from ..periods import braids, exchange_statistics
 
 SUPPORTED = ("supported: third-order coefficients of `clusters pairphase` in `dimension 2` with equal masses, "
              "b[3] and a[3] of one species of anyons, or b[2,1], a[2,1] (and b[1,2], a[1,2]) of two identical "
@@ -194,12 +195,13 @@ def _check_species(builder, index, names, ref_span):
                          "for a numeric estimate", ref_span)
     statistics = _builder_statistics(builder, index)
     alpha = statistics["alpha"]
-    ideal_pair = alpha.is_number and alpha in (0, 1)
+    params = {p.symbol: p for p in builder.parameters.values()}
+    ideal_pair = exchange_statistics(alpha, params)   # modulo the exchange period 2
     if kind == "identical" and ideal_pair:
-        raise InputError(f"b{label} is exact for {species[pair].name} ({'bosons' if alpha == 0 else 'fermions'}: "
+        raise InputError(f"b{label} is exact for {species[pair].name} ({dict(bose='bosons', fermi='fermions')[ideal_pair]} modulo the period 2: "
                          "an ideal gas); nothing to sample", ref_span)
     mutual = statistics.get("alpha_12")
-    if kind == "pair_plus_one" and ideal_pair and mutual.is_number and mutual in (0, 1):
+    if kind == "pair_plus_one" and braids(mutual, params) is False:
         raise InputError(f"b{label} is exactly 0 here (no statistical coupling between {species[pair].name} and "
                          f"{species[other].name}); nothing to sample", ref_span)
 
