@@ -6,7 +6,7 @@ import json
 import sympy
 
 from ..results import Derivation
-from .common import CONVENTIONS, check_record
+from .common import CONVENTIONS, check_record, species_statistics
 from .series_lines import series_json
 
 
@@ -16,8 +16,9 @@ def to_json(derivation: Derivation) -> str:
     document = {
         "conventions": CONVENTIONS,
         "dimension": system.dimension,
-        "species": [{"name": s.name, "mass": sympy.sstr(s.mass), "exchange": sympy.sstr(s.exchange)}
-                    for s in system.species],
+        "species": [{"name": s.name, "mass": sympy.sstr(s.mass),
+                     species_statistics(system, i)[0]: sympy.sstr(species_statistics(system, i)[1])}
+                    for i, s in enumerate(system.species)],
         "mutual": [{"species": [m.first, m.second], "value": sympy.sstr(m.value)} for m in system.mutuals],
         "reference": system.reference,
         "order": system.order,

@@ -3,7 +3,7 @@ from __future__ import annotations
 
 import sympy
 
-from .common import eos_exponents, statistics_matrix
+from .common import eos_exponents, species_statistics, statistics_matrix
 from .latex_lines import aligned_rows
 from ..naming import generated_latex_names, is_single_atom, latex_subscript, species_latex
 from ..results import Coefficient, Derivation
@@ -130,8 +130,12 @@ def latex_document(derivation: Derivation) -> str:
     def math(expr) -> str:
         return sympy.latex(expr, symbol_names=names)
 
-    species = ", ".join(f"${label}$ (mass ${math(s.mass)}$, exchange parameter ${math(s.exchange)}$)"
-                        for label, s in zip(labels, system.species))
+    def statistics(i, label) -> str:
+        word, value = species_statistics(system, i)
+        return (f"exchange parameter ${math(value)}$" if word == "exchange" else
+                f"exclusion statistics $g_{{{label}{label}}}={math(value)}$")
+    species = ", ".join(f"${label}$ (mass ${math(s.mass)}$, {statistics(i, label)})"
+                        for i, (label, s) in enumerate(zip(labels, system.species)))
     lines = [
         r"\documentclass{article}",
         r"\usepackage{amsmath}",
