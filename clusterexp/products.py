@@ -87,14 +87,19 @@ def run_evaluations(derivation) -> list:
         point = {s: v for s, v in evaluation.point}
         values = [_coefficient(derivation, t).value for t in evaluation.targets]
         used = set().union(*(v.free_symbols for v in values))
-        unused = [s.name for s in point if s not in used]
-        if unused:
+        idle = [s.name for s in point if s not in used and s not in _gas_symbols(derivation.system)]
+        if idle:   # a parameter the gas does not depend on at all: most likely a slip
             raise InputError(f"{', '.join(t.label for t in evaluation.targets)} "
-                             f"{'does' if len(values) == 1 else 'do'} not depend on {', '.join(unused)}",
+                             f"{'does' if len(values) == 1 else 'do'} not depend on {', '.join(idle)}",
                              evaluation.span)
         rows = []
         for target, value in zip(evaluation.targets, values):
             label = target.label
+            # a parameter of the gas that this coefficient does not depend on is harmless (the value holds
+            # for every value of it): evaluate, and say so next to the number
+            unused = [s.name for s in point if s not in value.free_symbols]
+            if unused:
+                label += f" (does not depend on {', '.join(unused)})"
             order = value.getO() if hasattr(value, "getO") else None
             if order is not None:
                 value = value.removeO()
@@ -106,6 +111,18 @@ def run_evaluations(derivation) -> list:
             rows.append((label, format_number(number, evaluation.digits)))
         out.append((evaluation, rows))
     return out
+
+
+def _gas_symbols(system) -> set:
+    """The parameters the declared gas depends on (masses, statistics, tubes, given values, matrix)."""
+    exprs = [x for s in system.species for x in (s.mass, s.exchange)] + [m.value for m in system.mutuals]
+    exprs += [v.value for v in system.source.values] + [g for row in system.source.matrix or () for g in row]
+    if system.tubes is not None:
+        exprs += [system.tubes.flux, system.tubes.coverage]
+    spectrum = system.source.spectrum
+    if spectrum is not None:
+        exprs += list(spectrum.levels) + [spectrum.shift] + [z for _, z in spectrum.trapped]
+    return set().union(*(sympy.sympify(x).free_symbols for x in exprs))
 
 
 class _Named:

@@ -415,3 +415,14 @@ def test_files_section_says_whether_they_were_written(tmp_path):
     again = run_cli("run", "-e", text, cwd=tmp_path)
     assert again.returncode == 2 and "t.csv exists; pass --overwrite to replace it" in again.stderr
     assert run_cli("run", "-e", text, "--overwrite", cwd=tmp_path).returncode == 0
+
+
+def test_evaluate_a_coefficient_that_does_not_depend_on_a_parameter_of_the_gas(cli):
+    """a[2,0] does not depend on the mutual parameter nu, which the gas does depend on: evaluated, with a
+    note (a_2 of bosons = -1/4: Viefers, Ravndal, Haugset, Am. J. Phys. 63 (1995) 369)."""
+    text = ("dimension 2 parameter nu in [0, 1] species A species B mutual A B = nu clusters pairphase "
+            "evaluate a[2,0] at nu = 1/2")
+    d = clusterexp.derive(text)
+    assert d.evaluations[0][1] == [("a[2,0] (does not depend on nu)", "-0.25")]
+    result = cli("run", "-e", text, "--no-files")
+    assert result.returncode == 0 and "a[2,0] (does not depend on nu) = -0.25" in result.stdout
