@@ -10,6 +10,7 @@ import sympy
 
 from .errors import InputError, NotSupportedYet, Span
 from .expressions import CONSTANTS, FUNCTIONS, ExpressionBuilder
+from .hints import did_you_mean
 from .model import (FORMATS, QUANTITIES, Expansion, GivenValue, Mutual, OutputSettings, Parameter, Request, Source,
                     Species, Spectrum, System, Tubes)
 from .build_products import build_products, product_names, product_order
@@ -250,7 +251,8 @@ class _Builder:
 
     def _known_species(self, token) -> str:
         if str(token) not in self.species:
-            raise InputError(f"unknown species '{token}'", self.span(token))
+            raise InputError(f"unknown species '{token}'", self.span(token),
+                             did_you_mean(str(token), self.species))
         return str(token)
 
     def _mutual(self, tree):
@@ -283,8 +285,9 @@ class _Builder:
         if word in LATER_REGIMES:
             raise InputError(f"regime '{word}' is not supported yet", self.span(token))
         if word not in REGIME_FORMS:
-            raise InputError(f"unknown regime '{word}'; expected generic, ideal, exclusion, landau, "
-                             "spectrum { ... } or given { ... }", self.span(token))
+            raise InputError(f"unknown regime '{word}'; expected generic, ideal, exclusion, landau, pairphase, "
+                             "spectrum { ... } or given { ... }", self.span(token),
+                             did_you_mean(word, list(REGIME_FORMS) + ["spectrum", "given"]))
         forms = REGIME_FORMS[word]
         if len(options) > 1 or (options and str(options[0]) not in forms[1:] + forms[:1]):
             bad = options[1] if len(options) > 1 else options[0]
@@ -390,7 +393,8 @@ class _Builder:
     def _output_format(self, tree):
         token = tree.children[0]
         if str(token) not in FORMATS:
-            raise InputError(f"unknown output format '{token}'; expected text, latex or json", self.span(token))
+            raise InputError(f"unknown output format '{token}'; expected text, latex or json", self.span(token),
+                             did_you_mean(str(token), FORMATS))
         self.output = OutputSettings(str(token), self.output.align, self.span(token))
 
     def _output_align(self, tree):
@@ -413,7 +417,7 @@ class _Builder:
             for item in items:
                 token = item.children[0]
                 if str(token) not in names:
-                    raise InputError(f"unknown species '{token}'", self.span(token))
+                    raise InputError(f"unknown species '{token}'", self.span(token), did_you_mean(str(token), names))
                 counts[names.index(str(token))] += int(item.children[1]) if len(item.children) > 1 else 1
         if sum(counts) == 0:
             raise InputError("a multi-index needs at least one particle", self.span(ref))
@@ -428,7 +432,7 @@ class _Builder:
                 word, count = tree.children
                 if str(word) not in QUANTITIES:
                     raise InputError(f"unknown quantity '{word}'; expected cluster, virial, density or fugacity",
-                                     self.span(word))
+                                     self.span(word), did_you_mean(str(word), QUANTITIES))
                 if not 1 <= int(count) <= MAX_ORDER:
                     raise InputError(f"`up to` needs an order between 1 and {MAX_ORDER}", self.span(count))
                 return Request(str(word), self.span(tree), up_to=int(count))
@@ -461,7 +465,8 @@ class _Builder:
             self.file = file
             name, point, order, *side = tree.children
             if str(name) not in self.parameters:
-                raise InputError(f"`expand` needs a declared parameter; '{name}' is not one", self.span(name))
+                raise InputError(f"`expand` needs a declared parameter; '{name}' is not one", self.span(name),
+                                 did_you_mean(str(name), self.parameters))
             if not 0 <= int(order) <= 40:
                 raise InputError("`expand ... to k` needs 0 <= k <= 40", self.span(order))
             value = self.expr(point)

@@ -16,6 +16,7 @@ import math
 import sympy
 
 from ..errors import InputError
+from ..hints import did_you_mean
 from ..model import Sampling
 from ..naming import bracket_label
 from ..periods import braids, exchange_statistics
@@ -219,7 +220,8 @@ def _parameter_values(builder, statement, coefficients):
             token, *exprs = item.children
             name = str(token)
             if name not in builder.parameters:
-                raise InputError(f"`{clause_name}` needs a declared parameter; '{name}' is not one", builder.span(token))
+                raise InputError(f"`{clause_name}` needs a declared parameter; '{name}' is not one", builder.span(token),
+                                 did_you_mean(name, builder.parameters))
             if name in values:
                 raise InputError(f"a value for {name} is given twice", builder.span(token))
             parameter = builder.parameters[name]
