@@ -7,10 +7,12 @@ order) and attaches spans.
 """
 from __future__ import annotations
 
+from dataclasses import replace
 from pathlib import Path
 
 import sympy
 
+from .check_result import CheckList
 from .checks import check_claim, check_decimal_claim
 from .errors import InputError
 from .numbers import evaluate, format_number, grid_table, write_csv
@@ -35,8 +37,10 @@ def run_checks(derivation) -> list:
     A claim ending in O(p^k), or a derived value known only below some power (given truncated
     series), is compared below the lower of the two limits in each parameter."""
     from .routes.pairphase import split_truncation, truncate
+    from .export.latex import claim_latex_name, latex_symbol_names
     system = derivation.system
     results = []
+    symbols = tuple(latex_symbol_names(derivation).items()) if system.claims else ()
     for claim in system.claims:
         derived, known = split_truncation(_coefficient(derivation, claim.target).value)
         limits = dict(known)
@@ -73,11 +77,10 @@ def run_checks(derivation) -> list:
             notes.append(f"decimals inside a claim are read as exact fractions ({exact}); a claim that is one "
                          "decimal number is compared at its written digits only against a derived value that is "
                          "an exact number (no parameters, not a truncated series)")
-        if notes:
-            from dataclasses import replace
-            result = replace(result, notes=result.notes + tuple(notes))
+        result = replace(result, notes=result.notes + tuple(notes),
+                         latex_name=claim_latex_name(derivation, claim.target), latex_symbols=symbols)
         results.append(result)
-    return results
+    return CheckList(results)
 
 
 def run_evaluations(derivation) -> list:

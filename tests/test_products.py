@@ -120,13 +120,12 @@ def test_decimal_claims_against_the_textbook_table():
 def test_decimal_claim_rounding_edges_and_exact_decimals():
     # 2D ideal Fermi a_2 = +1/4 (a_n = B_{n-1}/n!, physics.md; sign from the Fermi point): 0.25 is the
     # exact value; 0.2 and 0.3 are the two roundings at one decimal (0.25 lies half a unit from
-    # each); 0.35 is not; 0.250 with three decimals is exact too
+    # each: a rounding tie, neither consistent nor refuted); 0.35 is not; 2.5e-1 is exact too
     d = clusterexp.derive("dimension 2 species A fermi clusters ideal derive virial up to 2 "
                           "claim a[2] = 0.25  claim a[2] = 0.2  claim a[2] = 0.3  claim a[2] = 0.35 "
                           "claim a[2] = 2.5e-1  claim a[2] = -0.25")
-    assert [c.status for c in d.checks] == ["proven", "numerically consistent, not proven",
-                                            "numerically consistent, not proven", "mismatch", "proven",
-                                            "mismatch"]
+    assert [c.status for c in d.checks] == ["proven", "rounding tie, undecided", "rounding tie, undecided",
+                                            "mismatch", "proven", "mismatch"]
 
 
 def test_a_decimal_zero_claims_that_the_value_vanishes():

@@ -167,6 +167,17 @@ def _name(derivation, target, labels, w) -> str:
     return _lhs(c, labels, derivation.system.dimension, w)
 
 
+def claim_latex_name(derivation: Derivation, target) -> str:
+    """The LaTeX name of a claimed coefficient (`typeset` choices included), for the display of a check."""
+    system = derivation.system
+    return _name(derivation, target, species_labels(system), system.typesetting.wavelength)
+
+
+def latex_symbol_names(derivation: Derivation) -> dict:
+    """{symbol: LaTeX} for the generated names and the `typeset` parameters."""
+    return _symbol_names(derivation)
+
+
 def _checks_latex(derivation: Derivation, labels, w, names) -> list[str]:
     system = derivation.system
     if not system.claims:
