@@ -151,7 +151,10 @@ def _friendly(error: UnexpectedInput, text: str, filename: str) -> InputError:
     token = error.token
     expected = set(getattr(error, "expected", ()) or ())
     word = str(token)
-    if expected & {"DIMENSION", "SPECIES", "DERIVE"} or "$END" in expected:
+    if expected >= {"MASS", "EXCHANGE", "BOSE"}:   # right after `species X ...`
+        message = (f"unexpected {word!r}: expected a species property (mass, exchange, bose, fermi, boltzmann) "
+                   f"or a statement ({STATEMENTS})")
+    elif expected & {"DIMENSION", "SPECIES", "DERIVE"} or "$END" in expected:
         message = f"unexpected {word!r}: expected a statement ({STATEMENTS})"
     elif token.type == "NAME" and word in ("given",):
         message = f"unexpected {word!r}"

@@ -129,6 +129,13 @@ def test_misspelled_words_get_a_close_match_hint(text, hint):
     assert f"hint: {hint}" in caught.value.render()
 
 
+def test_a_misspelled_species_property_is_named_as_such():
+    with pytest.raises(InputError) as caught:
+        build_system("dimension 2 species A mass 2 boson")
+    assert caught.value.message.startswith("unexpected 'boson': expected a species property (mass, exchange, bose")
+    assert caught.value.hint == "did you mean 'bose'?"
+
+
 def test_no_hint_when_nothing_is_close():
     with pytest.raises(InputError) as caught:
         build_system("dimension 2 parameter alpha species A exchange zzz")
