@@ -97,12 +97,9 @@ def run_evaluations(derivation) -> list:
                              evaluation.span)
         rows = []
         for target, value in zip(evaluation.targets, values):
+            # a parameter of the gas that this coefficient does not depend on is harmless: the value holds
+            # for every value of it (the label stays the coefficient's, which JSON uses as a key)
             label = target.label
-            # a parameter of the gas that this coefficient does not depend on is harmless (the value holds
-            # for every value of it): evaluate, and say so next to the number
-            unused = [s.name for s in point if s not in value.free_symbols]
-            if unused:
-                label += f" (does not depend on {', '.join(unused)})"
             order = value.getO() if hasattr(value, "getO") else None
             if order is not None:
                 value = value.removeO()

@@ -417,11 +417,12 @@ def test_files_section_says_whether_they_were_written(tmp_path):
 
 
 def test_evaluate_a_coefficient_that_does_not_depend_on_a_parameter_of_the_gas(cli):
-    """a[2,0] does not depend on the mutual parameter nu, which the gas does depend on: evaluated, with a
-    note (a_2 of bosons = -1/4: Viefers, Ravndal, Haugset, Am. J. Phys. 63 (1995) 369)."""
+    """a[2,0] does not depend on the mutual parameter nu, which the gas does depend on: evaluated (a_2 of
+    bosons = -1/4: Viefers, Ravndal, Haugset, Am. J. Phys. 63 (1995) 369)."""
     text = ("dimension 2 parameter nu in [0, 1] species A species B mutual A B = nu clusters pairphase "
-            "evaluate a[2,0] at nu = 1/2")
+            "evaluate a[2,0], a[1,1] at nu = 1/2")
     d = clusterexp.derive(text)
-    assert d.evaluations[0][1] == [("a[2,0] (does not depend on nu)", "-0.25")]
-    result = cli("run", "-e", text, "--no-files")
-    assert result.returncode == 0 and "a[2,0] (does not depend on nu) = -0.25" in result.stdout
+    # a[1,1] = nu (1 - nu) (physics.md, derived)
+    assert d.evaluations[0][1] == [("a[2,0]", "-0.25"), ("a[1,1]", "0.25")]
+    result = cli("run", "-e", text.replace(", a[1,1]", ""), "--no-files")
+    assert result.returncode == 0 and "a[2,0] = -0.25" in result.stdout
