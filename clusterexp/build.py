@@ -10,10 +10,12 @@ import sympy
 
 from .errors import InputError, NotSupportedYet, Span
 from .expressions import CONSTANTS, FUNCTIONS, ExpressionBuilder
+from .hints import did_you_mean
 from .model import (FORMATS, QUANTITIES, Expansion, GivenValue, Mutual, OutputSettings, Parameter, Request, Source,
                     Species, Spectrum, System, Tubes)
 from .build_products import build_products, product_names, product_order
 from .parse import parse
+from .periods import braids, species_statistics
 
 MAX_ORDER = 200
 MAX_INCLUDE_BYTES = 4_000_000
@@ -158,12 +160,16 @@ class _Builder:
         samplings = self._samplings(source, names, order)
         source = self._check_given(source, names, order)
         source = self._check_regime(source, names)
-        return System(dimension=self.dimension, species=tuple(self.species.values()), source=source,
-                      requests=tuple(requests), order=order, reference=self.reference or names[0],
-                      parameters=tuple(self.parameters.values()), mutuals=tuple(self.mutuals),
-                      output=self.output, files=tuple(self.files), warnings=tuple(self.warnings),
-                      size_limit=self.size_limit, tubes=self.tubes, expansions=self._expansions(),
-                      samplings=samplings, **products)
+        system = System(dimension=self.dimension, species=tuple(self.species.values()), source=source,
+                        requests=tuple(requests), order=order, reference=self.reference or names[0],
+                        parameters=tuple(self.parameters.values()), mutuals=tuple(self.mutuals),
+                        output=self.output, files=tuple(self.files), warnings=tuple(self.warnings),
+                        size_limit=self.size_limit, tubes=self.tubes, expansions=self._expansions(),
+                        samplings=samplings, **products)
+        if source.kind == "pairphase":
+            from .routes.pairphase import refuse_known_given
+            refuse_known_given(system)
+        return system
 
     def _first_span(self) -> Span:
         return self.main.span(self.statements[0][0]) if self.statements else Span(self.main.name, 1, 1)
@@ -247,7 +253,8 @@ class _Builder:
 
     def _known_species(self, token) -> str:
         if str(token) not in self.species:
-            raise InputError(f"unknown species '{token}'", self.span(token))
+            raise InputError(f"unknown species '{token}'", self.span(token),
+                             did_you_mean(str(token), self.species))
         return str(token)
 
     def _mutual(self, tree):
@@ -280,8 +287,9 @@ class _Builder:
         if word in LATER_REGIMES:
             raise InputError(f"regime '{word}' is not supported yet", self.span(token))
         if word not in REGIME_FORMS:
-            raise InputError(f"unknown regime '{word}'; expected generic, ideal, exclusion, landau, "
-                             "spectrum { ... } or given { ... }", self.span(token))
+            raise InputError(f"unknown regime '{word}'; expected generic, ideal, exclusion, landau, pairphase, "
+                             "spectrum { ... } or given { ... }", self.span(token),
+                             did_you_mean(word, list(REGIME_FORMS) + ["spectrum", "given"]))
         forms = REGIME_FORMS[word]
         if len(options) > 1 or (options and str(options[0]) not in forms[1:] + forms[:1]):
             bad = options[1] if len(options) > 1 else options[0]
@@ -390,7 +398,8 @@ class _Builder:
     def _output_format(self, tree):
         token = tree.children[0]
         if str(token) not in FORMATS:
-            raise InputError(f"unknown output format '{token}'; expected text, latex or json", self.span(token))
+            raise InputError(f"unknown output format '{token}'; expected text, latex or json", self.span(token),
+                             did_you_mean(str(token), FORMATS))
         self.output = OutputSettings(str(token), self.output.align, self.span(token))
 
     def _output_align(self, tree):
@@ -413,7 +422,7 @@ class _Builder:
             for item in items:
                 token = item.children[0]
                 if str(token) not in names:
-                    raise InputError(f"unknown species '{token}'", self.span(token))
+                    raise InputError(f"unknown species '{token}'", self.span(token), did_you_mean(str(token), names))
                 counts[names.index(str(token))] += int(item.children[1]) if len(item.children) > 1 else 1
         if sum(counts) == 0:
             raise InputError("a multi-index needs at least one particle", self.span(ref))
@@ -428,7 +437,7 @@ class _Builder:
                 word, count = tree.children
                 if str(word) not in QUANTITIES:
                     raise InputError(f"unknown quantity '{word}'; expected cluster, virial, density or fugacity",
-                                     self.span(word))
+                                     self.span(word), did_you_mean(str(word), QUANTITIES))
                 if not 1 <= int(count) <= MAX_ORDER:
                     raise InputError(f"`up to` needs an order between 1 and {MAX_ORDER}", self.span(count))
                 return Request(str(word), self.span(tree), up_to=int(count))
@@ -461,7 +470,8 @@ class _Builder:
             self.file = file
             name, point, order, *side = tree.children
             if str(name) not in self.parameters:
-                raise InputError(f"`expand` needs a declared parameter; '{name}' is not one", self.span(name))
+                raise InputError(f"`expand` needs a declared parameter; '{name}' is not one", self.span(name),
+                                 did_you_mean(str(name), self.parameters))
             if not 0 <= int(order) <= 40:
                 raise InputError("`expand ... to k` needs 0 <= k <= 40", self.span(order))
             value = self.expr(point)
@@ -528,12 +538,14 @@ class _Builder:
                              "describe; declare it bose, fermi or with an exchange parameter", s.span)
         if source.kind == "ideal":
             for s in self.species.values():
-                if s.statistics is None and s.exchange not in (0, 1):
+                if species_statistics(s, self._by_symbol()) is None:
                     raise InputError(f"`clusters ideal` needs bose, fermi or boltzmann species; {s.name} has "
-                                     f"exchange parameter {s.exchange}", s.span)
+                                     f"exchange parameter {s.exchange}, neither bosonic nor fermionic modulo the "
+                                     "period 2", s.span)
             self._no_mutuals("ideal gases")
         elif source.kind == "exclusion":
             source = Source("exclusion", source.span, form=source.form, matrix=self._exclusion_matrix(names))
+            self._exclusion_diagonal_warnings(source.matrix)
             if self.mutuals:
                 self.warnings.append(("mutual (braiding) parameters do not enter exclusion statistics; "
                                       "they are ignored here (declare `statistics A B = ...`)", self.mutuals[0].span))
@@ -556,8 +568,9 @@ class _Builder:
         if self.tubes is not None and source.kind != "pairphase":
             raise InputError("flux tubes are used with `clusters pairphase`", self.tubes.span)
         if self.tubes is not None:
-            anyonic = [s for s in self.species.values() if s.exchange not in (0, 1)]
-            if anyonic or self.mutuals:
+            anyonic = [s for s in self.species.values() if species_statistics(s, self._by_symbol()) is None]
+            braiding = [m for m in self.mutuals if braids(m.value, self._by_symbol()) is not False]
+            if anyonic or braiding:
                 raise NotSupportedYet("flux tubes with anyonic or mutually braiding mobile species (the cycle-around-"
                                       "tube pieces of several mobile particles are many-body and not yet named)",
                                       self.tubes.span)
@@ -574,6 +587,23 @@ class _Builder:
             if _decide(lambda: value.is_real, span, f"{what} is real") is not True:
                 raise InputError(f"{what} must be real: {value} is not real for every value of its parameters "
                                  "(a phase e^(i pi alpha) needs real alpha)", span)
+
+    def _by_symbol(self) -> dict:
+        return {p.symbol: p for p in self.parameters.values()}
+
+    def _exclusion_diagonal_warnings(self, g) -> None:
+        """An exchange parameter taken as the diagonal g of exclusion statistics is used as written: g is
+        not periodic, while the anyon's exchange parameter has period 2. Warn outside [0, 1]."""
+        for i, s in enumerate(self.species.values()):
+            if i not in self._defaulted_diagonal or s.statistics is not None or s.exchange == 0:
+                continue
+            value = s.exchange
+            inside = (value.is_number and 0 <= value <= 1) or (value.is_Symbol and self._within_unit(value))
+            if not inside:
+                self.warnings.append((f"the exchange parameter of {s.name} ({value}) is taken as the exclusion "
+                                      f"statistics g_{s.name}{s.name} = {value}, which is not periodic (the anyon's "
+                                      "exchange parameter has period 2); outside [0, 1] the two differ: declare "
+                                      f"`statistics {s.name} {s.name} = ...` to choose g", s.span))
 
     def _no_mutuals(self, what: str) -> None:
         if self.mutuals:
@@ -602,6 +632,7 @@ class _Builder:
                 self._set_entry(g, i, j, value, first)
         self.file = self.main
         species = list(self.species.values())
+        self._defaulted_diagonal = {i for i in range(K) if g[i][i] is None}
         for i in range(K):
             for j in range(K):
                 if g[i][j] is None:
@@ -705,10 +736,11 @@ class _Builder:
             if levels[i] is None:
                 levels[i] = harmonic_levels(self.dimension)
             if fill[i] is None:
-                if s.statistics == "boltzmann" or s.exchange not in (0, 1):
+                statistics = species_statistics(s, self._by_symbol())
+                if statistics not in ("bose", "fermi"):
                     raise InputError(f"say how {s.name} fills the levels (`fill {s.name} bose` or `fill {s.name} fermi`): "
-                                     "its statistics is neither bose nor fermi", s.span)
-                fill[i] = "fermi" if s.exchange == 1 else "bose"
+                                     "its statistics is neither bose nor fermi (modulo the exchange period 2)", s.span)
+                fill[i] = statistics
         self._no_mutuals("declared spectra carry their pair phases in `shift`; they")
         return Spectrum(tuple(levels), tuple(fill), shift if shift is not None else sympy.Integer(0), counts,
                         tuple(sorted(trapped.items())), area or "mass", span)

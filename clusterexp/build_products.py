@@ -11,6 +11,7 @@ import sympy
 
 from .errors import InputError
 from .expressions import ExpressionBuilder
+from .hints import did_you_mean
 from .model import Claim, CoefficientName, Evaluation, Figure, Table, Typesetting
 
 DEFAULT_DIGITS = 15
@@ -103,7 +104,7 @@ class ProductBuilder:
                                      f"{letter}_{self.names[0]}[...]", span)
                 component = self.names[0]
             if component not in self.names:
-                raise InputError(f"unknown species '{component}' in {word}", span)
+                raise InputError(f"unknown species '{component}' in {word}", span, did_you_mean(component, self.names))
             if not index[self.names.index(component)]:
                 raise InputError(f"{word}{list(index)} is zero: every term of {letter}_{component} carries at least "
                                  f"one power of {'z' if letter == 'rho' else 'rho'}_{component}", span)
@@ -116,7 +117,8 @@ class ProductBuilder:
     def parameter(self, token):
         name = str(token)
         if name not in self.b.parameters:
-            raise InputError(f"'{name}' is not a declared parameter", self.b.span(token))
+            raise InputError(f"'{name}' is not a declared parameter", self.b.span(token),
+                             did_you_mean(name, self.b.parameters))
         return self.b.parameters[name].symbol
 
     def number(self, tree, what: str) -> sympy.Expr:
@@ -273,7 +275,8 @@ class ProductBuilder:
                 continue
             name, token = tree.children
             if str(name) not in self.b.parameters and str(name) not in self.b.species:
-                raise InputError(f"'{name}' is neither a declared parameter nor a species", self.b.span(name))
+                raise InputError(f"'{name}' is neither a declared parameter nor a species", self.b.span(name),
+                                 did_you_mean(str(name), list(self.b.parameters) + list(self.b.species)))
             if str(name) in seen:
                 raise InputError(f"{name} is typeset twice", self.b.span(name))
             seen.add(str(name))
@@ -300,6 +303,9 @@ class _ClaimNames:
 
     def __getitem__(self, name):
         return self.parameters[name] if name in self.parameters else sympy.Symbol(name)
+
+    def __iter__(self):   # the names a hint may suggest
+        return iter(self.parameters)
 
 
 def build_products(builder, trees, names: list[str]) -> dict:

@@ -29,6 +29,7 @@ many significant digits, and proves it only when the decimal is the exact value.
 """
 from __future__ import annotations
 
+import decimal
 import itertools
 import math
 import random
@@ -41,110 +42,13 @@ import mpmath
 import sympy
 
 from .errors import InputError
+from .check_result import (CONSISTENT, MISMATCH, PROVEN, STATUSES, TIE, UNDECIDED, CheckList,  # noqa: F401
+                           CheckResult, _text)
 from .numbers import Interval, evaluate, format_number, parameter_interval
-
-PROVEN = "proven"
-CONSISTENT = "numerically consistent, not proven"
-MISMATCH = "mismatch"
-UNDECIDED = "undecided"  # the claim holds exactly when named many-body pieces take stated values
-STATUSES = (PROVEN, CONSISTENT, MISMATCH, UNDECIDED)
 
 MAX_SIMPLIFY_OPS = 3000     # larger differences are not handed to simplify
 SHOWN_DIGITS = 20           # digits of the two values printed at a mismatch
 _EPS = sympy.Dummy("eps")
-
-
-@dataclass(frozen=True)
-class CheckResult:
-    """The outcome of one check. `difference` is claimed - derived (simplified; 0 when proven,
-    None when not known); `leading_term` its leading term about `expansion_point`; `witness` a
-    point where the sides differ, with `claimed_value` and `derived_value` there."""
-
-    status: str
-    claimed: sympy.Expr
-    derived: sympy.Expr
-    method: str
-    label: str | None = None
-    difference: sympy.Expr | None = None
-    leading_term: sympy.Expr | None = None
-    expansion_point: tuple[tuple[str, sympy.Expr], ...] = ()
-    witness: tuple[tuple[str, sympy.Expr], ...] = ()
-    claimed_value: str | None = None
-    derived_value: str | None = None
-    points: int = 0
-    skipped: int = 0
-    digits: int = 0
-    intervals: tuple[tuple[str, str], ...] = ()
-    truncation: tuple[int, tuple[str, ...]] | None = None
-    notes: tuple[str, ...] = field(default=())
-    rounding: str | None = None
-    conditions: tuple = ()  # UNDECIDED: the equations on named pieces under which the claim holds
-
-    @property
-    def condition(self):
-        """The conditions as one expression (a tuple of equations), or None."""
-        return sympy.Tuple(*self.conditions) if self.conditions else None
-
-    @property
-    def ok(self) -> bool:
-        return self.status != MISMATCH
-
-    def _subject(self) -> str:
-        what = self.label or "the claim"
-        if self.truncation:
-            order, names = self.truncation
-            what += f" through total order {order} in {', '.join(names)}"
-        return what
-
-    def render(self) -> str:
-        """A short human-readable report (a few lines)."""
-        where = "; ".join(f"{n} in {i}" for n, i in self.intervals)
-        if self.status == PROVEN:
-            lines = [f"proven: {self._subject()} equals the derived value ({self.method})"]
-        elif self.status == CONSISTENT and self.rounding:
-            lines = [f"numerically consistent, not proven: {self._subject()}: {self.method}"]
-        elif self.status == CONSISTENT and not self.intervals:
-            lines = [f"numerically consistent, not proven: {self._subject()} and the derived value agree to "
-                     f"{self.digits} significant digits; {self.method}"]
-        elif self.status == CONSISTENT:
-            lines = [f"numerically consistent, not proven: {self._subject()} agrees with the derived value at "
-                     f"{self.points} rational point{'s' if self.points != 1 else ''}"
-                     + (f" ({where})" if where else "") + f" to {self.digits} significant digits; "
-                     + self.method]
-        elif self.status == UNDECIDED:
-            lines = [f"undecided: {self._subject()} holds if and only if the named many-body pieces satisfy "
-                     f"({self.method}):"] + [f"  {_text(e.lhs)} = {_text(e.rhs)}" for e in self.conditions]
-        else:
-            lines = [f"mismatch: {self._subject()} differs from the derived value ({self.method})"]
-            if self.difference is not None:
-                lines.append(f"  claimed - derived = {_text(self.difference)}")
-            if self.leading_term is not None:
-                about = ", ".join(f"{n} = {v}" for n, v in self.expansion_point)
-                lines.append(f"  leading term" + (f" about {about}" if about else "") + f": {_text(self.leading_term)}")
-            if self.witness:
-                at = ", ".join(f"{n} = {v}" for n, v in self.witness)
-                lines.append(f"  at {at}: claimed = {self.claimed_value}, derived = {self.derived_value}")
-            elif self.claimed_value is not None:
-                lines.append(f"  claimed = {self.claimed_value}, derived = {self.derived_value}")
-        if self.skipped:
-            lines.append(f"  ({self.skipped} singular point{'s' if self.skipped != 1 else ''} skipped)")
-        lines += [f"  note: {n}" for n in self.notes]
-        return "\n".join(lines)
-
-    def __str__(self) -> str:
-        return self.render()
-
-    def _repr_latex_(self) -> str:
-        head = {PROVEN: r"\text{proven}", CONSISTENT: r"\text{numerically consistent, not proven}",
-                MISMATCH: r"\text{mismatch}", UNDECIDED: r"\text{undecided}"}[self.status]
-        body = sympy.latex(self.claimed) + (r" = " if self.status != MISMATCH else r" \neq ") + sympy.latex(self.derived)
-        if self.status == MISMATCH and self.difference is not None:
-            body += r",\quad \Delta = " + sympy.latex(self.difference)
-        return f"$${head}:\\; {body}$$"
-
-
-def _text(expr) -> str:
-    return sympy.sstr(expr, order="lex")
 
 
 # ---------------------------------------------------------------------------------------------
@@ -292,9 +196,17 @@ def check_decimal_claim(text: str, derived, *, label: str | None = None,
     imaginary = sympy.im(derived)
     if _sign(imaginary) != 0:
         reason = "is not real"
-    elif _sign(derived - (claimed - half_unit)) >= 0 and _sign(claimed + half_unit - derived) >= 0:
-        return CheckResult(CONSISTENT, method=f"the derived value {shown} rounds to the claimed decimal {text} "
-                           f"at its last written digit ({unit})", difference=None, **common)
+    elif (above := _sign(derived - (claimed - half_unit))) >= 0 and (below := _sign(claimed + half_unit - derived)) >= 0:
+        if above and below:
+            return CheckResult(CONSISTENT, method=f"the derived value {shown} rounds to the claimed decimal {text} "
+                               f"at its last written digit ({unit})", difference=None, **common)
+        step = decimal.Decimal(f"1e{last}") * (1 if below == 0 else -1)
+        other = str(decimal.Decimal(text.strip().replace(" ", "")) + step)
+        pair = sorted([text.strip(), other], key=decimal.Decimal)
+        return CheckResult(TIE, method=f"the derived value {_text(derived)} lies exactly halfway between {pair[0]} and "
+                           f"{pair[1]}, where rounding conventions differ (half up, half down, half to even), so the written "
+                           "digits neither confirm nor refute the claim; write one more digit to decide",
+                           difference=claimed - derived, **common)
     else:
         reason = "does not round to it"
     digits = f"{significant} significant digit{'s' if significant != 1 else ''}"

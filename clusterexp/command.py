@@ -5,6 +5,7 @@ import argparse
 import sys
 from pathlib import Path
 
+from .check_result import TIE
 from .errors import EXIT_CHECK_FAILED, EXIT_INPUT_ERROR, EXIT_OK, InputError, NotSupportedYet
 
 DEMO = Path(__file__).resolve().parent / "demo.gas"
@@ -97,6 +98,10 @@ def main(argv: list[str] | None = None) -> int:
     failed = [(claim, result) for claim, result in zip(derivation.system.claims, derivation.checks) if not result.ok]
     for claim, result in failed:
         print(f"{claim.span}: check failed: {result.label} differs from the derived value", file=sys.stderr)
+    for claim, result in zip(derivation.system.claims, derivation.checks):
+        if result.status == TIE:   # not a failure (exit 0), but never silent
+            print(f"{claim.span}: check undecided: {result.label} is a rounding tie; write one more digit",
+                  file=sys.stderr)
     return EXIT_CHECK_FAILED if failed else EXIT_OK
 
 

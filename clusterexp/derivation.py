@@ -64,8 +64,10 @@ class _Plan:
         """{symbol: first unknown power} over the truncated inputs coefficient `index` depends on: given
         values whose multi-index fits inside it (a_n and z(rho) at n involve b_m for m <= n only, and
         conversely), and the tube coverage, which every coefficient feels through b_{e_i}. None: all."""
-        from .routes.pairphase import split_truncation
+        from .routes.pairphase import separates, split_truncation
         limits: dict = {}
+        if index is not None and self.system.source.kind == "pairphase" and separates(self.system, index):
+            return limits   # exactly zero: species that do not braid with each other
         for v in self.system.source.values:
             if index is not None and not all(a <= b for a, b in zip(v.index, index)):
                 continue
@@ -160,10 +162,10 @@ class _Plan:
                     a[n] = given[n]
                 else:
                     a[n] = virial_symbol(n) if value is None else None
-            if any(v is None for v in a.values()):
-                raise NotSupportedYet("giving virial coefficients when some higher cluster coefficients are known "
-                                      "exactly (an ideal species); give b[...] values instead",
-                                      self.system.source.span)
+            if any(v is None for v in a.values()):  # some b_n with |n| >= 3 known exactly: solve triangularly
+                from .routes.pairphase import virials_with_known_clusters
+                return virials_with_known_clusters(self.pairphase, given, self.order, self.K,
+                                                   truncation=self.shared_truncation)
             return a
         if self.system.source.kind == "given" and self._given_kind() == "virial":
             a = {_unit(self.K, i): sympy.Integer(1) for i in range(self.K)}

@@ -10,6 +10,7 @@ import lark
 import sympy
 
 from .errors import InputError, Span
+from .hints import did_you_mean
 
 MAX_EXPONENT = 10000
 MAX_DIGITS = 1000           # digits of any exact number an expression produces
@@ -92,14 +93,15 @@ class ExpressionBuilder:
             return self.symbols[name]
         if name in FUNCTIONS:
             raise InputError(f"'{name}' is a function; write {name}(...)", self.span_of(token))
-        raise InputError(f"unknown name '{name}'; declare it with `parameter {name}`", self.span_of(token))
+        raise InputError(f"unknown name '{name}'; declare it with `parameter {name}`", self.span_of(token),
+                         did_you_mean(name, [*self.symbols, *CONSTANTS]))
 
     def _call(self, tree):
         token, *args = tree.children
         name = str(token)
         if name not in FUNCTIONS:
             raise InputError(f"unknown function '{name}'", self.span_of(token),
-                             hint="known functions: " + ", ".join(sorted(FUNCTIONS)))
+                             hint=did_you_mean(name, FUNCTIONS) or "known functions: " + ", ".join(sorted(FUNCTIONS)))
         function, arity = FUNCTIONS[name]
         if len(args) != arity:
             raise InputError(f"{name} takes {arity} argument{'s' if arity > 1 else ''}, got {len(args)}",

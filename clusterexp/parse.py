@@ -3,6 +3,7 @@ from __future__ import annotations
 
 import hashlib
 import os
+import re
 import stat
 import sys
 import tempfile
@@ -14,6 +15,8 @@ import lark
 from lark.exceptions import UnexpectedCharacters, UnexpectedEOF, UnexpectedInput, UnexpectedToken
 
 from .errors import InputError, Span
+from .hints import did_you_mean
+from .model import FORMATS, QUANTITIES
 from .resources import grammar_text
 
 MAX_LINE_LENGTH = 100_000    # characters; longer lines are refused before parsing (parse time grows with them)
@@ -148,7 +151,10 @@ def _friendly(error: UnexpectedInput, text: str, filename: str) -> InputError:
     token = error.token
     expected = set(getattr(error, "expected", ()) or ())
     word = str(token)
-    if expected & {"DIMENSION", "SPECIES", "DERIVE"} or "$END" in expected:
+    if expected >= {"MASS", "EXCHANGE", "BOSE"}:   # right after `species X ...`
+        message = (f"unexpected {word!r}: expected a species property (mass, exchange, bose, fermi, boltzmann) "
+                   f"or a statement ({STATEMENTS})")
+    elif expected & {"DIMENSION", "SPECIES", "DERIVE"} or "$END" in expected:
         message = f"unexpected {word!r}: expected a statement ({STATEMENTS})"
     elif token.type == "NAME" and word in ("given",):
         message = f"unexpected {word!r}"
@@ -157,7 +163,31 @@ def _friendly(error: UnexpectedInput, text: str, filename: str) -> InputError:
     after = getattr(token, "end_pos", None)
     if after is not None and after < len(text) and not text[after].isascii():
         message += f" (it is followed by {_describe_character(text[after])})"
-    return InputError(message, span_at(text, filename, line, column, column + max(1, len(word))))
+    return InputError(message, span_at(text, filename, line, column, column + max(1, len(word))),
+                      did_you_mean(word, _keywords(expected) + list(_CHOICES_AFTER.get(_previous_word(text, token), ()))))
+
+
+# words a NAME stands for after these keywords (checked again when the statement is built)
+_CHOICES_AFTER = {"derive": QUANTITIES, "format": FORMATS}
+
+
+def _keywords(expected: set[str]) -> list[str]:
+    """The literal keywords among the terminals lark expected (e.g. BOSE -> 'bose')."""
+    out = []
+    for name in expected:
+        try:
+            pattern = parser().get_terminal(name).pattern
+        except KeyError:
+            continue
+        if pattern.type == "str" and pattern.value.isalpha():
+            out.append(pattern.value)
+    return out
+
+
+def _previous_word(text: str, token) -> str:
+    start = getattr(token, "start_pos", None)
+    words = re.findall(r"[A-Za-z_]+", text[:start]) if start is not None else []
+    return words[-1] if words else ""
 
 
 _WORDS = {"NUMBER": "a number", "INT": "a whole number", "NAME": "a name", "LPAR": "'('", "RPAR": "')'",

@@ -7,10 +7,12 @@ order) and attaches spans.
 """
 from __future__ import annotations
 
+from dataclasses import replace
 from pathlib import Path
 
 import sympy
 
+from .check_result import CheckList
 from .checks import check_claim, check_decimal_claim, check_with_pieces
 from .errors import InputError
 from .numbers import evaluate, format_number, grid_table, write_csv
@@ -36,8 +38,10 @@ def run_checks(derivation) -> list:
     series), is compared below the lower of the two limits in each parameter."""
     from .pieces import truncate_pieces
     from .routes.pairphase import split_truncation, truncate
+    from .export.latex import claim_latex_name, latex_symbol_names
     system = derivation.system
     results = []
+    symbols = tuple(latex_symbol_names(derivation).items()) if system.claims else ()
     for claim in system.claims:
         derived, known = split_truncation(_coefficient(derivation, claim.target).value)
         limits = dict(known)
@@ -83,11 +87,11 @@ def run_checks(derivation) -> list:
             notes.append(f"decimals inside a claim are read as exact fractions ({exact}); a claim that is one "
                          "decimal number is compared at its written digits only against a derived value that is "
                          "an exact number (no parameters, not a truncated series)")
-        if notes:
-            from dataclasses import replace
-            result = replace(result, notes=result.notes + tuple(notes))
+        result = replace(result, notes=result.notes + tuple(notes),
+                         latex_name=claim_latex_name(derivation, claim.target),
+                         latex_symbols=symbols + _unknown_names(result, dict(symbols)))
         results.append(result)
-    return results
+    return CheckList(results)
 
 
 def run_evaluations(derivation) -> list:
@@ -97,13 +101,15 @@ def run_evaluations(derivation) -> list:
         point = {s: v for s, v in evaluation.point}
         values = [_coefficient(derivation, t).value for t in evaluation.targets]
         used = set().union(*(v.free_symbols for v in values))
-        unused = [s.name for s in point if s not in used]
-        if unused:
+        idle = [s.name for s in point if s not in used and s not in _gas_symbols(derivation.system)]
+        if idle:   # a parameter the gas does not depend on at all: most likely a slip
             raise InputError(f"{', '.join(t.label for t in evaluation.targets)} "
-                             f"{'does' if len(values) == 1 else 'do'} not depend on {', '.join(unused)}",
+                             f"{'does' if len(values) == 1 else 'do'} not depend on {', '.join(idle)}",
                              evaluation.span)
         rows = []
         for target, value in zip(evaluation.targets, values):
+            # a parameter of the gas that this coefficient does not depend on is harmless: the value holds
+            # for every value of it (the label stays the coefficient's, which JSON uses as a key)
             label = target.label
             order = value.getO() if hasattr(value, "getO") else None
             if order is not None:
@@ -116,6 +122,18 @@ def run_evaluations(derivation) -> list:
             rows.append((label, format_number(number, evaluation.digits)))
         out.append((evaluation, rows))
     return out
+
+
+def _gas_symbols(system) -> set:
+    """The parameters the declared gas depends on (masses, statistics, tubes, given values, matrix)."""
+    exprs = [x for s in system.species for x in (s.mass, s.exchange)] + [m.value for m in system.mutuals]
+    exprs += [v.value for v in system.source.values] + [g for row in system.source.matrix or () for g in row]
+    if system.tubes is not None:
+        exprs += [system.tubes.flux, system.tubes.coverage]
+    spectrum = system.source.spectrum
+    if spectrum is not None:
+        exprs += list(spectrum.levels) + [spectrum.shift] + [z for _, z in spectrum.trapped]
+    return set().union(*(sympy.sympify(x).free_symbols for x in exprs))
 
 
 class _Named:
@@ -203,3 +221,10 @@ def write_files(derivation, directory=".", overwrite: bool = False) -> list[Path
         from .loops.report import write_files as write_sampled_files
         written += write_sampled_files(derivation.sampled, system, overwrite, directory)
     return written
+
+
+def _unknown_names(result, names) -> tuple:
+    """(symbol, LaTeX) of the named Taylor coefficients a check's equations or difference use."""
+    from .pieces import unknowns_in
+    used = [e for e in (result.difference, result.condition) if e is not None]
+    return tuple((u.symbol, u.latex(names)) for u in unknowns_in(used))

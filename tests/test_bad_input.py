@@ -107,3 +107,43 @@ def test_control_characters_inside_quoted_names_are_refused_at_their_place():
     span = error.value.span
     assert (span.line, span.column) == (3, 23)
     assert "^" in error.value.render()
+
+
+@pytest.mark.parametrize("text, hint", [
+    ("dimension 2 species A clusters pairphse", "did you mean 'pairphase'?"),
+    ("dimension 2 parameter alpha species A exchange alph clusters pairphase", "did you mean 'alpha'?"),
+    ("dimension 2 species A boson", "did you mean 'bose'?"),
+    ("dimension 2 species A bose derive virials up to 3", "did you mean 'virial'?"),
+    ("dimension 2 species A bose derive virail up to 3", "did you mean 'virial'?"),
+    ("dimension 2 species A bose dimensoin 2", "did you mean 'dimension'?"),
+    ("dimension 2 species Bee species C mutual Be C = 1/2", "did you mean 'Bee'?"),
+    ("dimension 2 species Bee clusters ideal claim a[Be:2] = 1", "did you mean 'Bee'?"),
+    ("dimension 2 parameter alpha species A exchange alpha expand alhpa about 0 to 2", "did you mean 'alpha'?"),
+    ("dimension 2 species A output formt json", "did you mean 'format'?"),
+    ("dimension 2 species A claim a[2] = sqr(2)", "did you mean 'sqrt'?"),
+])
+def test_misspelled_words_get_a_close_match_hint(text, hint):
+    with pytest.raises(InputError) as caught:
+        build_system(text)
+    assert caught.value.hint == hint
+    assert f"hint: {hint}" in caught.value.render()
+
+
+def test_a_misspelled_species_property_is_named_as_such():
+    with pytest.raises(InputError) as caught:
+        build_system("dimension 2 species A mass 2 boson")
+    assert caught.value.message.startswith("unexpected 'boson': expected a species property (mass, exchange, bose")
+    assert caught.value.hint == "did you mean 'bose'?"
+
+
+def test_no_hint_when_nothing_is_close():
+    with pytest.raises(InputError) as caught:
+        build_system("dimension 2 parameter alpha species A exchange zzz")
+    assert caught.value.hint is None
+
+
+def test_the_unknown_regime_message_lists_every_regime():
+    with pytest.raises(InputError) as caught:
+        build_system("dimension 2 species A clusters anyons")
+    for word in ("generic", "ideal", "exclusion", "landau", "pairphase", "spectrum", "given"):
+        assert word in caught.value.message

@@ -6,7 +6,7 @@ import pytest
 import sympy
 
 import clusterexp
-from clusterexp.checks import (CONSISTENT, MISMATCH, PROVEN, bounded, check_claim, check_decimal_claim,
+from clusterexp.checks import (CONSISTENT, MISMATCH, PROVEN, TIE, bounded, check_claim, check_decimal_claim,
                                decimal_places, truncate)
 from clusterexp.errors import InputError, Span
 from clusterexp.model import Parameter
@@ -217,7 +217,10 @@ def test_decimal_claims_are_decided_exactly_at_the_rounding_boundary():
     assert check_decimal_claim("0.2", quarter - tiny).status == CONSISTENT
     assert check_decimal_claim("0.2", quarter + tiny).status == MISMATCH
     assert check_decimal_claim("0.3", quarter + tiny).status == CONSISTENT
-    assert check_decimal_claim("0.2", quarter).status == CONSISTENT     # on the boundary: both roundings
+    # exactly on the boundary: a rounding tie, neither consistent nor refuted (and not a failure)
+    for text in ("0.2", "0.3"):
+        result = check_decimal_claim(text, quarter)
+        assert result.status == TIE and result.ok and "exactly halfway between 0.2 and 0.3" in result.method
 
 
 def test_decimal_claims_of_non_real_exact_and_singular_values():
@@ -228,3 +231,32 @@ def test_decimal_claims_of_non_real_exact_and_singular_values():
     assert check_decimal_claim("0.25", (sympy.sqrt(2) + 1) * (sympy.sqrt(2) - 1) / 4).status == PROVEN
     with pytest.raises(InputError, match="derived value is zoo"):
         check_decimal_claim("0.5", sympy.zoo, label="a[3]")
+
+
+def test_a_decimal_claim_on_a_rounding_tie_says_so(cli):
+    """a_2(1/2) = 1/8 [Arovas, Schrieffer, Wilczek, Zee, Nucl. Phys. B 251 (1985) 117] lies halfway between
+    0.12 and 0.13: both claims are reported as a tie (exit 0, a note on stderr), 0.125 is proven and 0.11
+    refuted."""
+    base = "dimension 2 species A exchange 1/2 clusters pairphase derive virial up to 2 "
+    for claim in ("0.12", "0.13"):
+        result = cli("run", "-e", base + f"claim a[2] = {claim}", "--no-files")
+        assert result.returncode == 0
+        assert "rounding tie, neither consistent nor refuted: a[2]" in result.stdout
+        assert "halfway between 0.12 and 0.13" in result.stdout
+        assert "check undecided: a[2] is a rounding tie" in result.stderr
+    assert cli("run", "-e", base + "claim a[2] = 0.125", "--no-files").returncode == 0
+    assert cli("run", "-e", base + "claim a[2] = 0.11", "--no-files").returncode == 1
+
+
+def test_check_display_names_the_coefficient_and_uses_typeset_names():
+    d = clusterexp.derive('dimension 2 parameter nu in [0, 1] species A exchange 1/2 species B mutual A B = nu '
+                          'clusters pairphase typeset nu as "\\nu_{AB}" typeset A as "\\mathrm{a}" '
+                          'claim a[1,1] = nu - nu^2 claim a[1,1] = nu claim a[2,0] = 0.12')
+    proven, wrong, tie = d.checks
+    assert proven._repr_latex_() == r"$$\text{proven}:\; a_{\mathrm{a} B} = - \nu_{AB}^{2} + \nu_{AB}$$"
+    assert r"a_{\mathrm{a} B}:\ \nu_{AB}\neq" in wrong._repr_latex_() and r"\Delta = \nu_{AB}^{2}" in wrong._repr_latex_()
+    assert r"a_{\mathrm{a}^{2}} = \frac{1}{8}" in tie._repr_latex_() and "rounding tie" in tie._repr_latex_()
+    # a list of checks reads as text and as LaTeX, not as a dataclass repr
+    assert repr(d.checks).splitlines()[0] == "proven: a[1,1] equals the derived value (by expansion)"
+    assert "CheckResult(" not in repr(d.checks) and repr(proven).startswith("<CheckResult proven: a[1,1]")
+    assert d.checks._repr_latex_().count(r"\text{") >= 3 and r"\begin{gathered}" in d.checks._repr_latex_()

@@ -229,3 +229,14 @@ def test_ranges_and_given_pieces_are_echoed_in_every_format():
     document = latex_document(d)
     assert r"Parameters: $\alpha\in[0,1)$" in document
     assert r"Given as input: $b_{3}=" in document and r"+O\left(\alpha^{2}\right)$" in document
+
+def test_exclusion_species_are_listed_by_their_g_not_by_an_exchange_parameter():
+    """In the exclusion regime the statistics matrix decides the statistics: an undeclared species is listed
+    with its g_ii (text, LaTeX document, JSON), not as "exchange 0"."""
+    import json
+    d = clusterexp.derive("dimension 2 species A species B fermi statistics A A = 1/3 clusters exclusion "
+                          "derive virial up to 2")
+    assert "A (mass 1, g_AA = 1/3), B (mass 1, g_BB = 1)" in to_text(d)
+    assert "exchange 0" not in to_text(d)
+    assert r"exclusion statistics $g_{AA}=\frac{1}{3}$" in latex_document(d)
+    assert json.loads(to_json(d))["species"][0] == {"name": "A", "mass": "1", "g": "1/3"}

@@ -216,3 +216,25 @@ def test_outputs_carry_value_and_error(tmp_path):
 ])
 def test_value_and_error_are_rounded_to_the_error(value, error, text):
     assert plus_minus(value, error) == text
+
+
+def test_the_loop_budget_rounded_up_to_whole_rounds_is_said(tmp_path):
+    """`with 5000 loops` runs whole rounds (one batch of every family): the text says that the budget was
+    rounded up and to what, and JSON gives the round size."""
+    text = MIXTURE + "derive virial up to 2\nsample a[2,1] at alpha = 0 over nu = [0, 1] with 5000 loops seed 3 " \
+                     "table \"t.csv\"\n"
+    result = run_cli("run", "-e", text, "--files-into", str(tmp_path))
+    assert result.returncode == 0, result.stderr
+    assert ("b[2,1]: 5600 loops in 4 rounds (the budget of 5000 loops rounded up to whole rounds of 1400)"
+            in result.stdout)
+    # zero variance at alpha = 0 and integer nu (no phases: bosons, and a mutual parameter 0 or 1 is no
+    # coupling, common practice): the file shows what the text shows, 0 +- 0, not rounding residue
+    assert result.stdout.count("a[2,1] = 0 +- 0") == 2
+    with open(tmp_path / "t.csv", newline="") as stream:
+        rows = list(csv.reader(stream))
+    assert [row[2:] for row in rows[1:]] == [["0.0", "0.0"], ["0.0", "0.0"]]
+    data = json.loads(run_cli("run", "-e", text, "--format", "json", "--no-files").stdout)
+    sampled_json = next(v for k, v in data.items() if isinstance(v, list) and v and isinstance(v[0], dict)
+                        and "runs" in v[0])[0]
+    assert sampled_json["runs"][0]["loops_per_round"] == 1400
+    assert all(v["error"] == 0.0 and v["value"] == 0.0 for p in sampled_json["points"] for v in p["values"])

@@ -6,9 +6,19 @@ import sympy
 from ..model import System
 from .quantities import given_line, parameter_line
 
+def species_statistics(system: System, i: int) -> tuple[str, sympy.Expr]:
+    """("exchange", alpha_i), or in the exclusion regime ("g", g_ii): there the statistics matrix, not the
+    exchange parameter, decides the statistics (an undeclared species is not "exchange 0")."""
+    if system.source.kind == "exclusion":
+        return "g", system.source.matrix[i][i]
+    return "exchange", system.species[i].exchange
+
+
 def summary_lines(system: System) -> list[str]:
+    words = [species_statistics(system, i) for i in range(len(system.species))]
     species = ", ".join(
-        f"{s.name} (mass {s.mass}, exchange {s.exchange})" for s in system.species)
+        f"{s.name} (mass {s.mass}, {word if word == 'exchange' else word + '_' + s.name + s.name + ' ='} {value})"
+        for s, (word, value) in zip(system.species, words))
     lines = [f"dimension {system.dimension}; species in index order: {species}",
              f"reference species {system.reference}; total order {system.order}; "
              f"cluster coefficients: {system.source.kind}"]

@@ -6,7 +6,7 @@ import json
 import sympy
 
 from ..results import Derivation
-from .common import check_record, regime_lines
+from .common import check_record, regime_lines, species_statistics
 from .quantities import conventions, given_records, parameter_records, quantities
 from .series_lines import series_json
 
@@ -18,8 +18,9 @@ def to_json(derivation: Derivation) -> str:
         "conventions": conventions(system),
         "regime": _regime(system),
         "dimension": system.dimension,
-        "species": [{"name": s.name, "mass": sympy.sstr(s.mass), "exchange": sympy.sstr(s.exchange)}
-                    for s in system.species],
+        "species": [{"name": s.name, "mass": sympy.sstr(s.mass),
+                     species_statistics(system, i)[0]: sympy.sstr(species_statistics(system, i)[1])}
+                    for i, s in enumerate(system.species)],
         "mutual": [{"species": [m.first, m.second], "value": sympy.sstr(m.value)} for m in system.mutuals],
         "parameters": parameter_records(system),
         **({"given": given_records(system)} if system.source.values else {}),

@@ -3,7 +3,7 @@ from __future__ import annotations
 
 import sympy
 
-from .common import eos_exponents, statistics_matrix
+from .common import eos_exponents, species_statistics, statistics_matrix
 from .quantities import assumptions_latex, conventions_latex, quantities
 from .latex_lines import aligned_rows
 from ..naming import generated_latex_names, is_single_atom, latex_subscript, species_latex
@@ -131,6 +131,7 @@ def latex_document(derivation: Derivation) -> str:
     coefficient as a numbered equation, then the checks of the user's claims, the values asked for
     and small tables."""
     system = derivation.system
+    derivation.checks  # noqa: B018 -- first: their equations may name Taylor coefficients of pieces
     names = _symbol_names(derivation)
     labels = species_labels(system)
     w = "{" + system.typesetting.wavelength + "}"
@@ -138,8 +139,12 @@ def latex_document(derivation: Derivation) -> str:
     def math(expr) -> str:
         return sympy.latex(expr, symbol_names=names)
 
-    species = ", ".join(f"${label}$ (mass ${math(s.mass)}$, exchange parameter ${math(s.exchange)}$)"
-                        for label, s in zip(labels, system.species))
+    def statistics(i, label) -> str:
+        word, value = species_statistics(system, i)
+        return (f"exchange parameter ${math(value)}$" if word == "exchange" else
+                f"exclusion statistics $g_{{{label}{label}}}={math(value)}$")
+    species = ", ".join(f"${label}$ (mass ${math(s.mass)}$, {statistics(i, label)})"
+                        for i, (label, s) in enumerate(zip(labels, system.species)))
     lines = [
         r"\documentclass{article}",
         r"\usepackage{amsmath}",
@@ -180,6 +185,17 @@ def _unknowns_latex(derivation: Derivation, names) -> list[str]:
     return [r"Unknown Taylor coefficients of the named many-body pieces (the pieces are continuous; at a kink "
             r"each side has its own coefficients):", r"\begin{itemize}"] + \
         [rf"\item ${names[u.symbol]}$: {u.latex_description(names)}." for u in unknowns] + [r"\end{itemize}"]
+
+
+def claim_latex_name(derivation: Derivation, target) -> str:
+    """The LaTeX name of a claimed coefficient (`typeset` choices included), for the display of a check."""
+    system = derivation.system
+    return _name(derivation, target, species_labels(system), system.typesetting.wavelength)
+
+
+def latex_symbol_names(derivation: Derivation) -> dict:
+    """{symbol: LaTeX} for the generated names and the `typeset` parameters."""
+    return _symbol_names(derivation)
 
 
 def _checks_latex(derivation: Derivation, labels, w, names) -> list[str]:

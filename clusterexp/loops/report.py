@@ -24,12 +24,19 @@ PLUS_MINUS_LATEX = r" \pm "
 EXACT_BELOW = 1e-12
 
 
+def settled(value: float, error: float) -> tuple[float, float]:
+    """(value, error) as every printer and file shows them: with zero variance (the phases are trivial
+    at this point, e.g. an integer mutual parameter) what is left of the value below 1e-12 is rounding
+    of the phases, not statistics, so the value is rounded there and the error is 0."""
+    if not math.isfinite(error) or error < EXACT_BELOW:
+        return round(value, 12) + 0.0, 0.0
+    return value, error
+
+
 def plus_minus(value: float, error: float, separator: str = " +- ") -> str:
     """value and error, the error to two significant digits and the value to the same place."""
     if not math.isfinite(error) or error < EXACT_BELOW:
-        # zero variance: the phases are trivial at this point (e.g. integer mutual parameter); what is
-        # left of the value below 1e-12 is rounding of the phases, not statistics
-        return f"{round(value, 12) + 0.0:.7g}{separator}0"
+        return f"{settled(value, error)[0]:.7g}{separator}0"
     place = math.floor(math.log10(error)) - 1
     decimals = max(0, -place)
     if place > 0:
@@ -61,12 +68,21 @@ def text_lines(numbers: SampledNumbers) -> list[str]:
         lines += ["", f"sampled values ({METHOD}), `sample` at line {s.span.line}, seed {s.seed}, "
                       f"{_budget_text(statement)}:"]
         for run in statement.runs:
-            lines.append(f"  {run.label}: {run.samples} loops in {run.rounds} rounds, {run.slices} slices; "
-                         f"alone `sample {run.label} ... with {run.samples} loops seed {run.seed}` repeats it")
+            lines.append(f"  {run.label}: {run.samples} loops in {run.rounds} rounds{_rounding_text(s, run)}, "
+                         f"{run.slices} slices; alone `sample {run.label} ... with {run.samples} loops seed "
+                         f"{run.seed}` repeats it")
         for point in statement.points:
             where = f"at {_point_text(point.point)}: " if point.point else ""
             lines.append("  " + where + "; ".join(f"{v.label} = {plus_minus(v.value, v.error)}" for v in point.values))
     return lines
+
+
+def _rounding_text(sampling, run) -> str:
+    """The loops run come in whole rounds (one batch of every family): say so when that exceeds the
+    `with N loops` budget."""
+    if sampling.loops is None or run.samples == sampling.loops:
+        return ""
+    return f" (the budget of {sampling.loops} loops rounded up to whole rounds of {run.samples // run.rounds})"
 
 
 def latex_block(numbers: SampledNumbers, system) -> str:
@@ -99,10 +115,12 @@ def json_items(numbers: SampledNumbers) -> list[dict]:
             "seed": s.seed,
             "budget": {"loops": s.loops, "seconds": s.time_cap, "target": s.target},
             "runs": [{"coefficient": r.label, "estimator": r.kind, "estimator_seed": r.run_seed, "loops": r.samples,
-                      "rounds": r.rounds, "slices": r.slices} for r in statement.runs],
+                      "rounds": r.rounds, "loops_per_round": r.samples // r.rounds, "slices": r.slices}
+                     for r in statement.runs],
             "points": [{"at": {name: sympy.sstr(value) for name, value in p.point},
-                        "values": [{"coefficient": v.label, "kind": v.kind, "index": list(v.index), "value": v.value,
-                                    "error": v.error} for v in p.values]} for p in statement.points],
+                        "values": [{"coefficient": v.label, "kind": v.kind, "index": list(v.index),
+                                    **dict(zip(("value", "error"), settled(v.value, v.error)))} for v in p.values]}
+                       for p in statement.points],
         })
     return out
 
@@ -113,7 +131,7 @@ def table_rows(statement: SampledStatement) -> list[list[str]]:
     rows = [header]
     for point in statement.points:
         rows.append([grid_text(sympy.sympify(value), 15) for _, value in point.point]
-                    + [x for v in point.values for x in (repr(v.value), repr(v.error))])
+                    + [repr(x) for v in point.values for x in settled(v.value, v.error)])
     return rows
 
 

@@ -16,8 +16,10 @@ import math
 import sympy
 
 from ..errors import InputError
+from ..hints import did_you_mean
 from ..model import Sampling
 from ..naming import bracket_label
+from ..periods import braids, exchange_statistics
 
 SUPPORTED = ("supported: third-order coefficients of `clusters pairphase` in `dimension 2` with equal masses, "
              "b[3] and a[3] of one species of anyons, or b[2,1], a[2,1] (and b[1,2], a[1,2]) of two identical "
@@ -194,12 +196,13 @@ def _check_species(builder, index, names, ref_span):
                          "for a numeric estimate", ref_span)
     statistics = _builder_statistics(builder, index)
     alpha = statistics["alpha"]
-    ideal_pair = alpha.is_number and alpha in (0, 1)
+    params = {p.symbol: p for p in builder.parameters.values()}
+    ideal_pair = exchange_statistics(alpha, params)   # modulo the exchange period 2
     if kind == "identical" and ideal_pair:
-        raise InputError(f"b{label} is exact for {species[pair].name} ({'bosons' if alpha == 0 else 'fermions'}: "
+        raise InputError(f"b{label} is exact for {species[pair].name} ({dict(bose='bosons', fermi='fermions')[ideal_pair]} modulo the period 2: "
                          "an ideal gas); nothing to sample", ref_span)
     mutual = statistics.get("alpha_12")
-    if kind == "pair_plus_one" and ideal_pair and mutual.is_number and mutual in (0, 1):
+    if kind == "pair_plus_one" and braids(mutual, params) is False:
         raise InputError(f"b{label} is exactly 0 here (no statistical coupling between {species[pair].name} and "
                          f"{species[other].name}); nothing to sample", ref_span)
 
@@ -217,7 +220,8 @@ def _parameter_values(builder, statement, coefficients):
             token, *exprs = item.children
             name = str(token)
             if name not in builder.parameters:
-                raise InputError(f"`{clause_name}` needs a declared parameter; '{name}' is not one", builder.span(token))
+                raise InputError(f"`{clause_name}` needs a declared parameter; '{name}' is not one", builder.span(token),
+                                 did_you_mean(name, builder.parameters))
             if name in values:
                 raise InputError(f"a value for {name} is given twice", builder.span(token))
             parameter = builder.parameters[name]

@@ -13,6 +13,7 @@ import sympy
 
 from ..errors import InputError
 from ..model import System
+from ..periods import species_statistics
 from ..series import PolynomialRing, indices_up_to
 from .exclusion import continuum_factor, equal_masses, level_clusters, statistics_ring
 from .ideal import ideal_clusters
@@ -108,7 +109,8 @@ def spectrum_clusters(system: System, order: int) -> Clusters:
 
 
 def ideal(system: System, order: int) -> Clusters:
-    stats = [s.statistics if s.statistics else ("fermi" if s.exchange == 1 else "bose") for s in system.species]
+    params = {p.symbol: p for p in system.parameters}
+    stats = [species_statistics(s, params) for s in system.species]   # validated: bose/fermi modulo 2
     return Clusters(ideal_clusters(stats, [s.mass for s in system.species], system.reference_mass,
                                    system.dimension, order))
 

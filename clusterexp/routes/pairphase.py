@@ -25,6 +25,7 @@ from dataclasses import dataclass
 import sympy
 
 from ..model import Parameter
+from ..periods import braids, coupled_groups, species_statistics
 
 
 class PeriodicPart(sympy.Function):
@@ -148,16 +149,20 @@ def one_sided_series(expr: sympy.Expr, symbol: sympy.Symbol, point, order: int, 
 
 def two_body_clusters(system, order: int) -> dict:
     """b_n for the pair-phase regime: b_{e_i} (with the first-order flux-tube shift), the exact
-    |n| = 2 coefficients, the ideal-gas b_{l e_i} of bose/fermi species (with their tube shift), and
-    for everything else None (a many-body piece: a named symbol unless given)."""
+    |n| = 2 coefficients, the ideal-gas b_{l e_i} of species that are bosons or fermions modulo the
+    exchange period 2 (with their tube shift), zero for every n whose species fall into groups that do
+    not braid with each other (mutual parameters that are integers, period 1: the Hamiltonian
+    separates and ln Xi is additive), and for everything else None (a many-body piece: a named symbol
+    unless given)."""
     from ..series import indices_up_to
     params = {p.symbol: p for p in system.parameters}
     species = system.species
     K = len(species)
     m_ref = system.reference_mass
-    names = system.species_names
     tubes = system.tubes
     shift = flux_shift(tubes.flux, params) * tubes.coverage if tubes is not None else sympy.Integer(0)
+    ideal = [species_statistics(s, params) for s in species]
+    coupled = braiding_relation(system)
     out = {}
     for n in indices_up_to(K, order):
         occupied = [i for i in range(K) if n[i]]
@@ -165,27 +170,107 @@ def two_body_clusters(system, order: int) -> dict:
             i = occupied[0]
             l = n[i]
             ratio = species[i].mass / m_ref
-            alpha = species[i].exchange
             if l == 1:
                 out[n] = ratio + shift
-            elif alpha in (0, 1):  # ideal within the species: every l-cycle exact
-                sign = 1 if alpha == 0 or l % 2 else -1
+            elif ideal[i] in ("bose", "fermi"):  # ideal within the species: every l-cycle exact
+                sign = 1 if ideal[i] == "bose" or l % 2 else -1
                 out[n] = sympy.expand(sign * (ratio / sympy.Integer(l) ** 2 + shift / l))
             elif l == 2:
-                out[n] = exchange_b2(alpha, ratio, params)
+                out[n] = exchange_b2(species[i].exchange, ratio, params)
             else:
                 out[n] = None
+        elif len(coupled_groups(occupied, coupled)) > 1:
+            out[n] = sympy.Integer(0)  # species that do not braid with each other: no mixed b
         elif len(occupied) == 2 and sum(n) == 2:
             i, j = occupied
-            out[n] = mutual_b11(system.mutual(names[i], names[j]), (species[i].mass + species[j].mass) / m_ref,
-                                params)
+            out[n] = mutual_b11(system.mutual(system.species_names[i], system.species_names[j]),
+                                (species[i].mass + species[j].mass) / m_ref, params)
         else:
-            if all(system.mutual(names[i], names[j]) in (0, 1) for i in occupied for j in occupied if i < j) \
-                    and all(species[i].exchange in (0, 1) for i in occupied):
-                out[n] = sympy.Integer(0)  # no statistical coupling between ideal species: no mixed b
-            else:
-                out[n] = None
+            out[n] = None
     return out
+
+
+def braiding_relation(system):
+    """coupled(i, j): False when species i and j surely do not braid (mutual parameter an integer,
+    undeclared counts as 0), True otherwise (a braiding or undecided mutual parameter)."""
+    params = {p.symbol: p for p in system.parameters}
+    names = system.species_names
+
+    def coupled(i: int, j: int) -> bool:
+        return braids(system.mutual(names[i], names[j]), params) is not False
+    return coupled
+
+
+def separates(system, index) -> bool:
+    """True when the species of `index` fall into groups that do not braid with each other: every
+    coefficient (b, a, density, fugacity) at that multi-index vanishes exactly, whatever is given."""
+    occupied = [i for i in range(len(index)) if index[i]]
+    return len(occupied) > 1 and len(coupled_groups(occupied, braiding_relation(system))) > 1
+
+
+ADJECTIVE = {"bose": "bosonic", "fermi": "fermionic"}
+
+
+def known_piece(system, index) -> str | None:
+    """Why b_index (|index| >= 3) of the pair-phase regime is known exactly, or None for a genuine
+    many-body piece: the words of an error message refusing a given value for it."""
+    params = {p.symbol: p for p in system.parameters}
+    occupied = [i for i in range(len(index)) if index[i]]
+    names = system.species_names
+    if len(occupied) == 1:
+        s = system.species[occupied[0]]
+        stats = species_statistics(s, params)
+        if stats in ("bose", "fermi") and not s.statistics:
+            return (f"species {s.name} has exchange parameter {s.exchange}, which is {ADJECTIVE[stats]} modulo the "
+                    f"period 2: an ideal {stats.capitalize()} gas, every b_l known exactly")
+        if stats in ("bose", "fermi"):
+            return f"species {s.name} is an ideal {stats.capitalize()} gas: every b_l is known exactly"
+        return None
+    if separates(system, index):
+        groups = coupled_groups(occupied, braiding_relation(system))
+        parts = " | ".join(", ".join(names[i] for i in sorted(g)) for g in groups)
+        return (f"the species in it fall into groups that do not braid with each other ({parts}; a mutual "
+                "parameter that is an integer, or undeclared, means no coupling, period 1): the Hamiltonian "
+                "separates, ln Xi is additive and this mixed coefficient vanishes exactly")
+    return None
+
+
+def refuse_known_given(system) -> None:
+    """A given b or a of the pair-phase regime must be a genuine many-body piece: refuse one whose value
+    is known exactly (ideal species modulo the exchange period, species that do not braid)."""
+    from ..errors import InputError
+    for v in system.source.values:
+        why = known_piece(system, v.index)
+        if why:
+            letter = "b" if v.kind == "cluster" else "a"
+            raise InputError(f"{letter}{list(v.index)} is known exactly here, do not give it: {why}", v.span)
+
+
+def virials_with_known_clusters(pieces: dict, given: dict, order: int, K: int, truncation=None) -> dict:
+    """a_n for `clusters pairphase { a[...] = ... }` when some b_n with |n| >= 3 are known exactly (ideal
+    species, species that do not braid) and the others are many-body pieces named or given as a_n.
+
+    a_n = c_n b_n + (b_m with m < n) with c_n a nonzero constant, so the relations are triangular:
+    every unknown b_n is a placeholder, solved (in increasing total order) from its a_n, which is the
+    given value or the named a_n symbol; a known b_n gives its a_n through the reversion."""
+    from ..naming import virial_symbol
+    from ..virial import cluster_to_virial
+    placeholders = {n: sympy.Symbol(f"placeholder_b_{'_'.join(map(str, n))}") for n, v in pieces.items() if v is None}
+    b = {n: placeholders.get(n, v) for n, v in pieces.items()}
+    a = dict(cluster_to_virial(b, order, K, truncation=truncation).virial)
+    solved: dict = {}
+    for n in sorted(placeholders, key=lambda n: (sum(n), tuple(-k for k in n))):
+        target = given.get(n, virial_symbol(n))
+        expr = sympy.expand(sympy.sympify(a[n]).subs(solved))
+        slope = sympy.diff(expr, placeholders[n])
+        if slope == 0 or slope.has(*placeholders.values()):
+            raise ValueError(f"a{list(n)} does not determine b{list(n)} linearly")
+        solved[placeholders[n]] = sympy.expand((target - (expr - slope * placeholders[n])) / slope)
+        a[n] = target
+    for n, value in a.items():
+        if n not in placeholders:
+            a[n] = sympy.expand(sympy.sympify(value).subs(solved))
+    return a
 
 
 def split_truncation(value: sympy.Expr) -> tuple[sympy.Expr, dict]:
