@@ -5,7 +5,7 @@ import argparse
 import sys
 from pathlib import Path
 
-from .check_result import TIE
+from .check_result import TIE, UNDECIDED
 from .errors import EXIT_CHECK_FAILED, EXIT_INPUT_ERROR, EXIT_OK, InputError, NotSupportedYet
 
 DEMO = Path(__file__).resolve().parent / "demo.gas"
@@ -102,6 +102,9 @@ def main(argv: list[str] | None = None) -> int:
         if result.status == TIE:   # not a failure (exit 0), but never silent
             print(f"{claim.span}: check undecided: {result.label} is a rounding tie; write one more digit",
                   file=sys.stderr)
+        elif result.status == UNDECIDED:
+            print(f"{claim.span}: check undecided: {result.label} holds only if unknown many-body pieces take "
+                  "the stated values", file=sys.stderr)
     return EXIT_CHECK_FAILED if failed else EXIT_OK
 
 

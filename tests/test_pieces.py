@@ -176,3 +176,13 @@ def test_a_given_exact_piece_free_of_the_variable_is_flagged_in_the_series():
     record = json.loads(to_json(d))
     (a21,) = [c for c in record["coefficients"] if c["index"] == [2, 1]]
     assert a21["series"][0]["notes"] == ["b[2,1] as given, taken as independent of alpha"]
+
+
+def test_an_undecided_claim_exits_0_and_says_so_on_stderr(tmp_path):
+    path = tmp_path / "a3.gas"
+    path.write_text("dimension 2\nparameter alpha in [0, 1]\nspecies A exchange alpha\nclusters pairphase\n"
+                    "derive virial up to 3\nclaim a[3] = 1/36 + alpha^2/12 + O(alpha^3)\n")
+    out = run_cli("run", str(path), "--no-files")
+    assert out.returncode == 0
+    assert "a3.gas:6:1: check undecided: a[3] up to O(alpha^3) holds only if" in out.stderr
+    assert "b_3_alpha_2_above = 59/24" in out.stdout
