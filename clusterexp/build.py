@@ -507,7 +507,7 @@ class _Builder:
                                  "derived here", self.span(ref))
             expr = self.expr(value)
             if source.kind == "pairphase":
-                from .routes.pairphase import truncation_problem
+                from .expansions import truncation_problem
                 problem = truncation_problem(expr)
                 if problem:
                     raise InputError(problem, self.span(value))

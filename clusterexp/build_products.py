@@ -171,7 +171,7 @@ class ProductBuilder:
 
     # -- statements ---------------------------------------------------------------------------------
     def claim(self, tree) -> Claim:
-        from .routes.pairphase import split_truncation
+        from .expansions import split_truncation
         ref, value_tree = tree.children
         target = self.coefficient(ref)
         names = _ClaimNames({p.name: p.symbol for p in self.b.parameters.values()}, len(self.names))

@@ -10,14 +10,12 @@ from typing import Mapping
 
 import sympy
 
-from .errors import InputError, NotSupportedYet
+from .errors import InputError
 from .model import Index, Request, System
-from .naming import cluster_symbol, virial_symbol
 from .results import Coefficient, Derivation
 from .series import indices_up_to
 from .terms import TermSum
-from .virial import (CoefficientTable, VirialResult, cluster_to_virial, density_expansion, reduced_to_virial,
-                     virial_to_cluster)
+from .virial import CoefficientTable, VirialResult, cluster_to_virial, density_expansion, reduced_to_virial
 
 KIND_ORDER = ("cluster", "density", "fugacity", "virial")
 
@@ -29,31 +27,46 @@ def single_particle_factors(system: System) -> list[sympy.Expr]:
     return [sympy.powsimp(sympy.powdenest((s.mass / m_ref) ** half_d, force=False)) for s in system.species]
 
 
-def _unit(K: int, i: int) -> Index:
-    return tuple(1 if j == i else 0 for j in range(K))
-
-
 class _Plan:
-    """The tables a system needs, each built once on first use."""
+    """The tables a system needs, each built once on first use. The regime (`routes.regime_of`)
+    supplies the cluster coefficients (and the virial ones where the input gives them); everything else
+    is the cluster <-> virial machinery."""
 
     def __init__(self, system: System, progress=None):
+        from .routes import regime_of
         self.system = system
+        self.regime = regime_of(system)
         self.progress = progress
         self.K = len(system.species)
         self.linear = single_particle_factors(system)
         self.order = max([system.order] + [_request_order(r) for r in system.requests])
+        self._memo: dict = {}
+
+    def memo(self, key: str, compute):
+        """A regime's own table, built once per derivation."""
+        if key not in self._memo:
+            self._memo[key] = compute()
+        return self._memo[key]
 
     @cached_property
     def given(self) -> dict[Index, sympy.Expr]:
         return {v.index: v.value for v in self.system.source.values}
 
     @cached_property
-    def physical(self):
-        """The route's result for the physical regimes (None for generic/given)."""
-        from .routes import ROUTES, physical_clusters
-        if self.system.source.kind not in ROUTES:
-            return None
-        return physical_clusters(self.system, self.order)
+    def given_exact(self) -> dict[Index, sympy.Expr]:
+        """The given values without their O terms."""
+        from .expansions import split_truncation
+        return {v.index: split_truncation(v.value)[0] for v in self.system.source.values}
+
+    @cached_property
+    def given_kind(self) -> str:
+        kinds = {v.kind for v in self.system.source.values}
+        return kinds.pop() if kinds else "cluster"
+
+    @cached_property
+    def clusters(self):
+        """The regime's `routes.Clusters`."""
+        return self.regime.clusters(self)
 
     @cached_property
     def truncation(self) -> dict:
@@ -63,60 +76,23 @@ class _Plan:
     def truncation_for(self, index: Index | None) -> dict:
         """{symbol: first unknown power} over the truncated inputs coefficient `index` depends on: given
         values whose multi-index fits inside it (a_n and z(rho) at n involve b_m for m <= n only, and
-        conversely), and the tube coverage, which every coefficient feels through b_{e_i}. None: all."""
-        from .routes.pairphase import separates, split_truncation
+        conversely), and what the regime carries everywhere (the tube coverage). None: all."""
+        from .expansions import split_truncation
         limits: dict = {}
-        if index is not None and self.system.source.kind == "pairphase" and separates(self.system, index):
-            return limits   # exactly zero: species that do not braid with each other
+        if index is not None and self.regime.known_zero(self.system, index):
+            return limits   # exactly zero (species that do not braid with each other)
         for v in self.system.source.values:
             if index is not None and not all(a <= b for a, b in zip(v.index, index)):
                 continue
             for symbol, k in split_truncation(v.value)[1].items():
                 limits[symbol] = min(k, limits.get(symbol, k))
-        tubes = self.system.tubes
-        if tubes is not None and isinstance(tubes.coverage, sympy.Symbol):
-            limits[tubes.coverage] = min(2, limits.get(tubes.coverage, 2))
+        for symbol, k in self.shared_truncation.items():
+            limits[symbol] = min(k, limits.get(symbol, k))
         return limits
-
-    def _given_exact(self) -> dict:
-        from .routes.pairphase import split_truncation
-        return {v.index: split_truncation(v.value)[0] for v in self.system.source.values}
-
-    @cached_property
-    def pairphase(self) -> dict:
-        from .routes.pairphase import two_body_clusters
-        return two_body_clusters(self.system, self.order)
 
     @cached_property
     def cluster(self) -> Mapping[Index, sympy.Expr]:
-        kind = self.system.source.kind
-        if self.physical is not None:
-            return self.physical.values
-        if kind == "pairphase":
-            given = self._given_exact()
-            if self._given_kind() == "virial":
-                return virial_to_cluster(self.virial, self.order, self.K, linear=self.linear_pairphase)
-            out = {}
-            for n, value in self.pairphase.items():
-                if n in given:
-                    if value is not None:
-                        raise InputError(f"b{list(n)} is known exactly in this regime ({value}); do not give it",
-                                         next(v.span for v in self.system.source.values if v.index == n))
-                    value = given[n]
-                out[n] = cluster_symbol(n) if value is None else value
-            return out
-        if kind == "generic" or (kind == "given" and self._given_kind() == "cluster"):
-            b = {_unit(self.K, i): c for i, c in enumerate(self.linear)}
-            for index in indices_up_to(self.K, self.order, start=2):
-                b[index] = self.given.get(index, cluster_symbol(index))
-            return b
-        if kind == "given":
-            return virial_to_cluster(self.virial, self.order, self.K, linear=self.linear)
-        raise NotSupportedYet(f"cluster coefficients from the '{kind}' regime", self.system.source.span)
-
-    def _given_kind(self) -> str:
-        kinds = {v.kind for v in self.system.source.values}
-        return kinds.pop() if kinds else "cluster"
+        return self.clusters.values
 
     def _on_order(self, m: int) -> None:
         if self.progress is not None:
@@ -124,55 +100,24 @@ class _Plan:
 
     @cached_property
     def reversion(self) -> VirialResult:
-        physical = self.physical
-        if physical is not None and physical.ring is not None:
-            return reduced_to_virial(physical.ring, physical.elements, self.order, [sympy.Integer(1)] * self.K,
+        clusters = self.clusters
+        if clusters.ring is not None:
+            return reduced_to_virial(clusters.ring, clusters.elements, self.order, [sympy.Integer(1)] * self.K,
                                      self._on_order)
         return cluster_to_virial(self.cluster, self.order, self.K, on_order=self._on_order,
                                  truncation=self.shared_truncation)
 
     @cached_property
     def shared_truncation(self) -> dict:
-        """Truncation orders every coefficient is subject to, so that the kernel may apply them: the
-        tube coverage, known to first order (a given series in the coverage may cut some coefficients
-        lower still; the per-coefficient truncation does that)."""
-        tubes = self.system.tubes
-        if tubes is not None and isinstance(tubes.coverage, sympy.Symbol):
-            return {tubes.coverage: 2}
-        return {}
-
-    @cached_property
-    def linear_pairphase(self) -> list:
-        return [self.pairphase[_unit(self.K, i)] for i in range(self.K)]
+        """Truncation orders every coefficient is subject to, so that the kernel may apply them (the tube
+        coverage, known to first order; a given series may cut some coefficients lower still: the
+        per-coefficient truncation does that)."""
+        return self.regime.truncation(self.system)
 
     @cached_property
     def virial(self) -> Mapping[Index, sympy.Expr]:
-        if self.system.source.kind == "pairphase" and self._given_kind() == "virial":
-            exact = {n: v for n, v in self.pairphase.items() if v is not None and sum(n) <= 2}
-            a = dict(cluster_to_virial(exact, 2, self.K, truncation=self.shared_truncation).virial)
-            given = self._given_exact()
-            for n, value in self.pairphase.items():
-                if sum(n) <= 2:
-                    continue
-                if n in given:
-                    if value is not None:
-                        raise InputError(f"b{list(n)} is known exactly in this regime; give a{list(n)} only for "
-                                         "many-body pieces", next(v.span for v in self.system.source.values
-                                                                  if v.index == n))
-                    a[n] = given[n]
-                else:
-                    a[n] = virial_symbol(n) if value is None else None
-            if any(v is None for v in a.values()):  # some b_n with |n| >= 3 known exactly: solve triangularly
-                from .routes.pairphase import virials_with_known_clusters
-                return virials_with_known_clusters(self.pairphase, given, self.order, self.K,
-                                                   truncation=self.shared_truncation)
-            return a
-        if self.system.source.kind == "given" and self._given_kind() == "virial":
-            a = {_unit(self.K, i): sympy.Integer(1) for i in range(self.K)}
-            for index in indices_up_to(self.K, self.order, start=2):
-                a[index] = self.given.get(index, virial_symbol(index))
-            return a
-        return self.reversion.virial
+        given = self.regime.virials(self)
+        return given if given is not None else self.reversion.virial
 
     @cached_property
     def density(self) -> list[CoefficientTable]:
@@ -256,7 +201,7 @@ def _lookup(plan: _Plan, kind: str, index: Index, i: int | None = None):
         limits = plan.truncation_for(index) if plan.truncation else {}
         if limits and not (kind == "virial" and sum(index) == 1):
             from .pieces import truncate_pieces
-            from .routes.pairphase import truncate
+            from .expansions import truncate
             try:
                 value = truncate_pieces(plan.system, value, limits)[0]
             except InputError as error:

@@ -31,7 +31,7 @@ FUNCTIONS: dict[str, tuple[Callable, int]] = {
 
 
 def _periodic(x, period):
-    from .routes.pairphase import PeriodicPart
+    from .periods import PeriodicPart
     return PeriodicPart(x, period)
 CONSTANTS = {"pi": sympy.pi}
 

@@ -87,7 +87,8 @@ def estimate(system) -> SizeEstimate:
     if kind == "pairphase":
         # like `given`: the exact two-body (and ideal-species) coefficients are stated values, the
         # many-body pieces are unknown symbols unless the input gives them
-        from .routes.pairphase import split_truncation, two_body_clusters
+        from .expansions import split_truncation
+        from .routes.pairphase import two_body_clusters
         known = {n: v for n, v in two_body_clusters(system, N).items() if v is not None and sum(n) >= 2}
         given = {**known, **{n: split_truncation(v)[0] for n, v in given.items()}}
     # weight w = |m| - 1 >= 1; parts of weight w: all multi-indices of total w + 1

@@ -84,3 +84,71 @@ def coupled_groups(occupied, coupled) -> list[set]:
         merged = {i}.union(*joined)
         groups = [g for g in groups if g not in joined] + [merged]
     return groups
+
+
+# --- periodic closed forms ------------------------------------------------------------------------
+
+class PeriodicPart(sympy.Function):
+    """x mod p as a function sympy can evaluate, differentiate (slope 1 away from the jumps, where the
+    two-body coefficients are continuous anyway) and print: `Mod(x, p)` in text, (x mod p) in LaTeX."""
+
+    nargs = 2
+
+    @classmethod
+    def eval(cls, x, p):
+        if x.is_number and p.is_number:
+            return sympy.Mod(x, p)
+        return None
+
+    def fdiff(self, argindex=1):
+        if argindex == 1:
+            return sympy.Integer(1)
+        raise sympy.ArgumentIndexError(self, argindex)
+
+    def _eval_evalf(self, prec):
+        x, p = self.args
+        value = sympy.Mod(x, p)
+        return None if value.has(PeriodicPart) else value.evalf(prec)
+
+    def _sympystr(self, printer):
+        return f"Mod({printer._print(self.args[0])}, {printer._print(self.args[1])})"
+
+    def _latex(self, printer, exp=None):
+        body = rf"\left({printer._print(self.args[0])} \bmod {printer._print(self.args[1])}\right)"
+        return body if exp is None else rf"{body}^{{{exp}}}"
+
+    def floor_form(self) -> sympy.Expr:
+        x, p = self.args
+        return x - p * sympy.floor(x / p)
+
+
+def reduced(value: sympy.Expr, period: int, parameters: dict) -> sympy.Expr:
+    """value mod period, written without floor when the declared range keeps it in one branch."""
+    value = sympy.sympify(value)
+    if value.is_number:
+        return PeriodicPart(value, period)
+    low, high = _range_of(value, parameters)
+    if low is not None and high is not None:
+        k = sympy.floor(low / period)
+        if bool(high <= (k + 1) * period) or (bool(sympy.Eq(high, (k + 1) * period)) and _open_top(value, parameters)):
+            return sympy.expand(value - k * period)
+    return PeriodicPart(value, period)
+
+
+def _range_of(value, parameters):
+    """A range for a linear expression c*p + d in one declared parameter p, else (None, None)."""
+    symbols = list(value.free_symbols)
+    if len(symbols) != 1 or symbols[0] not in parameters:
+        return None, None
+    p = parameters[symbols[0]]
+    if p.lower is None or p.upper is None:
+        return None, None
+    poly = sympy.Poly(value, symbols[0]) if value.is_polynomial(symbols[0]) else None
+    if poly is None or poly.degree() > 1:
+        return None, None
+    ends = sorted([value.subs(symbols[0], p.lower), value.subs(symbols[0], p.upper)])
+    return ends[0], ends[1]
+
+
+def _open_top(value, parameters) -> bool:
+    return False

@@ -232,8 +232,9 @@ def value_at(system, piece: sympy.Symbol, point: Mapping) -> sympy.Expr | None:
     else None. The pieces are continuous there, so this is also the order-0 Taylor coefficient from
     either side."""
     import dataclasses
+    from .routes import regime_of
     from .routes.pairphase import two_body_clusters
-    if piece.name in _NAMED or system.source.kind != "pairphase" or not piece.name.startswith("b_"):
+    if piece.name in _NAMED or not regime_of(system).named_pieces or not piece.name.startswith("b_"):
         return None
     index = piece_index(piece, len(system.species))
     point = {v: sympy.sympify(p) for v, p in point.items()}

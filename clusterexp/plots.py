@@ -242,7 +242,7 @@ def _prepare(items, axes: list[str], other_values, system, parameters) -> tuple[
 
 
 def _evaluator(expr: sympy.Expr, axes: list[str], numpy):
-    from .routes.pairphase import PeriodicPart
+    from .periods import PeriodicPart
     # periodic closed forms (pair phases) hold x mod p; numpy knows Mod, not our differentiable wrapper
     expr = expr.replace(PeriodicPart, lambda x, period: sympy.Mod(x, period, evaluate=False))
     symbols = {s.name: s for s in expr.free_symbols}

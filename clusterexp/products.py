@@ -37,7 +37,8 @@ def run_checks(derivation) -> list:
     A claim ending in O(p^k), or a derived value known only below some power (given truncated
     series), is compared below the lower of the two limits in each parameter."""
     from .pieces import truncate_pieces
-    from .routes.pairphase import split_truncation, truncate
+    from .routes import regime_of
+    from .expansions import split_truncation, truncate
     from .export.latex import claim_latex_name, latex_symbol_names
     system = derivation.system
     results = []
@@ -73,7 +74,7 @@ def run_checks(derivation) -> list:
         try:
             # named pieces are unknown functions in this regime, not free symbols to sample
             result = check_with_pieces(claimed, derived, system, label=label) \
-                if system.source.kind == "pairphase" else None
+                if regime_of(system).named_pieces else None
             if result is not None:
                 pass
             elif as_decimal:

@@ -90,7 +90,7 @@ class Derivation:
         computed once and shared by every printer."""
         key = (c.kind, c.index, c.component)
         if key not in self._series:
-            from .routes.pairphase import expansion_of
+            from .expansions import expansion_of
             # a coefficient free of the variable is its own series: no line for it
             from .pieces import depends_through_pieces
             self._series[key] = [piece for e in self.system.expansions

@@ -329,7 +329,7 @@ def test_series_and_statistics_bad_input(text, message, cli):
 
 
 def test_truncation_orders_of_several_parameters():
-    from clusterexp.routes.pairphase import split_truncation, truncation_problem
+    from clusterexp.expansions import split_truncation, truncation_problem
     g, h = sympy.symbols("g h")
     value = 1 + g + h + sympy.Order(g ** 2) + sympy.Order(h ** 3)
     assert split_truncation(value) == (1 + g + h, {g: 2, h: 3}) and truncation_problem(value) is None

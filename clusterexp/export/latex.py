@@ -3,13 +3,14 @@ from __future__ import annotations
 
 import sympy
 
-from .common import eos_exponents, species_statistics, statistics_matrix
+from ..routes import regime_of
+from .common import species_statistics
 from .quantities import assumptions_latex, conventions_latex, quantities
 from .latex_lines import aligned_rows
 from ..naming import generated_latex_names, is_single_atom, latex_subscript, species_latex
 from ..results import Coefficient, Derivation
 from ..series import indices_up_to
-from .series_lines import pairphase_latex_paragraphs, series_latex_rows
+from .series_lines import series_latex_paragraphs, series_latex_rows
 
 LETTERS = {"cluster": "b", "virial": "a"}
 
@@ -82,48 +83,8 @@ def latex_snippet(derivation: Derivation, environment: str = "align", align: boo
 
 
 def regime_latex(system) -> list[str]:
-    """Paragraphs stating the regime's conventions and, where there is one, its equation of state."""
-    kind = system.source.kind
-    labels = species_labels(system)
-    if kind == "ideal":
-        return [r"Ideal gases: $b_{l\,e_i}=(m_i/m_{\mathrm{ref}})^{d/2}(\pm1)^{l+1}l^{-1-d/2}$ "
-                r"(upper sign bosons, lower fermions; Boltzmann species have $b_{e_i}$ only); no mixed coefficients."]
-    if kind == "spectrum":
-        spec = system.source.spectrum
-        weight = {"count": r"|n|", "one": ""}.get(spec.area, r"(M_n/m_{\mathrm{ref}})^{d/2}")
-        rows = ", ".join(f"${l}$: $L(x)={sympy.latex(lv)}$ ({fill})" for l, lv, fill in zip(labels, spec.levels, spec.fill))
-        return [r"Declared trapped spectrum, $x=e^{-\beta\hbar\omega}$: "
-                rf"$b_n={weight}\lim_{{\omega\to0}}[z^n]\ln\Xi_{{\mathrm{{trap}}}}/Z_{{1,\mathrm{{ref}}}}(x)$; "
-                rf"one-body levels {rows}; energy shift $\hbar\omega\,({sympy.latex(spec.shift)})$ "
-                r"with $N_X$ the number of particles of species $X$."]
-    g = statistics_matrix(system)
-    if g is None:
-        return []
-    level = kind == "landau" or system.source.form == "level"
-    equations = []
-    for i, label in enumerate(labels):
-        factors = [rf"(1+u_{{{labels[j]}}})" + ("" if e == 1 else rf"^{{{sympy.latex(e)}}}")
-                   for j, e in eos_exponents(g, i)]
-        argument = rf"z_{{{label}}}" if level else rf"z_{{{label}}}e^{{-\beta\varepsilon_{{{label}}}(k)}}"
-        equations.append(rf"u_{{{label}}}={argument}" + "".join(factors))
-    logs = "+".join(rf"\ln(1+u_{{{l}}})" for l in labels)
-    if kind == "landau":
-        text = (r"Lowest Landau level (all species with the same charge, degeneracy $\rho_L=eB/h$ per area): "
-                r"$\beta P/\rho_L=\sum_n b_n z^n$ and the virial coefficients are those of $\nu=\rho/\rho_L$. "
-                r"Statistics matrix $g_{ii}=\alpha_i$, $g_{ij}=\alpha_{ij}$.")
-        pressure = rf"\beta P/\rho_L={logs}"
-    elif level:
-        text = (r"Exclusion statistics on one single-particle level, Haldane's $g_{ij}=-\partial d_i/\partial N_j$: "
-                r"$\beta P/(\text{states})=\sum_n b_n z^n$.")
-        pressure = rf"\beta P/(\text{{states}})={logs}"
-    else:
-        text = (rf"Exclusion statistics in the continuum, $d={system.dimension}$, Haldane's "
-                r"$g_{ij}=-\partial d_i/\partial N_j$; the levels are momentum cells shared by all species, "
-                r"$\varepsilon_i(k)=\hbar^2k^2/2m_i$.")
-        w = "{" + system.typesetting.wavelength + "}"
-        pressure = rf"\beta P{w}^d=\int\frac{{d^dk\,{w}^d}}{{(2\pi)^d}}\,\bigl[{logs}\bigr]"
-    return [text + " Equation of state:",
-            r"\begin{gather*}", r" \\ ".join(equations) + r" \\", pressure, r"\end{gather*}"]
+    """Paragraphs stating the regime's closed forms and, where there is one, its equation of state."""
+    return regime_of(system).latex_paragraphs(system, species_labels(system))
 
 
 def latex_document(derivation: Derivation) -> str:
@@ -162,7 +123,7 @@ def latex_document(derivation: Derivation) -> str:
         *assumptions_latex(system, math),
         conventions_latex(system, system.typesetting.wavelength),
         *regime_latex(system),
-        *pairphase_latex_paragraphs(derivation),
+        *series_latex_paragraphs(derivation),
         latex_snippet(derivation).rstrip("\n"),
         *_unknowns_latex(derivation, names),
         *_checks_latex(derivation, labels, w, names),

@@ -1,88 +1,18 @@
-"""What a regime's numbers are numbers of: pressure and densities per lambda^d, per rho_L, per state or
-per one-body partition function, stated the same way in every printer (text, LaTeX, JSON, figures)."""
+"""How a regime's quantities (`routes.base.Quantities`: per lambda^d, rho_L, state or one-body partition
+function) and the input's assumptions are stated, the same way in every printer (text, LaTeX, JSON,
+figures)."""
 from __future__ import annotations
 
-from dataclasses import dataclass
-
 import sympy
+
+from ..routes import THERMAL, Quantities, regime_of
 
 STATISTICS = "exchange parameter alpha: 0 bosons, 1 fermions (period 2); mutual parameter alpha_ij: period 1"
 
 
-@dataclass(frozen=True)
-class Quantities:
-    """`pressure`/`density` in plain text (density with `{i}` for the species); `unit` names what the
-    densities are measured against; the LaTeX forms take the wavelength symbol and a species label."""
-
-    pressure: str
-    density: str
-    variable: str  # the density variable of the virial series, e.g. (rho lambda^d), nu
-    single: str
-    unit: str
-    pressure_latex: str
-    density_latex: str  # format with label=, w=, d=
-    variable_latex: str = ""
-    single_latex: str = ""
-
-    def density_of(self, name: str) -> str:
-        return self.density.format(i=name)
-
-    def density_tex(self, label: str, wavelength: str, d: int) -> str:
-        return self.density_latex.format(label=label, w="{" + wavelength + "}", d=d)
-
-
-_THERMAL = Quantities(
-    pressure="beta P lambda^d", density="rho_{i} lambda^d", variable="(rho lambda^d)",
-    single="lambda = thermal wavelength of the reference species; "
-           "b_(single particle of i) = (m_i/m_ref)^(d/2), a_(single particle) = 1",
-    unit="lambda^d", pressure_latex=r"\beta P{w}^d", density_latex=r"\rho_{{{label}}}{w}^{{{d}}}",
-    variable_latex=r"(\rho{w}^d)", single_latex=r"single-particle $b=(m_i/m_{{\mathrm{{ref}}}})^{{d/2}}$")
-
-_LANDAU = Quantities(
-    pressure="beta P / rho_L", density="nu_{i}", variable="nu",
-    single="nu_i = rho_i / rho_L, rho_L = eB/h the degeneracy of the lowest Landau level per area (the same "
-           "for every species: equal charges); b_(single particle) = 1, a_(single particle) = 1",
-    unit="rho_L", pressure_latex=r"\beta P/\rho_L", density_latex=r"\nu_{{{label}}}", variable_latex=r"\nu",
-    single_latex=r"$\nu_i=\rho_i/\rho_L$ with $\rho_L=eB/h$ the degeneracy per area of the lowest Landau level "
-                 r"(equal charges); single-particle $b=1$")
-
-_LEVEL = Quantities(
-    pressure="beta P / (states)", density="N_{i} / (states)", variable="(N / states)",
-    single="N_i / (states) = particles of species i per single-particle state (one level); "
-           "b_(single particle) = 1, a_(single particle) = 1",
-    unit="states", pressure_latex=r"\beta P/(\text{{states}})", density_latex=r"N_{{{label}}}/(\text{{states}})",
-    variable_latex=r"(N/\text{{states}})", single_latex=r"densities are particles per single-particle state "
-                                                         r"(one level); single-particle $b=1$")
-
-_COUNT = Quantities(
-    pressure="beta P / rho_0", density="nu_{i}", variable="nu",
-    single="nu_i = rho_i / rho_0, rho_0 the one-body degeneracy per area of the declared levels (weight |n|, "
-           "as in the lowest Landau level); b_(single particle) = 1, a_(single particle) = 1",
-    unit="rho_0", pressure_latex=r"\beta P/\rho_0", density_latex=r"\nu_{{{label}}}", variable_latex=r"\nu",
-    single_latex=r"$\nu_i=\rho_i/\rho_0$, $\rho_0$ the one-body degeneracy per area of the declared levels "
-                 r"(weight $|n|$); single-particle $b=1$")
-
-_TRAPPED = Quantities(
-    pressure="ln Xi_trap / Z_1", density="N_{i} / Z_1", variable="(N / Z_1)",
-    single="the trapped gas itself: every quantity per one-body partition function Z_1 of the reference "
-           "species; b_(single particle) = 1, a_(single particle) = 1",
-    unit="Z_1", pressure_latex=r"\ln\Xi_{{\mathrm{{trap}}}}/Z_1", density_latex=r"N_{{{label}}}/Z_1",
-    variable_latex=r"(N/Z_1)", single_latex=r"the trapped gas itself, every quantity per one-body partition "
-                                            r"function $Z_1$ of the reference species; single-particle $b=1$")
-
-
 def quantities(system) -> Quantities:
     """The quantities the system's regime computes (None: per lambda^d)."""
-    if system is None:
-        return _THERMAL
-    source = system.source
-    if source.kind == "landau":
-        return _LANDAU
-    if source.kind == "exclusion" and source.form == "level":
-        return _LEVEL
-    if source.kind == "spectrum":
-        return {"count": _COUNT, "one": _TRAPPED}.get(source.spectrum.area, _THERMAL)
-    return _THERMAL
+    return THERMAL if system is None else regime_of(system).quantities(system)
 
 
 def conventions(system) -> str:

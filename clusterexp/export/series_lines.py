@@ -99,30 +99,12 @@ def _order_latex(o) -> str:
     return rf"O\left({sympy.latex(o.expr)}\right)"
 
 
-def pairphase_latex_paragraphs(derivation: Derivation) -> list[str]:
-    """For the standalone document: the pair-phase closed forms (regime `pairphase`) and, when there
-    are series rows, how to read them."""
-    system = derivation.system
-    out = []
-    if system.source.kind == "pairphase":
-        text = (r"Pair phases in the plane (harmonic regulator on the relative motion): "
-                r"$b_{2e_i}=\frac{m_i}{m_{\mathrm{ref}}}\bigl(\tfrac14-s+\tfrac{s^2}{2}\bigr)$ with "
-                r"$s=\alpha_i\bmod 2$, and $b_{e_i+e_j}=-\frac{m_i+m_j}{2m_{\mathrm{ref}}}\,s(1-s)$ with "
-                r"$s=\alpha_{ij}\bmod 1$; both have a kink where $s=0$. Many-body pieces are named symbols "
-                r"unless given; $O(p^k)$ marks the first unknown power of $p$.")
-        if system.tubes is not None:
-            flux, coverage = sympy.latex(system.tubes.flux), sympy.latex(system.tubes.coverage)
-            text += (rf" Static flux tubes of flux ${flux}$ (flux quanta), ${coverage}$ tubes per $\lambda^2$: "
-                     rf"$b_{{l e_i}}$ gains $(\pm1)^{{l+1}}\frac{{{coverage}}}{{l}}\bigl(-\tfrac{{s(1-s)}}{{2}}\bigr)$, "
-                     rf"$s=({flux})\bmod 1$, to first order in the coverage.")
-            if system.tubes.value is not None:
-                text += (rf" The coverage is declared as ${coverage}={sympy.latex(system.tubes.value)}$; the values "
-                         rf"are first order in it, $O({coverage}^2)$ unknown.")
-        out.append(text)
-    if system.expansions:
-        out.append(r"Below a coefficient, each further line is its series in a statistics parameter through "
-                   r"the stated order; $O(\cdot)$ marks the first unknown power (from the expansion or from a "
-                   r"given truncated many-body part). At a kink (the $|\alpha|$ term at the boson point) the "
-                   r"coefficient is not analytic and the one-sided expansions $\alpha\to\alpha_0^{\pm}$ are "
-                   r"printed, each marked.")
-    return out
+def series_latex_paragraphs(derivation: Derivation) -> list[str]:
+    """For the standalone document, when there are series rows: how to read them."""
+    if not derivation.system.expansions:
+        return []
+    return [r"Below a coefficient, each further line is its series in a statistics parameter through "
+            r"the stated order; $O(\cdot)$ marks the first unknown power (from the expansion or from a "
+            r"given truncated many-body part). At a kink (the $|\alpha|$ term at the boson point) the "
+            r"coefficient is not analytic and the one-sided expansions $\alpha\to\alpha_0^{\pm}$ are "
+            r"printed, each marked."]

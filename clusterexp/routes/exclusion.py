@@ -33,6 +33,7 @@ from typing import Sequence
 import sympy
 
 from ..series import PolynomialRing, collect_atoms, indices_up_to
+from .base import THERMAL, Clusters, Quantities, Regime, ring_native, sympy_values
 
 Index = tuple[int, ...]
 
@@ -153,3 +154,100 @@ def continuum_factor(index: Index, masses: Sequence[sympy.Expr], m_ref: sympy.Ex
 
 def equal_masses(masses: Sequence[sympy.Expr]) -> bool:
     return all(sympy.simplify(m - masses[0]) == 0 for m in masses)
+
+
+# --- the regime -----------------------------------------------------------------------------------
+
+LEVEL = Quantities(
+    pressure="beta P / (states)", density="N_{i} / (states)", variable="(N / states)",
+    single="N_i / (states) = particles of species i per single-particle state (one level); "
+           "b_(single particle) = 1, a_(single particle) = 1",
+    unit="states", pressure_latex=r"\beta P/(\text{{states}})", density_latex=r"N_{{{label}}}/(\text{{states}})",
+    variable_latex=r"(N/\text{{states}})", single_latex=r"densities are particles per single-particle state "
+                                                         r"(one level); single-particle $b=1$")
+
+
+def wu_exponents(g, i: int) -> list[tuple[int, object]]:
+    """Wu's equation for species i, u_i = z_i prod_j (1 + u_j)^(delta_ij - g_ji): the nonzero exponents."""
+    out = []
+    for j in range(len(g)):
+        exponent = (1 if i == j else 0) - g[j][i]
+        if exponent != 0:
+            out.append((j, exponent))
+    return out
+
+
+def wu_text(g, names, level: bool, pressure_head: str) -> list[str]:
+    """Wu's equations and the pressure, plain text."""
+    equations = []
+    for i, n in enumerate(names):
+        factors = [f"(1 + u_{names[j]})" if e == 1 else f"(1 + u_{names[j]})^({e})" for j, e in wu_exponents(g, i)]
+        argument = f"z_{n}" if level else f"z_{n} exp(-beta eps_{n}(k))"
+        equations.append(f"u_{n} = {argument} " + " ".join(factors))
+    return ["equation of state: " + "; ".join(equations),
+            pressure_head + " + ".join(f"ln(1 + u_{n})" for n in names)]
+
+
+def wu_latex(g, labels, level: bool, text: str, pressure_head) -> list[str]:
+    """Wu's equations and the pressure in a gather* block after `text`; `pressure_head(logs)`."""
+    equations = []
+    for i, label in enumerate(labels):
+        factors = [rf"(1+u_{{{labels[j]}}})" + ("" if e == 1 else rf"^{{{sympy.latex(e)}}}")
+                   for j, e in wu_exponents(g, i)]
+        argument = rf"z_{{{label}}}" if level else rf"z_{{{label}}}e^{{-\beta\varepsilon_{{{label}}}(k)}}"
+        equations.append(rf"u_{{{label}}}={argument}" + "".join(factors))
+    logs = "+".join(rf"\ln(1+u_{{{l}}})" for l in labels)
+    return [text + " Equation of state:",
+            r"\begin{gather*}", r" \\ ".join(equations) + r" \\", pressure_head(logs), r"\end{gather*}"]
+
+
+class ExclusionRegime(Regime):
+    """`clusters exclusion [level]`: Haldane-Wu exclusion statistics with a K x K matrix, on one level
+    or in the d-dimensional continuum."""
+
+    kind = "exclusion"
+
+    def clusters(self, plan) -> Clusters:
+        system = plan.system
+        g = system.source.matrix
+        ring, b = level_clusters(g, plan.order)
+        if system.source.form == "level":
+            return ring_native(ring, b, lambda n: 1)
+        masses = [s.mass for s in system.species]
+        d = system.dimension
+        if equal_masses(masses) and d == 2:
+            return ring_native(ring, b, lambda n: Fraction(1, sum(n)))
+        m_ref = system.reference_mass
+        return sympy_values(ring, b, lambda n: continuum_factor(n, masses, m_ref, d))
+
+    def quantities(self, system) -> Quantities:
+        return LEVEL if system.source.form == "level" else THERMAL
+
+    def statistics(self, system, i: int):
+        # the matrix, not the exchange parameter, decides the statistics (an undeclared species is not
+        # "exchange 0")
+        return "g", system.source.matrix[i][i]
+
+    def matrix(self, system):
+        return system.source.matrix
+
+    def text_lines(self, system) -> list[str]:
+        level = system.source.form == "level"
+        head = ["regime: exclusion statistics (Haldane's g_ij = -d(states of i)/d(particles of j)), "
+                + ("one single-particle level: beta P / (states) = sum_n b_n z^n" if level else
+                   f"continuum in d = {system.dimension}, levels = momentum cells shared by all species, "
+                   "eps_i(k) = hbar^2 k^2 / 2 m_i")]
+        pressure = "beta P / (states) = " if level else "beta P lambda^d = integral d^dk lambda^d/(2 pi)^d of "
+        return head + wu_text(system.source.matrix, system.species_names, level, pressure)
+
+    def latex_paragraphs(self, system, labels) -> list[str]:
+        if system.source.form == "level":
+            text = (r"Exclusion statistics on one single-particle level, Haldane's $g_{ij}=-\partial d_i/\partial N_j$: "
+                    r"$\beta P/(\text{states})=\sum_n b_n z^n$.")
+            return wu_latex(system.source.matrix, labels, True, text, lambda logs: rf"\beta P/(\text{{states}})={logs}")
+        text = (rf"Exclusion statistics in the continuum, $d={system.dimension}$, Haldane's "
+                r"$g_{ij}=-\partial d_i/\partial N_j$; the levels are momentum cells shared by all species, "
+                r"$\varepsilon_i(k)=\hbar^2k^2/2m_i$.")
+        w = "{" + system.typesetting.wavelength + "}"
+        return wu_latex(system.source.matrix, labels, False, text,
+                        lambda logs: rf"\beta P{w}^d=\int\frac{{d^dk\,{w}^d}}{{(2\pi)^d}}\,\bigl[{logs}\bigr]")

@@ -6,6 +6,8 @@ from typing import Sequence
 
 import sympy
 
+from .base import Clusters, Regime
+
 Index = tuple[int, ...]
 
 STATISTICS = ("bose", "fermi", "boltzmann")
@@ -30,3 +32,26 @@ def ideal_clusters(statistics: Sequence[str], masses: Sequence[sympy.Expr], m_re
             index = tuple(l if j == i else 0 for j in range(K))
             out[index] = sympy.powsimp((m / m_ref) ** half_d) * sign * sympy.Integer(l) ** (-1 - half_d)
     return out
+
+
+class IdealRegime(Regime):
+    """`clusters ideal`: Bose, Fermi and Boltzmann species (bose/fermi by word or by the exchange
+    parameter modulo 2), any d, any masses."""
+
+    kind = "ideal"
+
+    def clusters(self, plan) -> Clusters:
+        from ..periods import species_statistics
+        system = plan.system
+        params = {p.symbol: p for p in system.parameters}
+        stats = [species_statistics(s, params) for s in system.species]   # validated: bose/fermi modulo 2
+        return Clusters(ideal_clusters(stats, [s.mass for s in system.species], system.reference_mass,
+                                       system.dimension, plan.order))
+
+    def text_lines(self, system) -> list[str]:
+        return ["regime: ideal gases, b_(l of species i) = (m_i/m_ref)^(d/2) (+-1)^(l+1) l^(-1-d/2) "
+                "(+ bose, - fermi; boltzmann: b_1 only); no mixed coefficients"]
+
+    def latex_paragraphs(self, system, labels) -> list[str]:
+        return [r"Ideal gases: $b_{l\,e_i}=(m_i/m_{\mathrm{ref}})^{d/2}(\pm1)^{l+1}l^{-1-d/2}$ "
+                r"(upper sign bosons, lower fermions; Boltzmann species have $b_{e_i}$ only); no mixed coefficients."]

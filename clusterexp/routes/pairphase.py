@@ -1,5 +1,7 @@
-"""Pair phases in the plane (route R3): exact two-body cluster coefficients, and the truncation
-bookkeeping of the higher ones.
+"""Pair phases in the plane (route R3): exact two-body cluster coefficients, the pieces known exactly
+(ideal species modulo the exchange period, species that do not braid), and the regime itself; the
+many-body pieces stay named (`pieces`) unless given, and truncated series are kept honest
+(`expansions`).
 
 Harmonic regulator (x = e^{-beta hbar omega}): the relative motion of two particles has energies
 hbar omega (2 n_r + |l + s| + 1). Summing the channels in closed form for s in its fundamental interval:
@@ -20,78 +22,10 @@ independently of temperature and mass; each l-cycle of an ideal mobile species f
 """
 from __future__ import annotations
 
-from dataclasses import dataclass
-
 import sympy
 
-from ..model import Parameter
-from ..periods import braids, coupled_groups, species_statistics
-
-
-class PeriodicPart(sympy.Function):
-    """x mod p as a function sympy can evaluate, differentiate (slope 1 away from the jumps, where the
-    two-body coefficients are continuous anyway) and print: `Mod(x, p)` in text, (x mod p) in LaTeX."""
-
-    nargs = 2
-
-    @classmethod
-    def eval(cls, x, p):
-        if x.is_number and p.is_number:
-            return sympy.Mod(x, p)
-        return None
-
-    def fdiff(self, argindex=1):
-        if argindex == 1:
-            return sympy.Integer(1)
-        raise sympy.ArgumentIndexError(self, argindex)
-
-    def _eval_evalf(self, prec):
-        x, p = self.args
-        value = sympy.Mod(x, p)
-        return None if value.has(PeriodicPart) else value.evalf(prec)
-
-    def _sympystr(self, printer):
-        return f"Mod({printer._print(self.args[0])}, {printer._print(self.args[1])})"
-
-    def _latex(self, printer, exp=None):
-        body = rf"\left({printer._print(self.args[0])} \bmod {printer._print(self.args[1])}\right)"
-        return body if exp is None else rf"{body}^{{{exp}}}"
-
-    def floor_form(self) -> sympy.Expr:
-        x, p = self.args
-        return x - p * sympy.floor(x / p)
-
-
-def reduced(value: sympy.Expr, period: int, parameters: dict[sympy.Symbol, Parameter]) -> sympy.Expr:
-    """value mod period, written without floor when the declared range keeps it in one branch."""
-    value = sympy.sympify(value)
-    if value.is_number:
-        return PeriodicPart(value, period)
-    low, high = _range_of(value, parameters)
-    if low is not None and high is not None:
-        k = sympy.floor(low / period)
-        if bool(high <= (k + 1) * period) or (bool(sympy.Eq(high, (k + 1) * period)) and _open_top(value, parameters)):
-            return sympy.expand(value - k * period)
-    return PeriodicPart(value, period)
-
-
-def _range_of(value, parameters):
-    """A range for a linear expression c*p + d in one declared parameter p, else (None, None)."""
-    symbols = list(value.free_symbols)
-    if len(symbols) != 1 or symbols[0] not in parameters:
-        return None, None
-    p = parameters[symbols[0]]
-    if p.lower is None or p.upper is None:
-        return None, None
-    poly = sympy.Poly(value, symbols[0]) if value.is_polynomial(symbols[0]) else None
-    if poly is None or poly.degree() > 1:
-        return None, None
-    ends = sorted([value.subs(symbols[0], p.lower), value.subs(symbols[0], p.upper)])
-    return ends[0], ends[1]
-
-
-def _open_top(value, parameters) -> bool:
-    return False
+from ..periods import PeriodicPart, braids, coupled_groups, reduced, species_statistics
+from .base import Clusters, Regime
 
 
 def exchange_b2(alpha: sympy.Expr, mass_ratio: sympy.Expr, parameters) -> sympy.Expr:
@@ -115,36 +49,6 @@ def flux_shift(gamma: sympy.Expr, parameters) -> sympy.Expr:
 def _tidy(expr: sympy.Expr) -> sympy.Expr:
     """Expanded when polynomial in the parameters; the periodic (Mod) form is kept factored."""
     return expr if expr.has(PeriodicPart) else sympy.expand(expr)
-
-
-def kinks(expr: sympy.Expr, symbol: sympy.Symbol, point) -> bool:
-    """True when expr has a floor (periodic extension) whose argument is an integer at the point, so
-    that left and right expansions differ in general."""
-    for f in expr.atoms(sympy.floor):
-        if symbol in f.free_symbols and f.args[0].subs(symbol, point).is_integer:
-            return True
-    for m in expr.atoms(sympy.Mod, PeriodicPart):
-        if symbol in m.free_symbols and (m.args[0].subs(symbol, point) / m.args[1]).is_integer:
-            return True
-    return False
-
-
-def one_sided_series(expr: sympy.Expr, symbol: sympy.Symbol, point, order: int, side: str) -> sympy.Expr:
-    """Taylor polynomial through (symbol - point)^order of expr approached from `side` ("above"/
-    "below"): floors are frozen at their one-sided limits, leaving a polynomial branch."""
-    eps = sympy.Rational(1, 10 ** 9)
-    probe = point + (eps if side == "above" else -eps)
-    expr = expr.replace(lambda e: isinstance(e, PeriodicPart), lambda e: e.floor_form())
-    frozen = expr.subs({f: sympy.floor(f.args[0].subs(symbol, probe)) for f in expr.atoms(sympy.floor)
-                        if symbol in f.free_symbols})
-    frozen = frozen.subs({m: m.args[0] - m.args[1] * sympy.floor((m.args[0] / m.args[1]).subs(symbol, probe))
-                          for m in frozen.atoms(sympy.Mod) if symbol in m.free_symbols})
-    u = sympy.Symbol("u_shift")
-    shifted = sympy.expand(frozen.subs(symbol, point + u))
-    taylor = sympy.series(shifted, u, 0, order + 1).removeO() if not shifted.is_polynomial(u) else shifted
-    poly = sympy.Poly(sympy.expand(taylor), u)
-    kept = sum(c * u ** k for (k,), c in zip(poly.monoms(), poly.coeffs()) if k <= order)
-    return sympy.expand(kept.subs(u, symbol - point))
 
 
 def two_body_clusters(system, order: int) -> dict:
@@ -273,159 +177,102 @@ def virials_with_known_clusters(pieces: dict, given: dict, order: int, K: int, t
     return a
 
 
-def split_truncation(value: sympy.Expr) -> tuple[sympy.Expr, dict]:
-    """A given value without its O(...) terms, and {symbol: first unknown power} from those terms."""
-    value = sympy.sympify(value)
-    if not value.has(sympy.Order):
-        return value, {}
-    limits = {}
-    for term in sympy.Add.make_args(value):
-        if isinstance(term, sympy.Order):
-            base, e = term.expr.as_base_exp()
-            if isinstance(base, sympy.Symbol) and e.is_Integer and e > 0:
-                limits[base] = min(int(e), limits.get(base, int(e)))
-    return value.removeO(), limits
+# --- the regime -----------------------------------------------------------------------------------
+
+class PairPhaseRegime(Regime):
+    """`clusters pairphase [{ given pieces }]` with optional `tubes`: exact two-body coefficients on the
+    whole real line; many-body pieces named (unknown functions of the statistics parameters) or given,
+    as cluster or as virial coefficients."""
+
+    kind = "pairphase"
+    named_pieces = True
+
+    def _pieces(self, plan) -> dict:
+        return plan.memo("pairphase", lambda: two_body_clusters(plan.system, plan.order))
+
+    def clusters(self, plan) -> Clusters:
+        from ..errors import InputError
+        from ..naming import cluster_symbol
+        from ..virial import virial_to_cluster
+        pieces = self._pieces(plan)
+        given = plan.given_exact
+        if plan.given_kind == "virial":
+            linear = [pieces[_unit(plan.K, i)] for i in range(plan.K)]
+            return Clusters(virial_to_cluster(plan.virial, plan.order, plan.K, linear=linear))
+        out = {}
+        for n, value in pieces.items():
+            if n in given:
+                if value is not None:
+                    raise InputError(f"b{list(n)} is known exactly in this regime ({value}); do not give it",
+                                     next(v.span for v in plan.system.source.values if v.index == n))
+                value = given[n]
+            out[n] = cluster_symbol(n) if value is None else value
+        return Clusters(out)
+
+    def virials(self, plan):
+        if plan.given_kind != "virial":
+            return None
+        from ..errors import InputError
+        from ..naming import virial_symbol
+        from ..virial import cluster_to_virial
+        pieces = self._pieces(plan)
+        exact = {n: v for n, v in pieces.items() if v is not None and sum(n) <= 2}
+        a = dict(cluster_to_virial(exact, 2, plan.K, truncation=plan.shared_truncation).virial)
+        given = plan.given_exact
+        for n, value in pieces.items():
+            if sum(n) <= 2:
+                continue
+            if n in given:
+                if value is not None:
+                    raise InputError(f"b{list(n)} is known exactly in this regime; give a{list(n)} only for "
+                                     "many-body pieces", next(v.span for v in plan.system.source.values
+                                                              if v.index == n))
+                a[n] = given[n]
+            else:
+                a[n] = virial_symbol(n) if value is None else None
+        if any(v is None for v in a.values()):  # some b_n with |n| >= 3 known exactly: solve triangularly
+            return virials_with_known_clusters(pieces, given, plan.order, plan.K, truncation=plan.shared_truncation)
+        return a
+
+    def truncation(self, system) -> dict:
+        tubes = system.tubes
+        return {tubes.coverage: 2} if tubes is not None else {}   # the tube coverage: first order
+
+    def known_zero(self, system, index) -> bool:
+        return separates(system, index)
+
+    def text_lines(self, system) -> list[str]:
+        lines = ["regime: pair phases in the plane (harmonic regulator on the relative motion): "
+                 "b_(2 e_i) = (m_i/m_ref)(1/4 - s + s^2/2), s = alpha_i mod 2; "
+                 "b_(e_i + e_j) = -((m_i + m_j)/(2 m_ref)) s(1 - s), s = alpha_ij mod 1; kinks where s = 0",
+                 "many-body pieces (|n| >= 3 of anyonic or braiding species) are named symbols unless given; "
+                 "O(p^k): terms from p^k on are unknown"]
+        tubes = system.tubes
+        if tubes is not None:
+            if tubes.value is not None:
+                lines.append(f"tube coverage {tubes.coverage} = {tubes.value} (as declared); the values below are "
+                             f"first order in it, O({tubes.coverage}^2) unknown")
+            lines.append(f"flux tubes: flux {tubes.flux} (flux quanta), {tubes.coverage} tubes per lambda^2; b_(l e_i) "
+                         f"gains (+-1)^(l+1) ({tubes.coverage})/l (-s(1 - s)/2), s = ({tubes.flux}) mod 1, first order "
+                         "in the coverage")
+        return lines
+
+    def latex_paragraphs(self, system, labels) -> list[str]:
+        text = (r"Pair phases in the plane (harmonic regulator on the relative motion): "
+                r"$b_{2e_i}=\frac{m_i}{m_{\mathrm{ref}}}\bigl(\tfrac14-s+\tfrac{s^2}{2}\bigr)$ with "
+                r"$s=\alpha_i\bmod 2$, and $b_{e_i+e_j}=-\frac{m_i+m_j}{2m_{\mathrm{ref}}}\,s(1-s)$ with "
+                r"$s=\alpha_{ij}\bmod 1$; both have a kink where $s=0$. Many-body pieces are named symbols "
+                r"unless given; $O(p^k)$ marks the first unknown power of $p$.")
+        if system.tubes is not None:
+            flux, coverage = sympy.latex(system.tubes.flux), sympy.latex(system.tubes.coverage)
+            text += (rf" Static flux tubes of flux ${flux}$ (flux quanta), ${coverage}$ tubes per $\lambda^2$: "
+                     rf"$b_{{l e_i}}$ gains $(\pm1)^{{l+1}}\frac{{{coverage}}}{{l}}\bigl(-\tfrac{{s(1-s)}}{{2}}\bigr)$, "
+                     rf"$s=({flux})\bmod 1$, to first order in the coverage.")
+            if system.tubes.value is not None:
+                text += (rf" The coverage is declared as ${coverage}={sympy.latex(system.tubes.value)}$; the values "
+                         rf"are first order in it, $O({coverage}^2)$ unknown.")
+        return [text]
 
 
-def truncation_problem(value: sympy.Expr) -> str | None:
-    """Why the O(...) terms of a given value cannot be read as honest truncation orders, else None.
-    Each must be O(p^k) for one parameter p about 0 and k >= 1; sympy would silently swallow the
-    known terms into anything else (1 + g + O(1/g) is O(1/g))."""
-    value = sympy.sympify(value)
-    orders = [t for t in sympy.Add.make_args(value) if isinstance(t, sympy.Order)]
-    if not orders and value.has(sympy.Order):
-        return "an O(...) term must be added to the known terms, not multiplied or nested"
-    for term in orders:
-        base, e = term.expr.as_base_exp()
-        if not (isinstance(base, sympy.Symbol) and e.is_Integer and e > 0) or term.point[0] != 0:
-            return (f"cannot read O({sympy.sstr(term.expr)}) as a truncation order: write O(p^k) with one parameter p "
-                    "and k >= 1 (several parameters: O(p^k) + O(q^m))")
-    return None
-
-
-def truncate(value: sympy.Expr, limits: dict) -> sympy.Expr:
-    """value as a polynomial in the truncated symbols with every power at or beyond its limit dropped,
-    plus the O term that says so."""
-    value = sympy.expand(value)
-    for symbol, k in sorted(limits.items(), key=lambda item: item[0].name):
-        if any(symbol in m.free_symbols for m in value.atoms(sympy.Mod, sympy.floor, PeriodicPart)):
-            raise ValueError(f"cannot truncate a periodic (piecewise) dependence on {symbol}")
-        if not value.is_polynomial(symbol):
-            value = sympy.expand(sympy.series(value, symbol, 0, k).removeO())
-        value = sum((term for term in sympy.Add.make_args(value) if sympy.degree(term, symbol) < k), sympy.Integer(0))
-    orders = [sympy.Order(s ** k) for s, k in sorted(limits.items(), key=lambda item: item[0].name)]
-    return sympy.Add(value, *orders) if orders else value
-
-
-@dataclass(frozen=True)
-class SeriesPiece:
-    """One printed series of one coefficient: polynomial + remainder, through (variable - point)^known.
-
-    `side` is None for an analytic (two-sided) expansion, else "above"/"below"; `kink` says the
-    coefficient is not analytic at the point (the |alpha| term), `edge` that the point ends the
-    parameter's declared range. `remainder` holds the O terms: the expansion's own and those of
-    given truncated series in other parameters."""
-
-    variable: sympy.Symbol
-    point: sympy.Expr
-    order: int
-    known: int
-    side: str | None
-    kink: bool
-    edge: bool
-    polynomial: sympy.Expr
-    remainder: tuple
-    unknowns: tuple = ()  # `pieces.Unknown`s: named Taylor coefficients of many-body pieces in `polynomial`
-    notes: tuple = ()
-
-    @property
-    def one_sided(self) -> bool:
-        return self.side is not None
-
-    @property
-    def description(self) -> str:
-        where = f"{self.variable} = {self.point}"
-        if self.side is None:
-            text = "analytic"
-        elif self.kink:
-            text = f"non-analytic at {where}, from {self.side}"
-        else:
-            text = f"one-sided: {where} ends the declared range, from {self.side}"
-        if self.known < self.order:
-            text += f"; the given series stop at order {self.known}"
-        for note in self.notes:
-            text += f"; {note}"
-        return text
-
-
-def _range_edge(symbol, point, parameters) -> str | None:
-    p = next((p for p in (parameters or ()) if p.symbol == symbol), None)
-    if p is None:
-        return None
-    if p.lower is not None and sympy.simplify(point - p.lower) == 0:
-        return "lower"
-    if p.upper is not None and sympy.simplify(point - p.upper) == 0:
-        return "upper"
-    return None
-
-
-def _constant_givens(system, symbol, index) -> tuple[str, ...]:
-    """Notes on given exact pieces the coefficient uses that do not contain `symbol` although the piece
-    depends on it: the series takes them as the user gave them, constant in `symbol`."""
-    from ..naming import cluster_symbol, coefficient_label, virial_symbol
-    from ..pieces import depends_on
-    out = []
-    for v in system.source.values:
-        if v.value.has(sympy.Order) or v.value.has(symbol) or index is None \
-                or not all(a <= b for a, b in zip(v.index, index)):
-            continue
-        piece = (cluster_symbol if v.kind == "cluster" else virial_symbol)(v.index)
-        if symbol in depends_on(system, piece):
-            out.append(f"{coefficient_label(v.kind, v.index)} as given, taken as independent of {symbol}")
-    return tuple(out)
-
-
-def expansion_of(label: str, value: sympy.Expr, expansion, system, index=None) -> list[SeriesPiece]:
-    """The series of one coefficient for one `expand` request (one piece per side); refuses a kinked
-    expansion asked as if analytic, a side outside the declared range, and a series about another
-    point than that of a given truncated series. Named many-body pieces that depend on the variable
-    are expanded too, with named Taylor coefficients (`pieces.expand_pieces`)."""
-    from ..errors import InputError
-    from ..pieces import any_kink, expand_pieces
-    parameters = system.parameters
-    symbol, point, order, side, span = (expansion.symbol, expansion.point, expansion.order, expansion.side,
-                                        expansion.span)
-    exact, limits = split_truncation(value)
-    known = order
-    if symbol in limits:
-        if point != 0:
-            raise InputError(f"{label} is known only as a series about {symbol} = 0 (to O({symbol}^{limits[symbol]})); "
-                             f"it cannot be expanded about {symbol} = {point}", span)
-        known = min(order, limits[symbol] - 1)
-    kinked = kinks(exact, symbol, point) or any_kink(system, exact, symbol, point)
-    edge = _range_edge(symbol, point, parameters)
-    inside = {"lower": "above", "upper": "below", None: None}[edge]
-    if side is None:
-        if kinked and edge is None:
-            raise InputError(f"{label} is not analytic at {symbol} = {point} (a kink, |{symbol}| term): say "
-                             "`from above`, `from below` or `from both`", span)
-        sides = (inside,)
-    else:
-        sides = ("above", "below") if side == "both" else (side,)
-        if edge is not None and any(s != inside for s in sides):
-            raise InputError(f"{symbol} = {point} ends the declared range of {symbol}: only `from {inside}` stays "
-                             "inside it", span)
-        if not kinked and edge is None:
-            sides = (None,)
-    step = (symbol - point) ** (known + 1)
-    own = sympy.Order(step) if point == 0 else sympy.Order(step, (symbol, point))
-    others = tuple(sympy.Order(s ** k) for s, k in sorted(limits.items(), key=lambda item: item[0].name)
-                   if s != symbol)
-    out = []
-    notes = _constant_givens(system, symbol, index)
-    for s in sides:
-        expanded, unknowns = expand_pieces(system, exact, [(symbol, point, known, s)])
-        out.append(SeriesPiece(symbol, point, order, known, s, kinked, edge is not None,
-                               one_sided_series(expanded, symbol, point, known, s or "above"), (own,) + others,
-                               tuple(unknowns), notes))
-    return out
+def _unit(K: int, i: int) -> tuple[int, ...]:
+    return tuple(1 if j == i else 0 for j in range(K))

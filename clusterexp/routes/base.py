@@ -1,0 +1,138 @@
+"""What every regime provides, in one small interface (`Regime`), and the shared pieces of the routes.
+
+A regime is one module under `routes/` with one `Regime` subclass and one line in the registry
+(`routes.REGIMES`). The stages ask the registry and never name a regime:
+
+- `build` calls `check` (the regime's own validation of its part of the input, with spans);
+- `limits` calls `estimate` (the size of what the regime will form);
+- `derivation` calls `clusters` (and `virials` where the input gives virial coefficients), and
+  `truncation`/`known_zero` for what is known only to some order or exactly zero;
+- the printers call `quantities` (per lambda^d, rho_L, state or Z_1), `statistics` (how a species'
+  statistics is stated), `text_lines` and `latex_paragraphs` (closed forms, implicit equation of state).
+
+Contributor guide, "How to add a regime" (DEVELOPERS.md), walks through a new one.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass
+from fractions import Fraction
+from typing import Mapping
+
+import sympy
+
+from ..series import PolynomialRing
+
+Index = tuple[int, ...]
+
+
+@dataclass
+class Clusters:
+    """b_n for 1 <= |n| <= order: `values` (sympy) always; `ring`/`elements` when every b_n is an
+    exact ring element and every b_{e_i} = 1 (the fast path, fed straight to the virial kernel)."""
+
+    values: Mapping[Index, sympy.Expr]
+    ring: PolynomialRing | None = None
+    elements: dict | None = None
+
+
+def ring_native(ring, elements, weight) -> Clusters:
+    """Multiply by rational weights in the ring; the values convert lazily."""
+    from ..virial import CoefficientTable
+    scaled = {n: e * ring.rational(weight(n)) for n, e in elements.items()}
+    order = max(sum(n) for n in scaled)
+    return Clusters(CoefficientTable(ring, scaled, order), ring, scaled)
+
+
+def sympy_values(ring, elements, factor) -> Clusters:
+    return Clusters({n: ring.to_expr(e) * factor(n) for n, e in elements.items()})
+
+
+def rational_weight(value) -> Fraction:
+    return Fraction(int(value.p), int(value.q))
+
+
+@dataclass(frozen=True)
+class Quantities:
+    """What a regime's numbers are numbers of. `pressure`/`density` in plain text (density with `{i}`
+    for the species), `variable` the density variable of the virial series, `unit` what densities are
+    measured against; the LaTeX forms take the wavelength (`w`), a species label and d."""
+
+    pressure: str
+    density: str
+    variable: str
+    single: str
+    unit: str
+    pressure_latex: str
+    density_latex: str
+    variable_latex: str = ""
+    single_latex: str = ""
+
+    def density_of(self, name: str) -> str:
+        return self.density.format(i=name)
+
+    def density_tex(self, label: str, wavelength: str, d: int) -> str:
+        return self.density_latex.format(label=label, w="{" + wavelength + "}", d=d)
+
+
+THERMAL = Quantities(
+    pressure="beta P lambda^d", density="rho_{i} lambda^d", variable="(rho lambda^d)",
+    single="lambda = thermal wavelength of the reference species; "
+           "b_(single particle of i) = (m_i/m_ref)^(d/2), a_(single particle) = 1",
+    unit="lambda^d", pressure_latex=r"\beta P{w}^d", density_latex=r"\rho_{{{label}}}{w}^{{{d}}}",
+    variable_latex=r"(\rho{w}^d)", single_latex=r"single-particle $b=(m_i/m_{{\mathrm{{ref}}}})^{{d/2}}$")
+
+
+class Regime:
+    """One physical regime (the word after `clusters`). Subclasses override what differs."""
+
+    kind: str = ""
+    # many-body pieces the regime cannot compute are unknown functions of the statistics parameters
+    # (named symbols whose Taylor coefficients get names in series), not free symbols
+    named_pieces: bool = False
+
+    # --- input ------------------------------------------------------------------------------------
+    def check(self, builder, source, names: list[str]):
+        """Validate the regime's part of the input (InputError with spans); return the source."""
+        return source
+
+    def estimate(self, system, order: int) -> int | None:
+        """Rough count of the terms the regime forms at this order (None: the generic estimate)."""
+        return None
+
+    # --- coefficients -----------------------------------------------------------------------------
+    def clusters(self, plan) -> Clusters:
+        """b_n for 1 <= |n| <= plan.order (a `Clusters`)."""
+        raise NotImplementedError
+
+    def virials(self, plan) -> Mapping[Index, sympy.Expr] | None:
+        """a_n when the input gives virial coefficients (None: from the cluster coefficients)."""
+        return None
+
+    def truncation(self, system) -> dict:
+        """{symbol: first unknown power} that every coefficient of the regime carries."""
+        return {}
+
+    def known_zero(self, system, index: Index) -> bool:
+        """Whether b_n and a_n vanish exactly at this multi-index (no truncation applies to them)."""
+        return False
+
+    # --- how it is stated ---------------------------------------------------------------------------
+    def quantities(self, system) -> Quantities:
+        return THERMAL
+
+    def statistics(self, system, i: int) -> tuple[str, sympy.Expr]:
+        """How species i's statistics is stated: ("exchange", alpha_i) unless the regime decides it
+        otherwise (exclusion: ("g", g_ii))."""
+        return "exchange", system.species[i].exchange
+
+    def matrix(self, system):
+        """The statistics matrix in force, or None."""
+        return None
+
+    def text_lines(self, system) -> list[str]:
+        """The regime's closed forms or implicit equation of state (text header lines)."""
+        return []
+
+    def latex_paragraphs(self, system, labels: list[str]) -> list[str]:
+        """The same for the LaTeX document."""
+        return []
