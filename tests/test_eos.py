@@ -169,11 +169,13 @@ def _taylor(formula, symbols, order):
 @pytest.mark.parametrize("text", [
     f"dimension 2 species A species B statistics matrix {MATRIX_2} clusters exclusion level",
     "dimension 2 species A exchange 1/3 species B exchange 3/4 mutual A B = 2/5 clusters landau",
+    "dimension 2 species A exchange 1/3 species B exchange 3/4 mutual A B = 2/5 clusters landau spectrum",
 ])
 def test_several_species_closed_form_against_the_virial_series_exactly(text):
     """The closed form's Taylor coefficients are the tool's virial coefficients (independent route: the
     cluster -> virial series machinery on Wu's cluster coefficients) [several species: Isakov, Mashkevich,
-    Ouvry, Nucl. Phys. B 448 (1995) 457]; the non-symmetric matrix tests the index convention."""
+    Ouvry, Nucl. Phys. B 448 (1995) 457]; the non-symmetric matrix tests the index convention; `landau
+    spectrum` reaches the same coefficients through the harmonic regulator on the LLL spectrum (route R4)."""
     order = 6
     eos = eos_of(text)
     taylor = _taylor(eos.pressure_formula, eos.density_symbols, order)
@@ -384,3 +386,30 @@ def test_global_precision_is_left_alone():
     before = mpmath.mp.dps
     eos_of("dimension 2 species A exchange 1/2 clusters landau").evaluate("pressure", {"A": "1/2"}, 50)
     assert mpmath.mp.dps == before
+
+
+def test_package_docstring_example_runs():
+    """The API example in clusterexp.eos (a doctest; ln(1 + (1/2)/(1 - 1/4)) = ln(5/3))."""
+    import doctest
+
+    import clusterexp.eos
+    assert doctest.testmod(clusterexp.eos).failed == 0
+    with mpmath.workdps(20):
+        assert abs(mpmath.log(mpmath.mpf(5) / 3) - mpmath.mpf("0.510825623766")) < 1e-12
+
+
+def test_printed_forms_text_latex_json():
+    """The formula is printed in text, LaTeX and JSON (JSON serializable; the LaTeX and text name the
+    same closed form; the boundary relations are the close-packing inequalities)."""
+    import json
+    eos = eos_of("dimension 2 parameter g in [0, 1] species A exchange g clusters landau")
+    text = "\n".join(eos.formula_lines())
+    line = next(l for l in eos.formula_lines() if l.startswith("beta P / rho_L = "))
+    g, nu = sympy.symbols("g nu_A")
+    assert sympy.simplify(sympy.sympify(line.split(" = ")[1]) - sympy.log(1 + nu / (1 - g * nu))) == 0
+    assert "close packing at nu_A = 1/g (for g > 0)" in text
+    assert any(r"\log" in line for line in eos.latex_lines())
+    record = json.loads(json.dumps(eos.as_json()))
+    assert record["boundary"]["kind"] == "close packing" and record["boundary"]["relations"] == ["g*nu_A < 1"]
+    ideal = eos_of("dimension 3 species A fermi clusters ideal")
+    assert ideal.pressure_formula is None and any("polylog(3/2, -z_A)" in line for line in ideal.formula_lines())

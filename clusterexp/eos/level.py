@@ -144,8 +144,9 @@ class LevelEquationOfState(EquationOfState):
                 "present; inside: " + "; ".join(parts))
         if len(self.names) == 1:
             g = self.matrix[0][0]
-            text = (f"close packing at {self.density_symbols[0].name} = 1/g = {sympy.sstr(1 / g)} (for g > 0), where "
-                    "the pressure diverges" if g != 0 else text)
+            value = "" if g.free_symbols else f" = {sympy.sstr(1 / g)}"
+            text = (f"close packing at {self.density_symbols[0].name} = 1/g{value} (for g > 0), where the pressure "
+                    "diverges" if g != 0 else text)
         latex = tuple(sympy.latex(r) for r in relations)
         return Boundary("close packing", text, relations, latex)
 
