@@ -62,8 +62,7 @@ from .radius import RadiusEstimate
 NO_EXACT_EOS = {
     "pairphase": "two-body pair phases (anyons in the continuum): the many-body problem is not exactly solved",
     "generic": "generic cluster coefficients (symbols)",
-    "given": "given cluster coefficients",
-    "virials": "given virial coefficients",
+    "given": "given cluster or virial coefficients",
     "spectrum": "a declared trapped spectrum",
 }
 

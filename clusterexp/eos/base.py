@@ -289,23 +289,3 @@ def free_parameters_of(system: System, expressions) -> dict[str, sympy.Symbol]:
         symbols |= sympy.sympify(e).free_symbols
     return {s.name: s for s in symbols}
 
-
-def monotone_root(ctx, f, lo, hi, tolerance):
-    """Root of an increasing function f(x) -> (value, derivative) on [lo, hi] with f(lo) < 0 < f(hi):
-    Newton steps kept inside the bracket, bisection when a step leaves it or stalls."""
-    x = (lo + hi) / 2
-    for _ in range(4000):
-        value, slope = f(x)
-        if value < 0:
-            lo = x
-        else:
-            hi = x
-        step = value / slope if slope > 0 else None
-        if step is not None and lo < x - step < hi:
-            x_new = x - step
-        else:
-            x_new = (lo + hi) / 2
-        if abs(x_new - x) <= tolerance * (1 + abs(x_new)):
-            return x_new
-        x = x_new
-    raise ArithmeticError("root finding did not converge")

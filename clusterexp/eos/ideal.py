@@ -5,8 +5,7 @@ Species i with c_i = (m_i/m_ref)^(d/2) (its b_1, physics notes section 1) and s 
     rho_i lambda^d = c_i g_s(z_i),      beta P lambda^d = sum_i c_i g_(s+1)(z_i),
 
 g_s(z) = Li_s(z) for bosons, -Li_s(-z) for fermions, z for Boltzmann species. The densities are
-inverted for the fugacities with a bracketed Newton iteration in ln z (z d/dz g_s = g_(s-1) gives the
-slope). In d = 2 everything is closed: z = 1 - exp(-rho/c) (Bose), exp(rho/c) - 1 (Fermi).
+inverted for the fugacities with mpmath's bracketing root finder in ln z. In d = 2 everything is closed: z = 1 - exp(-rho/c) (Bose), exp(rho/c) - 1 (Fermi).
 
 The reduced compressibility uses d(beta P lambda^d)/d(rho_i lambda^d) = g_s(z_i)/g_(s-1)(z_i).
 
@@ -22,7 +21,7 @@ import sympy
 
 from ..errors import InputError
 from ..model import System
-from .base import Boundary, EquationOfState, Point, RayBoundary, monotone_root, substitute, to_mpf
+from .base import Boundary, EquationOfState, Point, RayBoundary, substitute, to_mpf
 
 
 def species_statistics(system: System) -> tuple[str, ...]:
@@ -97,19 +96,21 @@ class IdealEquationOfState(EquationOfState):
             target = ctx.log(rho / c)
 
             def f(log_z):
-                value = g(s, log_z)
-                return ctx.log(value) - target, g(s - 1, log_z) / value
-            if kind == "bose":  # g_s(z) >= z: ln z <= ln(rho/c), and z < 1
-                hi = min(target, ctx.zero)
+                return ctx.log(g(s, log_z)) - target
+            if kind == "bose":  # g_s(z) >= z: ln z <= ln(rho/c), and z < 1 (never z = 1 itself: g_s diverges
+                hi = min(target, -ctx.one)  # for s <= 1, and mpmath's polylog(s, 1) is zeta(s) continued)
+                while f(hi) <= 0:
+                    hi = hi / 16
                 lo = hi - 1
-                while f(lo)[0] >= 0:
+                while f(lo) >= 0:
                     lo = 2 * lo
             else:  # -Li_s(-z) <= z: ln z >= ln(rho/c)
                 lo = target
                 hi = lo + 1
-                while f(hi)[0] <= 0:
+                while f(hi) <= 0:
                     hi = hi + 2 * (hi - lo)
-            log_z = monotone_root(ctx, f, lo, hi, ctx.mpf(10) ** (-digits - 5))
+            # mpmath's bracketing root finder (Anderson-Bjoerk) on the increasing ln g_s(e^eta) - ln(rho/c)
+            log_z = ctx.findroot(f, (lo, hi), solver="anderson")
         slope = g(s, log_z) / g(s - 1, log_z)
         return log_z, c * g(s + 1, log_z), slope
 
