@@ -114,6 +114,7 @@ class EquationOfState:
         self.parameter_symbols = {p.name: p for p in system.parameters}
         self.pressure_formula: sympy.Expr | None = None
         self.fugacity_formulas: tuple[sympy.Expr, ...] | None = None
+        self.compressibility_formula: sympy.Expr | None = None
         self.parametric: tuple[str, ...] = ()
 
     # -- inputs ---------------------------------------------------------------------------------------
@@ -251,6 +252,8 @@ class EquationOfState:
             lines.append(f"{self.pressure_unit} = {sympy.sstr(self.pressure_formula)}")
         if self.fugacity_formulas is not None:
             lines += [f"z_{n} = {sympy.sstr(f)}" for n, f in zip(self.names, self.fugacity_formulas)]
+        if self.compressibility_formula is not None:
+            lines.append(f"rho k_B T kappa_T = {sympy.sstr(self.compressibility_formula)}")
         lines += list(self.parametric)
         lines.append("ends: " + self.boundary.text)
         return lines
@@ -262,6 +265,8 @@ class EquationOfState:
             lines.append(self.pressure_latex + " = " + sympy.latex(self.pressure_formula))
         if self.fugacity_formulas is not None:
             lines += [f"z_{{{n}}} = " + sympy.latex(f) for n, f in zip(self.names, self.fugacity_formulas)]
+        if self.compressibility_formula is not None:
+            lines.append(r"\rho k_B T \kappa_T = " + sympy.latex(self.compressibility_formula))
         lines += list(self.boundary.latex)
         return lines
 
@@ -270,6 +275,8 @@ class EquationOfState:
                 "pressure": sympy.sstr(self.pressure_formula) if self.pressure_formula is not None else None,
                 "fugacities": {n: sympy.sstr(f) for n, f in zip(self.names, self.fugacity_formulas)}
                 if self.fugacity_formulas is not None else None,
+                "compressibility": sympy.sstr(self.compressibility_formula)
+                if self.compressibility_formula is not None else None,
                 "parametric": list(self.parametric),
                 "boundary": {"kind": self.boundary.kind, "text": self.boundary.text,
                              "relations": [sympy.sstr(r) for r in self.boundary.relations]}}

@@ -68,11 +68,6 @@ class LevelEquationOfState(EquationOfState):
         symbols = set().union(*(v.free_symbols for row in self.matrix for v in row))
         return {s.name: s for s in symbols}
 
-    def formula_lines(self) -> list[str]:
-        lines = super().formula_lines()
-        lines.insert(-1, "rho k_B T kappa_T = " + sympy.sstr(self.compressibility_formula))
-        return lines
-
     # -- exact pieces at a point -------------------------------------------------------------------
     def _exact(self, point: Point):
         """(matrix, densities, D) with the parameters substituted: Fractions when all are rational
