@@ -486,3 +486,22 @@ def test_fugacity_formula_against_the_series_machinery_and_the_numbers():
             assert close(numbers[f"z_{name}"], expected, 24)
         assert close(value(eos, "compressibility", ["1/3", "1/4"], 25),
                      mpmath.mpf(sympy.N(eos.compressibility_formula.xreplace(point), 30)._mpf_), 24)
+
+
+def test_check_densities_points_at_the_users_line():
+    """A density beyond close packing, checked from the System, renders at the statement's place with a
+    caret (file, line, column), as every input error does; a regime without an exact EOS does too."""
+    from clusterexp.eos import check_densities
+    from clusterexp.errors import Span
+    span = Span("film.gas", 4, 10, line_text="evaluate pressure at nu_A = 2")
+    system = build_system("dimension 2 species A exchange 7/10 clusters landau")
+    assert check_densities(system, {"A": "1/2"}, span).densities == (sympy.Rational(1, 2),)
+    with pytest.raises(InputError) as error:
+        check_densities(system, {"A": 2}, span)
+    rendered = error.value.render()
+    assert rendered.startswith("film.gas:4:10: error: densities beyond close packing") and "10/7" in rendered
+    assert rendered.splitlines()[-1] == "    " + " " * 9 + "^"
+    pairs = build_system("dimension 2 species A exchange 1/2 clusters pairphase")
+    with pytest.raises(InputError, match="virial series") as error:
+        check_densities(pairs, {"A": 1}, span)
+    assert error.value.span == span

@@ -33,8 +33,10 @@ API (what the `evaluate` / `tabulate` / `plot` statements are to call):
     eos.labels(quantity)                     # the column labels of evaluate's result
     eos.boundary                             # Boundary: kind, text, relations (sympy), latex
     eos.ray_boundary(direction, parameters)  # RayBoundary: total density where the ray meets it
-    eos.point(densities, parameters, span)   # checked exact point (negative / beyond: InputError)
-    eos.check_point(point, span)             # raises InputError beyond the boundary
+    eos.check_point(densities, span, parameters)   # the checked exact point; InputError for negative
+                                             # densities or beyond the boundary (says where it is)
+    check_densities(system, densities, span, parameters)   # the same from a System (InputError also
+                                             # for a regime without an exact equation of state)
     eos.exact_radius(direction, parameters)  # exact radius of the virial series where known
     eos.series_radius(virials, direction=None, parameters=None, digits=15)
         # RadiusEstimate from the tool's virial coefficients {multi-index: a_n} (ratio and root
@@ -91,4 +93,11 @@ def equation_of_state(system: System, span=None) -> EquationOfState:
                      span or system.source.span)
 
 
-__all__ = ["QUANTITIES", "Boundary", "EquationOfState", "RadiusEstimate", "RayBoundary", "equation_of_state"]
+def check_densities(system: System, densities, span=None, parameters=None):
+    """Check a density point of the system against its exact equation of state (InputError at `span`:
+    no exact equation of state, negative densities, beyond close packing); returns the exact point."""
+    return equation_of_state(system, span).check_point(densities, span, parameters)
+
+
+__all__ = ["QUANTITIES", "Boundary", "EquationOfState", "RadiusEstimate", "RayBoundary", "check_densities",
+           "equation_of_state"]

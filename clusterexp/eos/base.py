@@ -124,7 +124,7 @@ class EquationOfState:
         region reached from zero density (`check_point`)."""
         values = self._densities(densities, span)
         point = Point(values, self._parameters(parameters or {}, span))
-        self.check_point(point, span=span)
+        self._check(point, span)
         return point
 
     def _densities(self, densities, span) -> tuple[sympy.Expr, ...]:
@@ -211,8 +211,13 @@ class EquationOfState:
         prefix = "z_" if quantity == "fugacity" else "beta mu_"
         return [prefix + n for n in self.names]
 
-    def check_point(self, point: Point, span: Span | None = None) -> None:  # overridden
-        """Refuse a point beyond the boundary (InputError saying where the boundary is)."""
+    def check_point(self, densities, span: Span | None = None, parameters: Mapping | None = None) -> Point:
+        """The checked exact point; InputError (at `span`) for negative densities, a density beyond the
+        boundary (the message says where the boundary is along this composition) or missing values."""
+        return self.point(densities, parameters, span)
+
+    def _check(self, point: Point, span: Span | None) -> None:  # regimes with a boundary override this
+        """Refuse a point beyond the boundary."""
 
     def _values(self, ctx, quantity: str, point: Point, digits: int, span) -> dict:
         raise NotImplementedError

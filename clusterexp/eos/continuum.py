@@ -170,7 +170,7 @@ class ContinuumEquationOfState(EquationOfState):
         K = len(g)
         return [i for i in range(K) if all(g[i][j] == 0 and g[j][i] == 0 for j in range(K))]
 
-    def check_point(self, point: Point, span=None) -> None:
+    def _check(self, point: Point, span=None) -> None:
         if self.d != 3:
             return
         for i in self._free_bosons(point.parameters):

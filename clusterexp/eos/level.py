@@ -84,7 +84,7 @@ class LevelEquationOfState(EquationOfState):
             D = [sympy.nsimplify(1 - sympy.Add(*(g[i][j] * n[j] for j in range(K)))) for i in range(K)]
         return g, n, D
 
-    def check_point(self, point: Point, span=None) -> None:
+    def _check(self, point: Point, span=None) -> None:
         g, n, D = self._exact(point)
         for i, name in enumerate(self.names):
             if n[i] > 0 and not D[i] > 0:
