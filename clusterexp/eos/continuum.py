@@ -186,12 +186,13 @@ class ContinuumEquationOfState(EquationOfState):
                         "with a zero row and column of g, condense in d = 3 as in `clusters ideal`)")
 
     def ray_boundary(self, direction: Sequence, parameters: Mapping | None = None) -> RayBoundary:
+        parameters = self._parameters(parameters or {}, None)
         x = self.composition(direction)
         if self.d != 3:
             return RayBoundary(None)
         zeta = sympy.zeta(sympy.Rational(3, 2))
-        candidates = [(substitute(self.weights[i], parameters or {}) * zeta / x[i], self.names[i])
-                      for i in self._free_bosons(parameters or {}) if x[i] > 0]
+        candidates = [(substitute(self.weights[i], parameters) * zeta / x[i], self.names[i])
+                      for i in self._free_bosons(parameters) if x[i] > 0]
         if not candidates:
             return RayBoundary(None)
         at = min(c for c, _ in candidates)
@@ -199,6 +200,7 @@ class ContinuumEquationOfState(EquationOfState):
 
     def exact_radius(self, direction: Sequence, parameters: Mapping | None = None) -> sympy.Expr | None:
         """One species in d = 2: beta P lambda^2 = (2D Bose) + g rho^2/2, radius 2 pi [derived]."""
+        parameters = self._parameters(parameters or {}, None)
         return 2 * sympy.pi if len(self.names) == 1 and self.d == 2 else None
 
     # -- numbers ------------------------------------------------------------------------------------

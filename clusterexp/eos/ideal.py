@@ -157,9 +157,10 @@ class IdealEquationOfState(EquationOfState):
         return Boundary("condensation", text, relations, tuple(sympy.latex(r) for r in relations))
 
     def ray_boundary(self, direction: Sequence, parameters: Mapping | None = None) -> RayBoundary:
+        parameters = self._parameters(parameters or {}, None)
         x = self.composition(direction)
         zeta = sympy.zeta(sympy.Rational(3, 2))
-        candidates = [(substitute(self.weights[i], parameters or {}) * zeta / x[i], self.names[i])
+        candidates = [(substitute(self.weights[i], parameters) * zeta / x[i], self.names[i])
                       for i in self._condensing() if x[i] > 0]
         if not candidates:
             return RayBoundary(None)
@@ -170,10 +171,11 @@ class IdealEquationOfState(EquationOfState):
         """d = 2: beta P lambda^2 = sum_i c_i f(rho_i / c_i) with f' = t/(e^t - 1) (+ t for fermions), whose
         poles at t = +-2 pi i give the radius 2 pi c_i / x_i along the ray [derived: the 2D virial
         coefficients are B_(n-1)/n!]; only Boltzmann species present: the series ends (infinite radius)."""
+        parameters = self._parameters(parameters or {}, None)
         x = self.composition(direction)
         quantum = [i for i, kind in enumerate(self.statistics) if kind != "boltzmann" and x[i] > 0]
         if not quantum:
             return sympy.oo
         if self.d != 2:
             return None
-        return min(2 * sympy.pi * substitute(self.weights[i], parameters or {}) / x[i] for i in quantum)
+        return min(2 * sympy.pi * substitute(self.weights[i], parameters) / x[i] for i in quantum)

@@ -152,8 +152,9 @@ class LevelEquationOfState(EquationOfState):
         return gx
 
     def ray_boundary(self, direction: Sequence, parameters: Mapping | None = None) -> RayBoundary:
+        parameters = self._parameters(parameters or {}, None)
         x = self.composition(direction)
-        gx = self._ray_pieces(x, parameters or {})
+        gx = self._ray_pieces(x, parameters)
         candidates = [(1 / gx[i], self.names[i]) for i in range(len(x)) if x[i] > 0 and gx[i] > 0]
         if not candidates:
             return RayBoundary(None)
@@ -163,8 +164,9 @@ class LevelEquationOfState(EquationOfState):
     def exact_radius(self, direction: Sequence, parameters: Mapping | None = None) -> sympy.Expr | None:
         """The pressure along n = t x is sum_i [ln(1 - ((g - 1) x)_i t) - ln(1 - (g x)_i t)] (x_i > 0): its
         singularities are the zeros of those linear factors that do not cancel between the sums."""
+        parameters = self._parameters(parameters or {}, None)
         x = self.composition(direction)
-        gx = self._ray_pieces(x, parameters or {})
+        gx = self._ray_pieces(x, parameters)
         weights: dict = {}
         for i in range(len(x)):
             if x[i] == 0:
