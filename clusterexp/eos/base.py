@@ -11,12 +11,12 @@ from dataclasses import dataclass, field
 from fractions import Fraction
 from typing import Mapping, Sequence
 
-import mpmath
 import sympy
 
 from ..errors import InputError, Span
 from ..model import System
 from ..numbers import exact_number
+from .precision import GUARD_DIGITS, substitute, to_mpf, working_context  # noqa: F401 (the eos API)
 
 QUANTITIES = ("pressure", "fugacity", "chemical_potential", "compressibility")
 QUANTITY_TEXT = {
@@ -26,30 +26,6 @@ QUANTITY_TEXT = {
     "compressibility": "reduced isothermal compressibility rho k_B T kappa_T = [d(beta P)/d rho]^(-1) "
                        "at fixed composition",
 }
-GUARD_DIGITS = 10
-
-
-def working_context(digits: int) -> mpmath.ctx_mp.MPContext:
-    """A fresh mpmath context carrying `digits` plus guard digits (the global mp is left alone)."""
-    if isinstance(digits, bool) or not isinstance(digits, int) or not 1 <= digits <= 1000:
-        raise InputError(f"digits must be an integer from 1 to 1000, not {digits!r}")
-    ctx = mpmath.MPContext()
-    ctx.dps = digits + GUARD_DIGITS
-    return ctx
-
-
-def to_mpf(ctx, value) -> object:
-    """An exact sympy number (or Fraction/int) as a number of `ctx` at its working precision."""
-    if isinstance(value, int):
-        return ctx.mpf(value)
-    if isinstance(value, Fraction):
-        return ctx.mpf(value.numerator) / value.denominator
-    value = sympy.sympify(value)
-    if value.is_Rational:
-        return ctx.mpf(int(value.p)) / int(value.q)
-    return ctx.mpf(sympy.N(value, ctx.dps + 5)._mpf_)
-
-
 def fraction_of(value: sympy.Expr) -> Fraction | None:
     return Fraction(int(value.p), int(value.q)) if value.is_Rational else None
 
@@ -289,10 +265,6 @@ class EquationOfState:
     @property
     def boundary(self) -> Boundary:
         return Boundary("none", "nowhere: every density is reached")
-
-
-def substitute(value: sympy.Expr, parameters: Mapping) -> sympy.Expr:
-    return sympy.sympify(value).xreplace(parameters) if parameters else sympy.sympify(value)
 
 
 def free_parameters_of(system: System, expressions) -> dict[str, sympy.Symbol]:

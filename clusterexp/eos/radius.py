@@ -22,7 +22,7 @@ import sympy
 
 from ..errors import InputError
 from ..numbers import format_number
-from .base import substitute, to_mpf, working_context
+from .precision import substitute, to_mpf, working_context
 
 
 @dataclass(frozen=True)

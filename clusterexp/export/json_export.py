@@ -1,11 +1,15 @@
 """JSON printer: every coefficient with kind, multi-index, species and a sympy-parsable value."""
 from __future__ import annotations
 
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:  # the results import the printers for their notebook display, not the other way
+    from ..results import Derivation
+
 import json
 
 import sympy
 
-from ..results import Derivation
 from .common import check_record, regime_lines, species_statistics
 from .quantities import conventions, given_records, parameter_records, quantities
 from .series_lines import series_json

@@ -1,6 +1,11 @@
 """LaTeX printer: a snippet (align environment) for pasting, or a standalone document."""
 from __future__ import annotations
 
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:  # the results import the printers for their notebook display, not the other way
+    from ..results import Coefficient, Derivation
+
 import sympy
 
 from ..routes import regime_of
@@ -8,7 +13,6 @@ from .common import species_statistics
 from .quantities import assumptions_latex, conventions_latex, quantities
 from .latex_lines import aligned_rows
 from ..naming import generated_latex_names, is_single_atom, latex_subscript, species_latex
-from ..results import Coefficient, Derivation
 from ..series import indices_up_to
 from .series_lines import series_latex_paragraphs, series_latex_rows
 

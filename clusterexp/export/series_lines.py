@@ -2,9 +2,13 @@
 series piece (`Derivation.series_of` computes them; nothing is computed here)."""
 from __future__ import annotations
 
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:  # the results import the printers for their notebook display, not the other way
+    from ..results import Coefficient, Derivation
+
 import sympy
 
-from ..results import Coefficient, Derivation
 
 
 def _remainder_text(piece) -> str:

@@ -1,7 +1,11 @@
 """Plain-text printer."""
 from __future__ import annotations
 
-from ..results import Derivation
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:  # the results import the printers for their notebook display, not the other way
+    from ..results import Derivation
+
 from .common import product_lines, regime_lines, summary_lines
 from .quantities import conventions, kind_titles
 from .series_lines import series_text_lines
