@@ -8,14 +8,14 @@ from pathlib import Path
 import lark
 import sympy
 
-from .errors import InputError, NotSupportedYet, Span
-from .expressions import CONSTANTS, FUNCTIONS, ExpressionBuilder
+from .errors import InputError, Span
+from .expressions import FUNCTIONS, ExpressionBuilder
 from .hints import did_you_mean
 from .model import (FORMATS, QUANTITIES, Expansion, GivenValue, Mutual, OutputSettings, Parameter, Request, Source,
-                    Species, Spectrum, System, Tubes)
+                    Species, System, Tubes)
 from .build_products import build_products, product_names, product_order
 from .parse import parse
-from .periods import braids, species_statistics
+from .routes import REGIMES
 
 MAX_ORDER = 200
 MAX_INCLUDE_BYTES = 4_000_000
@@ -166,9 +166,7 @@ class _Builder:
                         output=self.output, files=tuple(self.files), warnings=tuple(self.warnings),
                         size_limit=self.size_limit, tubes=self.tubes, expansions=self._expansions(),
                         samplings=samplings, **products)
-        if source.kind == "pairphase":
-            from .routes.pairphase import refuse_known_given
-            refuse_known_given(system)
+        REGIMES[source.kind].check_system(system)
         return system
 
     def _first_span(self) -> Span:
@@ -251,7 +249,7 @@ class _Builder:
                 exchange = sympy.Integer(1 if statistics == "fermi" else 0)
         self.species[str(token)] = Species(str(token), mass, exchange, self.span(token), statistics)
 
-    def _known_species(self, token) -> str:
+    def known_species(self, token) -> str:
         if str(token) not in self.species:
             raise InputError(f"unknown species '{token}'", self.span(token),
                              did_you_mean(str(token), self.species))
@@ -259,7 +257,7 @@ class _Builder:
 
     def _mutual(self, tree):
         first, second, value = tree.children
-        a, b = self._known_species(first), self._known_species(second)
+        a, b = self.known_species(first), self.known_species(second)
         if a == b:
             raise InputError(f"a mutual parameter needs two distinct species; for {a} with itself use "
                              "`exchange` on the species", self.span(second))
@@ -271,7 +269,7 @@ class _Builder:
         self.mutuals.append(Mutual(a, b, expr, self.span(first)))
 
     def _reference(self, tree):
-        self.reference = self._known_species(tree.children[0])
+        self.reference = self.known_species(tree.children[0])
 
     def _set_source(self, source: Source, tree):
         if self.source is not None:
@@ -406,7 +404,7 @@ class _Builder:
         self.output = OutputSettings(self.output.format, str(tree.children[0]) == "on", self.span(tree))
 
     # -- checks after all declarations ----------------------------------------------------------------
-    def _index(self, ref, names: list[str]) -> tuple[int, ...]:
+    def multi_index(self, ref, names: list[str]) -> tuple[int, ...]:
         items = ref.children[1:]
         K = len(names)
         counts = [0] * K
@@ -460,7 +458,7 @@ class _Builder:
             if len(letters) > 1:
                 raise InputError("one `derive` lists either b[...] or a[...]; use two statements", self.span(tree))
             quantity = "cluster" if letters == {"b"} else "virial"
-            return Request(quantity, self.span(tree), indices=tuple(self._index(r, names) for r in refs))
+            return Request(quantity, self.span(tree), indices=tuple(self.multi_index(r, names) for r in refs))
         finally:
             self.file = self.main
 
@@ -491,7 +489,7 @@ class _Builder:
         values, seen = [], {}
         for ref, value, file in entries:
             self.file = file
-            index = self._index(ref, names)
+            index = self.multi_index(ref, names)
             if source.kind == "pairphase" and sum(index) == 2:
                 raise InputError("the two-body coefficients of pair phases are exact here; give only three-body "
                                  "and higher ones", self.span(ref))
@@ -518,239 +516,39 @@ class _Builder:
 
     # -- physical regimes -------------------------------------------------------------------------------
     def _check_regime(self, source: Source, names: list[str]) -> Source:
-        if self.statistics and source.kind != "exclusion":
+        """What every regime shares; the rest is the regime's own `check` (routes.base.Regime)."""
+        regime = REGIMES[source.kind]
+        if self.statistics and not regime.takes_matrix:
             tree, file = self.statistics[0]
             self.file = file
             span = self.span(tree)
             self.file = self.main
-            raise InputError("a statistics matrix is only used with `clusters exclusion`"
-                             + ("; the lowest Landau level takes it from the exchange and mutual parameters"
-                                if source.kind == "landau" else ""), span)
-        boltzmann = [s for s in self.species.values() if s.statistics == "boltzmann"]
-        if boltzmann and source.kind in ("pairphase", "landau", "exclusion"):
-            s = boltzmann[0]
-            if source.kind == "pairphase":
-                raise NotSupportedYet(f"a boltzmann species ({s.name}) with `clusters pairphase`: its own b_l vanish "
-                                      "for l >= 2 but its braiding with other species is not yet derived; declare "
-                                      "it bose, fermi or with an exchange parameter", s.span)
-            what = "the lowest Landau level" if source.kind == "landau" else "exclusion statistics"
-            raise InputError(f"species {s.name} is boltzmann (distinguishable particles), which {what} does not "
-                             "describe; declare it bose, fermi or with an exchange parameter", s.span)
-        if source.kind == "ideal":
-            for s in self.species.values():
-                if species_statistics(s, self._by_symbol()) is None:
-                    raise InputError(f"`clusters ideal` needs bose, fermi or boltzmann species; {s.name} has "
-                                     f"exchange parameter {s.exchange}, neither bosonic nor fermionic modulo the "
-                                     "period 2", s.span)
-            self._no_mutuals("ideal gases")
-        elif source.kind == "exclusion":
-            source = Source("exclusion", source.span, form=source.form, matrix=self._exclusion_matrix(names))
-            self._exclusion_diagonal_warnings(source.matrix)
-            if self.mutuals:
-                self.warnings.append(("mutual (braiding) parameters do not enter exclusion statistics; "
-                                      "they are ignored here (declare `statistics A B = ...`)", self.mutuals[0].span))
-        elif source.kind == "landau":
-            if self.dimension != 2:
-                raise InputError(f"the lowest Landau level lives in the plane; declare `dimension 2`, "
-                                 f"not {self.dimension}", source.span)
-            self._landau_range_warnings()
-            masses = {sympy.srepr(s.mass) for s in self.species.values()}
-            if len(masses) > 1:
-                self.warnings.append(("masses do not enter the lowest Landau level (all species are taken to "
-                                      "carry the same charge, hence the same degeneracy per area)", source.span))
-        elif source.kind == "spectrum":
-            source = Source("spectrum", source.span, spectrum=self._spectrum(names, source.span))
-        elif source.kind == "pairphase":
-            if self.dimension != 2:
-                raise InputError(f"pair phases are a property of the plane; declare `dimension 2`, not {self.dimension}",
-                                 source.span)
-            self._real_statistics()
-        if self.tubes is not None and source.kind != "pairphase":
+            raise InputError("a statistics matrix is only used with `clusters exclusion`" + regime.takes_matrix_hint,
+                             span)
+        for s in self.species.values():
+            if s.statistics == "boltzmann":
+                regime.refuse_boltzmann(s)
+                break
+        source = regime.check(self, source, names)
+        if self.tubes is not None and not regime.takes_tubes:
             raise InputError("flux tubes are used with `clusters pairphase`", self.tubes.span)
-        if self.tubes is not None:
-            anyonic = [s for s in self.species.values() if species_statistics(s, self._by_symbol()) is None]
-            braiding = [m for m in self.mutuals if braids(m.value, self._by_symbol()) is not False]
-            if anyonic or braiding:
-                raise NotSupportedYet("flux tubes with anyonic or mutually braiding mobile species (the cycle-around-"
-                                      "tube pieces of several mobile particles are many-body and not yet named)",
-                                      self.tubes.span)
         return source
 
-    def _real_statistics(self) -> None:
-        """Pair phases need real statistics parameters for every allowed value of the declared parameters
-        (the per-declaration checks only refuse what is surely complex, such as sqrt(-1))."""
-        entries = [(s.exchange, "the exchange parameter", s.span) for s in self.species.values()]
-        entries += [(m.value, f"the mutual parameter of {m.first} and {m.second}", m.span) for m in self.mutuals]
-        if self.tubes is not None:
-            entries.append((self.tubes.flux, "the tube flux", self.tubes.span))
-        for value, what, span in entries:
-            if _decide(lambda: value.is_real, span, f"{what} is real") is not True:
-                raise InputError(f"{what} must be real: {value} is not real for every value of its parameters "
-                                 "(a phase e^(i pi alpha) needs real alpha)", span)
+    def decide(self, question, span, what: str):
+        """Ask sympy a yes/no question about an input value (for the regimes' checks)."""
+        return _decide(question, span, what)
 
-    def _by_symbol(self) -> dict:
+    def by_symbol(self) -> dict:
         return {p.symbol: p for p in self.parameters.values()}
 
-    def _exclusion_diagonal_warnings(self, g) -> None:
-        """An exchange parameter taken as the diagonal g of exclusion statistics is used as written: g is
-        not periodic, while the anyon's exchange parameter has period 2. Warn outside [0, 1]."""
-        for i, s in enumerate(self.species.values()):
-            if i not in self._defaulted_diagonal or s.statistics is not None or s.exchange == 0:
-                continue
-            value = s.exchange
-            inside = (value.is_number and 0 <= value <= 1) or (value.is_Symbol and self._within_unit(value))
-            if not inside:
-                self.warnings.append((f"the exchange parameter of {s.name} ({value}) is taken as the exclusion "
-                                      f"statistics g_{s.name}{s.name} = {value}, which is not periodic (the anyon's "
-                                      "exchange parameter has period 2); outside [0, 1] the two differ: declare "
-                                      f"`statistics {s.name} {s.name} = ...` to choose g", s.span))
-
-    def _no_mutuals(self, what: str) -> None:
+    def no_mutuals(self, what: str) -> None:
         if self.mutuals:
             m = self.mutuals[0]
             raise InputError(f"{what} have no pair phases; a mutual parameter cannot be used here", m.span)
 
-    def _exclusion_matrix(self, names: list[str]) -> tuple[tuple[sympy.Expr, ...], ...]:
-        K = len(names)
-        g: list[list] = [[None] * K for _ in range(K)]
-        for tree, file in self.statistics:
-            self.file = file
-            if tree.data == "statistics_matrix":
-                rows = tree.children
-                widths = [len(r.children) for r in rows]
-                if len(rows) != K or any(w != K for w in widths):
-                    shape = f"{len(rows)} x {max(widths)}" if len(set(widths)) == 1 else \
-                        f"{len(rows)} rows of lengths {', '.join(map(str, widths))}"
-                    raise InputError(f"the statistics matrix is {shape} but {K} species are declared "
-                                     f"({', '.join(names)}): it must be {K} x {K}", self.span(tree))
-                for i, row in enumerate(rows):
-                    for j, entry in enumerate(row.children):
-                        self._set_entry(g, i, j, entry, tree)
-            else:
-                first, second, value = tree.children
-                i, j = names.index(self._known_species(first)), names.index(self._known_species(second))
-                self._set_entry(g, i, j, value, first)
-        self.file = self.main
-        species = list(self.species.values())
-        self._defaulted_diagonal = {i for i in range(K) if g[i][i] is None}
-        for i in range(K):
-            for j in range(K):
-                if g[i][j] is None:
-                    g[i][j] = species[i].exchange if i == j else sympy.Integer(0)
-        return tuple(tuple(row) for row in g)
-
-    def _set_entry(self, g, i, j, tree, where):
-        if g[i][j] is not None:
-            names = list(self.species)
-            raise InputError(f"statistics entry g[{names[i]},{names[j]}] is given twice", self.span(where))
-        value = self.expr(tree)
-        if value.is_real is False:
-            raise InputError("statistics matrix entries must be real", self.span(tree))
-        g[i][j] = value
-
-    def _landau_range_warnings(self) -> None:
-        """Warn where the linear lowest-Landau-level interpolation is not the physics: exchange
-        parameters outside [0, 1]; mutual parameters outside [0, 1), since a mutual parameter 1 is
-        no coupling (period 1) while the interpolated states at 1 are the left limit (the relative
-        state l = -1 joins the lowest level exactly there)."""
-        values = [(f"exchange parameter of {s.name}", s.exchange, s.span, False) for s in self.species.values()]
-        values += [(f"mutual parameter of {m.first} and {m.second}", m.value, m.span, True) for m in self.mutuals]
-        for what, value, span, mutual in values:
-            if value.is_number:
-                if mutual and value == 1:
-                    self.warnings.append((f"the {what} is 1, which means no braiding (period 1), but the "
-                                          "lowest-Landau-level interpolation holds on [0, 1) only: the results are "
-                                          "its left limit, not the uncoupled gas (declare 0 for that)", span))
-                elif not (0 <= value <= 1):
-                    self.warnings.append((f"the {what} is {value}, outside [0, 1] where the lowest-Landau-level "
-                                          "states interpolate linearly; results there are the linear continuation",
-                                          span))
-                continue
-            poly = sympy.Poly(value, *value.free_symbols) if value.is_polynomial() else None
-            inside = poly is not None and poly.total_degree() <= 1 and all(c >= 0 for c in poly.coeffs()) \
-                and all(self._within_unit(symbol) for symbol in value.free_symbols) and sum(poly.coeffs()) <= 1
-            if inside and mutual and sum(poly.coeffs()) == 1:
-                # the value reaches 1 when every parameter is at its upper end: open there, or not inside
-                inside = any(self.parameters[sym.name].upper_open or self.parameters[sym.name].upper < 1
-                             for sym in value.free_symbols if poly.coeff_monomial(sym) != 0)
-            if not inside:
-                interval = "[0, 1)" if mutual else "[0, 1]"
-                self.warnings.append((f"the lowest-Landau-level states interpolate linearly only for the {what} in "
-                                      f"{interval}; declare a range that keeps {value} inside {interval} to say so",
-                                      span))
-
-    def _within_unit(self, symbol) -> bool:
+    def within_unit(self, symbol) -> bool:
         p = self.parameters.get(symbol.name)
         return bool(p and p.lower is not None and p.upper is not None and p.lower >= 0 and p.upper <= 1)
-
-    def _spectrum(self, names: list[str], span: Span) -> Spectrum:
-        K = len(names)
-        species = list(self.species.values())
-        if "x" in self.parameters:
-            raise InputError("`x` stands for exp(-beta hbar omega) in a declared spectrum; rename the parameter x",
-                             self.parameters["x"].span)
-        counts = tuple(sympy.Symbol(f"N_{n}", integer=True, nonnegative=True) for n in names)
-        count_of = dict(zip(names, counts))
-        levels: list = [None] * K
-        fill: list = [None] * K
-        shift = None
-        trapped = {}
-        area = None
-        for item, file in self.spectrum_items:
-            self.file = file
-            kind = item.data
-            if kind == "levels":
-                i = names.index(self._known_species(item.children[0]))
-                if levels[i] is not None:
-                    raise InputError(f"levels of {names[i]} are given twice", self.span(item.children[0]))
-                levels[i] = self._trap_expr(item.children[1])
-            elif kind in ("fill_bose", "fill_fermi"):
-                i = names.index(self._known_species(item.children[0]))
-                if fill[i] is not None:
-                    raise InputError(f"the filling of {names[i]} is given twice", self.span(item.children[0]))
-                fill[i] = kind[len("fill_"):]
-            elif kind == "shift":
-                if shift is not None:
-                    raise InputError("`shift` is given twice", self.span(item))
-                shift = self.expr(item.children[0], extra=count_of)
-                if shift.is_real is False:
-                    raise InputError("the energy shift must be real", self.span(item.children[0]))
-            elif kind == "trapped":
-                ref, value = item.children
-                if str(ref.children[0]) != "Z":
-                    raise InputError(f"write trapped Z[...] = ..., not {ref.children[0]}[...]", self.span(ref.children[0]))
-                index = self._index(ref, names)
-                if index in trapped:
-                    raise InputError(f"Z{list(index)} is given twice", self.span(ref))
-                trapped[index] = self._trap_expr(value)
-            else:
-                word = "mass" if kind == "area_mass" else str(item.children[0])
-                if word not in ("mass", "count", "one"):
-                    raise InputError(f"`area` is mass, count or one, not '{word}'", self.span(item.children[0]))
-                if area is not None:
-                    raise InputError("`area` is given twice", self.span(item))
-                area = word
-        self.file = self.main
-        from .routes.spectrum import harmonic_levels
-        for i, s in enumerate(species):
-            if levels[i] is None:
-                levels[i] = harmonic_levels(self.dimension)
-            if fill[i] is None:
-                statistics = species_statistics(s, self._by_symbol())
-                if statistics not in ("bose", "fermi"):
-                    raise InputError(f"say how {s.name} fills the levels (`fill {s.name} bose` or `fill {s.name} fermi`): "
-                                     "its statistics is neither bose nor fermi (modulo the exchange period 2)", s.span)
-                fill[i] = statistics
-        self._no_mutuals("declared spectra carry their pair phases in `shift`; they")
-        return Spectrum(tuple(levels), tuple(fill), shift if shift is not None else sympy.Integer(0), counts,
-                        tuple(sorted(trapped.items())), area or "mass", span)
-
-    def _trap_expr(self, tree) -> sympy.Expr:
-        value = self.expr(tree, extra={"x": TRAP})
-        if not value.has(TRAP):
-            raise InputError("this function of x = exp(-beta hbar omega) does not contain x", self.span(tree))
-        return value
-
 
 def _undecided_or(relation) -> bool:
     """bool(relation), counting "sympy cannot decide" (equal up to an unproved identity) as true."""

@@ -95,7 +95,7 @@ class ProductBuilder:
         if letter not in kinds or (letter in ("b", "a") and component):
             raise InputError(f"unknown coefficient '{word}[...]'; name b[...], a[...], rho_X[...] (density of "
                              "species X) or z_X[...] (its fugacity)", span)
-        index = self.b._index(ref, self.names)
+        index = self.b.multi_index(ref, self.names)
         kind = kinds[letter]
         if kind in ("density", "fugacity"):
             if not component:

@@ -129,7 +129,7 @@ def _sampling(builder, statement: _Statement, source, names, order) -> Sampling:
                                  "is not supported; give b[...] values there instead", span)
             for ref, _, file in entries:
                 builder.file, here = file, builder.file
-                stated = builder._index(ref, names)
+                stated = builder.multi_index(ref, names)
                 builder.file = here
                 if stated == index:
                     raise InputError(f"b{bracket_label(index)} is both given in the pairphase block and sampled "
@@ -163,7 +163,7 @@ def _coefficient(builder, ref, names):
     if letter not in ("a", "b"):
         raise InputError(f"`sample` takes cluster (b[...]) and virial (a[...]) coefficients, not {letter}[...]",
                          builder.span(ref.children[0]))
-    index = builder._index(ref, names)
+    index = builder.multi_index(ref, names)
     label = f"{letter}{bracket_label(index)}"
     total = sum(index)
     occupied = sum(1 for n in index if n)

@@ -12,7 +12,7 @@ from .generic import GenericRegime, GivenRegime
 from .ideal import IdealRegime
 from .landau import LandauRegime, landau_clusters, landau_matrix, landau_spectrum
 from .pairphase import PairPhaseRegime
-from .spectrum import SpectrumRegime
+from .spectrum_regime import SpectrumRegime
 
 REGIMES: dict[str, Regime] = {regime.kind: regime for regime in (
     IdealRegime(), ExclusionRegime(), LandauRegime(), SpectrumRegime(), PairPhaseRegime(), GenericRegime(),

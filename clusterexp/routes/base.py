@@ -91,9 +91,20 @@ class Regime:
     named_pieces: bool = False
 
     # --- input ------------------------------------------------------------------------------------
+    takes_matrix = False      # a `statistics` matrix belongs to the regime
+    takes_matrix_hint = ""    # said when a matrix is given to a regime that does not take one
+    takes_tubes = False       # static flux tubes enter the regime
+
     def check(self, builder, source, names: list[str]):
-        """Validate the regime's part of the input (InputError with spans); return the source."""
+        """Validate the regime's part of the input (InputError with spans, warnings appended to
+        `builder.warnings`); return the source, completed (matrix, spectrum) where the regime needs."""
         return source
+
+    def refuse_boltzmann(self, species) -> None:
+        """Raise when a boltzmann (distinguishable) species has no place in the regime."""
+
+    def check_system(self, system) -> None:
+        """Checks that need the whole validated system (e.g. refusing a given value the regime knows)."""
 
     def estimate(self, system, order: int) -> int | None:
         """Rough count of the terms the regime forms at this order (None: the generic estimate)."""

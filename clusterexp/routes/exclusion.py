@@ -32,6 +32,7 @@ from typing import Sequence
 
 import sympy
 
+from ..errors import InputError
 from ..series import PolynomialRing, collect_atoms, indices_up_to
 from .base import THERMAL, Clusters, Quantities, Regime, ring_native, sympy_values
 
@@ -201,11 +202,88 @@ def wu_latex(g, labels, level: bool, text: str, pressure_head) -> list[str]:
             r"\begin{gather*}", r" \\ ".join(equations) + r" \\", pressure_head(logs), r"\end{gather*}"]
 
 
+# --- its part of the input -------------------------------------------------------------------------
+
+def exclusion_matrix(builder, names: list[str]) -> tuple[tuple[tuple[sympy.Expr, ...], ...], set]:
+    """The statistics matrix from `statistics` statements (entries or a whole matrix), the diagonal
+    defaulting to the exchange parameters, and the set of defaulted diagonal entries."""
+    K = len(names)
+    g: list[list] = [[None] * K for _ in range(K)]
+    for tree, file in builder.statistics:
+        builder.file = file
+        if tree.data == "statistics_matrix":
+            rows = tree.children
+            widths = [len(r.children) for r in rows]
+            if len(rows) != K or any(w != K for w in widths):
+                shape = f"{len(rows)} x {max(widths)}" if len(set(widths)) == 1 else \
+                    f"{len(rows)} rows of lengths {', '.join(map(str, widths))}"
+                raise InputError(f"the statistics matrix is {shape} but {K} species are declared "
+                                 f"({', '.join(names)}): it must be {K} x {K}", builder.span(tree))
+            for i, row in enumerate(rows):
+                for j, entry in enumerate(row.children):
+                    _set_entry(builder, g, i, j, entry, tree)
+        else:
+            first, second, value = tree.children
+            i, j = names.index(builder.known_species(first)), names.index(builder.known_species(second))
+            _set_entry(builder, g, i, j, value, first)
+    builder.file = builder.main
+    species = list(builder.species.values())
+    defaulted = {i for i in range(K) if g[i][i] is None}
+    for i in range(K):
+        for j in range(K):
+            if g[i][j] is None:
+                g[i][j] = species[i].exchange if i == j else sympy.Integer(0)
+    return tuple(tuple(row) for row in g), defaulted
+
+
+
+def _set_entry(builder, g, i, j, tree, where):
+    if g[i][j] is not None:
+        names = list(builder.species)
+        raise InputError(f"statistics entry g[{names[i]},{names[j]}] is given twice", builder.span(where))
+    value = builder.expr(tree)
+    if value.is_real is False:
+        raise InputError("statistics matrix entries must be real", builder.span(tree))
+    g[i][j] = value
+
+
+
+def _diagonal_warnings(builder, g, defaulted) -> None:
+    """An exchange parameter taken as the diagonal g of exclusion statistics is used as written: g is
+    not periodic, while the anyon's exchange parameter has period 2. Warn outside [0, 1]."""
+    for i, s in enumerate(builder.species.values()):
+        if i not in defaulted or s.statistics is not None or s.exchange == 0:
+            continue
+        value = s.exchange
+        inside = (value.is_number and 0 <= value <= 1) or (value.is_Symbol and builder.within_unit(value))
+        if not inside:
+            builder.warnings.append((f"the exchange parameter of {s.name} ({value}) is taken as the exclusion "
+                                  f"statistics g_{s.name}{s.name} = {value}, which is not periodic (the anyon's "
+                                  "exchange parameter has period 2); outside [0, 1] the two differ: declare "
+                                  f"`statistics {s.name} {s.name} = ...` to choose g", s.span))
+
+
 class ExclusionRegime(Regime):
     """`clusters exclusion [level]`: Haldane-Wu exclusion statistics with a K x K matrix, on one level
     or in the d-dimensional continuum."""
 
     kind = "exclusion"
+    takes_matrix = True
+
+    def refuse_boltzmann(self, species):
+        raise InputError(f"species {species.name} is boltzmann (distinguishable particles), which exclusion "
+                         "statistics does not describe; declare it bose, fermi or with an exchange parameter",
+                         species.span)
+
+    def check(self, builder, source, names):
+        from ..model import Source
+        matrix, defaulted = exclusion_matrix(builder, names)
+        source = Source("exclusion", source.span, form=source.form, matrix=matrix)
+        _diagonal_warnings(builder, matrix, defaulted)
+        if builder.mutuals:
+            builder.warnings.append(("mutual (braiding) parameters do not enter exclusion statistics; "
+                                     "they are ignored here (declare `statistics A B = ...`)", builder.mutuals[0].span))
+        return source
 
     def clusters(self, plan) -> Clusters:
         system = plan.system

@@ -40,6 +40,17 @@ class IdealRegime(Regime):
 
     kind = "ideal"
 
+    def check(self, builder, source, names):
+        from ..errors import InputError
+        from ..periods import species_statistics
+        for s in builder.species.values():
+            if species_statistics(s, builder.by_symbol()) is None:
+                raise InputError(f"`clusters ideal` needs bose, fermi or boltzmann species; {s.name} has "
+                                 f"exchange parameter {s.exchange}, neither bosonic nor fermionic modulo the "
+                                 "period 2", s.span)
+        builder.no_mutuals("ideal gases")
+        return source
+
     def clusters(self, plan) -> Clusters:
         from ..periods import species_statistics
         system = plan.system

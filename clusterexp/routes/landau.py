@@ -6,6 +6,7 @@ from __future__ import annotations
 
 import sympy
 
+from ..errors import InputError
 from ..model import System
 from .base import Clusters, Quantities, Regime, ring_native
 from .exclusion import level_clusters, wu_latex, wu_text
@@ -50,10 +51,60 @@ def landau_clusters(system: System, order: int, route: str | None = None) -> Clu
     return ring_native(ring, b, lambda n: 1)
 
 
+def _range_warnings(builder) -> None:
+    """Warn where the linear lowest-Landau-level interpolation is not the physics: exchange
+    parameters outside [0, 1]; mutual parameters outside [0, 1), since a mutual parameter 1 is
+    no coupling (period 1) while the interpolated states at 1 are the left limit (the relative
+    state l = -1 joins the lowest level exactly there)."""
+    values = [(f"exchange parameter of {s.name}", s.exchange, s.span, False) for s in builder.species.values()]
+    values += [(f"mutual parameter of {m.first} and {m.second}", m.value, m.span, True) for m in builder.mutuals]
+    for what, value, span, mutual in values:
+        if value.is_number:
+            if mutual and value == 1:
+                builder.warnings.append((f"the {what} is 1, which means no braiding (period 1), but the "
+                                      "lowest-Landau-level interpolation holds on [0, 1) only: the results are "
+                                      "its left limit, not the uncoupled gas (declare 0 for that)", span))
+            elif not (0 <= value <= 1):
+                builder.warnings.append((f"the {what} is {value}, outside [0, 1] where the lowest-Landau-level "
+                                      "states interpolate linearly; results there are the linear continuation",
+                                      span))
+            continue
+        poly = sympy.Poly(value, *value.free_symbols) if value.is_polynomial() else None
+        inside = poly is not None and poly.total_degree() <= 1 and all(c >= 0 for c in poly.coeffs()) \
+            and all(builder.within_unit(symbol) for symbol in value.free_symbols) and sum(poly.coeffs()) <= 1
+        if inside and mutual and sum(poly.coeffs()) == 1:
+            # the value reaches 1 when every parameter is at its upper end: open there, or not inside
+            inside = any(builder.parameters[sym.name].upper_open or builder.parameters[sym.name].upper < 1
+                         for sym in value.free_symbols if poly.coeff_monomial(sym) != 0)
+        if not inside:
+            interval = "[0, 1)" if mutual else "[0, 1]"
+            builder.warnings.append((f"the lowest-Landau-level states interpolate linearly only for the {what} in "
+                                  f"{interval}; declare a range that keeps {value} inside {interval} to say so",
+                                  span))
+
+
 class LandauRegime(Regime):
     """`clusters landau [spectrum]`: anyons in the lowest Landau level, per rho_L."""
 
     kind = "landau"
+
+    takes_matrix_hint = "; the lowest Landau level takes it from the exchange and mutual parameters"
+
+    def check(self, builder, source, names):
+        if builder.dimension != 2:
+            raise InputError(f"the lowest Landau level lives in the plane; declare `dimension 2`, "
+                             f"not {builder.dimension}", source.span)
+        _range_warnings(builder)
+        masses = {sympy.srepr(s.mass) for s in builder.species.values()}
+        if len(masses) > 1:
+            builder.warnings.append(("masses do not enter the lowest Landau level (all species are taken to "
+                                     "carry the same charge, hence the same degeneracy per area)", source.span))
+        return source
+
+    def refuse_boltzmann(self, species):
+        raise InputError(f"species {species.name} is boltzmann (distinguishable particles), which the lowest "
+                         "Landau level does not describe; declare it bose, fermi or with an exchange parameter",
+                         species.span)
 
     def clusters(self, plan) -> Clusters:
         return landau_clusters(plan.system, plan.order)

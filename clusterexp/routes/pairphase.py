@@ -179,6 +179,20 @@ def virials_with_known_clusters(pieces: dict, given: dict, order: int, K: int, t
 
 # --- the regime -----------------------------------------------------------------------------------
 
+def _real_statistics(builder) -> None:
+    """Pair phases need real statistics parameters for every allowed value of the declared parameters
+    (the per-declaration checks only refuse what is surely complex, such as sqrt(-1))."""
+    from ..errors import InputError
+    entries = [(s.exchange, "the exchange parameter", s.span) for s in builder.species.values()]
+    entries += [(m.value, f"the mutual parameter of {m.first} and {m.second}", m.span) for m in builder.mutuals]
+    if builder.tubes is not None:
+        entries.append((builder.tubes.flux, "the tube flux", builder.tubes.span))
+    for value, what, span in entries:
+        if builder.decide(lambda: value.is_real, span, f"{what} is real") is not True:
+            raise InputError(f"{what} must be real: {value} is not real for every value of its parameters "
+                             "(a phase e^(i pi alpha) needs real alpha)", span)
+
+
 class PairPhaseRegime(Regime):
     """`clusters pairphase [{ given pieces }]` with optional `tubes`: exact two-body coefficients on the
     whole real line; many-body pieces named (unknown functions of the statistics parameters) or given,
@@ -186,6 +200,31 @@ class PairPhaseRegime(Regime):
 
     kind = "pairphase"
     named_pieces = True
+    takes_tubes = True
+
+    def check(self, builder, source, names):
+        from ..errors import InputError, NotSupportedYet
+        if builder.dimension != 2:
+            raise InputError(f"pair phases are a property of the plane; declare `dimension 2`, not {builder.dimension}",
+                             source.span)
+        _real_statistics(builder)
+        if builder.tubes is not None:
+            anyonic = [s for s in builder.species.values() if species_statistics(s, builder.by_symbol()) is None]
+            braiding = [m for m in builder.mutuals if braids(m.value, builder.by_symbol()) is not False]
+            if anyonic or braiding:
+                raise NotSupportedYet("flux tubes with anyonic or mutually braiding mobile species (the cycle-around-"
+                                      "tube pieces of several mobile particles are many-body and not yet named)",
+                                      builder.tubes.span)
+        return source
+
+    def check_system(self, system) -> None:
+        refuse_known_given(system)
+
+    def refuse_boltzmann(self, species):
+        from ..errors import NotSupportedYet
+        raise NotSupportedYet(f"a boltzmann species ({species.name}) with `clusters pairphase`: its own b_l vanish "
+                              "for l >= 2 but its braiding with other species is not yet derived; declare "
+                              "it bose, fermi or with an exchange parameter", species.span)
 
     def _pieces(self, plan) -> dict:
         return plan.memo("pairphase", lambda: two_body_clusters(plan.system, plan.order))

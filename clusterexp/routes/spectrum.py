@@ -31,9 +31,8 @@ from typing import Callable, Mapping, Sequence
 
 import sympy
 
-from ..errors import InputError, SeriesError
+from ..errors import SeriesError
 from ..series import PolynomialRing, collect_atoms, indices_up_to
-from .base import THERMAL, Clusters, Quantities, Regime, rational_weight, ring_native, sympy_values
 
 Index = tuple[int, ...]
 X = sympy.Symbol("x")
@@ -363,72 +362,3 @@ def _below(n: Index):
     for k in product(*ranges):
         if any(k) and k != n:
             yield k
-
-
-# --- the regime -----------------------------------------------------------------------------------
-
-COUNT = Quantities(
-    pressure="beta P / rho_0", density="nu_{i}", variable="nu",
-    single="nu_i = rho_i / rho_0, rho_0 the one-body degeneracy per area of the declared levels (weight |n|, "
-           "as in the lowest Landau level); b_(single particle) = 1, a_(single particle) = 1",
-    unit="rho_0", pressure_latex=r"\beta P/\rho_0", density_latex=r"\nu_{{{label}}}", variable_latex=r"\nu",
-    single_latex=r"$\nu_i=\rho_i/\rho_0$, $\rho_0$ the one-body degeneracy per area of the declared levels "
-                 r"(weight $|n|$); single-particle $b=1$")
-
-TRAPPED = Quantities(
-    pressure="ln Xi_trap / Z_1", density="N_{i} / Z_1", variable="(N / Z_1)",
-    single="the trapped gas itself: every quantity per one-body partition function Z_1 of the reference "
-           "species; b_(single particle) = 1, a_(single particle) = 1",
-    unit="Z_1", pressure_latex=r"\ln\Xi_{{\mathrm{{trap}}}}/Z_1", density_latex=r"N_{{{label}}}/Z_1",
-    variable_latex=r"(N/Z_1)", single_latex=r"the trapped gas itself, every quantity per one-body partition "
-                                            r"function $Z_1$ of the reference species; single-particle $b=1$")
-
-
-class SpectrumRegime(Regime):
-    """`clusters spectrum { ... }`: a declared trapped spectrum, thermodynamic limit taken exactly with
-    the harmonic regulator (route R2) and the declared area weight."""
-
-    kind = "spectrum"
-
-    def clusters(self, plan) -> Clusters:
-        system = plan.system
-        spec = system.source.spectrum
-        species = [SpeciesSpectrum(levels, fill, s.mass) for levels, fill, s in
-                   zip(spec.levels, spec.fill, system.species)]
-        counts = spec.counts
-
-        def shift(n):
-            return spec.shift.subs(dict(zip(counts, n)))
-        reference = system.species_index(system.reference)
-        try:
-            ring, b = trapped_clusters(species, shift, plan.order, reference, system.dimension, spec.area,
-                                       trapped=dict(spec.trapped))
-        except SpectrumError as error:
-            raise InputError(str(error), spec.span) from None
-        masses = [s.mass for s in system.species]
-        m_ref = system.reference_mass
-        weights = {n: area_weight(n, masses, m_ref, system.dimension, spec.area) for n in b}
-        if all(w.is_Rational for w in weights.values()) and all(weights[n] == 1 for n in b if sum(n) == 1):
-            return ring_native(ring, b, lambda n: rational_weight(weights[n]))
-        return sympy_values(ring, b, weights.__getitem__)
-
-    def quantities(self, system) -> Quantities:
-        return {"count": COUNT, "one": TRAPPED}.get(system.source.spectrum.area, THERMAL)
-
-    def text_lines(self, system) -> list[str]:
-        spec = system.source.spectrum
-        names = system.species_names
-        weight = {"count": "|n| ", "one": ""}.get(spec.area, "(M_n/m_ref)^(d/2) ")
-        return ["regime: declared trapped spectrum, x = exp(-beta hbar omega); "
-                f"b_n = {weight}lim_(omega->0) [z^n] ln Xi_trap / Z_1,ref(x)",
-                "levels: " + "; ".join(f"{n}: {lv} ({fill})" for n, lv, fill in zip(names, spec.levels, spec.fill)),
-                f"energy shift / hbar omega: {spec.shift} (N_X = number of particles of species X)"]
-
-    def latex_paragraphs(self, system, labels) -> list[str]:
-        spec = system.source.spectrum
-        weight = {"count": r"|n|", "one": ""}.get(spec.area, r"(M_n/m_{\mathrm{ref}})^{d/2}")
-        rows = ", ".join(f"${l}$: $L(x)={sympy.latex(lv)}$ ({fill})" for l, lv, fill in zip(labels, spec.levels, spec.fill))
-        return [r"Declared trapped spectrum, $x=e^{-\beta\hbar\omega}$: "
-                rf"$b_n={weight}\lim_{{\omega\to0}}[z^n]\ln\Xi_{{\mathrm{{trap}}}}/Z_{{1,\mathrm{{ref}}}}(x)$; "
-                rf"one-body levels {rows}; energy shift $\hbar\omega\,({sympy.latex(spec.shift)})$ "
-                r"with $N_X$ the number of particles of species $X$."]
