@@ -19,9 +19,9 @@ from .routes import REGIMES
 
 MAX_ORDER = 200
 MAX_INCLUDE_BYTES = 4_000_000
-LATER_REGIMES = ()
-REGIME_FORMS = {"generic": (None,), "ideal": (None,), "exclusion": ("continuum", "level"),
-                "landau": ("exclusion", "spectrum"), "pairphase": (None,)}
+# regimes named by a word after `clusters` (with their forms); `spectrum { ... }` and `given { ... }` are
+# blocks of their own in the grammar
+REGIME_FORMS = {kind: regime.forms for kind, regime in REGIMES.items() if regime.forms}
 TRAP = sympy.Symbol("x")
 RESERVED = {"b", "a", "z", "rho", "pi", "I", "E"} | set(FUNCTIONS)
 GENERATED = re.compile(r"^(b|a|z|rho)_")
@@ -282,10 +282,8 @@ class _Builder:
         options = [o.children[0] if o.data == "option_word" else lark.Token("NAME", "spectrum", line=o.meta.line,
                    column=o.meta.column, end_line=o.meta.end_line, end_column=o.meta.end_column)
                    for o in option_trees]
-        if word in LATER_REGIMES:
-            raise InputError(f"regime '{word}' is not supported yet", self.span(token))
         if word not in REGIME_FORMS:
-            raise InputError(f"unknown regime '{word}'; expected generic, ideal, exclusion, landau, pairphase, "
+            raise InputError(f"unknown regime '{word}'; expected {', '.join(REGIME_FORMS)}, "
                              "spectrum { ... } or given { ... }", self.span(token),
                              did_you_mean(word, list(REGIME_FORMS) + ["spectrum", "given"]))
         forms = REGIME_FORMS[word]
@@ -336,16 +334,17 @@ class _Builder:
 
     def _clusters_block(self, tree):
         token, *entries = tree.children
-        if str(token) != "pairphase":
-            raise InputError(f"only `clusters pairphase` takes a block of given values, not '{token}'"
+        takers = [kind for kind, regime in REGIMES.items() if regime.takes_given_block]
+        if str(token) not in takers:
+            raise InputError(f"only `clusters {' / '.join(takers)}` takes a block of given values, not '{token}'"
                              + ("; use `clusters given { ... }`" if str(token) == "generic" else ""), self.span(token))
         kinds = {str(e.children[0].children[0]) for e in entries}
         if not kinds <= {"a", "b"} or len(kinds) > 1:
             bad = next((e.children[0].children[0] for e in entries if str(e.children[0].children[0]) not in "ab"),
                        entries[-1].children[0].children[0] if entries else token)
-            raise InputError("a pairphase block gives either b[...] or a[...] values", self.span(bad))
+            raise InputError(f"a {token} block gives either b[...] or a[...] values", self.span(bad))
         values = [(e.children[0], e.children[1], self.file) for e in entries]
-        self._set_source(Source("pairphase", self.span(token)), tree)
+        self._set_source(Source(str(token), self.span(token)), tree)
         self._pending_given = ("virial" if kinds == {"a"} else "cluster", values)
 
     def _tubes(self, tree):
@@ -483,16 +482,15 @@ class _Builder:
 
     def _check_given(self, source: Source, names: list[str], order: int) -> Source:
         pending = getattr(self, "_pending_given", None)
-        if source.kind not in ("given", "pairphase") or not pending:
+        regime = REGIMES[source.kind]
+        if not (regime.takes_given_block or source.kind == "given") or not pending:
             return source
         kind, entries = pending
         values, seen = [], {}
         for ref, value, file in entries:
             self.file = file
             index = self.multi_index(ref, names)
-            if source.kind == "pairphase" and sum(index) == 2:
-                raise InputError("the two-body coefficients of pair phases are exact here; give only three-body "
-                                 "and higher ones", self.span(ref))
+            regime.check_given_index(index, self.span(ref))
             if sum(index) == 1:
                 fixed = ("b for a single particle is fixed by the masses ((m_i/m_ref)^(d/2)); do not give it"
                          if kind == "cluster" else "a for a single particle is 1; do not give it")
@@ -504,11 +502,7 @@ class _Builder:
                 raise InputError(f"this coefficient has total order {sum(index)}, beyond the order {order} "
                                  "derived here", self.span(ref))
             expr = self.expr(value)
-            if source.kind == "pairphase":
-                from .expansions import truncation_problem
-                problem = truncation_problem(expr)
-                if problem:
-                    raise InputError(problem, self.span(value))
+            regime.check_given_value(expr, self.span(value))
             values.append(GivenValue(kind, index, expr, self.span(ref)))
         self.file = self.main
         return Source(source.kind, source.span, tuple(values))
@@ -531,7 +525,8 @@ class _Builder:
                 break
         source = regime.check(self, source, names)
         if self.tubes is not None and not regime.takes_tubes:
-            raise InputError("flux tubes are used with `clusters pairphase`", self.tubes.span)
+            takers = " / ".join(f"`clusters {kind}`" for kind, r in REGIMES.items() if r.takes_tubes)
+            raise InputError(f"flux tubes are used with {takers}", self.tubes.span)
         return source
 
     def decide(self, question, span, what: str):

@@ -15,7 +15,7 @@ from .pairphase import PairPhaseRegime
 from .spectrum_regime import SpectrumRegime
 
 REGIMES: dict[str, Regime] = {regime.kind: regime for regime in (
-    IdealRegime(), ExclusionRegime(), LandauRegime(), SpectrumRegime(), PairPhaseRegime(), GenericRegime(),
+    GenericRegime(), IdealRegime(), ExclusionRegime(), LandauRegime(), PairPhaseRegime(), SpectrumRegime(),
     GivenRegime())}
 
 

@@ -91,6 +91,8 @@ class Regime:
     named_pieces: bool = False
 
     # --- input ------------------------------------------------------------------------------------
+    forms: tuple = (None,)    # the words allowed after `clusters <kind>` (first: the default; None: none)
+    takes_given_block = False  # `clusters <kind> { b[...] = ... }` gives some of its pieces
     takes_matrix = False      # a `statistics` matrix belongs to the regime
     takes_matrix_hint = ""    # said when a matrix is given to a regime that does not take one
     takes_tubes = False       # static flux tubes enter the regime
@@ -99,6 +101,12 @@ class Regime:
         """Validate the regime's part of the input (InputError with spans, warnings appended to
         `builder.warnings`); return the source, completed (matrix, spectrum) where the regime needs."""
         return source
+
+    def check_given_index(self, index, span) -> None:
+        """Refuse a given coefficient the regime computes itself."""
+
+    def check_given_value(self, value, span) -> None:
+        """Refuse a given value the regime cannot read (e.g. an O term that is no truncation order)."""
 
     def refuse_boltzmann(self, species) -> None:
         """Raise when a boltzmann (distinguishable) species has no place in the regime."""

@@ -268,6 +268,7 @@ class ExclusionRegime(Regime):
     or in the d-dimensional continuum."""
 
     kind = "exclusion"
+    forms = ("continuum", "level")
     takes_matrix = True
 
     def refuse_boltzmann(self, species):

@@ -40,6 +40,7 @@ class GenericRegime(Regime):
 
 
 class GivenRegime(GenericRegime):
-    """`clusters given { ... }` / `virials given { ... }`."""
+    """`clusters given { ... }` / `virials given { ... }` (a grammar block of its own)."""
 
     kind = "given"
+    forms = ()

@@ -87,6 +87,7 @@ class LandauRegime(Regime):
     """`clusters landau [spectrum]`: anyons in the lowest Landau level, per rho_L."""
 
     kind = "landau"
+    forms = ("exclusion", "spectrum")
 
     takes_matrix_hint = "; the lowest Landau level takes it from the exchange and mutual parameters"
 

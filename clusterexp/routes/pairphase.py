@@ -201,6 +201,20 @@ class PairPhaseRegime(Regime):
     kind = "pairphase"
     named_pieces = True
     takes_tubes = True
+    takes_given_block = True
+
+    def check_given_index(self, index, span) -> None:
+        from ..errors import InputError
+        if sum(index) == 2:
+            raise InputError("the two-body coefficients of pair phases are exact here; give only three-body "
+                             "and higher ones", span)
+
+    def check_given_value(self, value, span) -> None:
+        from ..errors import InputError
+        from ..expansions import truncation_problem
+        problem = truncation_problem(value)
+        if problem:
+            raise InputError(problem, span)
 
     def check(self, builder, source, names):
         from ..errors import InputError, NotSupportedYet

@@ -109,6 +109,7 @@ class SpectrumRegime(Regime):
     the harmonic regulator (route R2) and the declared area weight."""
 
     kind = "spectrum"
+    forms = ()   # `clusters spectrum { ... }`: a grammar block of its own
 
     def check(self, builder, source, names):
         from ..model import Source
