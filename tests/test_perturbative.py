@@ -59,6 +59,22 @@ def test_first_order_of_one_boson_species_is_minus_abs_alpha_log_squared():
         [-1, -1, R(-11, 12), R(-5, 6), R(-137, 180)]  # the values listed in ../shared/physics.md
 
 
+def test_contact_coefficient_from_the_winding_statistics_of_a_relative_loop():
+    """Independent numerical route (mpmath) for the first-order contact: a relative loop at x = 2 pi r^2
+    from the flux has E[e^{i a Theta}] = e^{-x} sum_m I_{|m+a|}(x) (docs/loops.md; Yor 1980, from memory);
+    its |a| term comes from m = 0 alone, d/dnu I_nu(x) at nu = 0 being -K_0(x), and integrated over the
+    plane (d^2 r = dx / 2, both particles' offsets: factor 2) it is -|a| int e^{-x} K_0(x) dx = -|a|:
+    the b_{1,1}^(1) = -|d| (equal masses) that fixes the contact in section 3."""
+    import mpmath
+    with mpmath.workdps(20):
+        for x in (mpmath.mpf("0.3"), mpmath.mpf(2)):
+            slope = mpmath.diff(lambda nu: mpmath.besseli(nu, x), 0)
+            assert abs(slope + mpmath.besselk(0, x)) < mpmath.mpf(10) ** -15
+        integral = mpmath.quad(lambda x: mpmath.exp(-x) * mpmath.besselk(0, x), [0, 1, mpmath.inf])
+    b = taylor_coefficients([Species(None), Species(None)], {(0, 1): d}, (1, 1), "boson", 1)
+    assert b[sympy.Abs(d)] == -1 and abs(float(integral) - 1) < 1e-15
+
+
 def test_no_first_order_exchange_term_about_fermions():
     """About fermions the exchange parameter has no first-order term [Myrheim & Olaussen,
     Phys. Lett. B 299 (1993) 267, introduction]; zeroth order is the ideal Fermi gas (route R1)."""
@@ -266,3 +282,38 @@ def test_chain_part_of_one_species_and_the_published_third_virial_coefficient():
 def test_bad_requests_get_clear_messages(call, error, match):
     with pytest.raises(error, match=match):
         call()
+
+
+@pytest.mark.parametrize("about", [("boson", "boson"), ("boson", "fermion"), ("fermion", "fermion")])
+def test_chain_part_is_the_series_of_the_ring_and_landau_formulas(about):
+    """The module's chain coefficients against a plain sympy evaluation of (4.1) and (4.2) (independent
+    code: the logarithms' series by sympy.series, products by sympy.expand), two species with masses 1 and
+    3/2, total order 5."""
+    x, y, ue, uf, ud = sympy.symbols("x y u_e u_f u_d")
+    masses = (1, R(3, 2))
+    sign = [1 if a == "boson" else -1 for a in about]
+    contact = [1 if a == "boson" else 0 for a in about]
+    zs = (x, y)
+    r = [sympy.series(masses[i] * -sign[i] * sympy.log(1 - sign[i] * zs[i]), zs[i], 0, 6).removeO() for i in range(2)]
+    k = [sympy.expand(zs[i] * sympy.diff(r[i], zs[i])) for i in range(2)]
+    G = (masses[0] + masses[1]) / (2 * masses[0] * masses[1])
+    sigma = [2 * contact[0] * ue * r[0] / masses[0] + G * ud * r[1], 2 * contact[1] * uf * r[1] / masses[1] + G * ud * r[0]]
+    flux = [(e * r[0] + d * r[1]) / masses[0], (f * r[1] + d * r[0]) / masses[1]]
+    pressure = sum(sigma[i] ** 2 * k[i] / 2 - flux[i] ** 2 * k[i] / 24 for i in range(2))
+    series = sympy.expand(pressure)     # the coefficients up to degree 5 in each variable are exact
+    absolute = {sympy.Abs(e): ue, sympy.Abs(f): uf, sympy.Abs(d): ud}
+    for n in indices_up_to(2, 5):
+        if sum(n) < 3:
+            continue
+        chains = chain_part([Species(e, masses[0]), Species(f, masses[1])], {(0, 1): d}, n, about)
+        coefficient = series.coeff(x, n[0]).coeff(y, n[1])
+        for monomial, value in chains.items():
+            expected = coefficient
+            for factor in sympy.Mul.make_args(monomial.subs(absolute)):
+                base, power = factor.as_base_exp()
+                expected = expected.coeff(base, power)
+            expected = expected.subs(dict.fromkeys((ue, uf, ud, e, f, d), 0))
+            if monomial.is_Pow:  # a square: ring (|x|^2) and Landau (x^2) together
+                u = absolute[sympy.Abs(monomial.base)]
+                expected = coefficient.coeff(u, 2).subs(dict.fromkeys((ue, uf, ud, e, f, d), 0)) + expected
+            assert value == expected, (n, monomial, value, expected)

@@ -15,9 +15,10 @@ exchange, period 1 for mutual. The derivation is docs/perturbative.md; in short:
 * second order, |n| >= 3: the chains of three loops (Hartree-Fock ring of the contact,
   (1/2) sum_i (beta Sigma_i)^2 k_i, and Landau diamagnetism in the mean statistical field,
   -(1/24) sum_i x_i^2 k_i, k_i = z_i dr_i/dz_i) are derived for every n. They are the whole answer for
-  products of two different mutual parameters sharing a species (d_ij d_ik); monomials that connect no
-  cluster are zero. Squares (e_i^2, d_ij^2) and e_i d_ij also get two-loop and one-loop clusters, which
-  are not derived: `NotSupportedYet`, or named unknowns with unknown="name".
+  products of two different mutual parameters sharing a species (d_ij d_ik, |d_ij||d_ik|) and for the
+  products of two contact terms |e_i||d_ij| (two contact vertices meet only in the ring); monomials that
+  connect no cluster are zero. Squares (e_i^2, d_ij^2) and e_i d_ij also get two-loop and one-loop
+  clusters, which are not derived: `NotSupportedYet`, or named unknowns with unknown="name".
 
 Monomials whose sign changes under the mirror image (every parameter -> minus itself; e.g. x,
 x*Abs(y), x*Abs(x)) vanish by that symmetry and are not listed.
@@ -242,9 +243,12 @@ def _second_order(gas: _Gas, p: _Link, q: _Link, n):
     monomials = (sympy.Abs(x) * sympy.Abs(y), x * y)
     if not p.species & q.species or support != p.species | q.species or not (_acts(p, n) and _acts(q, n)):
         return dict.fromkeys(monomials, Fraction(0))
+    ring, landau = _chain(gas, p, q, n)
     if p.i == p.j or q.i == q.j:
-        return dict.fromkeys(monomials, None)  # exchange times mutual: two-loop clusters not derived
-    return dict(zip(monomials, _chain(gas, p, q, n)))
+        # exchange times mutual: two contact vertices join only in the ring, but the vector potentials
+        # also meet in exchange (Fock) clusters that are not derived
+        return {monomials[0]: ring, monomials[1]: None}
+    return {monomials[0]: ring, monomials[1]: landau}
 
 
 def taylor_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int, int], sympy.Symbol],
@@ -280,7 +284,8 @@ def taylor_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int, i
         listed = ", ".join(str(m) for m in missing)
         raise NotSupportedYet(f"second-order Taylor coefficients of b[{','.join(map(str, n))}] in {listed}: "
                               f"their two-loop and one-loop clusters are not derived ({_HOW}); derived at "
-                              "second order: two-particle b, and products of two different mutual parameters")
+                              "second order: two-particle b, products of two different mutual parameters, and "
+                              "products |x||y| of two different parameters")
     label = "_".join(map(str, n))
     return {m: (sympy.Symbol(f"t_b_{label}__{m}") if v is None else sympy.Rational(v.numerator, v.denominator))
             for m, v in out.items()}
