@@ -12,13 +12,13 @@ exchange, period 1 for mutual. The derivation is docs/perturbative.md; in short:
   r_i = rho_i lambda^2 of the ideal base gas, G_ij = m_ref (m_i + m_j)/(2 m_i m_j), G_ii = m_ref/m_i,
   chi_i = 1 about bosons, 0 about fermions;
 * second order, |n| = 2: the exact two-body coefficients;
-* second order, |n| >= 3: the chains of three loops (Hartree-Fock ring of the contact,
-  (1/2) sum_i (beta Sigma_i)^2 k_i, and Landau diamagnetism in the mean statistical field,
-  -(1/24) sum_i x_i^2 k_i, k_i = z_i dr_i/dz_i) are derived for every n. They are the whole answer for
-  products of two different mutual parameters sharing a species (d_ij d_ik, |d_ij||d_ik|) and for the
-  products of two contact terms |e_i||d_ij| (two contact vertices meet only in the ring); monomials that
-  connect no cluster are zero. Squares (e_i^2, d_ij^2) and e_i d_ij also get two-loop and one-loop
-  clusters, which are not derived: `NotSupportedYet`, or named unknowns with unknown="name".
+* second order, |n| >= 3: the chains of three loops are derived for every n: the Hartree-Fock ring of
+  the contact, (1/2) sum_i (beta Sigma_i)^2 k_i with k_i = z_i dr_i/dz_i, and the Landau term of the
+  mean statistical field, -(1/24) sum_i x_i^2 k_i (`chain_part`). The ring is the whole coefficient of
+  a product of the absolute values of two different parameters, |x||y| (two contact vertices meet only
+  in the ring; checked against the Brownian-loop Monte Carlo); monomials that connect no cluster are
+  zero. Squares x^2 and the products x*y are not derived (two-loop and one-loop clusters; the Landau
+  part is not confirmed by the Monte Carlo): `NotSupportedYet`, or named unknowns with unknown="name".
 
 Monomials whose sign changes under the mirror image (every parameter -> minus itself; e.g. x,
 x*Abs(y), x*Abs(x)) vanish by that symmetry and are not listed.
@@ -243,12 +243,11 @@ def _second_order(gas: _Gas, p: _Link, q: _Link, n):
     monomials = (sympy.Abs(x) * sympy.Abs(y), x * y)
     if not p.species & q.species or support != p.species | q.species or not (_acts(p, n) and _acts(q, n)):
         return dict.fromkeys(monomials, Fraction(0))
-    ring, landau = _chain(gas, p, q, n)
-    if p.i == p.j or q.i == q.j:
-        # exchange times mutual: two contact vertices join only in the ring, but the vector potentials
-        # also meet in exchange (Fock) clusters that are not derived
-        return {monomials[0]: ring, monomials[1]: None}
-    return {monomials[0]: ring, monomials[1]: landau}
+    ring, _ = _chain(gas, p, q, n)
+    # Two contact vertices meet only in the ring: |x||y| is complete. The area (Landau) part of x*y is
+    # derived for the chains, but the Monte Carlo finds about 0.8 of it and exchange (Fock-type)
+    # clusters add to it when one link is an exchange: not claimed (docs/perturbative.md, section 6).
+    return {monomials[0]: ring, monomials[1]: None}
 
 
 def taylor_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int, int], sympy.Symbol],
@@ -283,9 +282,8 @@ def taylor_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int, i
     if missing and unknown == "raise":
         listed = ", ".join(str(m) for m in missing)
         raise NotSupportedYet(f"second-order Taylor coefficients of b[{','.join(map(str, n))}] in {listed}: "
-                              f"their two-loop and one-loop clusters are not derived ({_HOW}); derived at "
-                              "second order: two-particle b, products of two different mutual parameters, and "
-                              "products |x||y| of two different parameters")
+                              f"not derived ({_HOW}); derived at "
+                              "second order: two-particle b and the products |x||y| of two different parameters")
     label = "_".join(map(str, n))
     return {m: (sympy.Symbol(f"t_b_{label}__{m}") if v is None else sympy.Rational(v.numerator, v.denominator))
             for m, v in out.items()}
