@@ -14,11 +14,11 @@ exchange, period 1 for mutual. The derivation is docs/perturbative.md; in short:
 * second order, |n| = 2: the exact two-body coefficients;
 * second order, |n| >= 3: the chains of three loops are derived for every n: the Hartree-Fock ring of
   the contact, (1/2) sum_i (beta Sigma_i)^2 k_i with k_i = z_i dr_i/dz_i, and the Landau term of the
-  mean statistical field, -(1/24) sum_i x_i^2 k_i (`chain_part`). The ring is the whole coefficient of
-  a product of the absolute values of two different parameters, |x||y| (two contact vertices meet only
-  in the ring; checked against the Brownian-loop Monte Carlo); monomials that connect no cluster are
-  zero. Squares x^2 and the products x*y are not derived (two-loop and one-loop clusters; the Landau
-  part is not confirmed by the Monte Carlo): `NotSupportedYet`, or named unknowns with unknown="name".
+  mean statistical field, -(1/24) sum_i x_i^2 k_i (`chain_part`). They are the whole coefficient of a
+  product |x||y| of the absolute values of two different parameters (two contact vertices meet only in
+  the ring) and of a product d_ij d_ik of two mutual parameters around a shared species (Hartree chains
+  only); monomials that connect no cluster are zero. Squares x^2 and e_i d_ij also get two-loop and
+  one-loop clusters, which are not derived: `NotSupportedYet`, or named unknowns with unknown="name".
 
 Monomials whose sign changes under the mirror image (every parameter -> minus itself; e.g. x,
 x*Abs(y), x*Abs(x)) vanish by that symmetry and are not listed.
@@ -243,11 +243,13 @@ def _second_order(gas: _Gas, p: _Link, q: _Link, n):
     monomials = (sympy.Abs(x) * sympy.Abs(y), x * y)
     if not p.species & q.species or support != p.species | q.species or not (_acts(p, n) and _acts(q, n)):
         return dict.fromkeys(monomials, Fraction(0))
-    ring, _ = _chain(gas, p, q, n)
-    # Two contact vertices meet only in the ring: |x||y| is complete. The area (Landau) part of x*y is
-    # derived for the chains, but the Monte Carlo finds about 0.8 of it and exchange (Fock-type)
-    # clusters add to it when one link is an exchange: not claimed (docs/perturbative.md, section 6).
-    return {monomials[0]: ring, monomials[1]: None}
+    ring, landau = _chain(gas, p, q, n)
+    if p.i == p.j or q.i == q.j:
+        # exchange times mutual: two contact vertices meet only in the ring, but the vector potentials
+        # also meet in exchange (Fock-type) clusters that are not derived
+        return {monomials[0]: ring, monomials[1]: None}
+    # two mutual links around a shared species: Hartree chains only (ring and Landau)
+    return {monomials[0]: ring, monomials[1]: landau}
 
 
 def taylor_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int, int], sympy.Symbol],
@@ -283,7 +285,8 @@ def taylor_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int, i
         listed = ", ".join(str(m) for m in missing)
         raise NotSupportedYet(f"second-order Taylor coefficients of b[{','.join(map(str, n))}] in {listed}: "
                               f"not derived ({_HOW}); derived at "
-                              "second order: two-particle b and the products |x||y| of two different parameters")
+                              "second order: two-particle b, products |x||y| of two different parameters, products "
+                              "d_ij d_ik of two mutual parameters")
     label = "_".join(map(str, n))
     return {m: (sympy.Symbol(f"t_b_{label}__{m}") if v is None else sympy.Rational(v.numerator, v.denominator))
             for m, v in out.items()}
