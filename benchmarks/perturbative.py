@@ -1,0 +1,68 @@
+"""Perturbative route: cost of the Taylor coefficients of b_n about the boson point, and of the
+first-order virial coefficients built from them, as the order grows.
+
+Run:  python benchmarks/perturbative.py      (a few seconds; figures in benchmarks/perturbative-last-run.txt)
+
+Cases (targets from the issue, "seconds here"): one species through second order for every n up to 8,
+two species with exchange and mutual parameters through total degree 2 for every multi-index up to total
+order 6, three species up to total order 5; and the cluster -> virial composition of the first-order
+b's (the a_n through first order) for the same tables. Coefficients not derived at second order come
+back as named unknowns (unknown="name"), so the figures time the whole table.
+"""
+from __future__ import annotations
+
+import sys
+from pathlib import Path
+
+sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
+
+import sympy  # noqa: E402
+
+from clusterexp.routes.perturbative import Species, expansion, taylor_coefficients  # noqa: E402
+from clusterexp.series import indices_up_to  # noqa: E402
+from clusterexp.virial import cluster_to_virial  # noqa: E402
+from regimes import seconds  # noqa: E402  (the median-of-runs timer of the regimes benchmark)
+
+e1, e2, e3, d12, d13, d23 = sympy.symbols("e1 e2 e3 d12 d13 d23", real=True)
+CASES = {
+    1: ([Species(e1)], {}),
+    2: ([Species(e1), Species(e2, sympy.Rational(3, 2))], {(0, 1): d12}),
+    3: ([Species(e1), Species(e2, 2), Species(e3)], {(0, 1): d12, (0, 2): d13, (1, 2): d23}),
+}
+
+
+def table(K, order, degree):
+    species, mutual = CASES[K]
+    return {n: taylor_coefficients(species, mutual, n, "boson", degree, unknown="name")
+            for n in indices_up_to(K, order)}
+
+
+def first_order_virial(K, order):
+    species, mutual = CASES[K]
+    b, absolute = {}, {}
+    for n in indices_up_to(K, order):
+        value = expansion(species, mutual, n, "boson", 1)
+        for a in value.atoms(sympy.Abs):
+            absolute.setdefault(a, sympy.Symbol(f"u_{a.args[0]}", positive=True))
+        b[n] = value.subs(absolute)
+    virial = cluster_to_virial(b, order, truncation={u: 2 for u in absolute.values()}).virial
+    return [virial[n] for n in virial]  # every a_n converted to sympy
+
+
+def main():
+    first_order_virial(2, 3)  # warm-up (imports, ring construction)
+    print("# benchmarks/perturbative.py: wall seconds (median of 3) for the whole table up to the order")
+    print(f"{'case':<58}{'coefficients':>13}{'seconds':>10}")
+    for K, top in ((1, 8), (2, 6), (3, 5)):
+        for order in range(2, top + 1):
+            count = len(list(indices_up_to(K, order)))
+            t = seconds(lambda: table(K, order, 2))
+            print(f"{f'K={K}, Taylor coefficients through degree 2, |n| <= {order}':<58}{count:>13}{t:>10.4f}")
+    for K, top in ((1, 8), (2, 6), (3, 4)):
+        for order in range(3, top + 1):
+            t = seconds(lambda: first_order_virial(K, order), repeats=3)
+            print(f"{f'K={K}, a_n through first order (b table + virial), |n| <= {order}':<58}{'':>13}{t:>10.4f}")
+
+
+if __name__ == "__main__":
+    main()
