@@ -8,6 +8,7 @@ from dataclasses import dataclass
 
 import sympy
 
+from .orders import split_truncation, truncation_problem  # noqa: F401 (read here too)
 from .periods import PeriodicPart
 
 
@@ -37,38 +38,8 @@ def one_sided_series(expr: sympy.Expr, symbol: sympy.Symbol, point, order: int, 
     shifted = sympy.expand(frozen.subs(symbol, point + u))
     taylor = sympy.series(shifted, u, 0, order + 1).removeO() if not shifted.is_polynomial(u) else shifted
     poly = sympy.Poly(sympy.expand(taylor), u)
-    kept = sum(c * u ** k for (k,), c in zip(poly.monoms(), poly.coeffs()) if k <= order)
+    kept = sum((c * u ** k for (k,), c in zip(poly.monoms(), poly.coeffs()) if k <= order), sympy.Integer(0))
     return sympy.expand(kept.subs(u, symbol - point))
-
-
-def split_truncation(value: sympy.Expr) -> tuple[sympy.Expr, dict]:
-    """A given value without its O(...) terms, and {symbol: first unknown power} from those terms."""
-    value = sympy.sympify(value)
-    if not value.has(sympy.Order):
-        return value, {}
-    limits = {}
-    for term in sympy.Add.make_args(value):
-        if isinstance(term, sympy.Order):
-            base, e = term.expr.as_base_exp()
-            if isinstance(base, sympy.Symbol) and e.is_Integer and e > 0:
-                limits[base] = min(int(e), limits.get(base, int(e)))
-    return value.removeO(), limits
-
-
-def truncation_problem(value: sympy.Expr) -> str | None:
-    """Why the O(...) terms of a given value cannot be read as honest truncation orders, else None.
-    Each must be O(p^k) for one parameter p about 0 and k >= 1; sympy would silently swallow the
-    known terms into anything else (1 + g + O(1/g) is O(1/g))."""
-    value = sympy.sympify(value)
-    orders = [t for t in sympy.Add.make_args(value) if isinstance(t, sympy.Order)]
-    if not orders and value.has(sympy.Order):
-        return "an O(...) term must be added to the known terms, not multiplied or nested"
-    for term in orders:
-        base, e = term.expr.as_base_exp()
-        if not (isinstance(base, sympy.Symbol) and e.is_Integer and e > 0) or term.point[0] != 0:
-            return (f"cannot read O({sympy.sstr(term.expr)}) as a truncation order: write O(p^k) with one parameter p "
-                    "and k >= 1 (several parameters: O(p^k) + O(q^m))")
-    return None
 
 
 def truncate(value: sympy.Expr, limits: dict) -> sympy.Expr:
@@ -192,8 +163,9 @@ def expansion_of(label: str, value: sympy.Expr, expansion, system, index=None) -
     out = []
     notes = _constant_givens(system, symbol, index)
     for s in sides:
-        expanded, unknowns = expand_pieces(system, exact, [(symbol, point, known, s)])
+        derived: list[str] = []
+        expanded, unknowns = expand_pieces(system, exact, [(symbol, point, known, s)], derived)
         out.append(SeriesPiece(symbol, point, order, known, s, kinked, edge is not None,
                                one_sided_series(expanded, symbol, point, known, s or "above"), (own,) + others,
-                               tuple(unknowns), notes))
+                               tuple(unknowns), notes + tuple(derived)))
     return out

@@ -193,12 +193,14 @@ def _name(piece, monomial) -> str:
     return "_".join(parts)
 
 
-def expand_pieces(system, value: sympy.Expr, variables: Sequence[tuple[sympy.Symbol, sympy.Expr, int, str | None]]
-                  ) -> tuple[sympy.Expr, list[Unknown]]:
+def expand_pieces(system, value: sympy.Expr, variables: Sequence[tuple[sympy.Symbol, sympy.Expr, int, str | None]],
+                  notes: list | None = None) -> tuple[sympy.Expr, list[Unknown]]:
     """`value` with every named piece that depends on one of the `variables` replaced by its Taylor
-    polynomial with named coefficients. `variables`: (symbol, point, highest power kept, side) with
-    side "above"/"below" used where the point is a kink of the piece (None: the caller has checked
-    there is none). Returns the new value and the unknowns introduced, in a fixed order."""
+    polynomial: the coefficients the perturbative route derives (`derived_taylor`) and the value at a
+    point where the regime knows it (`value_at`) exactly, the others named. `variables`: (symbol,
+    point, highest power kept, side) with side "above"/"below" used where the point is a kink of the
+    piece (None: the caller has checked there is none). Returns the new value and the unknowns
+    introduced, in a fixed order; `notes` (a list) receives one line per piece with derived terms."""
     K = len(system.species)
     unknowns: list[Unknown] = []
     replacements = {}
@@ -211,9 +213,15 @@ def expand_pieces(system, value: sympy.Expr, variables: Sequence[tuple[sympy.Sym
             if s is None and kinked(system, piece, v, p):
                 raise ValueError(f"{piece_label(piece)} is not analytic at {v} = {p}")
         polynomial = sympy.Integer(0)
+        derived = derived_taylor(system, piece, used)
+        if derived is not None and derived[1] >= 1 and notes is not None:
+            notes.append(f"{piece_label(piece)} through order {derived[1]} from the perturbative route "
+                         "(docs/perturbative.md)")
         for powers in itertools.product(*(range(k + 1) for _, _, k, _ in used)):
             monomial = tuple((v, p, e, s) for (v, p, _, s), e in zip(used, powers))
             coefficient = value_at(system, piece, {v: p for v, p, _, _ in used}) if not any(powers) else None
+            if derived is not None and sum(powers) <= derived[1]:
+                coefficient = derived[0].get(powers, sympy.Integer(0))
             if coefficient is None:
                 unknown = Unknown(sympy.Symbol(_name(piece, monomial)), piece, monomial)
                 _NAMED.setdefault(unknown.symbol.name, unknown)
@@ -248,6 +256,92 @@ def value_at(system, piece: sympy.Symbol, point: Mapping) -> sympy.Expr | None:
     there = dataclasses.replace(system, species=species, mutuals=mutuals, tubes=tubes)
     value = two_body_clusters(there, sum(index)).get(index)
     return None if value is None else sympy.expand(value)
+
+
+def derived_taylor(system, piece: sympy.Symbol, used) -> tuple[dict, int] | None:
+    """The Taylor coefficients of a cluster piece that the perturbative route derives
+    (`routes.perturbative`, docs/perturbative.md), as ({powers of (v - v0) per used variable: value},
+    the total order through which all are derived), or None where it does not apply: every pair
+    phase of the piece's species must sit at a boson or fermion point (mutual: an integer) at the
+    expansion point, each deviation linear in one expansion variable, masses rational, no tubes."""
+    from .errors import NotSupportedYet
+    from .routes import regime_of
+    from .routes.perturbative import Species as Perturbed, taylor_coefficients
+    if piece.name in _NAMED or not piece.name.startswith("b_") or system.tubes is not None \
+            or not regime_of(system).named_pieces:
+        return None
+    index = piece_index(piece, len(system.species))
+    point = {v: sympy.sympify(p) for v, p, _, _ in used}
+    shift = {v: sympy.Symbol(f"u_{v.name}") for v in point}
+    side = {v: s for v, _, _, s in used}
+    occupied = [i for i, n in enumerate(index) if n]
+    deviations = {}   # perturbative symbol -> (deviation in the shifts, sign of |deviation| on the side)
+
+    def deviation(expr, period):
+        expr = sympy.sympify(expr)
+        at = expr.subs(point)
+        if not at.is_Integer or not expr.free_symbols <= set(point):
+            return None
+        dev = sympy.expand(expr.subs({v: point[v] + shift[v] for v in point}) - at)
+        if dev == 0:
+            return at, None
+        variables = [v for v in point if dev.has(shift[v])]
+        if len(variables) != 1 or not dev.is_polynomial(shift[variables[0]]) \
+                or sympy.degree(dev, shift[variables[0]]) != 1:
+            return None
+        slope = dev.coeff(shift[variables[0]])
+        if not slope.is_Rational:
+            return None
+        if side[variables[0]] is None:   # analytic there: no |deviation| may appear (checked below)
+            return at, (dev, None)
+        sign = (1 if slope > 0 else -1) * (1 if side[variables[0]] == "above" else -1)
+        return at, (dev, sign)
+
+    m_ref = system.reference_mass
+    species, about = [], []
+    names = system.species_names
+    for i, s in enumerate(system.species):
+        mass = sympy.sympify(s.mass / m_ref).subs(point)
+        if not (mass.is_Rational and mass > 0):
+            return None
+        if i not in occupied:
+            species.append(Perturbed(None, mass))
+            about.append("boson")
+            continue
+        found = deviation(s.exchange, 2)
+        if found is None:
+            return None
+        at, dev = found
+        about.append("boson" if at % 2 == 0 else "fermion")
+        symbol = sympy.Symbol(f"e_{i}", real=True) if dev else None
+        if dev:
+            deviations[symbol] = dev
+        species.append(Perturbed(symbol, mass))
+    mutual = {}
+    for i, j in itertools.combinations(occupied, 2):
+        found = deviation(system.mutual(names[i], names[j]), 1)
+        if found is None:
+            return None
+        if found[1]:
+            mutual[(i, j)] = sympy.Symbol(f"d_{i}_{j}", real=True)
+            deviations[mutual[(i, j)]] = found[1]
+    order = max(k for _, _, k, _ in used)
+    for derived_order in range(min(order, 2), -1, -1):
+        try:
+            terms = taylor_coefficients(species, mutual, index, tuple(about), derived_order)
+            break
+        except NotSupportedYet:
+            continue
+    polynomial = sympy.Integer(0)
+    for monomial, value in terms.items():
+        if value == 0:
+            continue
+        if any(deviations[a.args[0]][1] is None for a in monomial.atoms(sympy.Abs)):
+            return None   # a kink the caller took for an analytic point
+        term = monomial.replace(sympy.Abs, lambda x: deviations[x][1] * x)
+        polynomial += value * term.xreplace({x: dev for x, (dev, _) in deviations.items()})
+    polynomial = sympy.Poly(sympy.expand(polynomial), *[shift[v] for v, _, _, _ in used])
+    return {powers: c for powers, c in zip(polynomial.monoms(), polynomial.coeffs())}, derived_order
 
 
 def side_in_range(parameters: Iterable, symbol: sympy.Symbol, point) -> str | None:

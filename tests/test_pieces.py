@@ -33,20 +33,20 @@ def _b3_near_bosons():
 
 def test_third_virial_series_names_the_taylor_coefficients_of_b3():
     """The series of a_3 about the boson point used to treat b_3 as a constant (a spurious linear term
-    -2 alpha); now b_3's coefficients are named per side, its value at alpha = 0 is the ideal Bose
-    1/9, and with the published b_3 series both sides give a_3 = 1/36 + alpha^2/12 (Myrheim &
-    Olaussen 1993; b_3 is even in alpha, so the coefficients from below are the mirrored ones)."""
+    -2 alpha); now b_3's value at alpha = 0 is the ideal Bose 1/9, its first order comes from the
+    perturbative route, its second-order coefficient is named per side, and with the published b_3
+    series both sides give a_3 = 1/36 + alpha^2/12 (Myrheim & Olaussen 1993; b_3 is even in alpha)."""
     d = clusterexp.derive(ANYONS + "expand alpha about 0 to 2 from both")
     above, below = _series(d, "virial", (3,))
     assert (above.side, below.side) == ("above", "below")
     assert not any(s.name == "b_3" for s in above.polynomial.free_symbols | below.polynomial.free_symbols)
     a, b = _named(above), _named(below)
-    assert set(a) == {"b_3_alpha_1_above", "b_3_alpha_2_above"}
-    assert set(b) == {"b_3_alpha_1_below", "b_3_alpha_2_below"}
+    assert set(a) == {"b_3_alpha_2_above"} and set(b) == {"b_3_alpha_2_below"}
+    assert any("perturbative route" in note for note in above.notes)
     k = _b3_near_bosons()
     ALPHA = above.variable
-    from_above = above.polynomial.subs({a["b_3_alpha_1_above"]: k[1], a["b_3_alpha_2_above"]: k[2]})
-    from_below = below.polynomial.subs({b["b_3_alpha_1_below"]: -k[1], b["b_3_alpha_2_below"]: k[2]})
+    from_above = above.polynomial.subs({a["b_3_alpha_2_above"]: k[2]})
+    from_below = below.polynomial.subs({b["b_3_alpha_2_below"]: k[2]})
     assert sympy.expand(from_above - (sympy.Rational(1, 36) + ALPHA ** 2 / 12)) == 0
     assert sympy.expand(from_below - (sympy.Rational(1, 36) + ALPHA ** 2 / 12)) == 0
 
@@ -61,25 +61,26 @@ def test_third_virial_series_near_fermions():
     assert piece.side is None and not piece.kink
     ALPHA = piece.variable
     n = _named(piece)
-    assert set(n) == {"b_3_alpha_1_about_1", "b_3_alpha_2_about_1"}
-    value = piece.polynomial.subs({n["b_3_alpha_1_about_1"]: 0, n["b_3_alpha_2_about_1"]: sympy.Rational(-13, 24)})
+    assert set(n) == {"b_3_alpha_2_about_1"}   # b_3(1) ideal Fermi, no first order about fermions
+    value = piece.polynomial.subs({n["b_3_alpha_2_about_1"]: sympy.Rational(-13, 24)})
     assert sympy.expand(value - (sympy.Rational(1, 36) + (1 - ALPHA) ** 2 / 12)) == 0
     record = json.loads(to_json(d))
     (a3,) = [c for c in record["coefficients"] if c["kind"] == "virial" and c["index"] == [3]]
-    assert a3["series"][0]["unknowns"] == ["b_3_alpha_1_about_1", "b_3_alpha_2_about_1"]
-    assert set(record["unknowns"]) == {"b_3_alpha_1_about_1", "b_3_alpha_2_about_1"}
+    assert a3["series"][0]["unknowns"] == ["b_3_alpha_2_about_1"]
+    assert set(record["unknowns"]) == {"b_3_alpha_2_about_1"}
     assert "b[3]" in record["unknowns"]["b_3_alpha_2_about_1"]
 
 
 def test_a_named_piece_alone_gets_its_series():
     """b[3] = b_3 has no visible alpha, but it is a function of alpha: its series is printed."""
     d = clusterexp.derive("dimension 2 parameter alpha species A exchange alpha clusters pairphase "
-                          "derive cluster up to 3 expand alpha about 0 to 1 from above")
+                          "derive cluster up to 3 expand alpha about 0 to 2 from above")
     (piece,) = _series(d, "cluster", (3,))
-    b31 = _named(piece)["b_3_alpha_1_above"]
-    assert sympy.expand(piece.polynomial - (sympy.Rational(1, 9) + b31 * piece.variable)) == 0
+    b32 = _named(piece)["b_3_alpha_2_above"]
+    # b_3^(1) = -(2/3) H_2 = -1 [derived from Dasnieres de Veigy & Ouvry 1992, physics.md section 5]
+    assert sympy.expand(piece.polynomial - (sympy.Rational(1, 9) - piece.variable + b32 * piece.variable ** 2)) == 0
     text = to_text(d)
-    assert "b_3_alpha_1_above = coefficient of alpha in b[3] about alpha = 0 from above" in text
+    assert "b_3_alpha_2_above = coefficient of alpha^2 in b[3] about alpha = 0 from above" in text
 
 
 def test_truncated_claim_through_a_named_piece_is_undecided_with_the_conditions():
@@ -91,7 +92,7 @@ def test_truncated_claim_through_a_named_piece_is_undecided_with_the_conditions(
     assert result.status == "undecided" and result.ok
     solved = {e.lhs.name: e.rhs for e in result.conditions}
     k = _b3_near_bosons()
-    assert solved == {"b_3_alpha_1_above": k[1], "b_3_alpha_2_above": k[2]}
+    assert solved == {"b_3_alpha_2_above": k[2]}
 
 
 def test_exact_claim_through_a_named_piece_is_solved_for_it():
@@ -116,13 +117,15 @@ def test_a_claim_wrong_whatever_the_pieces_is_still_a_mismatch(tmp_path):
 
 def test_mixed_truncated_claim_names_the_braiding_coefficient():
     """a[2,1] near nu = 0 for two Bose species: b_2_1(0) = 0 (no braiding: the species are independent,
-    a fact of the trade), so a truncated claim is decided by b_2_1's first coefficient only; before,
-    b_2_1 was taken as a constant."""
-    d = clusterexp.derive("dimension 2 parameter nu in [0, 1] species A bose species B bose mutual A B = nu "
-                          "clusters pairphase derive virial up to 3 claim a[2,1] = -nu + O(nu^2)")
-    (result,) = d.checks
-    assert result.status == "undecided"
-    assert [(e.lhs.name, e.rhs) for e in result.conditions] == [("b_2_1_nu_1_above", 0)]
+    a fact of the trade) and its first order is derived, so a claim through O(nu^2) is decided, and one
+    through O(nu^3) depends on the named second-order coefficient only; before, b_2_1 was a constant."""
+    base = ("dimension 2 parameter nu in [0, 1] species A bose species B bose mutual A B = nu "
+            "clusters pairphase derive virial up to 3 ")
+    (first,) = clusterexp.derive(base + "claim a[2,1] = -nu + O(nu^2)").checks
+    assert first.status == "mismatch"     # a[2,1] has no first-order term: only a_(e_i+e_j) changes
+    (second,) = clusterexp.derive(base + "claim a[2,1] = O(nu^3)").checks
+    assert second.status == "undecided"
+    assert [(e.lhs.name, e.rhs) for e in second.conditions] == [("b_2_1_nu_2_above", 1)]
 
 
 def test_given_series_truncates_higher_pieces_through_their_taylor_coefficients():
@@ -134,14 +137,10 @@ def test_given_series_truncates_higher_pieces_through_their_taylor_coefficients(
     a4 = d.value("virial", (4,))
     assert a4.getO() is not None
     polynomial = a4.removeO()
-    symbols = {s.name: s for s in polynomial.free_symbols}
-    assert set(symbols) == {"alpha", "b_4_alpha_1_above"}
-    assert polynomial.subs(symbols["alpha"], 0) == 0
-    # first order about bosons only a_2 changes [published: Dasnieres de Veigy & Ouvry, Nucl. Phys. B 388
-    # (1992) 715]; with b_n^(1) = -(2/n) H_(n-1) [derived, physics.md section 5], b_4^(1) = -11/12 and the
-    # given b_3^(1) = -1, the tool's a_4 has no first-order term
-    assert sympy.expand(polynomial.subs(symbols["b_4_alpha_1_above"], sympy.Rational(-11, 12))) == 0
-    assert "b_4_alpha_1_above = coefficient of alpha in b[4]" in to_text(d)
+    # b_4's first order comes from the perturbative route: with the given b_3^(1) = -1 the tool's a_4
+    # has no first-order term, as published [Dasnieres de Veigy & Ouvry, Nucl. Phys. B 388 (1992) 715:
+    # at first order about bosons only a_2 changes]; and at alpha = 0 it is the 2D Bose a_4 = 0
+    assert polynomial == 0
 
 
 def test_a_piece_with_a_kink_inside_the_range_is_refused_in_a_truncated_claim():
@@ -186,3 +185,47 @@ def test_an_undecided_claim_exits_0_and_says_so_on_stderr(tmp_path):
     assert out.returncode == 0
     assert "a3.gas:6:1: check undecided: a[3] up to O(alpha^3) holds only if" in out.stderr
     assert "b_3_alpha_2_above = 59/24" in out.stdout
+
+
+@pytest.mark.parametrize("side", ["above", "below"])
+def test_no_first_order_term_in_any_virial_coefficient_beyond_the_second_about_bosons(side):
+    """First order in the exchange parameter about bosons: only a_2 changes [published: Dasnieres de
+    Veigy & Ouvry, Nucl. Phys. B 388 (1992) 715]. The tool's a_3..a_6 series, built from the exact b_2
+    and the perturbative route's b_n^(1) = -(2/n) H_(n-1) (values -1, -11/12, -5/6, -137/180 for n = 3..6:
+    physics.md section 5, derived), must show no linear term on either side of the kink."""
+    d = clusterexp.derive("dimension 2 parameter alpha species A exchange alpha clusters pairphase "
+                          f"derive virial up to 6 derive cluster up to 6 expand alpha about 0 to 1 from {side}")
+    for n in range(3, 7):
+        (piece,) = _series(d, "virial", (n,))
+        assert sympy.Poly(piece.polynomial, piece.variable).coeff_monomial(piece.variable) == 0, n
+    sign = 1 if side == "above" else -1
+    for n, h in zip(range(3, 7), [sympy.Rational(-1), sympy.Rational(-11, 12), sympy.Rational(-5, 6),
+                                   sympy.Rational(-137, 180)]):
+        (piece,) = _series(d, "cluster", (n,))
+        assert sympy.Poly(piece.polynomial, piece.variable).coeff_monomial(piece.variable) == sign * h, n
+
+
+def test_no_first_order_term_about_fermions():
+    """About the fermion point a_3 has no first-order term [published: Myrheim & Olaussen, Phys. Lett. B
+    299 (1993) 267, introduction]; the expansion there is analytic."""
+    d = clusterexp.derive("dimension 2 parameter alpha species A exchange alpha clusters pairphase "
+                          "derive virial up to 4 expand alpha about 1 to 1")
+    for n in (3, 4):
+        (piece,) = _series(d, "virial", (n,))
+        assert piece.side is None and not piece.unknowns
+        shifted = sympy.expand(piece.polynomial.subs(piece.variable, 1 + sympy.Symbol("u")))
+        assert shifted.coeff(sympy.Symbol("u"), 1) == 0, n
+
+
+def test_first_order_in_two_parameters_at_once_leaves_only_the_cross_term_unknown():
+    """A truncation in the exchange parameter of A and the mutual parameter at once (unequal masses,
+    B fermions): every first-order term of the mixed a[2,1] is known (at first order the statistical
+    coupling is a contact whose only effect on a is in a_(2 e_i) and a_(e_i + e_j): docs/perturbative.md,
+    checked there against the Monte Carlo), and a[2,1](0, 0) = 0 (species that do not braid: a fact of
+    the trade); what stays open is the alpha*nu term, second order, and the check says exactly that."""
+    d = clusterexp.derive("dimension 2 parameter alpha in [0, 1] parameter nu in [0, 1] species A exchange alpha "
+                          "species B mass 2 fermi mutual A B = nu clusters pairphase derive virial up to 3 "
+                          "claim a[2,1] = O(alpha^2) + O(nu^2)")
+    (result,) = d.checks
+    assert result.status == "undecided", result.render()
+    assert [e.lhs.name for e in result.conditions] == ["b_2_1_alpha_1_above_nu_1_above"]

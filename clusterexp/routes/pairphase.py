@@ -211,7 +211,7 @@ class PairPhaseRegime(Regime):
 
     def check_given_value(self, value, span) -> None:
         from ..errors import InputError
-        from ..expansions import truncation_problem
+        from ..orders import truncation_problem
         problem = truncation_problem(value)
         if problem:
             raise InputError(problem, span)
