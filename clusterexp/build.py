@@ -13,7 +13,7 @@ from .expressions import CONSTANTS, FUNCTIONS, ExpressionBuilder
 from .model import (FORMATS, QUANTITIES, Expansion, GivenValue, Mutual, OutputSettings, Parameter, Request, Source,
                     Species, Spectrum, System, Tubes)
 from .build_products import build_products, product_names, product_order
-from .parse import parse
+from .parse import decode_source, parse, read_source, source_lines
 
 MAX_ORDER = 200
 MAX_INCLUDE_BYTES = 4_000_000
@@ -30,7 +30,7 @@ class _File:
     """One source file: its name and text, for spans."""
 
     def __init__(self, name: str, text: str):
-        self.name, self.lines = name, text.splitlines()
+        self.name, self.lines = name, source_lines(text)
 
     def span(self, item) -> Span:
         if isinstance(item, lark.Token):
@@ -53,15 +53,10 @@ def build_system(text: str, filename: str = "<input>", base_dir: Path | None = N
 
 
 def build_system_from_file(path: Path | str) -> System:
+    """Read (`parse.read_source`: a file, pipe or device; UTF-8 checked at its line and column) and
+    build an input file; its includes are found next to it."""
     path = Path(path)
-    try:
-        if not path.is_file():
-            raise InputError(f"cannot read {path}: not a regular file")
-        if path.stat().st_size > MAX_INCLUDE_BYTES:
-            raise InputError(f"{path} is {path.stat().st_size:,} bytes (at most {MAX_INCLUDE_BYTES:,})")
-        text = path.read_text(encoding="utf-8-sig")
-    except (OSError, UnicodeDecodeError) as error:
-        raise InputError(f"cannot read {path}: {error}") from None
+    text = read_source(path, MAX_INCLUDE_BYTES)
     return build_system(text, str(path), path.resolve().parent)
 
 
@@ -86,8 +81,8 @@ def _collect(text: str, filename: str, base_dir: Path, stack: list[str]) -> list
             if str(target) in stack:
                 raise InputError(f"include cycle: {target.name} includes itself", source.span(token))
             try:
-                included = target.read_text(encoding="utf-8-sig")
-            except (OSError, UnicodeDecodeError):
+                included = decode_source(target.read_bytes(), str(target))  # not UTF-8: refused at its place
+            except OSError:
                 raise InputError(f"cannot read included file {str(token)[1:-1]}", source.span(token)) from None
             out += _collect(included, str(target), target.parent, stack + [str(target)])
         else:
@@ -577,7 +572,7 @@ class _Builder:
 
     def _exclusion_matrix(self, names: list[str]) -> tuple[tuple[sympy.Expr, ...], ...]:
         K = len(names)
-        g: list[list] = [[None] * K for _ in range(K)]
+        g: list[list | None] = [None] * K   # rows with no stated entry stay None until the defaults
         for tree, file in self.statistics:
             self.file = file
             if tree.data == "statistics_matrix":
@@ -597,13 +592,17 @@ class _Builder:
                 self._set_entry(g, i, j, value, first)
         self.file = self.main
         species = list(self.species.values())
-        for i in range(K):
-            for j in range(K):
-                if g[i][j] is None:
-                    g[i][j] = species[i].exchange if i == j else sympy.Integer(0)
+        zero = sympy.Integer(0)
+        for i in range(K):   # row by row at list speed: thousands of species make millions of entries
+            row = g[i] if g[i] is not None else [None] * K
+            if row[i] is None:
+                row[i] = species[i].exchange
+            g[i] = [zero if entry is None else entry for entry in row] if None in row else row
         return tuple(tuple(row) for row in g)
 
     def _set_entry(self, g, i, j, tree, where):
+        if g[i] is None:
+            g[i] = [None] * len(g)
         if g[i][j] is not None:
             names = list(self.species)
             raise InputError(f"statistics entry g[{names[i]},{names[j]}] is given twice", self.span(where))
