@@ -14,7 +14,7 @@ from .hints import did_you_mean
 from .model import (FORMATS, QUANTITIES, Expansion, GivenValue, Mutual, OutputSettings, Parameter, Request, Source,
                     Species, System, Tubes)
 from .build_products import build_products, product_names, product_order
-from .parse import parse
+from .parse import decode_source, parse, read_source, source_lines
 from .routes import REGIMES
 
 MAX_ORDER = 200
@@ -34,7 +34,7 @@ class _File:
     """One source file: its name and text, for spans."""
 
     def __init__(self, name: str, text: str):
-        self.name, self.lines = name, text.splitlines()
+        self.name, self.lines = name, source_lines(text)
 
     def span(self, item) -> Span:
         if isinstance(item, lark.Token):
@@ -57,15 +57,10 @@ def build_system(text: str, filename: str = "<input>", base_dir: Path | None = N
 
 
 def build_system_from_file(path: Path | str) -> System:
+    """Read (`parse.read_source`: a file, pipe or device; UTF-8 checked at its line and column) and
+    build an input file; its includes are found next to it."""
     path = Path(path)
-    try:
-        if not path.is_file():
-            raise InputError(f"cannot read {path}: not a regular file")
-        if path.stat().st_size > MAX_INCLUDE_BYTES:
-            raise InputError(f"{path} is {path.stat().st_size:,} bytes (at most {MAX_INCLUDE_BYTES:,})")
-        text = path.read_text(encoding="utf-8-sig")
-    except (OSError, UnicodeDecodeError) as error:
-        raise InputError(f"cannot read {path}: {error}") from None
+    text = read_source(path, MAX_INCLUDE_BYTES)
     return build_system(text, str(path), path.resolve().parent)
 
 
@@ -90,8 +85,8 @@ def _collect(text: str, filename: str, base_dir: Path, stack: list[str]) -> list
             if str(target) in stack:
                 raise InputError(f"include cycle: {target.name} includes itself", source.span(token))
             try:
-                included = target.read_text(encoding="utf-8-sig")
-            except (OSError, UnicodeDecodeError):
+                included = decode_source(target.read_bytes(), str(target))  # not UTF-8: refused at its place
+            except OSError:
                 raise InputError(f"cannot read included file {str(token)[1:-1]}", source.span(token)) from None
             out += _collect(included, str(target), target.parent, stack + [str(target)])
         else:

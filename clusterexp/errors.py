@@ -9,7 +9,20 @@ from dataclasses import dataclass
 
 EXIT_OK = 0
 EXIT_CHECK_FAILED = 1
-EXIT_INPUT_ERROR = 2
+EXIT_INPUT_ERROR = 2        # also: a command line that cannot be carried out (unreadable input, unwritable output)
+EXIT_INTERRUPTED = 130      # 128 + SIGINT, as shells report a program the signal ends
+EXIT_BROKEN_PIPE = 141      # 128 + SIGPIPE: the reader of standard output went away
+EXIT_TERMINATED = 143       # 128 + SIGTERM
+
+
+def visible(text: str) -> str:
+    """`text` safe to print on a terminal: a tab becomes a space and every other character that is not
+    printable (control characters such as NUL or ESC, bidirectional and zero-width format characters,
+    separators other than the space) a `?`, one character for one so that carets stay aligned;
+    line feeds are kept."""
+    if text.isprintable():
+        return text
+    return "".join(c if c.isprintable() or c == "\n" else " " if c == "\t" else "?" for c in text)
 
 
 @dataclass(frozen=True)
@@ -64,7 +77,7 @@ class InputError(ClusterexpError):
             lines.append("    " + " " * (column - 1) + "^" * min(width, max(1, len(text) - column + 1)))
         if self.hint:
             lines.append(f"hint: {self.hint}")
-        return "\n".join(lines)
+        return visible("\n".join(lines))
 
     def __str__(self) -> str:
         return self.render()
@@ -80,7 +93,7 @@ class NotSupportedYet(ClusterexpError):
 
     def render(self) -> str:
         where = f"{self.span}: " if self.span else ""
-        return f"{where}error: not supported yet: {self.what}"
+        return visible(f"{where}error: not supported yet: {self.what}")
 
 
 class SeriesError(ClusterexpError):

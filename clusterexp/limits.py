@@ -18,6 +18,15 @@ The estimate needs only the validated `System`: no series is formed.
   stated values, the many-body pieces unknown symbols unless given.
 - Any other computed regime has no unknown symbols; its coefficients are taken as polynomials of
   degree about N in the P declared parameters, C(N + P, P) terms each.
+- Generators: every exact polynomial of the kernel stores an exponent for each generator of its
+  ring (the K expansion variables, every unknown symbol, every parameter), and about one polynomial
+  per generator is formed, so memory and time grow like G^2 (measured: 100 species to order 2,
+  G = 5,150, 11 s and 1.5 GB; 300 species would need about 120 GB). G^2 / GENERATOR_CELLS counts
+  against the same limit as the terms.
+- Printed coefficients: every coefficient the requests list (density and fugacity ones per species).
+- The harmonic regulator (`clusters spectrum`, `clusters landau spectrum`) is counted in coefficient
+  products (`routes.spectrum.regulator_operations`) and converted to seconds, then to the same
+  units: DEFAULT_SIZE_LIMIT stands for about half a minute of work.
 
 `check_size` refuses, with an `InputError` at the deciding `derive` request, any derivation whose
 estimated top-layer terms exceed the limit.
@@ -36,6 +45,15 @@ DEFAULT_SIZE_LIMIT = 200_000
 derivation is refused unless the limit is raised. Measured on one laptop: two species generic to
 total order 14 is about 1.1e5 and takes about 30 s; order 16 would pass 4e5."""
 FAR_BEYOND = 10_000  # estimates this many times the default get no "raise the limit" advice
+SECONDS_PER_UNIT = 30.0 / DEFAULT_SIZE_LIMIT
+"""The default limit is about half a minute of work (two species generic to order 14: 1.1e5, 30 s)."""
+GENERATOR_CELLS = 175
+"""Exponent cells (generators^2) per unit of size: the default limit is then about 5,900 generators,
+some 2 GB of exponents (57 bytes per cell measured, 100 species to order 2)."""
+BYTES_PER_CELL = 57
+DETAILED_INDICES = 5_000  # pair phases: multi-indices up to which the exact two-body values are formed
+SECONDS_PER_COEFFICIENT_PRODUCT = 1.5e-6  # the harmonic regulator, measured on orders 10-40, K <= 3
+SECONDS_PER_TERM_PRODUCT = 3e-9
 
 
 @dataclass(frozen=True)
@@ -46,16 +64,36 @@ class SizeEstimate:
     unknown_symbols: int
     layer_terms: int       # estimated terms of all coefficients of the top total order together
     largest_terms: int     # estimated terms of the largest single coefficient
+    generators: int = 0    # generators of the kernel's polynomial ring (variables, unknowns, parameters)
+    printed: int = 0       # coefficients the requests list
+    regulator_seconds: float = 0.0  # estimated time of the harmonic regulator (declared spectra)
+
+    @property
+    def generator_size(self) -> int:
+        return self.generators ** 2 // GENERATOR_CELLS
+
+    @property
+    def regulator_size(self) -> int:
+        return int(self.regulator_seconds / SECONDS_PER_UNIT)
 
     @property
     def size(self) -> int:
         """The number compared with the limit."""
-        return max(self.layer_terms, self.multi_indices)
+        return max(self.layer_terms, self.multi_indices, self.printed, self.generator_size, self.regulator_size)
 
     def describe(self) -> str:
-        return (f"{self.species} species to total order {self.order}: {self.multi_indices:,} multi-indices, "
+        text = (f"{self.species} species to total order {self.order}: {self.multi_indices:,} multi-indices, "
                 f"{self.unknown_symbols:,} unknown coefficients, about {_round(self.layer_terms)} terms at the "
                 f"top order (largest coefficient about {_round(self.largest_terms)})")
+        if self.printed > max(self.layer_terms, self.multi_indices):
+            text += f", {self.printed:,} coefficients to print"
+        if self.generator_size > max(self.layer_terms, self.multi_indices):
+            text += (f"; its exact polynomials would carry {self.generators:,} generators each, about "
+                     f"{_bytes(self.generators ** 2 * BYTES_PER_CELL)} of memory")
+        if self.regulator_seconds >= 1:
+            text += (f"; the harmonic regulator (trapped spectrum) alone would take about "
+                     f"{duration_text(self.regulator_seconds)}")
+        return text
 
 
 def count_multi_indices(K: int, N: int) -> int:
@@ -84,13 +122,20 @@ def estimate(system) -> SizeEstimate:
     higher = indices - K                                 # generated coefficients with |n| >= 2
     given = {v.index: v.value for v in getattr(system.source, "values", ())}
     kind = getattr(system.source, "kind", "generic")
+    exact_pairs = 0
     if kind == "pairphase":
         # like `given`: the exact two-body (and ideal-species) coefficients are stated values, the
         # many-body pieces are unknown symbols unless the input gives them
-        from .expansions import split_truncation
+        from .orders import split_truncation
         from .routes.pairphase import two_body_clusters
-        known = {n: v for n, v in two_body_clusters(system, N).items() if v is not None and sum(n) >= 2}
-        given = {**known, **{n: split_truncation(v)[0] for n, v in given.items()}}
+        given = {n: split_truncation(v)[0] for n, v in given.items()}
+        if indices <= DETAILED_INDICES:
+            known = {n: v for n, v in two_body_clusters(system, N).items() if v is not None and sum(n) >= 2}
+            given = {**known, **given}
+        elif N >= 2:
+            # forming every exact value costs sympy work per multi-index (300 species to order 3: five
+            # minutes): beyond DETAILED_INDICES the pairs are counted as known and their terms as one
+            exact_pairs = comb(K + 1, 2)
     # weight w = |m| - 1 >= 1; parts of weight w: all multi-indices of total w + 1
     kinds = {w: comb(w + K, K - 1) for w in range(1, N)}
     fills = False
@@ -102,18 +147,58 @@ def estimate(system) -> SizeEstimate:
         kinds[w] += varying - 1                          # the symbol is replaced by its value's terms
         fills = fills or constant
     top = comb(N + K - 1, K - 1)                         # multi-indices of total order N
+    P = len(system.parameters)
+    printed = sum(_printed(request, K) for request in system.requests)
     if kind not in ("generic", "given", "pairphase"):
         # a computed regime: no unknown symbols; its b's are functions of the declared parameters,
         # taken as polynomials of degree about N (monomials of degree <= N in P parameters)
-        largest = comb(N + len(system.parameters), len(system.parameters))
-        return SizeEstimate(K, N, indices, 0, largest * top, largest)
+        largest = comb(N + P, P)
+        return SizeEstimate(K, N, indices, 0, largest * top, largest, K + P, printed, _regulator_seconds(system, N))
     distinct = weighted_partitions(kinds, N - 1, up_to=fills) if N >= 2 else 1
     # one monomial shows up in several coefficients of the layer: measured, the layer holds about
     # twice the distinct monomials for K >= 2 (K <= 4, N <= 10)
     layer = distinct if K == 1 else 2 * distinct
     largest = layer if K == 1 else max(1, -(-layer * _central_share(K, N) // top))
-    unknown = higher - len(given)
-    return SizeEstimate(K, N, indices, max(unknown, 0), layer, min(largest, layer))
+    unknown = max(higher - len(given) - exact_pairs, 0)
+    return SizeEstimate(K, N, indices, unknown, layer, min(largest, layer), K + unknown + P, printed)
+
+
+def _printed(request, K: int) -> int:
+    """Coefficients one request lists: its multi-indices, and for densities and fugacities one per
+    species present in each (K C(N + K - 1, K) of them up to order N)."""
+    if request.indices:
+        count = len(request.indices)
+        return count * K if request.quantity in ("density", "fugacity") else count
+    N = request.up_to
+    if request.quantity in ("density", "fugacity"):
+        return K * comb(N + K - 1, K)                    # pairs (species i, n) with n_i >= 1, |n| <= N
+    return count_multi_indices(K, N)
+
+
+def _regulator_seconds(system, N: int) -> float:
+    """Estimated time of the harmonic regulator when the regime uses it, else 0."""
+    source = system.source
+    if not (source.kind == "spectrum" or (source.kind == "landau" and source.form == "spectrum")):
+        return 0.0
+    from .routes.spectrum import SpectrumError, X, pole_orders, regulator_operations
+    K = len(system.species)
+    if source.kind == "landau":
+        # the shifts carry the exchange and mutual parameters (not `landau_matrix`: K^2 look-ups)
+        poles, reference = [1] * K, 0
+        values = [s.exchange for s in system.species] + [m.value for m in system.mutuals]
+        symbols = set().union(*(sympy.sympify(v).free_symbols for v in values))
+    else:
+        spectrum = source.spectrum
+        try:
+            poles = pole_orders(spectrum.levels)
+        except SpectrumError:
+            return 0.0                                   # the route reports it, at once
+        reference = system.species_index(system.reference)
+        symbols = set(sympy.sympify(spectrum.shift).free_symbols) - set(spectrum.counts)
+        for level in spectrum.levels:
+            symbols |= sympy.sympify(level).free_symbols - {X}
+    products, term_products = regulator_operations(poles, N, reference, len(symbols))
+    return SECONDS_PER_COEFFICIENT_PRODUCT * products + SECONDS_PER_TERM_PRODUCT * term_products
 
 
 def _central_share(K: int, N: int) -> int:
@@ -164,6 +249,27 @@ def check_size(system, limit: int | None = None) -> SizeEstimate:
 def _suggest(size: int) -> int:
     digits = len(str(size))
     return (size // 10 ** (digits - 1) + 1) * 10 ** (digits - 1)
+
+
+def _bytes(n: int) -> str:
+    for unit, size in (("TB", 10 ** 12), ("GB", 10 ** 9), ("MB", 10 ** 6)):
+        if n >= size:
+            return f"{_amount(n / size)} {unit}"
+    return f"{n:,} bytes"
+
+
+def duration_text(seconds: float) -> str:
+    """A time for a refusal message: `about 4.3 minutes`, `1,584 years`."""
+    for unit, size in (("years", 365.25 * 86400), ("days", 86400), ("hours", 3600), ("minutes", 60)):
+        if seconds >= 2 * size:
+            return f"{_amount(seconds / size)} {unit}"
+    return f"{_amount(seconds)} seconds"
+
+
+def _amount(x: float) -> str:
+    if x >= 1e6:
+        return f"{x:.1e}".replace("e+", "e")
+    return f"{x:,.0f}" if x >= 10 else f"{x:.1f}"
 
 
 def _round(n: int) -> str:

@@ -15,8 +15,6 @@ import csv
 import decimal
 import io
 import itertools
-import os
-import tempfile
 from dataclasses import dataclass
 from fractions import Fraction
 from pathlib import Path
@@ -258,43 +256,28 @@ def grid_text(number: sympy.Expr, digits: int) -> str:
 
 def write_csv(rows: Sequence[Sequence[str]], path) -> Path:
     """Write the rows (header first, as from `grid_table`) as CSV: a temporary file in the target's
-    folder, then an atomic rename. Returns the path."""
+    folder, then an atomic rename (`files.write_atomically`). Returns the path."""
     path = Path(path)
     if path.is_dir():
         raise EvaluationError(f"{path} is a folder; give a file name")
+    atomic_write_bytes(path, csv_bytes(rows))
+    return path
+
+
+def csv_bytes(rows: Sequence[Sequence[str]]) -> bytes:
+    """The rows as CSV text (UTF-8, one line per row)."""
     buffer = io.StringIO()
     writer = csv.writer(buffer, lineterminator="\n")
     for row in rows:
         writer.writerow([str(cell) for cell in row])
-    atomic_write_bytes(path, buffer.getvalue().encode("utf-8"))
-    return path
+    return buffer.getvalue().encode("utf-8")
 
 
 def atomic_write_bytes(path: Path, data: bytes) -> None:
-    """Write to a temporary file next to `path`, then `os.replace` it into place. The file gets the
-    permissions of an ordinary new file (mkstemp's are owner-only) or keeps those of the file it
-    replaces."""
-    path = Path(path)
-    directory = path.parent if str(path.parent) else Path(".")
-    try:
-        mode = path.stat().st_mode & 0o777
-    except OSError:
-        mode = 0o666 & ~_umask()
-    handle, temporary = tempfile.mkstemp(dir=directory, prefix=f".{path.name}.", suffix=".part")
-    try:
-        with os.fdopen(handle, "wb") as stream:
-            stream.write(data)
-        os.chmod(temporary, mode)
-        os.replace(temporary, path)
-    except BaseException:
-        Path(temporary).unlink(missing_ok=True)
-        raise
-
-
-def _umask() -> int:
-    current = os.umask(0o022)  # reading the umask means setting it; put it straight back
-    os.umask(current)
-    return current
+    """Replace or create `path` atomically by the project's rule for output files (`files`): a new
+    file gets the permissions of an ordinary new file, a replaced one keeps its own."""
+    from .files import write_atomically
+    write_atomically(path, data, overwrite=True)
 
 
 # ---------------------------------------------------------------------------------------------

@@ -21,6 +21,7 @@ from .resources import grammar_text
 
 MAX_LINE_LENGTH = 100_000    # characters; longer lines are refused before parsing (parse time grows with them)
 MAX_INPUT_LENGTH = 2_000_000  # characters in one file
+MAX_WHOLE_DIGITS = 30         # digits of a whole-number literal (orders, seeds, loop budgets, ...)
 STATEMENTS = ("dimension, order, parameter, species, mutual, reference, clusters, virials, derive, output, include, "
               "claim, evaluate, tabulate, plot, typeset, sample, expand, tubes, statistics, size limit")
 
@@ -102,25 +103,95 @@ def _save(built: lark.Lark, where: Path) -> None:
                 pass
 
 
+def source_lines(text: str) -> list[str]:
+    """The lines as the parser counts them: split at line feeds only (`str.splitlines` also splits at
+    form feeds, U+001C-U+001E, U+0085, U+2028 and U+2029, which would shift every later line against
+    the parser's line numbers), without the carriage return of a CRLF ending."""
+    lines = text.split("\n")
+    if lines and lines[-1] == "":
+        lines.pop()
+    return [line[:-1] if line.endswith("\r") else line for line in lines]
+
+
 def span_at(text: str, filename: str, line: int, column: int, end_column: int | None = None) -> Span:
-    lines = text.splitlines()
+    lines = source_lines(text)
     line_text = lines[line - 1] if 0 < line <= len(lines) else ""
     return Span(filename, line, column, line, end_column, line_text)
+
+
+def decode_source(data: bytes, filename: str) -> str:
+    """The text of an input file (UTF-8, an initial byte order mark dropped). Bytes that are not
+    UTF-8 are refused at their line and column, with the line shown and a caret under them."""
+    if data.startswith(b"\xef\xbb\xbf"):
+        data = data[3:]
+    try:
+        return data.decode("utf-8")
+    except UnicodeDecodeError as error:
+        start = error.start
+        line = data.count(b"\n", 0, start) + 1
+        line_start = data.rfind(b"\n", 0, start) + 1
+        line_end = data.find(b"\n", start)
+        line_bytes = data[line_start:line_end if line_end >= 0 else len(data)].rstrip(b"\r")
+        column = len(data[line_start:start].decode("utf-8", errors="replace")) + 1
+        text = line_bytes.decode("utf-8", errors="replace")
+        bad = data[start:error.end]
+        raise InputError(f"the input is not UTF-8 text: byte{'s' if len(bad) > 1 else ''} "
+                         f"{' '.join(f'0x{b:02X}' for b in bad)} ({error.reason}); save the file as UTF-8",
+                         Span(filename, line, column, line, column + 1, text)) from None
+
+
+def read_source(path: Path, limit: int, what: str = "input file") -> str:
+    """Read and decode an input file: a regular file, or a pipe or device (`<(...)`, /dev/stdin);
+    at most `limit` bytes. Every failure is an `InputError` that says what the path is."""
+    shown = str(path)
+    try:
+        if path.is_dir():
+            raise InputError(f"{shown} is a folder, not an {what}")
+        with open(path, "rb") as stream:
+            data = stream.read(limit + 1)
+    except FileNotFoundError:
+        raise InputError(f"no such {what}: {shown}") from None
+    except (OSError, ValueError) as error:   # ValueError: a NUL in the name
+        reason = getattr(error, "strerror", None) or "not a file name"
+        raise InputError(f"cannot read {shown}: {reason}") from None
+    if len(data) > limit:
+        raise InputError(f"{shown} is longer than {limit:,} bytes, the most an input file may have")
+    return decode_source(data, shown)
 
 
 def parse(text: str, filename: str = "<input>") -> lark.Tree:
     """Parse one file's text; syntax errors become InputError with a caret."""
     _check_length(text, filename)
     try:
-        return parser().parse(text)
+        tree = parser().parse(text)
     except UnexpectedInput as error:
         raise _friendly(error, text, filename) from None
+    _check_whole_numbers(tree, text, filename)
+    return tree
+
+
+def _check_whole_numbers(tree: lark.Tree, text: str, filename: str) -> None:
+    """Whole numbers (orders, counts, seeds, loop budgets, limits, digits) have at most
+    MAX_WHOLE_DIGITS digits: anything longer is beyond every limit, and its conversion would be slow
+    (and refused by Python above 4300 digits)."""
+    stack = [tree]   # iterative: expressions may nest deeply (they are refused later, at their place)
+    while stack:
+        token = stack.pop()
+        if isinstance(token, lark.Tree):
+            stack.extend(token.children)
+            continue
+        if not (isinstance(token, lark.Token) and token.type == "INT"):
+            continue
+        digits = len(token.lstrip("0"))
+        if digits > MAX_WHOLE_DIGITS:
+            raise InputError(f"a whole number with {digits:,} digits (at most {MAX_WHOLE_DIGITS})",
+                             span_at(text, filename, token.line, token.column, token.column + len(token)))
 
 
 def _check_length(text: str, filename: str) -> None:
     if len(text) <= MAX_LINE_LENGTH and "\n" not in text:
         return
-    for number, line in enumerate(text.splitlines(), start=1):
+    for number, line in enumerate(source_lines(text), start=1):
         if len(line) > MAX_LINE_LENGTH:
             raise InputError(f"line {number} is {len(line):,} characters long (at most {MAX_LINE_LENGTH:,})",
                              span_at(text, filename, number, MAX_LINE_LENGTH + 1))
@@ -133,20 +204,23 @@ def _describe_character(char: str) -> str:
     """A character as the user can recognise it even when it is invisible or a look-alike."""
     if char.isascii() and char.isprintable():
         return repr(char)
-    name = unicodedata.name(char, "unnamed character")
+    name = unicodedata.name(char, "") or ("control character" if unicodedata.category(char) == "Cc"
+                                           else "unnamed character")
     shown = repr(char) if char.isprintable() and not char.isspace() else "(invisible)"
     return f"{shown} U+{ord(char):04X} {name}; only ASCII letters, digits and symbols are read"
 
 
 def _friendly(error: UnexpectedInput, text: str, filename: str) -> InputError:
     if isinstance(error, UnexpectedEOF) or (isinstance(error, UnexpectedToken) and error.token.type == "$END"):
-        lines = text.splitlines() or [""]
+        lines = source_lines(text) or [""]
         line = len(lines)
         return InputError("the input ends in the middle of a statement",
                           span_at(text, filename, line, len(lines[-1]) + 1))
     line, column = error.line, error.column
     if isinstance(error, UnexpectedCharacters):
         char = text[error.pos_in_stream] if error.pos_in_stream < len(text) else "?"
+        if char == '"':
+            return _bad_string(text, error.pos_in_stream, filename, line, column)
         return InputError(f"unexpected character {_describe_character(char)}", span_at(text, filename, line, column))
     token = error.token
     expected = set(getattr(error, "expected", ()) or ())
@@ -188,6 +262,29 @@ def _previous_word(text: str, token) -> str:
     start = getattr(token, "start_pos", None)
     words = re.findall(r"[A-Za-z_]+", text[:start]) if start is not None else []
     return words[-1] if words else ""
+
+
+_CONTROL_NAMES = {"\t": "a tab", "\r": "a carriage return", "\x0b": "a vertical tab", "\x0c": "a form feed",
+                  "\x00": "a NUL byte", "\x7f": "a delete character (U+007F)"}
+
+
+def _bad_string(text: str, position: int, filename: str, line: int, column: int) -> InputError:
+    """A quote the lexer could not read as a string: a control character inside (a tab, say), or no
+    closing quote on the line. The caret runs from the opening quote to the culprit."""
+    rest = text[position + 1:]
+    newline = rest.find("\n")
+    inner = rest if newline < 0 else rest[:newline]
+    closing = inner.find('"')
+    if closing >= 0:
+        inner = inner[:closing]
+    bad = next((i for i, c in enumerate(inner) if ord(c) < 0x20 or c == "\x7f"), None)
+    if bad is not None:
+        char = inner[bad]
+        what = _CONTROL_NAMES.get(char, f"the control character U+{ord(char):04X}")
+        return InputError(f"a quoted name cannot contain {what}; write it without",
+                          span_at(text, filename, line, column, column + bad + 2))
+    return InputError('this quoted name is not closed on its line (a closing " is missing)',
+                      span_at(text, filename, line, column, column + 1 + len(inner)))
 
 
 _WORDS = {"NUMBER": "a number", "INT": "a whole number", "NAME": "a name", "LPAR": "'('", "RPAR": "')'",

@@ -287,13 +287,18 @@ def _caption_text(caption, system, other: dict, intervals: dict) -> str:
     return "\n".join(textwrap.wrap(text + ("; " + "; ".join(extra) if extra else ""), 95))
 
 
-def _save(figure, path: Path, fmt: str) -> Path:
+def _save(figure, path: Path, fmt: str, into=None) -> Path:
+    """Render the figure and write it to `path`, or hand (path, bytes) to `into` (a `files.Batch`'s
+    collector) when the caller writes its files together."""
     if path.is_dir():
         raise PlotError(f"{path} is a folder; give a file name")
     buffer = io.BytesIO()
     metadata = {"CreationDate": None} if fmt == "pdf" else ({"Date": None} if fmt == "svg" else None)
     figure.savefig(buffer, format=fmt, dpi=150, metadata=metadata)
-    atomic_write_bytes(path, buffer.getvalue())
+    if into is not None:
+        into(path, buffer.getvalue())
+    else:
+        atomic_write_bytes(path, buffer.getvalue())
     return path
 
 
@@ -313,10 +318,11 @@ def _place_caption(figure, caption: str):
 
 def plot_line(coefficients, parameter, interval=None, path="coefficients.png", *, other_values: Mapping | None = None,
               caption: str | None = None, system=None, parameters: Sequence = (), samples: int = 401,
-              title: str | None = None) -> Path:
+              title: str | None = None, into=None) -> Path:
     """One or several coefficients against `parameter` over `interval` (default: one period of an
     exchange [0, 2] or mutual [0, 1] parameter of `system`, else the declared range); every other
-    parameter they depend on needs a value in `other_values`. Returns the path written."""
+    parameter they depend on needs a value in `other_values`. Returns the path written (`into`: a
+    callable given (path, bytes) instead, which writes them)."""
     _, Figure, numpy = _matplotlib()
     items = _items(coefficients)
     name = _symbol_name(parameter)
@@ -352,15 +358,16 @@ def plot_line(coefficients, parameter, interval=None, path="coefficients.png", *
         axes.set_title(title)
     axes.grid(True, linewidth=0.3, alpha=0.5)
     _place_caption(figure, caption_text)
-    return _save(figure, path, fmt)
+    return _save(figure, path, fmt, into)
 
 
 def plot_map(coefficient, first, second, path="coefficient_map.png", *, other_values: Mapping | None = None,
              caption: str | None = None, system=None, parameters: Sequence = (), resolution: int = 121,
-             title: str | None = None) -> Path:
+             title: str | None = None, into=None) -> Path:
     """A heat map of one coefficient against two parameters: `first` and `second` are names or
     (name, interval) pairs (interval None: the default of `plot_line`). Where the coefficient changes
-    sign the colours are centred on 0 and its zero line is drawn. Returns the path written."""
+    sign the colours are centred on 0 and its zero line is drawn. Returns the path written (`into`:
+    as for `plot_line`)."""
     _, Figure, numpy = _matplotlib()
     items = _items(coefficient)
     if len(items) != 1:
@@ -398,7 +405,7 @@ def plot_map(coefficient, first, second, path="coefficient_map.png", *, other_va
     if title:
         axes.set_title(title)
     _place_caption(figure, caption_text)
-    return _save(figure, path, fmt)
+    return _save(figure, path, fmt, into)
 
 
 def _axis(spec) -> tuple[str, object]:

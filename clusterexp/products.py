@@ -15,7 +15,7 @@ import sympy
 from .check_result import CheckList
 from .checks import check_claim, check_decimal_claim, check_with_pieces
 from .errors import InputError
-from .numbers import evaluate, format_number, grid_table, write_csv
+from .numbers import csv_bytes, evaluate, format_number, grid_table
 
 
 def _coefficient(derivation, name):
@@ -170,35 +170,42 @@ def run_tables(derivation) -> list:
     return out
 
 
-def check_files(system, directory=".", overwrite: bool = False) -> None:
-    """Refuse, before anything is computed, a file the input would write that exists already (unless
-    `overwrite`) or lies in a missing folder: `tabulate`, `plot` and the `sample` tables and maps."""
+def check_files(system, directory=".", overwrite: bool = False, protected: dict | None = None,
+                seen: dict | None = None) -> None:
+    """Refuse, before anything is computed, a file the input would write that may not be written
+    (`clusterexp.files`: it exists and `overwrite` is not given, it is a folder, FIFO or device, it is
+    the input or a file the input includes, or another result of the run goes there): `tabulate`,
+    `plot` and the `sample` tables and maps. Missing folders are fine: they are created on writing.
+    `seen` ({real path: name}) collects the run's targets (the CLI puts its `-o` file in first)."""
+    from .files import claimed, protected_files, resolve
     directory = Path(directory)
+    protected = protected_files(system) if protected is None else protected
+    seen = {} if seen is None else seen
+    if (system.tables or system.figures or any(s.table or s.map for s in system.samplings)) \
+            and directory.exists() and not directory.is_dir():
+        raise InputError(f"cannot write the tables and figures into {directory}: it is not a folder")
     for item in (*system.tables, *system.figures):
         path = directory / item.path
-        if path.is_dir() or not path.parent.is_dir():
-            raise InputError(f"cannot write {path}: " + ("it is a folder" if path.is_dir() else "no such folder"),
-                             item.span)
-        if path.exists() and not overwrite:
-            raise InputError(f"{path} exists; pass --overwrite to replace it", item.span)
+        claimed(seen, resolve(path, overwrite, protected, item.span, folder_may_be_missing=True), str(path), item.span)
     if system.samplings:
         from .loops.report import check_files as check_sampled_files
-        check_sampled_files(system, overwrite, directory)
+        check_sampled_files(system, overwrite, directory, protected, seen)
 
 
-def write_files(derivation, directory=".", overwrite: bool = False) -> list[Path]:
-    """Write every table (CSV) and figure of the input into `directory`, the `sample` ones included;
-    an existing file is replaced only with `overwrite`. Returns the paths."""
+def stage_files(derivation, batch, directory=".", overwrite: bool = False) -> None:
+    """Render every table (CSV) and figure of the input, the `sample` ones included, into `batch`
+    (a `files.Batch`): nothing is written until the batch is committed, so an input that fails
+    anywhere leaves no file behind. Missing folders are created on commit."""
     from . import plots
     directory = Path(directory)
     system = derivation.system
-    check_files(system, directory, overwrite)
-    written = []
+    check_files(system, directory, overwrite, batch.protected)
+
+    def collector(span):
+        return lambda path, data: batch.add(path, data, overwrite, span, make_folder=True)
     for table, rows in derivation.tables:
         try:
-            written.append(write_csv(rows, directory / table.path))
-        except OSError as error:
-            raise InputError(f"cannot write {table.path}: {error.strerror}", table.span) from None
+            collector(table.span)(directory / table.path, csv_bytes(rows))
         except InputError as error:
             raise _at(error, table.span) from None
     for figure in system.figures:
@@ -208,20 +215,27 @@ def write_files(derivation, directory=".", overwrite: bool = False) -> list[Path
         try:
             if len(figure.axes) == 1:
                 (symbol, interval), = figure.axes
-                written.append(plots.plot_line(items, symbol.name, interval, path, other_values=other,
-                                               system=system, parameters=system.parameters))
+                plots.plot_line(items, symbol.name, interval, path, other_values=other, system=system,
+                                parameters=system.parameters, into=collector(figure.span))
             else:
                 first, second = ((s.name, interval) for s, interval in figure.axes)
-                written.append(plots.plot_map(items[0], first, second, path, other_values=other,
-                                              system=system, parameters=system.parameters))
-        except OSError as error:
-            raise InputError(f"cannot write {figure.path}: {error.strerror}", figure.span) from None
+                plots.plot_map(items[0], first, second, path, other_values=other, system=system,
+                               parameters=system.parameters, into=collector(figure.span))
         except InputError as error:
             raise _at(error, figure.span) from None
     if system.samplings:
         from .loops.report import write_files as write_sampled_files
-        written += write_sampled_files(derivation.sampled, system, overwrite, directory)
-    return written
+        write_sampled_files(derivation.sampled, system, overwrite, directory, batch=batch)
+
+
+def write_files(derivation, directory=".", overwrite: bool = False) -> list[Path]:
+    """Write every table (CSV) and figure of the input into `directory` (created when missing), the
+    `sample` ones included; an existing file is replaced only with `overwrite`, and nothing is
+    written unless every file could be made. Returns the paths."""
+    from .files import Batch, protected_files
+    batch = Batch(protected_files(derivation.system))
+    stage_files(derivation, batch, directory, overwrite)
+    return batch.commit()
 
 
 def _unknown_names(result, names) -> tuple:

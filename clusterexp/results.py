@@ -179,12 +179,20 @@ class Derivation:
         return [c for c in self.checks if not c.ok]
 
     def write_files(self, directory=".", overwrite: bool = False) -> list:
-        """Write the tables (CSV) and figures the input asks for, relative to `directory`; an existing
-        file is replaced only with `overwrite`. Returns the paths written."""
+        """Write the tables (CSV) and figures the input asks for, relative to `directory` (created when
+        missing); an existing file is replaced only with `overwrite`, and nothing is written unless
+        every file could be made. Returns the paths written."""
         from .products import write_files
         written = write_files(self, directory, overwrite)
         self.__dict__["_written"] = True
         return written
+
+    def stage_files(self, batch, directory=".", overwrite: bool = False) -> None:
+        """Render the tables and figures into `batch` (a `files.Batch`) and count them as written: the
+        caller commits the batch, or fails the run, before any output that says so is shown."""
+        from .products import stage_files
+        stage_files(self, batch, directory, overwrite)
+        self.__dict__["_written"] = True
 
     @property
     def files_written(self) -> bool:

@@ -243,14 +243,13 @@ def test_interrupt_while_writing_leaves_no_half_file(moment, tmp_path, monkeypat
     else:
         monkeypatch.setattr(os, "replace", interrupted_replace)
         monkeypatch.setattr(os, "link", interrupted_replace)  # the no-overwrite path links instead
-    with pytest.raises(KeyboardInterrupt):
-        run_main(ARGS + ["-o", str(target)])
+    # the command ends with one line and exit status 130 (issue 14: it was a traceback)
+    assert run_main(ARGS + ["-o", str(target)])[::2] == (130, "clusterexp: interrupted\n")
     assert not target.exists()
     assert leftovers(tmp_path) == []
     # and an existing file replaced with --overwrite keeps its old content when interrupted
     target.write_text("the user's notes")
-    with pytest.raises(KeyboardInterrupt):
-        run_main(ARGS + ["-o", str(target), "--overwrite"])
+    assert run_main(ARGS + ["-o", str(target), "--overwrite"])[0] == 130
     assert target.read_text() == "the user's notes"
     assert leftovers(tmp_path) == []
     monkeypatch.setattr(os, "fdopen", real_fdopen)
@@ -322,3 +321,156 @@ def test_size_limit_refuses_before_starting_and_can_be_raised(cli):
     with pytest.raises(InputError, match="too large to start"):
         clusterexp.derive("dimension 2 size limit 10 species A species B derive virial up to 6")
     assert len(clusterexp.derive("dimension 2 size limit 100000 species A species B derive virial up to 6")) > 0
+
+
+# -- issue 14: many species, high orders, absurd budgets -------------------------------------------------
+
+def many(K: int, statistics: str = "", rest: str = "derive virial up to 2") -> str:
+    return "dimension 2 " + " ".join(f"species S{i}{statistics}" for i in range(K)) + " " + rest
+
+
+def test_a_thousand_species_enumerate_without_recursion():
+    # issue 14: RecursionError in series.multi_indices, one frame per species
+    from clusterexp.series import indices_up_to, multi_indices
+    with time_guard(20):
+        d = clusterexp.derive(many(1000, " bose", "derive cluster up to 1"), filename="many.gas")
+        assert len(d) == 1000 and d.coefficients[-1].index == (0,) * 999 + (1,)
+    assert list(multi_indices(5000, 1))[1][:3] == (0, 1, 0)
+    # the order is the one the recursion gave: by total degree, then descending lexicographic
+    assert indices_up_to(3, 2) == [(1, 0, 0), (0, 1, 0), (0, 0, 1), (2, 0, 0), (1, 1, 0), (1, 0, 1), (0, 2, 0),
+                                   (0, 1, 1), (0, 0, 2)]
+
+
+def test_many_species_are_refused_for_their_generators():
+    # issue 14: 300 species to order 2 ran past a minute (80 species: 13 s, 600 MB): the estimate counted
+    # terms only, while each of the 45,450 generators of the exact ring costs memory in every polynomial
+    error = refusal(many(300), seconds=5)
+    assert error.message.startswith("this derivation is too large to start: 300 species to total order 2")
+    assert "45,450 generators" in error.message and "GB of memory" in error.message
+    assert "--size-limit 20000000" in error.hint
+    assert check_size(build_system(many(60))).size < DEFAULT_SIZE_LIMIT   # about a second: still fine
+
+
+@pytest.mark.parametrize("text, seconds_at_least", [
+    # issue 14: the harmonic regulator's cost was not estimated (two species, two parameters: order 24, 55 s)
+    ("dimension 2 parameter g parameter nu species A exchange g species B exchange g mutual A B = nu "
+     "clusters landau spectrum derive virial up to 30", 60),
+    ("dimension 2 parameter nu in [0, 1] species A bose species B bose clusters spectrum { shift = nu*A*B "
+     "area count } derive virial up to 25", 30),
+])
+def test_harmonic_regulator_cost_is_estimated_before_it_starts(text, seconds_at_least):
+    error = refusal(text, seconds=5)
+    assert "the harmonic regulator (trapped spectrum) alone would take about" in error.message
+    assert estimate(build_system(text)).regulator_seconds > seconds_at_least
+    assert "--size-limit" in error.hint
+
+
+def test_a_cluster_without_limit_is_reported_when_its_order_is_reached():
+    # issue 14: the divergence of b[1,1] came only after every order up to 25 was built (order 18: 37 s)
+    text = ("dimension 2 parameter nu in [0, 1] species A bose species B bose\n"
+            "clusters spectrum { shift = nu*A*B area count }\nderive virial up to 25")
+    start = time.perf_counter()
+    with time_guard(10), pytest.raises(InputError) as caught:
+        clusterexp.derive(text, size_limit=10 ** 12).compute_all()
+    assert time.perf_counter() - start < 10
+    assert caught.value.message.startswith("no thermodynamic limit for the cluster [1, 1]")
+
+
+def test_absurd_loop_budgets_are_refused_unless_timed():
+    # issue 14: `with 1000000000000000 loops` was accepted, and a loop count removed the default time cap
+    semions = "dimension 2\nparameter alpha in [0, 1]\nspecies A exchange alpha\nclusters pairphase\n"
+    with pytest.raises(InputError) as caught:
+        build_system(semions + "sample a[3] at alpha = 1/2 seed 1 with 1000000000000000 loops", "s.gas")
+    error = caught.value
+    assert (error.span.line, error.span.column) == (5, 35)
+    assert error.message.startswith("1,000,000,000,000,000 loops would take about ")
+    assert "years" in error.message and "at most 10 minutes" in error.message
+    assert "`within T seconds`" in error.hint and "ask for at most 12,000,000 loops" in error.hint
+    # grid points count too: 12 million loops fit for one point, not for forty
+    build_system(semions + "sample a[3] at alpha = 1/2 with 12000000 loops")
+    with pytest.raises(InputError, match="40 points"):
+        build_system(semions + "sample a[3] over alpha = [" + ", ".join(f"1/{k}" for k in range(2, 42))
+                     + "] with 12000000 loops")
+    # with an explicit time cap the user has said how long the run may take
+    (s,) = build_system(semions + "sample a[3] at alpha = 1/2 with 1000000000000000 loops within 60 seconds").samplings
+    assert s.loops == 10 ** 15 and s.time_cap == 60
+
+
+def test_whole_numbers_with_thousands_of_digits_are_input_errors():
+    # sibling: int() of a 5000-digit literal raised ValueError (Python's 4300-digit limit) from the library
+    big = "9" * 5000
+    for text, column in [(f"dimension {big} species A", 11), (SPECIES + f"derive virial up to {big}", 43),
+                         (SPECIES + f"derive virial a[{big}]", 39), (f"dimension 2 size limit {big} species A", 24)]:
+        error = refusal(text)
+        assert error.message == "a whole number with 5,000 digits (at most 30)" and error.span.column == column
+        assert len(error.render()) < 1000
+
+
+def test_form_feeds_do_not_shift_the_line_shown():
+    # sibling: str.splitlines also splits at form feeds and U+001C-U+001E, the parser does not
+    error = refusal("dimension 2 # page\x0cbreak \x1e\nspecies A\nmutual A C = 1/2\n")
+    assert (error.span.line, error.span.line_text) == (3, "mutual A C = 1/2")
+
+
+def test_bidirectional_and_control_characters_are_shown_as_question_marks():
+    error = refusal("dimension 2 species A\u202e bose")
+    rendered = error.render()
+    assert "\u202e" not in rendered and rendered.splitlines()[1] == "    dimension 2 species A? bose"
+
+
+# -- issue 21: files are written only when the whole input derived, into folders made on demand ----------
+
+TRUNCATED = ("dimension 2\nparameter alpha in [0, 1]\nspecies A exchange alpha\n"
+             "clusters pairphase { a[3] = 1/36 + alpha^2/12 + O(alpha^3) }\nderive virial up to 3\n"
+             'tabulate a[2] over alpha in [0, 1/2] into "t.csv"\n')
+
+
+def test_a_failing_run_writes_no_file(tmp_path):
+    # issue 21: the table was written before the figure failed (exit 2), and then blocked the rerun
+    pytest.importorskip("matplotlib")
+    bad = TRUNCATED + 'plot a[3] over alpha into "f.png"\n'
+    code, out, err = run_main(["run", "-e", bad, "--files-into", str(tmp_path), "-o", str(tmp_path / "out.txt")])
+    assert code == 2 and "<command line>:7:1: error: a[3] is known only as a series" in err
+    assert os.listdir(tmp_path) == []
+    fixed = TRUNCATED + 'plot a[2] over alpha into "f.png"\n'
+    code, _, err = run_main(["run", "-e", fixed, "--files-into", str(tmp_path), "-o", str(tmp_path / "out.txt")])
+    assert code == 0, err
+    assert sorted(os.listdir(tmp_path)) == ["f.png", "out.txt", "t.csv"]
+    # from Python too
+    with pytest.raises(InputError, match="known only as a series"):
+        clusterexp.derive(bad).write_files(tmp_path / "py")
+    assert not (tmp_path / "py").exists()
+
+
+def test_output_folders_are_created(tmp_path, monkeypatch):
+    # issue 21: `d.write_files("figures/")` (the README's example) and `--files-into newdir` failed
+    monkeypatch.chdir(tmp_path)
+    d = clusterexp.derive(TRUNCATED)
+    assert d.write_files("figures/") == [Path("figures/t.csv")]
+    assert (tmp_path / "figures" / "t.csv").read_text().startswith("alpha,")
+    code, out, err = run_main(["run", "-e", TRUNCATED, "--files-into", "new/deeper"])
+    assert code == 0, err
+    assert (tmp_path / "new" / "deeper" / "t.csv").is_file() and "files written:" in out
+    (tmp_path / "plain").write_text("")
+    code, _, err = run_main(["run", "-e", TRUNCATED, "--files-into", "plain"])
+    assert code == 2 and "it is not a folder" in err
+
+
+def test_a_table_and_a_sample_table_may_not_share_a_file(tmp_path):
+    text = ("dimension 2 parameter alpha in [0, 1) species A exchange alpha clusters pairphase "
+            'tabulate a[2] over alpha in [0, 1/2] into "t.csv" '
+            'sample a[3] at alpha = 1/2 seed 1 with 20000 loops table "./t.csv"')
+    code, _, err = run_main(["run", "-e", text, "--files-into", str(tmp_path)])
+    assert code == 2 and "t.csv is written twice by this run" in err
+    assert os.listdir(tmp_path) == []
+
+
+def test_a_species_less_singular_than_the_reference_is_an_input_error():
+    # found by the hostile fuzz profile: its b for one particle is 0, and the reversion failed with an
+    # internal SeriesError (a traceback) instead of an input error at the spectrum
+    with pytest.raises(InputError) as caught:
+        clusterexp.derive("dimension 1\nspecies S0 bose\nspecies S1 bose\n"
+                          "clusters spectrum { levels S0 = x^(1/2)/(1 - x)^2 }\nderive virial up to 2\n").compute_all()
+    error = caught.value
+    assert place(error) == (4, 1)
+    assert error.message.startswith("the one-body level function of species 2 diverges like (beta hbar omega)^-1")

@@ -26,7 +26,7 @@ from hypothesis import strategies as st
 from clusterexp import InputError, NotSupportedYet, build_system, derive_system
 from clusterexp.export import FORMATTERS
 from clusterexp.limits import estimate
-from clusterexp.parse import parse
+from clusterexp.parse import parse, source_lines
 from clusterexp.resources import grammar_text
 
 from conftest import ROOT, run_cli
@@ -78,7 +78,7 @@ def check_refusal(error, text: str, filename: str) -> None:
     span = error.span
     assert span.line >= 1 and span.column >= 1, error.render()
     if span.file == filename:
-        lines = text.splitlines() or [""]
+        lines = source_lines(text) or [""]   # lines as the parser counts them (line feeds only)
         assert span.line <= len(lines), error.render()
         assert span.column <= len(lines[span.line - 1]) + 1, error.render()
         assert span.line_text == lines[span.line - 1], error.render()
@@ -398,3 +398,153 @@ def test_subprocess_exit_codes_on_fuzz(text, tmp_path):
         assert "Traceback" not in result.stderr, result.stderr
         if result.returncode == 2:
             assert re.match(r"^.+:\d+:\d+: error: ", result.stderr), result.stderr
+
+
+# -- hostile shapes (issue 14): many species, the harmonic regulator at high order, absurd loop budgets,
+# -- special output targets. `benchmarks/fuzz_long.py` runs these at length and prints their counts.
+
+DECISION_SECONDS = 10   # build + size estimate + refusal of any input (about a second when idle)
+HOSTILE = settings(FUZZ, max_examples=(EXAMPLES or 90) // 3)
+
+
+def _species_lines(count: int, statistics: str) -> str:
+    return "\n".join(f"species S{i}{statistics}" for i in range(count))
+
+
+@st.composite
+def many_species_inputs(draw):
+    K = draw(st.one_of(st.integers(2, 40), st.sampled_from([80, 150, 300, 1000, 2000, 4000])))
+    statistics = draw(st.sampled_from(["", " bose", " fermi", " exchange 1/2", " exchange 1/3 mass 2"]))
+    regime = draw(st.sampled_from(["", "clusters generic", "clusters ideal", "clusters exclusion",
+                                   "clusters exclusion level", "clusters landau", "clusters landau spectrum",
+                                   "clusters pairphase", "clusters spectrum { }"]))
+    order = draw(st.integers(1, 4))
+    quantity = draw(st.sampled_from(["virial", "cluster", "density", "fugacity"]))
+    return f"dimension 2\n{_species_lines(K, statistics)}\n{regime}\nderive {quantity} up to {order}\n"
+
+
+@st.composite
+def spectral_inputs(draw):
+    parameters = draw(st.integers(0, 3))
+    names = ["g", "h", "nu"][:parameters]
+    value = lambda: draw(st.sampled_from(names + ["1/2", "1/3", "0", "1"])) if names else \
+        draw(st.sampled_from(["1/2", "1/3", "0", "1"]))
+    K = draw(st.integers(1, 3))
+    order = draw(st.one_of(st.integers(1, 12), st.integers(13, 60)))
+    head = "dimension 2\n" + "".join(f"parameter {n} in [0, 1]\n" for n in names)
+    if draw(st.booleans()):
+        species = "".join(f"species S{i} exchange {value()}\n" for i in range(K))
+        mutual = "".join(f"mutual S{i} S{j} = {value()}\n" for i in range(K) for j in range(i + 1, K))
+        return head + species + mutual + f"clusters landau spectrum\nderive virial up to {order}\n"
+    dimension = draw(st.integers(1, 3))
+    species = "".join(f"species S{i} {draw(st.sampled_from(['bose', 'fermi']))}\n" for i in range(K))
+    counts = [f"S{i}" for i in range(K)]
+    shift = draw(st.sampled_from(["0", "{p}*{a}*{b}", "{p}*{a}*({a} - 1)/2", "{a}*{b}", "{p}*{a}"])).format(
+        p=value(), a=draw(st.sampled_from(counts)), b=draw(st.sampled_from(counts)))
+    area = draw(st.sampled_from(["", "area mass", "area count", "area one"]))
+    levels = draw(st.sampled_from(["", "levels S0 = 1/(1 - x)", "levels S0 = x^(1/2)/(1 - x)^2"]))
+    return (head.replace("dimension 2", f"dimension {dimension}") + species
+            + f"clusters spectrum {{ shift = {shift} {levels} {area} }}\nderive virial up to {order}\n")
+
+
+@st.composite
+def loop_budget_inputs(draw):
+    loops = draw(st.one_of(st.integers(10_000, 10 ** 7), st.integers(10 ** 7, 10 ** 30),
+                           st.sampled_from([10 ** 15, 10 ** 29, 12_000_000, 12_000_001])))
+    within = draw(st.sampled_from(["", " within 1 seconds", " within 60 seconds", " within 604800 seconds",
+                                   " within 1e9 seconds"]))
+    points = draw(st.integers(1, 50))
+    where = "at alpha = 1/2" if points == 1 else "over alpha = [" + ", ".join(f"1/{k + 2}" for k in range(points)) + "]"
+    return ("dimension 2\nparameter alpha in [0, 1]\nspecies A exchange alpha\nclusters pairphase\n"
+            f"sample a[3] {where} seed {draw(st.integers(0, 2 ** 64))} with {loops} loops{within}\n")
+
+
+def decide(text: str):
+    """Build and size an input within DECISION_SECONDS: (system or None, the refusal or None)."""
+    from clusterexp.limits import check_size
+    with time_guard(DECISION_SECONDS):
+        try:
+            system = build_system(text, "fuzz.gas", ROOT)
+            check_size(system)
+            return system, None
+        except (InputError, NotSupportedYet) as error:
+            check_refusal(error, text, "fuzz.gas")
+            return None, error
+
+
+REFUSALS = {"this derivation is too large": "too large to start", "loops would take": "loop budget too long",
+            "at most 604800": "time cap too long", "a whole number with": "number too long"}
+
+
+@HOSTILE
+@given(case=st.one_of(many_species_inputs().map(lambda t: ("many species", t)),
+                      spectral_inputs().map(lambda t: ("regulator", t)),
+                      loop_budget_inputs().map(lambda t: ("loop budget", t))))
+def test_hostile_shapes_are_decided_quickly(case):
+    """Every such input is refused or accepted within DECISION_SECONDS; an accepted one estimated
+    small derives within the hang guard (the estimate is not wildly optimistic); an accepted loop
+    budget without `within` fits the untimed cap."""
+    from hypothesis import event
+    from clusterexp.loops.request import MAX_UNTIMED_SECONDS, expected_seconds
+    kind, text = case
+    system, refusal = decide(text)
+    if refusal is not None:
+        reason = next((why for start, why in REFUSALS.items() if start in str(refusal)), "other input error")
+        event(f"{kind}: refused, {reason}")
+        return
+    for sampling in system.samplings:
+        assert sampling.time_cap is not None or expected_seconds(system) <= MAX_UNTIMED_SECONDS
+    if system.samplings or too_large(system):
+        event(f"{kind}: accepted, not run")
+        return
+    event(f"{kind}: accepted and derived")
+    assert derive_or_refuse(text) in ("derived", "refused")
+
+
+TARGETS = ["new", "existing", "link to existing", "dangling link", "link to a folder", "fifo", "device", "folder",
+           "the input", "link to the input", "missing folder", "below a file", "standard output"]
+
+
+@HOSTILE
+@given(target=st.sampled_from(TARGETS), overwrite=st.booleans(), files=st.sampled_from(["none", "here", "new"]),
+       table_name=st.sampled_from(["t.csv", "out.txt", "in.gas", "fifo", "sub/t.csv"]))
+def test_special_output_targets(target, overwrite, files, table_name):
+    """-o and the input's own table aimed at every kind of path: exit 0 or 2 and never a traceback,
+    no non-regular file or input replaced, no temporary file left, and with exit 0 the result is in
+    the regular file the path leads to."""
+    import stat as stat_module
+    from hypothesis import event
+    with tempfile.TemporaryDirectory() as folder:
+        here = Path(folder)
+        source = here / "in.gas"
+        text = ("dimension 2 parameter g in [0, 1] species A exchange g clusters landau derive virial up to 2 "
+                f'tabulate a[2] over g in [0, 1] into "{table_name}"\n')
+        source.write_text(text)
+        (here / "existing.txt").write_text("old")
+        (here / "folder").mkdir()
+        os.mkfifo(here / "fifo")
+        paths = {"new": "new.txt", "existing": "existing.txt", "link to existing": "l1", "dangling link": "l2",
+                 "link to a folder": "l3", "fifo": "fifo", "device": os.devnull, "folder": "folder",
+                 "the input": "in.gas", "link to the input": "l4", "missing folder": "no/such/out.txt",
+                 "below a file": "existing.txt/out.txt", "standard output": "-"}
+        os.symlink("existing.txt", here / "l1")
+        os.symlink("created.txt", here / "l2")
+        os.symlink("folder", here / "l3")
+        os.symlink("in.gas", here / "l4")
+        args = ["run", str(source), "-o", str(here / paths[target]) if paths[target] not in ("-", os.devnull)
+                else paths[target]]
+        args += {"none": ["--no-files"], "here": ["--files-into", folder], "new": ["--files-into", str(here / "new")]}[files]
+        code, out, err = run_main(args + (["--overwrite"] if overwrite else []))
+        event(f"{target}: exit {code}")
+        assert code in (0, 2), err
+        assert "Traceback" not in err
+        assert source.read_text() == text
+        assert stat_module.S_ISFIFO(os.lstat(here / "fifo").st_mode) and (here / "folder").is_dir()
+        assert all(os.path.islink(here / name) for name in ("l1", "l2", "l3", "l4"))
+        assert not [p for p in here.rglob("*") if p.name.endswith(".part")]
+        if code == 0 and paths[target] != "-":
+            written = Path(os.path.realpath(here / paths[target]))
+            assert written.is_file() and written.read_text().startswith("# clusterexp")
+            assert target not in ("fifo", "device", "folder", "the input", "link to the input", "link to a folder")
+        if code == 2:
+            assert err.startswith("clusterexp: error: ") or re.match(r"^.+:\d+:\d+: error: ", err), err

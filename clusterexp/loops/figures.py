@@ -16,7 +16,7 @@ from ..plots import (_figure, _format, _matplotlib, _place_caption, _save, coeff
 from .report import METHOD, plus_minus
 
 
-def sampled_map(statement, system, path: Path) -> Path:
+def sampled_map(statement, system, path: Path, into=None) -> Path:
     _, Figure, numpy = _matplotlib()
     sampling = statement.sampling
     (first, xs), (second, ys) = sampling.axes
@@ -44,6 +44,6 @@ def sampled_map(statement, system, path: Path) -> Path:
     axes.set_ylabel(f"${symbol_latex(second.name)}$")
     _place_caption(figure, caption)
     try:
-        return _save(figure, path, _format(path))
+        return _save(figure, path, _format(path), into)
     except OSError as error:
         raise InputError(f"cannot write {path}: {error.strerror}", sampling.clause_span("map")) from None

@@ -7,14 +7,11 @@ to run and output is byte-stable; `SampledRun.seconds` has them); the text says 
 """
 from __future__ import annotations
 
-import csv
-import io
 import math
 from pathlib import Path
 
 import sympy
 
-from ..errors import InputError
 from ..naming import latex_subscript, species_latex
 from ..numbers import grid_text
 from .sampled import SampledNumbers, SampledStatement
@@ -135,28 +132,34 @@ def table_rows(statement: SampledStatement) -> list[list[str]]:
     return rows
 
 
-def check_files(system, overwrite: bool = False, base: Path | None = None) -> None:
-    """Refuse, before any run, to replace an existing `table` or `map` file (unless `overwrite`) or to
-    write into a missing folder."""
+def check_files(system, overwrite: bool = False, base: Path | None = None, protected: dict | None = None,
+                seen: dict | None = None) -> None:
+    """Refuse, before any run, a `table` or `map` file that may not be written (`clusterexp.files`: it
+    exists and `overwrite` is not given, it is not a regular file, it is the input, or another result
+    of the run goes there)."""
+    from ..files import claimed, resolve
     base = base or Path.cwd()
+    seen = {} if seen is None else seen
     for s in system.samplings:
         for clause, name in (("table", s.table), ("map", s.map)):
             if name is None:
                 continue
-            path = base / name
-            if path.exists() and not overwrite:
-                raise InputError(f"{path} exists; pass --overwrite to replace it", s.clause_span(clause))
-            if path.is_dir() or not path.parent.is_dir():
-                raise InputError(f"cannot write {path}: " + ("it is a folder" if path.is_dir() else
-                                                            "no such folder"), s.clause_span(clause))
+            span = s.clause_span(clause)
+            target = resolve(base / name, overwrite, protected, span, folder_may_be_missing=True)
+            claimed(seen, target, str(base / name), span)
 
 
-def write_files(numbers: SampledNumbers, system, overwrite: bool = False, base: Path | None = None) -> list[Path]:
+def write_files(numbers: SampledNumbers, system, overwrite: bool = False, base: Path | None = None,
+                batch=None) -> list[Path]:
     """Write every statement's `table` (CSV) and `map` (figure); refuses to replace a file unless
-    `overwrite`. Returns the paths written."""
-    from ..numbers import atomic_write_bytes
+    `overwrite`. Returns the paths written. With `batch` (a `files.Batch`) the files are only added
+    to it, to be written with the caller's other files."""
+    from ..files import Batch
+    from ..numbers import csv_bytes
     base = base or Path.cwd()
     check_files(system, overwrite, base)
+    own = batch is None
+    batch = Batch() if own else batch
     written = []
     for statement in numbers:
         s = statement.sampling
@@ -164,15 +167,16 @@ def write_files(numbers: SampledNumbers, system, overwrite: bool = False, base: 
             if name is None:
                 continue
             path = base / name
+            span = s.clause_span(clause)
+
+            def collect(where, data, span=span):
+                batch.add(where, data, overwrite, span, make_folder=True)
             if clause == "table":
-                buffer = io.StringIO()
-                csv.writer(buffer, lineterminator="\n").writerows(table_rows(statement))
-                try:
-                    atomic_write_bytes(path, buffer.getvalue().encode("utf-8"))
-                except OSError as error:
-                    raise InputError(f"cannot write {path}: {error.strerror}", s.clause_span(clause)) from None
+                collect(path, csv_bytes(table_rows(statement)))
             else:
                 from .figures import sampled_map
-                sampled_map(statement, system, path)
+                sampled_map(statement, system, path, into=collect)
             written.append(path)
+    if own:
+        batch.commit()
     return written

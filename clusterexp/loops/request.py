@@ -33,6 +33,10 @@ INSTALL_HINT = "maps need matplotlib: pip install 'clusterexp[plot]'"
 # Loop samples per second assumed when a budget is given as a number of loops (both cores, measured
 # 25-35 thousand on the development machine; the lower figure, so that estimates are not optimistic).
 SAMPLES_PER_SECOND = 20_000.0
+# Each further point of an `over` grid evaluates every loop again (measured: about 200 thousand
+# loop-points per second on both cores; half of it assumed).
+POINT_SAMPLES_PER_SECOND = 100_000.0
+MAX_UNTIMED_SECONDS = 600.0      # a loop budget estimated longer than this needs an explicit `within`
 
 
 def estimator_kind(index: tuple[int, ...]) -> tuple[str, int, int | None]:
@@ -149,6 +153,18 @@ def _sampling(builder, statement: _Statement, source, names, order) -> Sampling:
                              f"ask for at least {least}", statement.clause_span("loops"))
     if time_cap is None and loops is None:
         time_cap = DEFAULT_TIME_CAP
+    if loops is not None and time_cap is None:
+        runs = len({index for _, index, _ in coefficients})
+        points = math.prod(len(values) for _, values in axes) if axes else 1
+        seconds = loop_seconds(runs, loops, points)
+        if seconds > MAX_UNTIMED_SECONDS:
+            from ..limits import duration_text
+            raise InputError(f"{loops:,} loops would take about {duration_text(seconds)} ({runs} estimator run"
+                             f"{'s' if runs > 1 else ''}, {points} point{'s' if points > 1 else ''}, at the assumed "
+                             f"{SAMPLES_PER_SECOND:,.0f} loops per second); a loop budget without `within` may take "
+                             f"at most {MAX_UNTIMED_SECONDS / 60:g} minutes", statement.clause_span("loops"),
+                             hint=f"ask for at most {_affordable(runs, points):,} loops, or add `within T seconds` "
+                                  f"(at most {MAX_TIME_CAP:g}), which stops the run at T seconds")
     table = _file_name(statement, "table")
     figure = _file_name(statement, "map")
     if figure is not None:
@@ -312,12 +328,24 @@ def grid_points(sampling: Sampling) -> list[dict[sympy.Symbol, sympy.Expr]]:
     return [{**fixed, **dict(zip(symbols, combo))} for combo in itertools.product(*(v for _, v in sampling.axes))]
 
 
+def loop_seconds(runs: int, loops: int, points: int = 1) -> float:
+    """Estimated wall time of `runs` estimator runs of `loops` loops each over `points` grid points,
+    at conservative rates (an upper estimate)."""
+    return runs * loops * (1 / SAMPLES_PER_SECOND + (points - 1) / POINT_SAMPLES_PER_SECOND)
+
+
+def _affordable(runs: int, points: int) -> int:
+    loops = int(MAX_UNTIMED_SECONDS / loop_seconds(runs, 1, points))
+    return int(float(f"{loops:.2g}"))
+
+
 def expected_seconds(system) -> float:
     """An upper estimate of the wall time of every `sample` statement of a system (the time caps, or
     the loop budget at a conservative rate): lets fuzzers and tools skip long runs."""
     total = 0.0
     for sampling in system.samplings:
         runs = len({index for _, index, _ in sampling.coefficients})
-        by_loops = runs * sampling.loops / SAMPLES_PER_SECOND if sampling.loops else math.inf
+        points = math.prod(len(values) for _, values in sampling.axes) if sampling.axes else 1
+        by_loops = loop_seconds(runs, sampling.loops, points) if sampling.loops else math.inf
         total += min(sampling.time_cap or math.inf, by_loops)
     return total

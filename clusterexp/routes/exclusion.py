@@ -208,7 +208,7 @@ def exclusion_matrix(builder, names: list[str]) -> tuple[tuple[tuple[sympy.Expr,
     """The statistics matrix from `statistics` statements (entries or a whole matrix), the diagonal
     defaulting to the exchange parameters, and the set of defaulted diagonal entries."""
     K = len(names)
-    g: list[list] = [[None] * K for _ in range(K)]
+    g: list[list | None] = [None] * K   # rows with no stated entry stay None until the defaults
     for tree, file in builder.statistics:
         builder.file = file
         if tree.data == "statistics_matrix":
@@ -228,16 +228,20 @@ def exclusion_matrix(builder, names: list[str]) -> tuple[tuple[tuple[sympy.Expr,
             _set_entry(builder, g, i, j, value, first)
     builder.file = builder.main
     species = list(builder.species.values())
-    defaulted = {i for i in range(K) if g[i][i] is None}
-    for i in range(K):
-        for j in range(K):
-            if g[i][j] is None:
-                g[i][j] = species[i].exchange if i == j else sympy.Integer(0)
+    defaulted = {i for i in range(K) if g[i] is None or g[i][i] is None}
+    zero = sympy.Integer(0)
+    for i in range(K):   # row by row at list speed: thousands of species make millions of entries
+        row = g[i] if g[i] is not None else [None] * K
+        if row[i] is None:
+            row[i] = species[i].exchange
+        g[i] = [zero if entry is None else entry for entry in row] if None in row else row
     return tuple(tuple(row) for row in g), defaulted
 
 
 
 def _set_entry(builder, g, i, j, tree, where):
+    if g[i] is None:
+        g[i] = [None] * len(g)
     if g[i][j] is not None:
         names = list(builder.species)
         raise InputError(f"statistics entry g[{names[i]},{names[j]}] is given twice", builder.span(where))

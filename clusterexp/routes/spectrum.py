@@ -26,7 +26,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from fractions import Fraction
-from math import factorial
+from math import comb, factorial
 from typing import Callable, Mapping, Sequence
 
 import sympy
@@ -234,65 +234,30 @@ def trapped_clusters(species: Sequence[SpeciesSpectrum], shift: Callable[[Index]
     every = [s.levels for s in species] + list(trapped.values())
     shifts = {n: sympy.sympify(shift(n)) for n in indices_up_to(K, order)}
     ring = PolynomialRing(K, collect_atoms(list(shifts.values())) | set(atoms) | _atoms_of_x_functions(every))
-    # pole orders of the level functions
-    probe = [series_in_t(s.levels, ring, 2, f"levels {i}") for i, s in enumerate(species)]
-    poles = []
-    for i, p in enumerate(probe):
-        if not p.c or p.val >= 0:
-            raise SpectrumError("the one-body level function must diverge as omega -> 0 (like (1 - x)^-p); "
-                                f"it behaves as t^{p.val}", f"levels {i}")
-        poles.append(-p.val)
+    poles = _pole_orders(species, ring)
     p_ref = poles[reference]
-    T = max(sum(p * n for p, n in zip(poles, index)) - p_ref for index in indices_up_to(K, order)) + 1
-    T = max(T, 1)
+    T = precision(poles, order, reference)
     L = [series_in_t(s.levels, ring, T, f"levels {i}") for i, s in enumerate(species)]
-    # rescaled base: ln Xi~ = sum_i sum_l (+-1)^{l+1}/l t^{p_i l} L_i(x^l) y_i^l
-    base_single: list[list[TSeries]] = []
-    for i, s in enumerate(species):
-        logs = [None]
-        for l in range(1, order + 1):
-            sign = 1 if s.fill == "bose" or l % 2 else -1
-            term = L[i].dilate(l).shift(poles[i] * l).scale(ring.rational(Fraction(sign, l)))
-            logs.append(_regular(term, T, f"levels {i}"))
-        # exponentiate the one-species series: l Z_l = sum_{k=1}^{l} k c_k Z_{l-k}
-        Z = [_constant(ring, 1, T)]
-        for l in range(1, order + 1):
-            acc = None
-            for k in range(1, l + 1):
-                piece = (logs[k] * Z[l - k]).scale(ring.rational(Fraction(k, l)))
-                acc = piece if acc is None else acc + piece
-            Z.append(_truncate(acc, T))
-        base_single.append(Z)
+    base_single = [_OneSpecies(ring, T, L[i], poles[i], s.fill, f"levels {i}") for i, s in enumerate(species)]
+    # One multi-index at a time, by total order (lowest first): its trapped partition function, its
+    # cluster function and its limit, so that a cluster without a thermodynamic limit is reported as
+    # soon as its order is reached instead of after every order has been built.
     indices = indices_up_to(K, order)
-    Zt: dict[Index, TSeries] = {}
-    for n in indices:
-        if n in trapped:
-            value = series_in_t(trapped[n], ring, T, f"trapped {list(n)}").shift(sum(p * m for p, m in zip(poles, n)))
-            Zt[n] = _regular(value, T, f"trapped {list(n)}")
-            continue
-        value = _constant(ring, 1, T)
-        for i, m in enumerate(n):
-            if m:
-                value = value * base_single[i][m]
-        s = shifts[n]
-        if s != 0:
-            value = value * exp_of_linear(ring, ring.from_expr(s), T)
-        Zt[n] = _truncate(value, T)
-    if progress:
-        progress("trapped partition functions formed")
-    # logarithm: |n| c_n = |n| Z_n - sum_{0 < k < n} |k| c_k Z_{n-k}
+    unit_ref = tuple(1 if j == reference else 0 for j in range(K))
+    Zt: dict[Index, TSeries] = {unit_ref: _trapped_function(unit_ref, trapped, ring, T, poles, base_single, shifts)}
+    inverse_one_body = Zt[unit_ref].inverse()
     c: dict[Index, TSeries] = {}
+    out: dict[Index, object] = {}
     for n in indices:
+        if n not in Zt:
+            Zt[n] = _trapped_function(n, trapped, ring, T, poles, base_single, shifts)
+        # logarithm: |n| c_n = |n| Z_n - sum_{0 < k < n} |k| c_k Z_{n-k}
         total = sum(n)
         acc = Zt[n]
         for k in _below(n):
             if k in c:
                 acc = acc - (c[k] * Zt[tuple(a - b for a, b in zip(n, k))]).scale(ring.rational(Fraction(sum(k), total)))
         c[n] = _truncate(acc, T)
-    unit_ref = tuple(1 if j == reference else 0 for j in range(K))
-    inverse_one_body = Zt[unit_ref].inverse()
-    out: dict[Index, object] = {}
-    for n in indices:
         P = sum(p * m for p, m in zip(poles, n)) - p_ref
         ratio = c[n] * inverse_one_body
         for power in range(min(ratio.val, P), P):
@@ -306,7 +271,95 @@ def trapped_clusters(species: Sequence[SpeciesSpectrum], shift: Callable[[Index]
                     "one-dimensional level counting, such as the lowest Landau level with levels 1/(1 - x))",
                     f"limit {list(n)}")
         out[n] = ratio.coefficient(P)
+        if total == 1 and ring.is_zero(out[n]):
+            i = n.index(1)
+            raise SpectrumError(
+                f"the one-body level function of species {i + 1} diverges like (beta hbar omega)^-{poles[i]}, more "
+                f"weakly than the reference species' (beta hbar omega)^-{p_ref}: its particles vanish from the "
+                "thermodynamic limit (b = 0 for one of them); give it a level function as singular as the "
+                "reference's, or make it the reference", f"levels {i}")
+    if progress:
+        progress("trapped partition functions formed")
     return ring, out
+
+
+def _trapped_function(n, trapped, ring, T, poles, base_single, shifts) -> TSeries:
+    """The rescaled trapped partition function t^(sum p_i n_i) Z_n of one multi-index."""
+    if n in trapped:
+        value = series_in_t(trapped[n], ring, T, f"trapped {list(n)}").shift(sum(p * m for p, m in zip(poles, n)))
+        return _regular(value, T, f"trapped {list(n)}")
+    value = _constant(ring, 1, T)
+    for i, m in enumerate(n):
+        if m:
+            value = value * base_single[i].Z(m)
+    s = shifts[n]
+    if s != 0:
+        value = value * exp_of_linear(ring, ring.from_expr(s), T)
+    return _truncate(value, T)
+
+
+class _OneSpecies:
+    """The rescaled trapped partition functions Z_l of one species alone, formed up to the largest l
+    asked for so far: ln Xi~ = sum_l (+-1)^{l+1}/l t^{p l} L(x^l) y^l, exponentiated by
+    l Z_l = sum_{k=1}^{l} k c_k Z_{l-k}."""
+
+    def __init__(self, ring, T, levels: TSeries, pole: int, fill: str, where: str):
+        self.ring, self.T, self.levels, self.pole, self.fill, self.where = ring, T, levels, pole, fill, where
+        self.logs = [None]
+        self.functions = [_constant(ring, 1, T)]
+
+    def Z(self, l: int) -> TSeries:
+        ring, T = self.ring, self.T
+        while len(self.functions) <= l:
+            m = len(self.functions)
+            sign = 1 if self.fill == "bose" or m % 2 else -1
+            term = self.levels.dilate(m).shift(self.pole * m).scale(ring.rational(Fraction(sign, m)))
+            self.logs.append(_regular(term, T, self.where))
+            acc = None
+            for k in range(1, m + 1):
+                piece = (self.logs[k] * self.functions[m - k]).scale(ring.rational(Fraction(k, m)))
+                acc = piece if acc is None else acc + piece
+            self.functions.append(_truncate(acc, T))
+        return self.functions[l]
+
+
+def _pole_orders(species: Sequence[SpeciesSpectrum], ring: PolynomialRing) -> list[int]:
+    """The order p_i of the pole of each level function L_i at t = 0 (L_i ~ t^-p_i)."""
+    poles = []
+    for i, s in enumerate(species):
+        probe = series_in_t(s.levels, ring, 2, f"levels {i}")
+        if not probe.c or probe.val >= 0:
+            raise SpectrumError("the one-body level function must diverge as omega -> 0 (like (1 - x)^-p); "
+                                f"it behaves as t^{probe.val}", f"levels {i}")
+        poles.append(-probe.val)
+    return poles
+
+
+def pole_orders(levels: Sequence[sympy.Expr]) -> list[int]:
+    """`_pole_orders` of bare level functions (for the cost estimate, before any ring is formed); each
+    distinct function is expanded once (thousands of species usually share one)."""
+    distinct = list(dict.fromkeys(levels))
+    species = [SpeciesSpectrum(level, "bose", sympy.Integer(1)) for level in distinct]
+    poles = dict(zip(distinct, _pole_orders(species, PolynomialRing(1, _atoms_of_x_functions(distinct)))))
+    return [poles[level] for level in levels]
+
+
+def precision(poles: Sequence[int], order: int, reference: int) -> int:
+    """T, the powers of t every series keeps: the limit of cluster n sits at t^(sum_i p_i n_i - p_ref)."""
+    return max(1, order * max(poles) - poles[reference] + 1)
+
+
+def regulator_operations(poles: Sequence[int], order: int, reference: int, parameters: int) -> tuple[int, int]:
+    """What `trapped_clusters` costs, counted before it runs: (products of two t-series coefficients,
+    products of their terms). The logarithm dominates: for each n every 0 < k < n pairs c_k with
+    Z_(n-k) (sum over |n| <= N of prod_i (n_i + 1) is C(N + 2K, 2K) pairs), each a product of two
+    t-series truncated at T, T(T + 1)/2 coefficient products. With `parameters` symbols entering the
+    shifts linearly, the coefficient of t^j is a polynomial of degree j in them, C(j + P, P) terms, and
+    a truncated product multiplies sum_(m < T) C(m + 2P + 1, 2P + 1) = C(T + 2P + 1, 2P + 2) pairs of terms."""
+    K = len(poles)
+    T = precision(poles, order, reference)
+    pairs = comb(order + 2 * K, 2 * K)
+    return pairs * comb(T + 1, 2), pairs * comb(T + 2 * parameters + 1, 2 * parameters + 2)
 
 
 def area_weight(index: Index, masses: Sequence[sympy.Expr], m_ref: sympy.Expr, d: int, area: str) -> sympy.Expr:

@@ -9,6 +9,7 @@ ever computed. Combining two series keeps the smaller order.
 from __future__ import annotations
 
 from fractions import Fraction
+from itertools import combinations_with_replacement
 from typing import Callable, Iterator, Mapping, Sequence
 
 import sympy
@@ -20,13 +21,16 @@ Index = tuple[int, ...]
 
 
 def multi_indices(nvars: int, total: int) -> Iterator[Index]:
-    """All exponent tuples of length nvars with the given total degree, in descending lex order."""
-    if nvars == 1:
-        yield (total,)
-        return
-    for first in range(total, -1, -1):
-        for rest in multi_indices(nvars - 1, total - first):
-            yield (first,) + rest
+    """All exponent tuples of length nvars with the given total degree, in descending lex order.
+
+    Iterative (a recursion had one frame per variable: 1000 species overflowed the stack): the
+    multisets of `total` variable positions, in lexicographic order, are the exponent tuples in
+    descending lexicographic order."""
+    for positions in combinations_with_replacement(range(nvars), total):
+        exponents = [0] * nvars
+        for i in positions:
+            exponents[i] += 1
+        yield tuple(exponents)
 
 
 def indices_up_to(nvars: int, order: int, start: int = 1) -> list[Index]:
