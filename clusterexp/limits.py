@@ -39,6 +39,8 @@ from math import comb
 import sympy
 
 from .errors import InputError
+from .orders import split_truncation
+from .routes import regime_of
 
 DEFAULT_SIZE_LIMIT = 200_000
 """Estimated terms in the top-order layer (or multi-indices, whichever is more) above which a
@@ -120,22 +122,12 @@ def estimate(system) -> SizeEstimate:
     N = max([system.order] + [_request_order(r) for r in system.requests])
     indices = count_multi_indices(K, N)
     higher = indices - K                                 # generated coefficients with |n| >= 2
-    given = {v.index: v.value for v in getattr(system.source, "values", ())}
-    kind = getattr(system.source, "kind", "generic")
-    exact_pairs = 0
-    if kind == "pairphase":
-        # like `given`: the exact two-body (and ideal-species) coefficients are stated values, the
-        # many-body pieces are unknown symbols unless the input gives them
-        from .orders import split_truncation
-        from .routes.pairphase import two_body_clusters
-        given = {n: split_truncation(v)[0] for n, v in given.items()}
-        if indices <= DETAILED_INDICES:
-            known = {n: v for n, v in two_body_clusters(system, N).items() if v is not None and sum(n) >= 2}
-            given = {**known, **given}
-        elif N >= 2:
-            # forming every exact value costs sympy work per multi-index (300 species to order 3: five
-            # minutes): beyond DETAILED_INDICES the pairs are counted as known and their terms as one
-            exact_pairs = comb(K + 1, 2)
+    given = {v.index: split_truncation(v.value)[0] for v in getattr(system.source, "values", ())}
+    regime = regime_of(system)
+    # values the regime states exactly (like given ones), and how many pairs it counts as known
+    # without forming them (many species: forming every exact value costs sympy work per multi-index)
+    known, exact_pairs = regime.stated_for_estimate(system, N, detailed=indices <= DETAILED_INDICES)
+    given = {**known, **given}
     # weight w = |m| - 1 >= 1; parts of weight w: all multi-indices of total w + 1
     kinds = {w: comb(w + K, K - 1) for w in range(1, N)}
     fills = False
@@ -149,7 +141,7 @@ def estimate(system) -> SizeEstimate:
     top = comb(N + K - 1, K - 1)                         # multi-indices of total order N
     P = len(system.parameters)
     printed = sum(_printed(request, K) for request in system.requests)
-    if kind not in ("generic", "given", "pairphase"):
+    if regime.computed:
         # a computed regime: no unknown symbols; its b's are functions of the declared parameters,
         # taken as polynomials of degree about N (monomials of degree <= N in P parameters)
         largest = comb(N + P, P)
@@ -177,27 +169,10 @@ def _printed(request, K: int) -> int:
 
 def _regulator_seconds(system, N: int) -> float:
     """Estimated time of the harmonic regulator when the regime uses it, else 0."""
-    source = system.source
-    if not (source.kind == "spectrum" or (source.kind == "landau" and source.form == "spectrum")):
+    work = regime_of(system).regulator_work(system, N)
+    if work is None:
         return 0.0
-    from .routes.spectrum import SpectrumError, X, pole_orders, regulator_operations
-    K = len(system.species)
-    if source.kind == "landau":
-        # the shifts carry the exchange and mutual parameters (not `landau_matrix`: K^2 look-ups)
-        poles, reference = [1] * K, 0
-        values = [s.exchange for s in system.species] + [m.value for m in system.mutuals]
-        symbols = set().union(*(sympy.sympify(v).free_symbols for v in values))
-    else:
-        spectrum = source.spectrum
-        try:
-            poles = pole_orders(spectrum.levels)
-        except SpectrumError:
-            return 0.0                                   # the route reports it, at once
-        reference = system.species_index(system.reference)
-        symbols = set(sympy.sympify(spectrum.shift).free_symbols) - set(spectrum.counts)
-        for level in spectrum.levels:
-            symbols |= sympy.sympify(level).free_symbols - {X}
-    products, term_products = regulator_operations(poles, N, reference, len(symbols))
+    products, term_products = work
     return SECONDS_PER_COEFFICIENT_PRODUCT * products + SECONDS_PER_TERM_PRODUCT * term_products
 
 

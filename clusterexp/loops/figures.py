@@ -13,7 +13,7 @@ from types import SimpleNamespace
 from ..errors import InputError
 from ..plots import (_figure, _format, _matplotlib, _place_caption, _save, coefficient_latex, conventions_caption,
                      symbol_latex)
-from .report import METHOD, plus_minus
+from .quoting import METHOD, plus_minus
 
 
 def sampled_map(statement, system, path: Path, into=None) -> Path:

@@ -7,40 +7,14 @@ to run and output is byte-stable; `SampledRun.seconds` has them); the text says 
 """
 from __future__ import annotations
 
-import math
 from pathlib import Path
 
 import sympy
 
 from ..naming import latex_subscript, species_latex
 from ..numbers import grid_text
+from .quoting import EXACT_BELOW, METHOD, PLUS_MINUS_LATEX, plus_minus, settled  # noqa: F401 (quoted here too)
 from .sampled import SampledNumbers, SampledStatement
-
-METHOD = "Brownian-loop Monte Carlo, docs/loops.md"
-PLUS_MINUS_LATEX = r" \pm "
-EXACT_BELOW = 1e-12
-
-
-def settled(value: float, error: float) -> tuple[float, float]:
-    """(value, error) as every printer and file shows them: with zero variance (the phases are trivial
-    at this point, e.g. an integer mutual parameter) what is left of the value below 1e-12 is rounding
-    of the phases, not statistics, so the value is rounded there and the error is 0."""
-    if not math.isfinite(error) or error < EXACT_BELOW:
-        return round(value, 12) + 0.0, 0.0
-    return value, error
-
-
-def plus_minus(value: float, error: float, separator: str = " +- ") -> str:
-    """value and error, the error to two significant digits and the value to the same place."""
-    if not math.isfinite(error) or error < EXACT_BELOW:
-        return f"{settled(value, error)[0]:.7g}{separator}0"
-    place = math.floor(math.log10(error)) - 1
-    decimals = max(0, -place)
-    if place > 0:
-        step = 10 ** place
-        return f"{round(value / step) * step:.0f}{separator}{round(error / step) * step:.0f}"
-    return f"{value:.{decimals}f}{separator}{error:.{decimals}f}"
-
 
 def _point_text(point) -> str:
     return ", ".join(f"{name} = {sympy.sstr(value)}" for name, value in point)

@@ -115,7 +115,8 @@ def _sampling(builder, statement: _Statement, source, names, order) -> Sampling:
                          f"{builder.dimension}; {SUPPORTED}", span)
     refs = [c for c in statement.tree.children if c.data == "coef_ref"]
     coefficients = [_coefficient(builder, ref, names) for ref in refs]
-    if source.kind != "pairphase":
+    from ..routes import REGIMES
+    if not REGIMES[source.kind].sampled_by_loops:
         raise InputError("sampled numbers enter the pair-phase regime: declare `clusters pairphase` "
                          f"(the coefficients come from `clusters {source.kind}` here); {SUPPORTED}", span)
     if builder.tubes is not None:

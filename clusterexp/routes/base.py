@@ -89,6 +89,8 @@ class Regime:
     # many-body pieces the regime cannot compute are unknown functions of the statistics parameters
     # (named symbols whose Taylor coefficients get names in series), not free symbols
     named_pieces: bool = False
+    # its many-body pieces can be sampled by the Brownian-loop Monte Carlo (`sample`, loops/)
+    sampled_by_loops: bool = False
 
     # --- input ------------------------------------------------------------------------------------
     forms: tuple = (None,)    # the words allowed after `clusters <kind>` (first: the default; None: none)
@@ -114,8 +116,16 @@ class Regime:
     def check_system(self, system) -> None:
         """Checks that need the whole validated system (e.g. refusing a given value the regime knows)."""
 
-    def estimate(self, system, order: int) -> int | None:
-        """Rough count of the terms the regime forms at this order (None: the generic estimate)."""
+    # --- size (limits.estimate) -------------------------------------------------------------------
+    computed = True   # exact coefficients, no unknown symbols: counted as functions of the parameters
+
+    def stated_for_estimate(self, system, order: int, detailed: bool) -> tuple[dict, int]:
+        """({multi-index: value} the regime states exactly, like given values; a number of pairs
+        counted as known without forming them, when not `detailed`) for the size estimate."""
+        return {}, 0
+
+    def regulator_work(self, system, order: int) -> tuple[int, int] | None:
+        """(coefficient products, term products) of the harmonic regulator when the regime uses it."""
         return None
 
     # --- coefficients -----------------------------------------------------------------------------

@@ -20,6 +20,7 @@ class GenericRegime(Regime):
     """`clusters generic` and `clusters given { b[...] = ... }`: the b's not stated are symbols."""
 
     kind = "generic"
+    computed = False
 
     def clusters(self, plan) -> Clusters:
         if plan.given_kind == "virial":

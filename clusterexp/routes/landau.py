@@ -113,6 +113,15 @@ class LandauRegime(Regime):
     def quantities(self, system) -> Quantities:
         return LANDAU
 
+    def regulator_work(self, system, order):
+        if system.source.form != "spectrum":
+            return None
+        from .spectrum import regulator_operations
+        # the shifts carry the exchange and mutual parameters (not `landau_matrix`: K^2 look-ups)
+        values = [s.exchange for s in system.species] + [m.value for m in system.mutuals]
+        symbols = set().union(*(sympy.sympify(v).free_symbols for v in values))
+        return regulator_operations([1] * len(system.species), order, 0, len(symbols))
+
     def matrix(self, system):
         return landau_matrix(system)
 

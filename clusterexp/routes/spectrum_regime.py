@@ -137,6 +137,18 @@ class SpectrumRegime(Regime):
             return ring_native(ring, b, lambda n: rational_weight(weights[n]))
         return sympy_values(ring, b, weights.__getitem__)
 
+    def regulator_work(self, system, order):
+        from .spectrum import X, pole_orders, regulator_operations
+        spectrum = system.source.spectrum
+        try:
+            poles = pole_orders(spectrum.levels)
+        except SpectrumError:
+            return None                                  # the route reports it, at once
+        symbols = set(sympy.sympify(spectrum.shift).free_symbols) - set(spectrum.counts)
+        for level in spectrum.levels:
+            symbols |= sympy.sympify(level).free_symbols - {X}
+        return regulator_operations(poles, order, system.species_index(system.reference), len(symbols))
+
     def quantities(self, system) -> Quantities:
         return {"count": COUNT, "one": TRAPPED}.get(system.source.spectrum.area, THERMAL)
 
