@@ -20,9 +20,9 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 
-from clusterexp.build import build_system  # noqa: E402
+from clusterexp.language.build import build_system  # noqa: E402
 from clusterexp.eos import equation_of_state  # noqa: E402
-from clusterexp.numbers import format_number  # noqa: E402
+from clusterexp.products.numbers import format_number  # noqa: E402
 
 MATRIX = ("dimension 2 species A species B species C statistics matrix [[1/2, 1/3, 0], [1/5, 2/3, 1/7], "
           "[1/4, 0, 1/3]] clusters exclusion level")

@@ -8,7 +8,7 @@ from __future__ import annotations
 
 import time
 
-from clusterexp.build import build_system
+from clusterexp.language.build import build_system
 from clusterexp.derivation import _Plan
 from clusterexp.limits import estimate
 

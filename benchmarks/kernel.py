@@ -24,9 +24,9 @@ sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 
 import sympy  # noqa: E402
 
-from clusterexp.series import PolynomialRing, Series, available_backends, collect_atoms, indices_up_to  # noqa: E402
-from clusterexp.series.series import PowerTable, balanced_sum  # noqa: E402
-from clusterexp.virial import cluster_to_virial, reduced_clusters, reduced_to_virial  # noqa: E402
+from clusterexp.exact.series import PolynomialRing, Series, available_backends, collect_atoms, indices_up_to  # noqa: E402
+from clusterexp.exact.series.series import PowerTable, balanced_sum  # noqa: E402
+from clusterexp.exact.virial import cluster_to_virial, reduced_clusters, reduced_to_virial  # noqa: E402
 
 G1, G2, G12 = sympy.symbols("g1 g2 g12")
 

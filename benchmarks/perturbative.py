@@ -19,8 +19,8 @@ sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 import sympy  # noqa: E402
 
 from clusterexp.routes.perturbative import Species, expansion, taylor_coefficients  # noqa: E402
-from clusterexp.series import indices_up_to  # noqa: E402
-from clusterexp.virial import cluster_to_virial  # noqa: E402
+from clusterexp.exact.series import indices_up_to  # noqa: E402
+from clusterexp.exact.virial import cluster_to_virial  # noqa: E402
 from regimes import seconds  # noqa: E402  (the median-of-runs timer of the regimes benchmark)
 
 e1, e2, e3, d12, d13, d23 = sympy.symbols("e1 e2 e3 d12 d13 d23", real=True)

@@ -23,7 +23,7 @@ __version__ = "0.1.0"
 def __getattr__(name: str):
     # the language stages load lark and the grammar; import them on first use only
     if name in ("build_system", "build_system_from_file"):
-        from . import build
+        from .language import build
         return getattr(build, name)
     if name == "derive_system":
         from .derivation import derive_system
@@ -35,14 +35,14 @@ def derive(text: str, filename: str = "<input>", base_dir: str | Path | None = N
            size_limit: int | None = None, progress=None) -> Derivation:
     """Parse, validate and derive an input given as text. `size_limit` (estimated terms) overrides
     the default and the input's own `size limit`; `progress` is a `progress.Progress`."""
-    from .build import build_system
+    from .language.build import build_system
     from .derivation import derive_system
     return derive_system(build_system(text, filename, Path(base_dir) if base_dir else None), size_limit, progress)
 
 
 def derive_file(path: str | Path, size_limit: int | None = None, progress=None) -> Derivation:
     """Parse, validate and derive an input file."""
-    from .build import build_system_from_file
+    from .language.build import build_system_from_file
     from .derivation import derive_system
     return derive_system(build_system_from_file(Path(path)), size_limit, progress)
 

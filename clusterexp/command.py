@@ -17,7 +17,7 @@ import threading
 from contextlib import contextmanager
 from pathlib import Path
 
-from .check_result import TIE, UNDECIDED
+from .products.check_result import TIE, UNDECIDED
 from .errors import (EXIT_BROKEN_PIPE, EXIT_CHECK_FAILED, EXIT_INPUT_ERROR, EXIT_INTERRUPTED, EXIT_OK,
                      EXIT_TERMINATED, InputError, NotSupportedYet, visible)
 
@@ -186,9 +186,9 @@ def _run(args, progress) -> int:
 def _derive(args, progress):
     """(Derivation, {identity: description} of the input files no output may replace)."""
     from . import derive
-    from .build import MAX_INCLUDE_BYTES
-    from .files import file_identity
-    from .parse import decode_source, read_source
+    from .language.build import MAX_INCLUDE_BYTES
+    from .products.files import file_identity
+    from .language.parse import decode_source, read_source
     options = dict(size_limit=args.size_limit, progress=progress)
     inputs = []
     if args.text is not None:
@@ -216,7 +216,7 @@ def _derive(args, progress):
         text = read_source(path, MAX_INCLUDE_BYTES)
         base = path.resolve().parent if path.is_file() else Path.cwd()  # a pipe (`<(...)`) has no folder
         derivation = derive(text, filename=str(path), base_dir=base, **options)
-    from .files import protected_files
+    from .products.files import protected_files
     protected = protected_files(derivation.system)
     for handle in inputs:
         identity = file_identity(handle)
@@ -232,8 +232,8 @@ def _files_folder(args) -> Path:
 def _check_outputs(args, system, protected):
     """Every file the run will write, checked before anything is computed; returns the `files.Batch`
     they will be written through."""
-    from .files import Batch, claimed, resolve
-    from .products import check_files
+    from .products.files import Batch, claimed, resolve
+    from .products.run import check_files
     seen: dict = {}
     if args.output not in (None, STANDARD_STREAM):
         claimed(seen, resolve(Path(args.output), args.overwrite, protected), args.output, None)

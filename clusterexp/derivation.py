@@ -13,9 +13,9 @@ import sympy
 from .errors import InputError
 from .model import Index, Request, System
 from .results import Coefficient, Derivation
-from .series import indices_up_to
-from .terms import TermSum
-from .virial import CoefficientTable, VirialResult, cluster_to_virial, density_expansion, reduced_to_virial
+from .exact.series import indices_up_to
+from .exact.terms import TermSum
+from .exact.virial import CoefficientTable, VirialResult, cluster_to_virial, density_expansion, reduced_to_virial
 
 KIND_ORDER = ("cluster", "density", "fugacity", "virial")
 

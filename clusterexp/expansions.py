@@ -8,8 +8,8 @@ from dataclasses import dataclass
 
 import sympy
 
-from .orders import split_truncation, truncation_problem  # noqa: F401 (read here too)
-from .periods import PeriodicPart
+from .exact.orders import split_truncation, truncation_problem  # noqa: F401 (read here too)
+from .exact.periods import PeriodicPart
 
 
 def kinks(expr: sympy.Expr, symbol: sympy.Symbol, point) -> bool:

@@ -39,7 +39,7 @@ from math import comb
 import sympy
 
 from .errors import InputError
-from .orders import split_truncation
+from .exact.orders import split_truncation
 from .routes import regime_of
 
 DEFAULT_SIZE_LIMIT = 200_000

@@ -4,7 +4,7 @@ Conventions (see README): exchange parameter alpha with alpha = 0 bosons and alp
 (braiding) parameter alpha_ij between distinct species with period 1; masses are relative to the
 reference species, whose thermal wavelength lambda is the unit of length.
 
-A `System` is produced only by `clusterexp.build.build_system`, which validates once; everything
+A `System` is produced only by `clusterexp.language.build.build_system`, which validates once; everything
 downstream may trust it.
 """
 from __future__ import annotations

@@ -41,7 +41,7 @@ class Coefficient:
         to avoid building large sympy expressions), else None."""
         cache = self.__dict__.setdefault("_terms_cache", [])
         if not cache:
-            from .terms import TermSum
+            from .exact.terms import TermSum
             found = self.compute_terms() if self.compute_terms is not None else None
             if found is None and self.compute_terms is None:
                 found = TermSum.from_expr(self.value)
@@ -148,19 +148,19 @@ class Derivation:
     @property
     def checks(self):
         """The outcome of every `claim`, in input order (`checks.CheckResult`)."""
-        from .products import run_checks
+        from .products.run import run_checks
         return self._cached("_checks", run_checks)
 
     @property
     def evaluations(self):
         """Every `evaluate` statement with its numbers: [(Evaluation, [(label, text)])]."""
-        from .products import run_evaluations
+        from .products.run import run_evaluations
         return self._cached("_evaluations", run_evaluations)
 
     @property
     def tables(self):
         """Every `tabulate` statement with its rows (header first): [(Table, rows)]."""
-        from .products import run_tables
+        from .products.run import run_tables
         return self._cached("_tables", run_tables)
 
     def unknowns(self) -> list:
@@ -182,7 +182,7 @@ class Derivation:
         """Write the tables (CSV) and figures the input asks for, relative to `directory` (created when
         missing); an existing file is replaced only with `overwrite`, and nothing is written unless
         every file could be made. Returns the paths written."""
-        from .products import write_files
+        from .products.run import write_files
         written = write_files(self, directory, overwrite)
         self.__dict__["_written"] = True
         return written
@@ -190,7 +190,7 @@ class Derivation:
     def stage_files(self, batch, directory=".", overwrite: bool = False) -> None:
         """Render the tables and figures into `batch` (a `files.Batch`) and count them as written: the
         caller commits the batch, or fails the run, before any output that says so is shown."""
-        from .products import stage_files
+        from .products.run import stage_files
         stage_files(self, batch, directory, overwrite)
         self.__dict__["_written"] = True
 

@@ -130,7 +130,7 @@ def test_no_recursion_error_escapes_an_expression():
 # -- derivations too large to start ---------------------------------------------------------------------
 
 def test_multi_index_count_is_the_binomial():
-    from clusterexp.series import indices_up_to
+    from clusterexp.exact.series import indices_up_to
     for K in (1, 2, 3, 4):
         for N in (1, 3, 6):
             assert count_multi_indices(K, N) == len(indices_up_to(K, N))
@@ -331,7 +331,7 @@ def many(K: int, statistics: str = "", rest: str = "derive virial up to 2") -> s
 
 def test_a_thousand_species_enumerate_without_recursion():
     # issue 14: RecursionError in series.multi_indices, one frame per species
-    from clusterexp.series import indices_up_to, multi_indices
+    from clusterexp.exact.series import indices_up_to, multi_indices
     with time_guard(20):
         d = clusterexp.derive(many(1000, " bose", "derive cluster up to 1"), filename="many.gas")
         assert len(d) == 1000 and d.coefficients[-1].index == (0,) * 999 + (1,)

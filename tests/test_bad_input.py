@@ -100,7 +100,7 @@ def test_control_characters_inside_quoted_names_are_refused_at_their_place():
     # a lone carriage return or other control character inside a string would shift line numbers
     # between the parser and the caret display; such strings are refused where they start
     import pytest
-    from clusterexp.build import build_system
+    from clusterexp.language.build import build_system
     from clusterexp.errors import InputError
     with pytest.raises(InputError) as error:
         build_system('dimension 2\nspecies A bose\ntypeset wavelength as "\x1e"', "c.gas")

@@ -6,7 +6,7 @@ import pytest
 import sympy
 
 import clusterexp
-from clusterexp.checks import (CONSISTENT, MISMATCH, PROVEN, TIE, bounded, check_claim, check_decimal_claim,
+from clusterexp.products.checks import (CONSISTENT, MISMATCH, PROVEN, TIE, bounded, check_claim, check_decimal_claim,
                                decimal_places, truncate)
 from clusterexp.errors import InputError, Span
 from clusterexp.model import Parameter

@@ -8,7 +8,7 @@ import pytest
 import sympy
 
 import clusterexp
-from clusterexp.build import build_system
+from clusterexp.language.build import build_system
 from clusterexp.eos import equation_of_state
 from clusterexp.errors import InputError, NotSupportedYet
 

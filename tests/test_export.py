@@ -8,9 +8,9 @@ import pytest
 import sympy
 
 import clusterexp
-from clusterexp.series import available_backends
+from clusterexp.exact.series import available_backends
 from clusterexp.export import latex_document, latex_snippet, to_json, to_text
-from clusterexp.terms import TermSum
+from clusterexp.exact.terms import TermSum
 from conftest import ROOT
 
 TEXT = """dimension 2 parameter nu in [0, 1] species A species B mass 2 mutual A B = nu
@@ -90,7 +90,7 @@ def test_one_pass_split_of_a_part_matches_the_coefficient_by_coefficient_reading
     """TermSum.split_ring_part reads all coefficients of a homogeneous part at once; it must give the
     same terms in the same order as splitting the part and reading each coefficient (TermSum.from_ring),
     and both must agree with sympy's own conversion of the same polynomial."""
-    from clusterexp.series import PolynomialRing
+    from clusterexp.exact.series import PolynomialRing
     a, b, mu = sympy.symbols("a b mu")
     ring = PolynomialRing(2, [a, b, mu], backend=backend)
     x, y = ring.var(0), ring.var(1)
@@ -111,7 +111,7 @@ def test_one_pass_split_of_a_part_matches_the_coefficient_by_coefficient_reading
 def test_one_pass_split_merges_powers_of_one_symbol(backend):
     """Atoms mu, 1/mu and sqrt(mu) are powers of one symbol: their exponents are added (mu * (1/mu) is
     1), as sympy's own conversion does."""
-    from clusterexp.series import PolynomialRing
+    from clusterexp.exact.series import PolynomialRing
     a, mu = sympy.symbols("a mu", positive=True)
     ring = PolynomialRing(2, [a, mu, 1 / mu, sympy.sqrt(mu)], backend=backend)
     x, y = ring.var(0), ring.var(1)
@@ -134,7 +134,7 @@ def test_sparse_term_order_is_the_dense_descending_order():
     sparse key of the one-pass reader must give the same order, negative exponents (1/mu) included.
     Reference: sorting the dense vectors with Python's own tuple comparison."""
     import random
-    from clusterexp.terms import _ENDED, _descending
+    from clusterexp.exact.terms import _ENDED, _descending
     rnd = random.Random(5)
     vectors = {tuple(rnd.choice((-2, -1, 0, 0, 0, 1, 2)) for _ in range(4)) for _ in range(300)}
     sparse = {v: [(r, None, e) for r, e in enumerate(v) if e] for v in vectors}
@@ -147,8 +147,8 @@ def test_sparse_term_order_is_the_dense_descending_order():
 def test_one_pass_split_with_negative_powers_in_the_distinct_path(backend):
     """Atoms z and 1/mu (one atom per symbol: the reader's fast path) with the exponent of mu
     negative: the order must still be the dense descending one, also when the ranks are re-sorted."""
-    from clusterexp.series import PolynomialRing
-    from clusterexp.terms import _AtomReader
+    from clusterexp.exact.series import PolynomialRing
+    from clusterexp.exact.terms import _AtomReader
     z, mu = sympy.symbols("z mu", positive=True)
     ring = PolynomialRing(1, [z, 1 / mu], backend=backend)
     reader = _AtomReader.of(ring)

@@ -26,8 +26,8 @@ from hypothesis import strategies as st
 from clusterexp import InputError, NotSupportedYet, build_system, derive_system
 from clusterexp.export import FORMATTERS
 from clusterexp.limits import estimate
-from clusterexp.parse import parse, source_lines
-from clusterexp.resources import grammar_text
+from clusterexp.language.parse import parse, source_lines
+from clusterexp.language.resources import grammar_text
 
 from conftest import ROOT, run_cli
 

@@ -9,7 +9,7 @@ import sympy
 
 import clusterexp
 from clusterexp.errors import InputError
-from clusterexp.numbers import (EvaluationError, evaluate, exact_number, format_number, grid_table,
+from clusterexp.products.numbers import (EvaluationError, evaluate, exact_number, format_number, grid_table,
                                 parameter_interval, write_csv)
 
 T = sympy.Symbol("t", real=True)

@@ -13,7 +13,7 @@ def test_wheel_ships_grammar_and_runs_demo(tmp_path):
     subprocess.run([sys.executable, "-m", "pip", "install", "--quiet", "--no-deps", "--no-build-isolation",
                     "--target", str(target), str(ROOT)], check=True, capture_output=True)
     assert (target / "clusterexp" / "grammar" / "clusterexp.lark").is_file()
-    code = ("import clusterexp, clusterexp.resources as r; "
+    code = ("import clusterexp, clusterexp.language.resources as r; "
             "assert r.grammar_origin() == 'package', r.grammar_origin(); "
             "assert clusterexp.__file__.startswith(%r), clusterexp.__file__; "
             "d = clusterexp.derive('dimension 2 species A bose derive virial up to 2'); "

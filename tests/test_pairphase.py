@@ -366,7 +366,7 @@ def test_truncation_with_a_value_not_polynomial_in_the_symbol_stays_exact():
     """cluster_to_virial(truncation=...) with b_3 not polynomial in n (n^2/sin(n) = n + n^3/6 + ...):
     it must not be cut term by term. Reference: a_3 = (4 b_2^2 - 2 b_3 b_1)/b_1^4 (the textbook
     inversion formula with b_1 != 1, common practice) expanded by sympy.series to first order."""
-    from clusterexp.virial import cluster_to_virial
+    from clusterexp.exact.virial import cluster_to_virial
     n = sympy.Symbol("n")
     b1, b2, b3 = 1 - n / 8, sympy.Rational(1, 4) - n / 16, n ** 2 / sympy.sin(n)
     result = cluster_to_virial({(1,): b1, (2,): b2, (3,): b3}, 3, truncation={n: 2})
@@ -386,7 +386,7 @@ def test_truncation_is_decided_for_the_whole_input():
     iteration (conftest.virial_by_iteration), expanded by sympy.series. Also the Legendre self-check
     of a truncated result agrees with its pressure."""
     from conftest import virial_by_iteration
-    from clusterexp.virial import cluster_to_virial
+    from clusterexp.exact.virial import cluster_to_virial
     n, x = sympy.symbols("n x")
     b = {(1,): 1 - n / 8, (2,): sympy.Rational(1, 4) - n / 16, (3,): x / n, (4,): sympy.Rational(1, 7)}
     got = cluster_to_virial(b, 4, truncation={n: 2}).virial[(4,)]

@@ -6,7 +6,7 @@ import sympy
 
 import clusterexp
 from clusterexp import InputError, build_system
-from clusterexp.periods import braids, coupled_groups, exchange_statistics, residue
+from clusterexp.exact.periods import braids, coupled_groups, exchange_statistics, residue
 from conftest import virial_by_iteration
 
 R = sympy.Rational

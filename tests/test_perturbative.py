@@ -16,8 +16,8 @@ from clusterexp.errors import NotSupportedYet
 from clusterexp.model import Parameter
 from clusterexp.routes import pairphase
 from clusterexp.routes.perturbative import Species, chain_part, expansion, taylor_coefficients
-from clusterexp.series import indices_up_to
-from clusterexp.virial import cluster_to_virial
+from clusterexp.exact.series import indices_up_to
+from clusterexp.exact.virial import cluster_to_virial
 
 e, f, d, g, h = sympy.symbols("e f d g h", real=True)
 R = sympy.Rational

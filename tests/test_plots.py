@@ -6,7 +6,7 @@ import sympy
 
 import clusterexp
 from clusterexp.errors import InputError
-from clusterexp.plots import (PlotError, coefficient_latex, conventions_caption, default_interval, plot_line,
+from clusterexp.products.plots import (PlotError, coefficient_latex, conventions_caption, default_interval, plot_line,
                               plot_map, symbol_latex)
 
 
@@ -91,8 +91,8 @@ def test_without_matplotlib_the_message_says_how_to_install_it(tmp_path, pair, m
 
 def test_axis_labels_use_the_typeset_names_mathtext_can_draw():
     pytest.importorskip("matplotlib")
-    from clusterexp.build import build_system
-    from clusterexp.plots import axis_latex
+    from clusterexp.language.build import build_system
+    from clusterexp.products.plots import axis_latex
     system = build_system('dimension 2 parameter nu in [0, 1] parameter t species A bose '
                           'typeset nu as "\\tilde{\\nu}_{AB}" typeset t as "\\textrm{t}"')
     assert axis_latex("nu", system) == r"\tilde{\nu}_{AB}"

@@ -16,7 +16,7 @@ import pytest
 import sympy
 
 import clusterexp
-from clusterexp.build import build_system
+from clusterexp.language.build import build_system
 from clusterexp.errors import InputError
 from clusterexp.export import latex_document, latex_snippet, to_json
 from clusterexp.progress import Progress

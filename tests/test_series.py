@@ -6,7 +6,7 @@ import sympy
 from hypothesis import given, settings, strategies as st
 
 from clusterexp.errors import SeriesError
-from clusterexp.series import PolynomialRing, Series, available_backends, collect_atoms, revert
+from clusterexp.exact.series import PolynomialRing, Series, available_backends, collect_atoms, revert
 
 x, y = sympy.symbols("x y")
 g = sympy.Symbol("g")
@@ -107,8 +107,8 @@ def test_horner_composition_against_sympy_expand(backend, split):
     """R(w) part by part, for every split between Horner variables and the power table, against
     sympy's expand of the substituted polynomial truncated by total degree (constant, linear and
     missing coefficients included, one coefficient carrying a symbol)."""
-    from clusterexp.series.horner import HornerComposition
-    from clusterexp.series.series import indices_up_to
+    from clusterexp.exact.series.horner import HornerComposition
+    from clusterexp.exact.series.series import indices_up_to
     z = sympy.symbols("z0:3")
     order = 5
     ring = PolynomialRing(3, [g], backend=backend, var_names=[str(v) for v in z])
@@ -132,7 +132,7 @@ def test_horner_composition_against_sympy_expand(backend, split):
 def test_truncated_reciprocal_powers_against_sympy_series():
     """c^(-e) as a polynomial truncated in two symbols, against sympy.series applied one symbol at a
     time (general-purpose library)."""
-    from clusterexp.series.truncation import reciprocal_power
+    from clusterexp.exact.series.truncation import reciprocal_power
     n, g, m = sympy.symbols("n g m", positive=True)
     c = m - n * g * (1 - g) / 2 + 3 * g * n ** 2 + n * g ** 2
     limits = {n: 3, g: 2}

@@ -5,8 +5,8 @@ import pytest
 import sympy
 from hypothesis import given, settings, strategies as st
 
-from clusterexp.series import available_backends, indices_up_to
-from clusterexp.virial import (cluster_to_partition, cluster_to_virial, density_expansion,
+from clusterexp.exact.series import available_backends, indices_up_to
+from clusterexp.exact.virial import (cluster_to_partition, cluster_to_virial, density_expansion,
                                partition_to_cluster, virial_to_cluster)
 
 

@@ -46,11 +46,11 @@ Quantities: the pressure in the regime's units; the fugacities z_i; the chemical
 beta mu_i = ln z_i (-inf for an absent species); the reduced isothermal compressibility
 rho k_B T kappa_T = [d(beta P)/d rho]^(-1) at fixed composition (1 for a Boltzmann gas).
 
-    >>> from clusterexp.build import build_system
+    >>> from clusterexp.language.build import build_system
     >>> eos = equation_of_state(build_system("dimension 2 species A exchange 1/2 clusters landau"))
     >>> eos.pressure_formula
     log(nu_A/(1 - nu_A/2) + 1)
-    >>> from clusterexp.numbers import format_number
+    >>> from clusterexp.products.numbers import format_number
     >>> format_number(eos.evaluate("pressure", {"A": "1/2"}, 12)["beta P / rho_L"], 12)
     '0.510825623766'
 """

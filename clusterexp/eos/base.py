@@ -15,7 +15,7 @@ import sympy
 
 from ..errors import InputError, Span
 from ..model import System
-from ..numbers import exact_number
+from ..products.numbers import exact_number
 from .precision import GUARD_DIGITS, substitute, to_mpf, working_context  # noqa: F401 (the eos API)
 
 QUANTITIES = ("pressure", "fugacity", "chemical_potential", "compressibility")

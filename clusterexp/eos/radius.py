@@ -21,7 +21,7 @@ from typing import Mapping
 import sympy
 
 from ..errors import InputError
-from ..numbers import format_number
+from ..products.numbers import format_number
 from .precision import substitute, to_mpf, working_context
 
 

@@ -13,7 +13,7 @@ from .common import species_statistics
 from .quantities import assumptions_latex, conventions_latex, quantities
 from .latex_lines import aligned_rows
 from ..naming import generated_latex_names, is_single_atom, latex_subscript, species_latex
-from ..series import indices_up_to
+from ..exact.series import indices_up_to
 from .series_lines import series_latex_paragraphs, series_latex_rows
 
 LETTERS = {"cluster": "b", "virial": "a"}

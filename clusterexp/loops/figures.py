@@ -1,6 +1,6 @@
 """Heat map of a sampled coefficient over two scanned parameters (e.g. alpha_1 and alpha_12).
 
-Built like `clusterexp.plots.plot_map` (a `Figure` without pyplot, the same caption and file
+Built like `clusterexp.products.plots.plot_map` (a `Figure` without pyplot, the same caption and file
 handling, byte-stable files), but from Monte Carlo values on the statement's grid instead of an
 expression: each grid point is one cell, and the caption gives the largest error bar.
 """
@@ -11,7 +11,7 @@ from pathlib import Path
 from types import SimpleNamespace
 
 from ..errors import InputError
-from ..plots import (_figure, _format, _matplotlib, _place_caption, _save, coefficient_latex, conventions_caption,
+from ..products.plots import (_figure, _format, _matplotlib, _place_caption, _save, coefficient_latex, conventions_caption,
                      symbol_latex)
 from .quoting import METHOD, plus_minus
 

@@ -12,7 +12,7 @@ from pathlib import Path
 import sympy
 
 from ..naming import latex_subscript, species_latex
-from ..numbers import grid_text
+from ..products.numbers import grid_text
 from .quoting import EXACT_BELOW, METHOD, PLUS_MINUS_LATEX, plus_minus, settled  # noqa: F401 (quoted here too)
 from .sampled import SampledNumbers, SampledStatement
 
@@ -72,7 +72,7 @@ def latex_block(numbers: SampledNumbers, system) -> str:
 
 
 def _latex_name(name: str) -> str:
-    from ..plots import symbol_latex
+    from ..products.plots import symbol_latex
     return symbol_latex(name)
 
 
@@ -108,10 +108,10 @@ def table_rows(statement: SampledStatement) -> list[list[str]]:
 
 def check_files(system, overwrite: bool = False, base: Path | None = None, protected: dict | None = None,
                 seen: dict | None = None) -> None:
-    """Refuse, before any run, a `table` or `map` file that may not be written (`clusterexp.files`: it
+    """Refuse, before any run, a `table` or `map` file that may not be written (`clusterexp.products.files`: it
     exists and `overwrite` is not given, it is not a regular file, it is the input, or another result
     of the run goes there)."""
-    from ..files import claimed, resolve
+    from ..products.files import claimed, resolve
     base = base or Path.cwd()
     seen = {} if seen is None else seen
     for s in system.samplings:
@@ -128,8 +128,8 @@ def write_files(numbers: SampledNumbers, system, overwrite: bool = False, base: 
     """Write every statement's `table` (CSV) and `map` (figure); refuses to replace a file unless
     `overwrite`. Returns the paths written. With `batch` (a `files.Batch`) the files are only added
     to it, to be written with the caller's other files."""
-    from ..files import Batch
-    from ..numbers import csv_bytes
+    from ..products.files import Batch
+    from ..products.numbers import csv_bytes
     base = base or Path.cwd()
     check_files(system, overwrite, base)
     own = batch is None

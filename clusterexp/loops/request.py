@@ -16,10 +16,10 @@ import math
 import sympy
 
 from ..errors import InputError
-from ..hints import did_you_mean
+from ..language.hints import did_you_mean
 from ..model import Sampling
 from ..naming import bracket_label
-from ..periods import braids, exchange_statistics
+from ..exact.periods import braids, exchange_statistics
 
 SUPPORTED = ("supported: third-order coefficients of `clusters pairphase` in `dimension 2` with equal masses, "
              "b[3] and a[3] of one species of anyons, or b[2,1], a[2,1] (and b[1,2], a[1,2]) of two identical "

@@ -20,7 +20,7 @@ from typing import Mapping
 
 import sympy
 
-from ..series import PolynomialRing
+from ..exact.series import PolynomialRing
 
 Index = tuple[int, ...]
 
@@ -37,7 +37,7 @@ class Clusters:
 
 def ring_native(ring, elements, weight) -> Clusters:
     """Multiply by rational weights in the ring; the values convert lazily."""
-    from ..virial import CoefficientTable
+    from ..exact.virial import CoefficientTable
     scaled = {n: e * ring.rational(weight(n)) for n, e in elements.items()}
     order = max(sum(n) for n in scaled)
     return Clusters(CoefficientTable(ring, scaled, order), ring, scaled)

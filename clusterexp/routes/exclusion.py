@@ -33,7 +33,7 @@ from typing import Sequence
 import sympy
 
 from ..errors import InputError
-from ..series import PolynomialRing, collect_atoms, indices_up_to
+from ..exact.series import PolynomialRing, collect_atoms, indices_up_to
 from .base import THERMAL, Clusters, Quantities, Regime, ring_native, sympy_values
 
 Index = tuple[int, ...]

@@ -8,7 +8,7 @@ from typing import Mapping
 import sympy
 
 from ..naming import cluster_symbol, virial_symbol
-from ..series import indices_up_to
+from ..exact.series import indices_up_to
 from .base import Clusters, Regime
 
 
@@ -24,7 +24,7 @@ class GenericRegime(Regime):
 
     def clusters(self, plan) -> Clusters:
         if plan.given_kind == "virial":
-            from ..virial import virial_to_cluster
+            from ..exact.virial import virial_to_cluster
             return Clusters(virial_to_cluster(plan.virial, plan.order, plan.K, linear=plan.linear))
         b = {unit(plan.K, i): c for i, c in enumerate(plan.linear)}
         for index in indices_up_to(plan.K, plan.order, start=2):

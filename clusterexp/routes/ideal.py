@@ -42,7 +42,7 @@ class IdealRegime(Regime):
 
     def check(self, builder, source, names):
         from ..errors import InputError
-        from ..periods import species_statistics
+        from ..exact.periods import species_statistics
         for s in builder.species.values():
             if species_statistics(s, builder.by_symbol()) is None:
                 raise InputError(f"`clusters ideal` needs bose, fermi or boltzmann species; {s.name} has "
@@ -52,7 +52,7 @@ class IdealRegime(Regime):
         return source
 
     def clusters(self, plan) -> Clusters:
-        from ..periods import species_statistics
+        from ..exact.periods import species_statistics
         system = plan.system
         params = {p.symbol: p for p in system.parameters}
         stats = [species_statistics(s, params) for s in system.species]   # validated: bose/fermi modulo 2

@@ -24,7 +24,7 @@ from __future__ import annotations
 
 import sympy
 
-from ..periods import PeriodicPart, braids, coupled_groups, reduced, species_statistics
+from ..exact.periods import PeriodicPart, braids, coupled_groups, reduced, species_statistics
 from .base import Clusters, Regime
 
 
@@ -58,7 +58,7 @@ def two_body_clusters(system, order: int) -> dict:
     not braid with each other (mutual parameters that are integers, period 1: the Hamiltonian
     separates and ln Xi is additive), and for everything else None (a many-body piece: a named symbol
     unless given)."""
-    from ..series import indices_up_to
+    from ..exact.series import indices_up_to
     params = {p.symbol: p for p in system.parameters}
     species = system.species
     K = len(species)
@@ -158,7 +158,7 @@ def virials_with_known_clusters(pieces: dict, given: dict, order: int, K: int, t
     every unknown b_n is a placeholder, solved (in increasing total order) from its a_n, which is the
     given value or the named a_n symbol; a known b_n gives its a_n through the reversion."""
     from ..naming import virial_symbol
-    from ..virial import cluster_to_virial
+    from ..exact.virial import cluster_to_virial
     placeholders = {n: sympy.Symbol(f"placeholder_b_{'_'.join(map(str, n))}") for n, v in pieces.items() if v is None}
     b = {n: placeholders.get(n, v) for n, v in pieces.items()}
     a = dict(cluster_to_virial(b, order, K, truncation=truncation).virial)
@@ -221,7 +221,7 @@ class PairPhaseRegime(Regime):
 
     def check_given_value(self, value, span) -> None:
         from ..errors import InputError
-        from ..orders import truncation_problem
+        from ..exact.orders import truncation_problem
         problem = truncation_problem(value)
         if problem:
             raise InputError(problem, span)
@@ -256,7 +256,7 @@ class PairPhaseRegime(Regime):
     def clusters(self, plan) -> Clusters:
         from ..errors import InputError
         from ..naming import cluster_symbol
-        from ..virial import virial_to_cluster
+        from ..exact.virial import virial_to_cluster
         pieces = self._pieces(plan)
         given = plan.given_exact
         if plan.given_kind == "virial":
@@ -277,7 +277,7 @@ class PairPhaseRegime(Regime):
             return None
         from ..errors import InputError
         from ..naming import virial_symbol
-        from ..virial import cluster_to_virial
+        from ..exact.virial import cluster_to_virial
         pieces = self._pieces(plan)
         exact = {n: v for n, v in pieces.items() if v is not None and sum(n) <= 2}
         a = dict(cluster_to_virial(exact, 2, plan.K, truncation=plan.shared_truncation).virial)

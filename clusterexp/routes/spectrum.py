@@ -32,7 +32,7 @@ from typing import Callable, Mapping, Sequence
 import sympy
 
 from ..errors import SeriesError
-from ..series import PolynomialRing, collect_atoms, indices_up_to
+from ..exact.series import PolynomialRing, collect_atoms, indices_up_to
 
 Index = tuple[int, ...]
 X = sympy.Symbol("x")

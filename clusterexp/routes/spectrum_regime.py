@@ -8,7 +8,7 @@ import sympy
 
 from ..errors import InputError, Span
 from ..model import Spectrum
-from ..periods import species_statistics
+from ..exact.periods import species_statistics
 from .base import THERMAL, Clusters, Quantities, Regime, rational_weight, ring_native, sympy_values
 from .spectrum import SpeciesSpectrum, SpectrumError, area_weight, harmonic_levels, trapped_clusters
 

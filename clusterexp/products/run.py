@@ -14,7 +14,7 @@ import sympy
 
 from .check_result import CheckList
 from .checks import check_claim, check_decimal_claim, check_with_pieces
-from .errors import InputError
+from ..errors import InputError
 from .numbers import csv_bytes, evaluate, format_number, grid_table
 
 
@@ -36,10 +36,10 @@ def run_checks(derivation) -> list:
 
     A claim ending in O(p^k), or a derived value known only below some power (given truncated
     series), is compared below the lower of the two limits in each parameter."""
-    from .pieces import truncate_pieces
-    from .routes import regime_of
-    from .expansions import split_truncation, truncate
-    from .export.latex import claim_latex_name, latex_symbol_names
+    from ..pieces import truncate_pieces
+    from ..routes import regime_of
+    from ..expansions import split_truncation, truncate
+    from ..export.latex import claim_latex_name, latex_symbol_names
     system = derivation.system
     results = []
     symbols = tuple(latex_symbol_names(derivation).items()) if system.claims else ()
@@ -173,7 +173,7 @@ def run_tables(derivation) -> list:
 def check_files(system, directory=".", overwrite: bool = False, protected: dict | None = None,
                 seen: dict | None = None) -> None:
     """Refuse, before anything is computed, a file the input would write that may not be written
-    (`clusterexp.files`: it exists and `overwrite` is not given, it is a folder, FIFO or device, it is
+    (`clusterexp.products.files`: it exists and `overwrite` is not given, it is a folder, FIFO or device, it is
     the input or a file the input includes, or another result of the run goes there): `tabulate`,
     `plot` and the `sample` tables and maps. Missing folders are fine: they are created on writing.
     `seen` ({real path: name}) collects the run's targets (the CLI puts its `-o` file in first)."""
@@ -188,7 +188,7 @@ def check_files(system, directory=".", overwrite: bool = False, protected: dict 
         path = directory / item.path
         claimed(seen, resolve(path, overwrite, protected, item.span, folder_may_be_missing=True), str(path), item.span)
     if system.samplings:
-        from .loops.report import check_files as check_sampled_files
+        from ..loops.report import check_files as check_sampled_files
         check_sampled_files(system, overwrite, directory, protected, seen)
 
 
@@ -224,7 +224,7 @@ def stage_files(derivation, batch, directory=".", overwrite: bool = False) -> No
         except InputError as error:
             raise _at(error, figure.span) from None
     if system.samplings:
-        from .loops.report import write_files as write_sampled_files
+        from ..loops.report import write_files as write_sampled_files
         write_sampled_files(derivation.sampled, system, overwrite, directory, batch=batch)
 
 
@@ -240,6 +240,6 @@ def write_files(derivation, directory=".", overwrite: bool = False) -> list[Path
 
 def _unknown_names(result, names) -> tuple:
     """(symbol, LaTeX) of the named Taylor coefficients a check's equations or difference use."""
-    from .pieces import unknowns_in
+    from ..pieces import unknowns_in
     used = [e for e in (result.difference, result.condition) if e is not None]
     return tuple((u.symbol, u.latex(names)) for u in unknowns_in(used))

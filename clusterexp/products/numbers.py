@@ -23,7 +23,7 @@ from typing import Iterable, Mapping, Sequence
 import mpmath
 import sympy
 
-from .errors import InputError
+from ..errors import InputError
 
 # Half-open default widths for parameters declared without (one of) their range ends.
 DEFAULT_WIDTH = sympy.Integer(3)

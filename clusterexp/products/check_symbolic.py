@@ -9,7 +9,7 @@ from typing import Sequence
 
 import sympy
 
-from .errors import InputError
+from ..errors import InputError
 from .check_result import _text
 from .numbers import parameter_interval
 

@@ -24,7 +24,7 @@ import stat
 from dataclasses import dataclass
 from pathlib import Path
 
-from .errors import InputError, Span
+from ..errors import InputError, Span
 
 KINDS = ((stat.S_ISDIR, "a folder"), (stat.S_ISFIFO, "a FIFO (named pipe)"), (stat.S_ISCHR, "a character device"),
          (stat.S_ISBLK, "a block device"), (stat.S_ISSOCK, "a socket"))

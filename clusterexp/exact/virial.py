@@ -20,7 +20,7 @@ from typing import Callable, Iterator, Mapping, Sequence
 
 import sympy
 
-from .errors import SeriesError
+from ..errors import SeriesError
 from .series import PolynomialRing, Series, collect_atoms, indices_up_to, revert
 from .series.horner import HornerComposition
 from .series.series import balanced_sum

@@ -34,7 +34,7 @@ from typing import Iterable, Sequence
 
 import sympy
 
-from .errors import InputError
+from ..errors import InputError
 from .check_result import (CONSISTENT, MISMATCH, PROVEN, STATUSES, TIE, UNDECIDED, CheckList,  # noqa: F401
                            CheckResult, _text)
 from .numbers import Interval, evaluate, format_number, parameter_interval
@@ -142,7 +142,7 @@ def check_with_pieces(claimed, derived, system, *, label: str | None = None,
     """A claim whose difference from the derived value involves named many-body pieces (unknown
     functions, not free symbols): undecided, with the equations on the pieces under which it holds,
     or a mismatch when some part of it is wrong whatever the pieces are. None: no piece involved."""
-    from .pieces import conditions
+    from ..pieces import conditions
     claimed, derived = sympy.sympify(claimed), sympy.sympify(derived)
     equations = conditions(system, claimed - derived)
     if equations is None:

@@ -10,7 +10,7 @@ import random
 import mpmath
 import sympy
 
-from .errors import InputError
+from ..errors import InputError
 from .numbers import Interval
 
 SHOWN_DIGITS = 20           # digits of the two values printed at a mismatch

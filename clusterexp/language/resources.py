@@ -18,7 +18,7 @@ def grammar_text() -> str:
     packaged = resources.files("clusterexp").joinpath("grammar", GRAMMAR_FILE)
     if packaged.is_file():
         return packaged.read_text(encoding="utf-8")
-    checkout = Path(__file__).resolve().parent.parent / "grammar" / GRAMMAR_FILE
+    checkout = Path(__file__).resolve().parent.parent.parent / "grammar" / GRAMMAR_FILE
     if checkout.is_file():
         return checkout.read_text(encoding="utf-8")
     raise RuntimeError(f"grammar file {GRAMMAR_FILE} is missing from this installation of clusterexp")

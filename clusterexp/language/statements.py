@@ -9,10 +9,10 @@ import re
 import lark
 import sympy
 
-from .errors import InputError
+from ..errors import InputError
 from .expressions import ExpressionBuilder
 from .hints import did_you_mean
-from .model import Claim, CoefficientName, Evaluation, Figure, Table, Typesetting
+from ..model import Claim, CoefficientName, Evaluation, Figure, Table, Typesetting
 
 DEFAULT_DIGITS = 15
 MAX_DIGITS = 1000
@@ -171,7 +171,7 @@ class ProductBuilder:
 
     # -- statements ---------------------------------------------------------------------------------
     def claim(self, tree) -> Claim:
-        from .expansions import split_truncation
+        from ..expansions import split_truncation
         ref, value_tree = tree.children
         target = self.coefficient(ref)
         names = _ClaimNames({p.name: p.symbol for p in self.b.parameters.values()}, len(self.names))

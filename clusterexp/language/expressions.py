@@ -9,7 +9,7 @@ from typing import Callable, Mapping
 import lark
 import sympy
 
-from .errors import InputError, Span
+from ..errors import InputError, Span
 from .hints import did_you_mean
 
 MAX_EXPONENT = 10000
@@ -31,7 +31,7 @@ FUNCTIONS: dict[str, tuple[Callable, int]] = {
 
 
 def _periodic(x, period):
-    from .periods import PeriodicPart
+    from ..exact.periods import PeriodicPart
     return PeriodicPart(x, period)
 CONSTANTS = {"pi": sympy.pi}
 

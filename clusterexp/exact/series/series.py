@@ -14,7 +14,7 @@ from typing import Callable, Iterator, Mapping, Sequence
 
 import sympy
 
-from ..errors import SeriesError
+from ...errors import SeriesError
 from .ring import PolynomialRing
 
 Index = tuple[int, ...]

@@ -8,14 +8,14 @@ from pathlib import Path
 import lark
 import sympy
 
-from .errors import InputError, Span
+from ..errors import InputError, Span
 from .expressions import FUNCTIONS, ExpressionBuilder
 from .hints import did_you_mean
-from .model import (FORMATS, QUANTITIES, Expansion, GivenValue, Mutual, OutputSettings, Parameter, Request, Source,
+from ..model import (FORMATS, QUANTITIES, Expansion, GivenValue, Mutual, OutputSettings, Parameter, Request, Source,
                     Species, System, Tubes)
-from .build_products import build_products, product_names, product_order
+from .statements import build_products, product_names, product_order
 from .parse import decode_source, parse, read_source, source_lines
-from .routes import REGIMES
+from ..routes import REGIMES
 
 MAX_ORDER = 200
 MAX_INCLUDE_BYTES = 4_000_000
@@ -376,7 +376,7 @@ class _Builder:
         estimator's domain is reported at its own line (clusterexp/loops/request.py)."""
         if not self.samplings:
             return ()
-        from .loops.request import build_samplings
+        from ..loops.request import build_samplings
         return build_samplings(self, source, names, order)
 
     def _size_limit(self, tree):

@@ -21,8 +21,8 @@ from typing import Mapping, Sequence
 
 import sympy
 
-from .errors import InputError
-from .naming import bracket_label, latex_subscript, species_latex
+from ..errors import InputError
+from ..naming import bracket_label, latex_subscript, species_latex
 from .numbers import Interval, atomic_write_bytes, exact_number, parameter_interval
 
 FORMATS = {".png": "png", ".pdf": "pdf", ".svg": "svg"}
@@ -108,7 +108,7 @@ def coefficient_latex(coefficient) -> str:
 
 def conventions_caption(system=None) -> str:
     """The conventions a figure of coefficients needs, in one or two plain-text lines."""
-    from .export.quantities import quantities
+    from ..export.quantities import quantities
     d = "d" if system is None else str(system.dimension)
     statistics = "exchange alpha = 0 bosons, 1 fermions (period 2); mutual alpha_ij period 1"
     q = quantities(system)
@@ -242,7 +242,7 @@ def _prepare(items, axes: list[str], other_values, system, parameters) -> tuple[
 
 
 def _evaluator(expr: sympy.Expr, axes: list[str], numpy):
-    from .periods import PeriodicPart
+    from ..exact.periods import PeriodicPart
     # periodic closed forms (pair phases) hold x mod p; numpy knows Mod, not our differentiable wrapper
     expr = expr.replace(PeriodicPart, lambda x, period: sympy.Mod(x, period, evaluate=False))
     symbols = {s.name: s for s in expr.free_symbols}

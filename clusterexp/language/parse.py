@@ -14,9 +14,9 @@ from pathlib import Path
 import lark
 from lark.exceptions import UnexpectedCharacters, UnexpectedEOF, UnexpectedInput, UnexpectedToken
 
-from .errors import InputError, Span
+from ..errors import InputError, Span
 from .hints import did_you_mean
-from .model import FORMATS, QUANTITIES
+from ..model import FORMATS, QUANTITIES
 from .resources import grammar_text
 
 MAX_LINE_LENGTH = 100_000    # characters; longer lines are refused before parsing (parse time grows with them)
