@@ -14,40 +14,19 @@ from .hints import did_you_mean
 from ..model import (FORMATS, QUANTITIES, Expansion, GivenValue, Mutual, OutputSettings, Parameter, Request, Source,
                     Species, System, Tubes)
 from .statements import build_products, product_names, product_order
-from .parse import decode_source, parse, read_source, source_lines
+from .parse import read_source
+from .sources import MAX_INCLUDE_BYTES, SourceFile as _File, collect as _collect  # noqa: F401 (MAX_INCLUDE_BYTES: the API)
 from ..routes import REGIMES
 
 MAX_ORDER = 200
-MAX_INCLUDE_BYTES = 4_000_000
 # regimes named by a word after `clusters` (with their forms); `spectrum { ... }` and `given { ... }` are
 # blocks of their own in the grammar
 REGIME_FORMS = {kind: regime.forms for kind, regime in REGIMES.items() if regime.forms}
-TRAP = sympy.Symbol("x")
 RESERVED = {"b", "a", "z", "rho", "pi", "I", "E"} | set(FUNCTIONS)
 GENERATED = re.compile(r"^(b|a|z|rho)_")
 DEFAULT_ORDER = 4
 # stands for a tube coverage declared as a number or an expression (reserved: GENERATED matches it)
 TUBE_COVERAGE = sympy.Symbol("rho_tubes", nonnegative=True)
-
-
-class _File:
-    """One source file: its name and text, for spans."""
-
-    def __init__(self, name: str, text: str):
-        self.name, self.lines = name, source_lines(text)
-
-    def span(self, item) -> Span:
-        if isinstance(item, lark.Token):
-            line, column = item.line or 1, item.column or 1
-            end = item.end_column if item.end_line == item.line else None
-        else:
-            meta = item.meta
-            if getattr(meta, "empty", True):
-                return Span(self.name, 1, 1, line_text=self.lines[0] if self.lines else "")
-            line, column = meta.line, meta.column
-            end = meta.end_column if meta.end_line == meta.line else None
-        text = self.lines[line - 1] if 0 < line <= len(self.lines) else ""
-        return Span(self.name, line, column, line, end, text)
 
 
 def build_system(text: str, filename: str = "<input>", base_dir: Path | None = None) -> System:
@@ -62,36 +41,6 @@ def build_system_from_file(path: Path | str) -> System:
     path = Path(path)
     text = read_source(path, MAX_INCLUDE_BYTES)
     return build_system(text, str(path), path.resolve().parent)
-
-
-def _collect(text: str, filename: str, base_dir: Path, stack: list[str]) -> list[tuple[lark.Tree, _File]]:
-    source = _File(filename, text)
-    out = []
-    for statement in parse(text, filename).children:
-        if statement.data == "include":
-            token = statement.children[0]
-            name = str(token)[1:-1]
-            try:
-                target = (base_dir / name).resolve()
-                regular = target.is_file()  # not a folder, device or FIFO
-                size = target.stat().st_size if regular else 0
-            except (OSError, ValueError):   # ValueError: a NUL in the name
-                raise InputError(f"cannot read included file {name!r}", source.span(token)) from None
-            if not regular:
-                raise InputError(f"cannot read included file {name}: not a regular file", source.span(token))
-            if size > MAX_INCLUDE_BYTES:
-                raise InputError(f"included file {name} is {size:,} bytes (at most {MAX_INCLUDE_BYTES:,})",
-                                 source.span(token))
-            if str(target) in stack:
-                raise InputError(f"include cycle: {target.name} includes itself", source.span(token))
-            try:
-                included = decode_source(target.read_bytes(), str(target))  # not UTF-8: refused at its place
-            except OSError:
-                raise InputError(f"cannot read included file {str(token)[1:-1]}", source.span(token)) from None
-            out += _collect(included, str(target), target.parent, stack + [str(target)])
-        else:
-            out.append((statement, source))
-    return out
 
 
 class _Builder:
