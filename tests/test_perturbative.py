@@ -272,6 +272,70 @@ def test_chain_part_of_one_species_and_the_published_third_virial_coefficient():
     assert named[e ** 2] == sympy.Symbol("t_b_3__e**2") and named[sympy.Abs(e)] == -1
 
 
+# ------------------------------------------------------------------------------------- toward the squares
+
+
+def _rotated_trace(alpha: float, phi: float) -> complex:
+    """(1/2) int_0^inf e^{-x} sum_l e^{i l phi} [I_{|l+alpha|}(x) - I_{|l|}(x)] dx: the relative
+    Aharonov-Bohm heat kernel from r to r rotated by phi, integrated over r (docs/perturbative.md, 4b)."""
+    from scipy.integrate import quad
+    from scipy.special import ive
+    ls = np.arange(-300, 301)
+    phase = np.exp(1j * ls * phi)
+
+    def integrand(x, part):
+        value = 0.5 * np.sum(phase * (ive(np.abs(ls + alpha), x) - ive(np.abs(ls), x)))
+        return value.real if part == 0 else value.imag
+    return complex(quad(integrand, 0, 300, args=(0,), limit=300)[0], quad(integrand, 0, 300, args=(1,), limit=300)[0])
+
+
+def test_exchange_loop_has_no_second_order_term():
+    """Two independent routes to the loop split of the exact b_2 (docs/perturbative.md, section 4b (i)):
+    the harmonic regulator's channel sums (route R3: relative levels |l + alpha| + 2 n_r + 1, exact sympy
+    limits) split b_2 - 1/4 into the direct part -alpha(1 - alpha)/2 (all l) and the exchange part
+    -alpha/2 (alternating in l); the Aharonov-Bohm heat kernel (scipy Bessel functions and quadrature)
+    gives the same two numbers at phi = 0 and phi = pi, and -alpha/(1 - e^{i phi}) at phi = 2 pi/3 (the
+    lemma: an open relative path carries no alpha^2). Their sum is the exact b_2 of Arovas, Schrieffer,
+    Wilczek, Zee 1985 (and the module's two-body coefficients)."""
+    t, a = sympy.symbols("t alpha", positive=True)
+    x = sympy.exp(-t)
+    # sum_l (+-1)^l x^{|l + a|} - (same at a = 0), 0 < a < 1, as closed geometric sums
+    direct = (x ** a + x ** (1 - a)) / (1 - x) - (1 + x) / (1 - x)
+    exchange = (x ** a - x ** (1 - a)) / (1 + x) - (1 - x) / (1 + x)
+    parts = [sympy.factor(sympy.limit(s * x / (1 - x ** 2), t, 0)) for s in (direct, exchange)]
+    assert sympy.expand(parts[0] + a * (1 - a) / 2) == 0 and sympy.expand(parts[1] + a / 2) == 0
+    b2 = expansion([Species(e)], {}, (2,), "boson", 2).subs(sympy.Abs(e), e)
+    assert sympy.expand(R(1, 4) + (parts[0] + parts[1]).subs(a, e) - b2) == 0
+    for value in (0.05, 0.2):
+        assert abs(_rotated_trace(value, 0.0) + value * (1 - value) / 2) < 1e-7
+        assert abs(_rotated_trace(value, math.pi) + value / 2) < 1e-7
+        assert abs(_rotated_trace(value, 2 * math.pi / 3) + value / (1 - np.exp(2j * math.pi / 3))) < 1e-7
+
+
+def test_three_body_term_is_the_circumradius():
+    """Identity of section 4b (ii), checked with numpy on random points: the alpha^2 part of
+    sum_a A_a^2 (A_a = sum_b z x r_ab / r_ab^2) is sum_pairs 2/r_ab^2 + sum_triples 1/R_abc^2, R the
+    circumradius from the side lengths (R = abc/(4 S), S by Heron; textbook geometry)."""
+    rng = np.random.default_rng(16)
+    for _ in range(20):
+        points = rng.normal(size=(5, 2))
+        total = 0.0
+        for i, p in enumerate(points):
+            rel = p - np.delete(points, i, axis=0)
+            field = np.stack([-rel[:, 1], rel[:, 0]], axis=1) / np.sum(rel ** 2, axis=1)[:, None]
+            total += np.sum(field.sum(axis=0) ** 2)
+        pairs = sum(2 / np.sum((points[i] - points[j]) ** 2) for i in range(5) for j in range(i + 1, 5))
+        triples = 0.0
+        for i in range(5):
+            for j in range(i + 1, 5):
+                for k in range(j + 1, 5):
+                    a_, b_, c_ = (np.linalg.norm(points[u] - points[v]) for u, v in ((j, k), (i, k), (i, j)))
+                    s = (a_ + b_ + c_) / 2
+                    area = math.sqrt(max(s * (s - a_) * (s - b_) * (s - c_), 0.0))
+                    triples += (4 * area / (a_ * b_ * c_)) ** 2
+        assert abs(total - pairs - triples) < 1e-9 * total
+
+
 # ------------------------------------------------------------------------------------- bad input
 
 
