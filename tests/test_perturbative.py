@@ -336,6 +336,38 @@ def test_three_body_term_is_the_circumradius():
         assert abs(total - pairs - triples) < 1e-9 * total
 
 
+def test_b3_loop_clusters_from_sen_symmetry():
+    """Section 4b (iii). Sen's symmetry a_3(alpha) = a_3(1 - alpha) (Phys. Rev. Lett. 68 (1992) 2977)
+    with a_3 = 4 b_2^2 - 2 b_3 and the pathwise behaviour of the loop clusters (docs/loops.md) makes the
+    cluster of a one-particle loop with a 2-cycle equal to b_2(alpha)^2 - b_2(1 - alpha)^2, b_2 the exact
+    two-body coefficient (here the module's, itself checked against route R3 above, about bosons and, for
+    1 - alpha, about fermions). Its alpha^2 coefficient 3/2 holds the H F part of the module's ring
+    (1, since the one-species ring (1/2)(H + F)^2 with H = F is 2 and its Hartree part H^2 is 1/2), so
+    X_L + X_A = 1/2. With the three-loop cluster (Hartree-only chains, 11/24) and the F^2 ring part (1/2)
+    of the 3-cycle, the published b_3^(2) = 59/24 (from a_3 = 1/36 + alpha^2/12, Myrheim & Olaussen 1993)
+    leaves X_C = 0 for the rest of the 3-cycle: recorded, not used by the module."""
+    b2_bose = expansion([Species(e)], {}, (2,), "boson", 2).subs(sympy.Abs(e), e)           # 0 <= e
+    b2_fermi = expansion([Species(e)], {}, (2,), "fermion", 2).subs(e, -e)                  # at 1 - e
+    pair_with_swap = sympy.expand(b2_bose ** 2 - b2_fermi ** 2)
+    assert pair_with_swap == sympy.expand(-e * (1 - e) * (1 - 2 * e) / 2)
+    assert pair_with_swap.coeff(e, 1) == R(-1, 2) and pair_with_swap.coeff(e, 2) == R(3, 2)
+    full = chain_part([Species(e)], {}, (3,))[e ** 2]
+    hartree_only = chain_part([Species(e)], {}, (3,), fock=False)[e ** 2]
+    landau = chain_part([Species(e)], {}, (3,), "fermion")[e ** 2]   # no contact about fermions
+    assert (full, hartree_only, landau) == (R(47, 24), R(11, 24), R(-1, 24))
+    ring_h2 = hartree_only - landau
+    ring = full - landau
+    ring_hf = ring - 2 * ring_h2                                       # H = F: (H + F)^2 = 2 H^2 + 2 H F
+    assert (ring, ring_h2, ring_hf) == (2, R(1, 2), 1)
+    x_l_plus_x_a = pair_with_swap.coeff(e, 2) - ring_hf
+    assert x_l_plus_x_a == R(1, 2)
+    published_b3 = sympy.expand((4 * b2_bose ** 2 - (R(1, 36) + e ** 2 / 12)) / 2).coeff(e, 2)
+    x_c = published_b3 - (hartree_only + pair_with_swap.coeff(e, 2) + ring_h2)
+    assert published_b3 == R(59, 24) and x_c == 0
+    with pytest.raises(NotSupportedYet):   # X_C is not derived, so b_3^(2) is not returned
+        taylor_coefficients([Species(e)], {}, (3,), "boson", 2)
+
+
 # ------------------------------------------------------------------------------------- bad input
 
 
