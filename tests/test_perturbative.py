@@ -272,6 +272,124 @@ def test_chain_part_of_one_species_and_the_published_third_virial_coefficient():
     assert named[e ** 2] == sympy.Symbol("t_b_3__e**2") and named[sympy.Abs(e)] == -1
 
 
+# ------------------------------------------------------------------------------------- toward the squares
+
+
+def _rotated_trace(alpha: float, phi: float) -> complex:
+    """(1/2) int_0^inf e^{-x} sum_l e^{i l phi} [I_{|l+alpha|}(x) - I_{|l|}(x)] dx: the relative
+    Aharonov-Bohm heat kernel from r to r rotated by phi, integrated over r (docs/perturbative.md, 4b)."""
+    from scipy.integrate import quad
+    from scipy.special import ive
+    ls = np.arange(-300, 301)
+    phase = np.exp(1j * ls * phi)
+
+    def integrand(x, part):
+        value = 0.5 * np.sum(phase * (ive(np.abs(ls + alpha), x) - ive(np.abs(ls), x)))
+        return value.real if part == 0 else value.imag
+    return complex(quad(integrand, 0, 300, args=(0,), limit=300)[0], quad(integrand, 0, 300, args=(1,), limit=300)[0])
+
+
+def test_exchange_loop_has_no_second_order_term():
+    """Two independent routes to the loop split of the exact b_2 (docs/perturbative.md, section 4b (i)):
+    the harmonic regulator's channel sums (route R3: relative levels |l + alpha| + 2 n_r + 1, exact sympy
+    limits) split b_2 - 1/4 into the direct part -alpha(1 - alpha)/2 (all l) and the exchange part
+    -alpha/2 (alternating in l); the Aharonov-Bohm heat kernel (scipy Bessel functions and quadrature)
+    gives the same two numbers at phi = 0 and phi = pi, and -alpha/(1 - e^{i phi}) at phi = 2 pi/3 (the
+    lemma: an open relative path carries no alpha^2). Their sum is the exact b_2 of Arovas, Schrieffer,
+    Wilczek, Zee 1985 (and the module's two-body coefficients)."""
+    t, a = sympy.symbols("t alpha", positive=True)
+    x = sympy.exp(-t)
+    # sum_l (+-1)^l x^{|l + a|} - (same at a = 0), 0 < a < 1, as closed geometric sums
+    direct = (x ** a + x ** (1 - a)) / (1 - x) - (1 + x) / (1 - x)
+    exchange = (x ** a - x ** (1 - a)) / (1 + x) - (1 - x) / (1 + x)
+    parts = [sympy.factor(sympy.limit(s * x / (1 - x ** 2), t, 0)) for s in (direct, exchange)]
+    assert sympy.expand(parts[0] + a * (1 - a) / 2) == 0 and sympy.expand(parts[1] + a / 2) == 0
+    b2 = expansion([Species(e)], {}, (2,), "boson", 2).subs(sympy.Abs(e), e)
+    assert sympy.expand(R(1, 4) + (parts[0] + parts[1]).subs(a, e) - b2) == 0
+    for value in (0.05, 0.2):
+        assert abs(_rotated_trace(value, 0.0) + value * (1 - value) / 2) < 1e-7
+        assert abs(_rotated_trace(value, math.pi) + value / 2) < 1e-7
+        assert abs(_rotated_trace(value, 2 * math.pi / 3) + value / (1 - np.exp(2j * math.pi / 3))) < 1e-7
+
+
+def test_three_body_term_is_the_circumradius():
+    """Identity of section 4b (ii), checked with numpy on random points: the alpha^2 part of
+    sum_a A_a^2 (A_a = sum_b z x r_ab / r_ab^2) is sum_pairs 2/r_ab^2 + sum_triples 1/R_abc^2, R the
+    circumradius from the side lengths (R = abc/(4 S), S by Heron; textbook geometry)."""
+    rng = np.random.default_rng(16)
+    for _ in range(20):
+        points = rng.normal(size=(5, 2))
+        total = 0.0
+        for i, p in enumerate(points):
+            rel = p - np.delete(points, i, axis=0)
+            field = np.stack([-rel[:, 1], rel[:, 0]], axis=1) / np.sum(rel ** 2, axis=1)[:, None]
+            total += np.sum(field.sum(axis=0) ** 2)
+        pairs = sum(2 / np.sum((points[i] - points[j]) ** 2) for i in range(5) for j in range(i + 1, 5))
+        triples = 0.0
+        for i in range(5):
+            for j in range(i + 1, 5):
+                for k in range(j + 1, 5):
+                    a_, b_, c_ = (np.linalg.norm(points[u] - points[v]) for u, v in ((j, k), (i, k), (i, j)))
+                    s = (a_ + b_ + c_) / 2
+                    area = math.sqrt(max(s * (s - a_) * (s - b_) * (s - c_), 0.0))
+                    triples += (4 * area / (a_ * b_ * c_)) ** 2
+        assert abs(total - pairs - triples) < 1e-9 * total
+
+
+def test_b3_loop_clusters_from_sen_symmetry():
+    """Section 4b (iii). Sen's symmetry a_3(alpha) = a_3(1 - alpha) (Phys. Rev. Lett. 68 (1992) 2977)
+    with a_3 = 4 b_2^2 - 2 b_3 and the pathwise behaviour of the loop clusters (docs/loops.md) makes the
+    cluster of a one-particle loop with a 2-cycle equal to b_2(alpha)^2 - b_2(1 - alpha)^2, b_2 the exact
+    two-body coefficient (here the module's, itself checked against route R3 above, about bosons and, for
+    1 - alpha, about fermions). Its alpha^2 coefficient 3/2 holds the H F part of the module's ring
+    (1, since the one-species ring (1/2)(H + F)^2 with H = F is 2 and its Hartree part H^2 is 1/2), so
+    X_L + X_A = 1/2. With the three-loop cluster (Hartree-only chains, 11/24) and the F^2 ring part (1/2)
+    of the 3-cycle, the published b_3^(2) = 59/24 (from a_3 = 1/36 + alpha^2/12, Myrheim & Olaussen 1993)
+    leaves X_C = 0 for the rest of the 3-cycle: recorded, not used by the module."""
+    b2_bose = expansion([Species(e)], {}, (2,), "boson", 2).subs(sympy.Abs(e), e)           # 0 <= e
+    b2_fermi = expansion([Species(e)], {}, (2,), "fermion", 2).subs(e, -e)                  # at 1 - e
+    pair_with_swap = sympy.expand(b2_bose ** 2 - b2_fermi ** 2)
+    assert pair_with_swap == sympy.expand(-e * (1 - e) * (1 - 2 * e) / 2)
+    assert pair_with_swap.coeff(e, 1) == R(-1, 2) and pair_with_swap.coeff(e, 2) == R(3, 2)
+    full = chain_part([Species(e)], {}, (3,))[e ** 2]
+    hartree_only = chain_part([Species(e)], {}, (3,), fock=False)[e ** 2]
+    landau = chain_part([Species(e)], {}, (3,), "fermion")[e ** 2]   # no contact about fermions
+    assert (full, hartree_only, landau) == (R(47, 24), R(11, 24), R(-1, 24))
+    ring_h2 = hartree_only - landau
+    ring = full - landau
+    ring_hf = ring - 2 * ring_h2                                       # H = F: (H + F)^2 = 2 H^2 + 2 H F
+    assert (ring, ring_h2, ring_hf) == (2, R(1, 2), 1)
+    x_l_plus_x_a = pair_with_swap.coeff(e, 2) - ring_hf
+    assert x_l_plus_x_a == R(1, 2)
+    published_b3 = sympy.expand((4 * b2_bose ** 2 - (R(1, 36) + e ** 2 / 12)) / 2).coeff(e, 2)
+    x_c = published_b3 - (hartree_only + pair_with_swap.coeff(e, 2) + ring_h2)
+    assert published_b3 == R(59, 24) and x_c == 0
+    with pytest.raises(NotSupportedYet):   # X_C is not derived, so b_3^(2) is not returned
+        taylor_coefficients([Species(e)], {}, (3,), "boson", 2)
+
+
+def test_three_cycle_cluster_against_the_loop_monte_carlo():
+    """Independent route for section 4b (iii): the Brownian-loop estimator's `cycle` family of b_3
+    (docs/loops.md) at alpha = 0, +-0.04, +-0.08 on shared loops. Its even part is fitted as
+    1/9 + c1 a + c2 a^2: c1 must be the derived -1/2 (half of b_3^(1) = -1, the other half being the
+    loop + 2-cycle cluster from Sen's symmetry) and c2 the ring part 1/2 plus X_C, which the published a_3
+    (Myrheim & Olaussen 1993) puts at 0; a 3-cycle without its F^2 ring part (c2 = 0) or with a local
+    vertex on top (c2 = 1) is rejected. The long run of docs/perturbative.md, section 6, gives 0.495(7);
+    the tolerance allows 0.05 for third-order terms plus four standard errors."""
+    from clusterexp.loops import scan_third_order
+    a = 0.04
+    runs = scan_third_order("identical", alphas=[0.0, a, 2 - a, 2 * a, 2 - 2 * a], samples=600_000, seed=11,
+                            workers=1)
+    f0, p1, m1, p2, m2 = (r.parts["cycle"] for r in runs)
+    assert abs(f0.value - 1 / 9) < 1e-12
+    even1, even2 = (p1.value + m1.value) / 2, (p2.value + m2.value) / 2
+    c2 = (even2 - f0.value - 2 * (even1 - f0.value)) / (2 * a * a)
+    c1 = (even1 - f0.value - c2 * a * a) / a
+    error = math.sqrt((p2.error ** 2 + m2.error ** 2) / 4 + (p1.error ** 2 + m1.error ** 2)) / (2 * a * a)
+    assert abs(c1 + 0.5) < 0.02 + 4 * error * a, (c1, error)
+    assert abs(c2 - 0.5) < 0.05 + 4 * error, (c2, error)
+
+
 # ------------------------------------------------------------------------------------- bad input
 
 
