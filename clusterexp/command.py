@@ -177,9 +177,11 @@ def _run(args, progress) -> int:
     for claim, result in zip(derivation.system.claims, derivation.checks):
         if result.status == TIE:   # not a failure (exit 0), but never silent
             _say(f"{claim.span}: check undecided: {result.label} is a rounding tie; write one more digit")
-        elif result.status == UNDECIDED:
+        elif result.status == UNDECIDED and result.conditions:
             _say(f"{claim.span}: check undecided: {result.label} holds only if unknown many-body pieces take "
                  "the stated values")
+        elif result.status == UNDECIDED:
+            _say(f"{claim.span}: check undecided: {result.label}: {result.method}")
     return EXIT_CHECK_FAILED if failed else EXIT_OK
 
 

@@ -135,6 +135,7 @@ def expansion_of(label: str, value: sympy.Expr, expansion, system, index=None) -
     symbol, point, order, side, span = (expansion.symbol, expansion.point, expansion.order, expansion.side,
                                         expansion.span)
     exact, limits = split_truncation(value)
+    _check_point(label, exact, symbol, point, parameters, span)
     known = order
     if symbol in limits:
         if point != 0:
@@ -165,7 +166,30 @@ def expansion_of(label: str, value: sympy.Expr, expansion, system, index=None) -
     for s in sides:
         derived: list[str] = []
         expanded, unknowns = expand_pieces(system, exact, [(symbol, point, known, s)], derived)
-        out.append(SeriesPiece(symbol, point, order, known, s, kinked, edge is not None,
-                               one_sided_series(expanded, symbol, point, known, s or "above"), (own,) + others,
-                               tuple(unknowns), notes + tuple(derived)))
+        try:
+            polynomial = one_sided_series(expanded, symbol, point, known, s or "above")
+        except (sympy.PolynomialError, NotImplementedError, ValueError, TypeError) as error:
+            raise InputError(f"{label} has no Taylor series in {symbol} about {symbol} = {point} "
+                             f"({type(error).__name__}: a pole or a branch point there)", span) from None
+        out.append(SeriesPiece(symbol, point, order, known, s, kinked, edge is not None, polynomial,
+                               (own,) + others, tuple(unknowns), notes + tuple(derived)))
     return out
+
+
+def _check_point(label, exact, symbol, point, parameters, span) -> None:
+    """Refuse an expansion point outside the declared range (the printed branch holds inside it only)
+    and one where a periodic part also depends on other parameters (its jumps are not decided there)."""
+    from .errors import InputError
+    p = next((p for p in parameters if p.symbol == symbol), None)
+    if p is not None:
+        below = p.lower is not None and bool(sympy.simplify(point - p.lower) < 0)
+        above = p.upper is not None and bool(sympy.simplify(point - p.upper) > 0)
+        if below or above:
+            raise InputError(f"{symbol} = {point} lies outside the declared range of {symbol}; the coefficients "
+                             "are printed for that range only (a periodic closed form on one branch): expand "
+                             "about a point inside it, or widen the range", span)
+    for part in exact.atoms(sympy.floor, sympy.Mod, PeriodicPart):
+        if symbol in part.free_symbols and not part.args[0].subs(symbol, point).is_number:
+            raise InputError(f"{label}: its periodic part {sympy.sstr(part)} depends on other parameters too, so "
+                             f"whether it jumps at {symbol} = {point} is not decided; declare their ranges inside "
+                             "one period", span)

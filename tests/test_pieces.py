@@ -229,3 +229,40 @@ def test_first_order_in_two_parameters_at_once_leaves_only_the_cross_term_unknow
     (result,) = d.checks
     assert result.status == "undecided", result.render()
     assert [e.lhs.name for e in result.conditions] == ["b_2_1_alpha_1_above_nu_1_above"]
+
+
+@pytest.mark.parametrize("text, message", [
+    # the printed branch holds on the declared range only: a[2] about 5/2 is 1/8 + (alpha - 5/2)/2 by the
+    # period 2, not the [0, 1] branch continued
+    ("parameter alpha in [0, 1] species A exchange alpha clusters pairphase derive virial up to 2 "
+     "expand alpha about 5/2 to 1", "lies outside the declared range"),
+    # whether Mod(alpha + beta, 1) jumps at alpha = 0 depends on beta
+    ("parameter alpha, beta species A exchange alpha species B exchange beta mutual A B = alpha + beta "
+     "clusters pairphase derive virial up to 3 expand alpha about 0 to 1 from above", "not decided"),
+    # a[0,2] = -1/(4 m): a pole, not a traceback
+    ("parameter m positive species A bose species B bose mass m clusters pairphase derive virial up to 2 "
+     "expand m about 0 to 1", "has no Taylor series"),
+])
+def test_series_that_cannot_be_printed_honestly_are_refused(text, message):
+    out = run_cli("run", "--no-files", "-e", "dimension 2 " + text)
+    assert out.returncode == 2 and message in out.stderr and "Traceback" not in out.stderr
+
+
+def test_a_numeric_tube_coverage_cannot_refute_a_claim_that_differs_at_second_order():
+    """With the coverage a number, the O(coverage^2) terms left out are numbers too: a claim that differs
+    from the first-order value only there (here by rho^2 g^2 (1 - g)^2) is undecided, not wrong."""
+    d = clusterexp.derive("dimension 2 parameter g in [0, 1] species A bose tubes flux g coverage 1/10 "
+                          "clusters pairphase derive cluster up to 2 "
+                          "claim b[1] = 1 - g/20 + g^2/20 + g^2*(1-g)^2/100")
+    (result,) = d.checks
+    assert result.status == "undecided" and result.ok
+
+
+def test_generic_coefficients_are_not_sampled_in_a_truncated_claim():
+    """`clusters generic` with an exchange parameter: a truncated claim names the b's Taylor coefficients
+    and states the equations on them, instead of sampling them as if they were parameters."""
+    d = clusterexp.derive("dimension 2 parameter alpha in [0, 1] species A exchange alpha clusters generic "
+                          "derive virial up to 3 claim a[3] = 1/36 + O(alpha^2)")
+    (result,) = d.checks
+    assert result.status == "undecided"
+    assert not any("sampled" in note for note in result.notes)

@@ -80,6 +80,10 @@ class CheckResult:
             lines = [f"proven: {self._subject()} equals the derived value ({self.method})"]
         elif self.status == TIE:
             lines = [f"rounding tie, neither consistent nor refuted: {self._subject()}: {self.method}"]
+        elif self.status == UNDECIDED and not self.conditions:
+            lines = [f"undecided: {self._subject()}: {self.method}"]
+            if self.difference is not None:
+                lines.append(f"  claimed - derived = {_text(self.difference)}")
         elif self.status == UNDECIDED:
             lines = [f"undecided: {self._subject()} holds if and only if the named many-body pieces satisfy "
                      f"({self.method}):"] + [f"  {_text(e.lhs)} = {_text(e.rhs)}" for e in self.conditions]

@@ -12,7 +12,7 @@ from pathlib import Path
 
 import sympy
 
-from .check_result import CheckList
+from .check_result import MISMATCH, UNDECIDED, CheckList
 from .checks import check_claim, check_decimal_claim, check_with_pieces
 from ..errors import InputError
 from .numbers import csv_bytes, evaluate, format_number, grid_table
@@ -36,7 +36,7 @@ def run_checks(derivation) -> list:
 
     A claim ending in O(p^k), or a derived value known only below some power (given truncated
     series), is compared below the lower of the two limits in each parameter."""
-    from ..pieces import truncate_pieces
+    from ..pieces import truncate_pieces, unknowns_in
     from ..routes import regime_of
     from ..expansions import split_truncation, truncate
     from ..export.latex import claim_latex_name, latex_symbol_names
@@ -72,9 +72,10 @@ def run_checks(derivation) -> list:
                 notes.append(f"the derived value is known only up to {_limits_text(known)}")
         as_decimal = bool(claim.rounded) and not limits and not derived.free_symbols
         try:
-            # named pieces are unknown functions in this regime, not free symbols to sample
+            # named pieces are unknown functions in this regime (and named Taylor coefficients are unknown
+            # numbers in any regime), not free symbols to sample
             result = check_with_pieces(claimed, derived, system, label=label) \
-                if regime_of(system).named_pieces else None
+                if regime_of(system).named_pieces or unknowns_in([claimed, derived]) else None
             if result is not None:
                 pass
             elif as_decimal:
@@ -83,6 +84,14 @@ def run_checks(derivation) -> list:
                 result = check_claim(claimed, derived, system.parameters, label=label)
         except InputError as error:
             raise _at(error, claim.span) from None
+        tubes = system.tubes
+        if result.status == MISMATCH and tubes is not None and tubes.value is not None and tubes.coverage in known:
+            # the coverage is a number here, so the terms of order coverage^2 left out are numbers too: a
+            # difference in them cannot be told from a wrong claim
+            result = replace(result, status=UNDECIDED, method=(
+                f"the derived value is known to first order in the tube coverage {tubes.coverage} = {tubes.value} "
+                "only, and the difference may lie in the terms left out; declare the coverage as a parameter "
+                "to decide"))
         if not result.ok and claim.decimals and not as_decimal:
             exact = ", ".join(f"{d} = {sympy.Rational(d)}" for d in claim.decimals[:3])
             notes.append(f"decimals inside a claim are read as exact fractions ({exact}); a claim that is one "
