@@ -412,3 +412,40 @@ def conditions(system, difference: sympy.Expr) -> list[sympy.Expr] | None:
                     break
         out.append(solved if solved is not None else sympy.Eq(part, 0, evaluate=False))
     return sorted(out, key=lambda e: sympy.sstr(e))
+
+
+def refuse_contradicted_given(system) -> None:
+    """A given cluster series `b[n] = c_0 + c_1 p + ... + O(p^k)` must agree with the Taylor coefficients
+    the tool knows (the value at a boson or fermion point, the perturbative route's derived orders),
+    on the side of p = 0 where p's declared range lies; a contradiction is refused at its line."""
+    from .errors import InputError
+    from .exact.orders import split_truncation
+    from .naming import cluster_symbol
+    for v in system.source.values:
+        exact, limits = split_truncation(v.value)
+        if v.kind != "cluster" or len(limits) != 1:
+            continue
+        (symbol, k), = limits.items()
+        if symbol not in depends_on(system, cluster_symbol(v.index)):
+            continue
+        side = side_in_range(system.parameters, symbol, 0)
+        try:
+            known, _ = expand_pieces(system, cluster_symbol(v.index), [(symbol, sympy.Integer(0), k - 1, side)])
+        except ValueError:   # a kink with no side: the given series is refused elsewhere or cut
+            continue
+        unknown = {u.symbol for u in unknowns_in([known])}
+        stated = sympy.Poly(sympy.expand(exact), symbol) if exact.is_polynomial(symbol) else None
+        mine = sympy.Poly(sympy.expand(known), symbol) if known.is_polynomial(symbol) else None
+        if stated is None or mine is None:
+            continue
+        for power in range(k):
+            tool = mine.coeff_monomial(symbol ** power)
+            if (unknown and tool.has(*unknown)) or pieces_in(tool, len(system.species)):
+                continue
+            given = stated.coeff_monomial(symbol ** power)
+            if sympy.simplify(given - tool) != 0:
+                what = "value" if power == 0 else f"coefficient of {symbol}^{power}" if power > 1 else \
+                    f"coefficient of {symbol}"
+                raise InputError(f"b{list(v.index)} is given with the {what} equal to {given}, but the tool knows it is "
+                                 f"{tool} (about {symbol} = 0{' from ' + side if side else ''}: ideal-gas value or "
+                                 "perturbative route, docs/perturbative.md)", v.span)

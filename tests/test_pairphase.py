@@ -179,13 +179,14 @@ def _assert_honest(got, reference, tails, limits):
 
 def test_two_species_three_body_series_give_mixed_virials_to_the_honest_order():
     """b[2,1] given to O(nu^2) and b[1,2] to O(nu^3): a_{2,1} comes to O(nu^2), a_{1,2} to O(nu^3), a_{1,1}
-    exact; checked against a plain-sympy b -> a iteration in which the unknown tails are symbols."""
+    exact; checked against a plain-sympy b -> a iteration in which the unknown tails are symbols. (The
+    given values vanish at nu = 0, as every mixed b of species that do not braid must.)"""
     d = clusterexp.derive("dimension 2 parameter nu in [0, 1) species A exchange 1/2 species B mass 2 fermi "
-                          "mutual A B = nu clusters pairphase { b[2,1] = 1/7 + nu/3 + O(nu^2) "
+                          "mutual A B = nu clusters pairphase { b[2,1] = nu/3 + O(nu^2) "
                           "b[1,2] = 2*nu/5 - nu^2 + O(nu^3) } derive virial up to 3")
     b = _two_body(1, HALF, 2, 1, NU)
     b.update({(3, 0): sympy.Symbol("b_3_0"), (0, 3): 2 * sympy.Rational(1, 9),   # B: ideal Fermi, b_3 = (m/m_ref)/9
-              (2, 1): sympy.Rational(1, 7) + NU / 3 + X * NU ** 2, (1, 2): 2 * NU / 5 - NU ** 2 + Y * NU ** 3})
+              (2, 1): NU / 3 + X * NU ** 2, (1, 2): 2 * NU / 5 - NU ** 2 + Y * NU ** 3})
     reference = virial_by_iteration(b, 3)
     _assert_honest(d.value("virial", (2, 1)), reference[(2, 1)], {X}, {NU: 2})
     _assert_honest(d.value("virial", (1, 2)), reference[(1, 2)], {Y}, {NU: 3})
@@ -198,11 +199,11 @@ def test_mixed_exact_and_series_inputs_keep_the_lowest_order_of_what_each_coeffi
     O(w^2) only, a_{2,2} (which uses all three) O(nu^2) + O(w^2)."""
     d = clusterexp.derive("dimension 2 parameter nu in [0, 1) parameter w species A bose species B mass 2 fermi "
                           "mutual A B = nu clusters pairphase { b[2,1] = nu^3/5  b[1,2] = w/3 + O(w^2) "
-                          "b[2,2] = nu*w + O(nu^2) } derive virial a[2,1], a[1,2], a[2,2], a[3,1]")
+                          "b[2,2] = 3*nu/8 + O(nu^2) } derive virial a[2,1], a[1,2], a[2,2], a[3,1]")
     b = _two_body(1, 0, 2, 1, NU)
     b.update({(3, 0): sympy.Rational(1, 9), (0, 3): 2 * sympy.Rational(1, 9), (4, 0): sympy.Rational(1, 16),
               (0, 4): -2 * sympy.Rational(1, 16), (2, 1): NU ** 3 / 5, (1, 2): W / 3 + Y * W ** 2,
-              (2, 2): NU * W + X * NU ** 2, (3, 1): sympy.Symbol("b_3_1"), (1, 3): sympy.Symbol("b_1_3")})
+              (2, 2): 3 * NU / 8 + X * NU ** 2, (3, 1): sympy.Symbol("b_3_1"), (1, 3): sympy.Symbol("b_1_3")})
     reference = virial_by_iteration(b, 4)
     a21 = d.value("virial", (2, 1))
     assert not a21.has(sympy.Order) and sympy.expand(_by_name(a21) - reference[(2, 1)]) == 0
@@ -425,3 +426,20 @@ def test_numeric_tube_coverage_stays_first_order_and_leaves_every_virial_coeffic
         assert b.removeO() == expected and b.getO() is not None
     text = clusterexp.export.to_text(d)
     assert "rho_tubes = 1/100 (as declared)" in text and "O(rho_tubes**2)" in text
+
+
+@pytest.mark.parametrize("given, message", [
+    # b_3(0) is the ideal Bose 1/9 [Viefers, Ravndal, Haugset, Am. J. Phys. 63 (1995) 369]
+    ("parameter alpha in [0, 1] species A exchange alpha clusters pairphase { b[3] = 1/8 + O(alpha) }",
+     "the value equal to 1/8, but the tool knows it is 1/9"),
+    # from below the boson point b_3 = 1/9 + alpha + ... (b_3 even in alpha; first order -(2/3) H_2 = -1
+    # from above: physics.md section 5, derived from Dasnieres de Veigy & Ouvry 1992)
+    ("parameter alpha in [-1, 0] species A exchange alpha clusters pairphase { b[3] = 1/9 - alpha + O(alpha^2) }",
+     "coefficient of alpha equal to -1, but the tool knows it is 1"),
+    # a mixed b of species that do not braid at nu = 0 vanishes there (a fact of the trade)
+    ("parameter nu in [0, 1] species A bose species B bose mutual A B = nu clusters pairphase "
+     "{ b[2,1] = 1/7 + O(nu) }", "the value equal to 1/7, but the tool knows it is 0"),
+])
+def test_a_given_series_that_contradicts_what_the_tool_knows_is_refused(given, message):
+    with pytest.raises(InputError, match=message):
+        clusterexp.derive("dimension 2 " + given + " derive virial up to 3")

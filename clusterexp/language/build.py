@@ -111,6 +111,9 @@ class _Builder:
                         size_limit=self.size_limit, tubes=self.tubes, expansions=self._expansions(),
                         samplings=samplings, **products)
         REGIMES[source.kind].check_system(system)
+        if REGIMES[source.kind].named_pieces:
+            from ..pieces import refuse_contradicted_given
+            refuse_contradicted_given(system)
         return system
 
     def _first_span(self) -> Span:
