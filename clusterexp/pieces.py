@@ -277,7 +277,7 @@ def derived_taylor(system, piece: sympy.Symbol, used) -> tuple[dict, int] | None
     occupied = [i for i, n in enumerate(index) if n]
     deviations = {}   # perturbative symbol -> (deviation in the shifts, sign of |deviation| on the side)
 
-    def deviation(expr, period):
+    def deviation(expr):
         expr = sympy.sympify(expr)
         at = expr.subs(point)
         if not at.is_Integer or not expr.free_symbols <= set(point):
@@ -308,7 +308,7 @@ def derived_taylor(system, piece: sympy.Symbol, used) -> tuple[dict, int] | None
             species.append(Perturbed(None, mass))
             about.append("boson")
             continue
-        found = deviation(s.exchange, 2)
+        found = deviation(s.exchange)
         if found is None:
             return None
         at, dev = found
@@ -319,7 +319,7 @@ def derived_taylor(system, piece: sympy.Symbol, used) -> tuple[dict, int] | None
         species.append(Perturbed(symbol, mass))
     mutual = {}
     for i, j in itertools.combinations(occupied, 2):
-        found = deviation(system.mutual(names[i], names[j]), 1)
+        found = deviation(system.mutual(names[i], names[j]))
         if found is None:
             return None
         if found[1]:
@@ -373,13 +373,6 @@ def truncate_pieces(system, value, limits: Mapping[sympy.Symbol, int]) -> tuple[
                              f"declare the range of {symbol} on one side of 0")
         variables.append((symbol, sympy.Integer(0), k - 1, side))
     return expand_pieces(system, value, variables)
-
-
-def unknowns_text(unknowns: Sequence[Unknown]) -> list[str]:
-    """One line per unknown: `name = coefficient of ... in b[3] about ...`."""
-    return [f"{u.symbol} = {u.description}" for u in unknowns]
-
-
 
 
 def conditions(system, difference: sympy.Expr) -> list[sympy.Expr] | None:

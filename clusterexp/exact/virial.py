@@ -115,12 +115,12 @@ def _nspecies(coefficients: Mapping[Index, object], nspecies: int | None) -> int
     raise ValueError("cannot tell the number of species from an empty table; pass nspecies")
 
 
-def _unit(K: int, i: int) -> Index:
+def unit_index(K: int, i: int) -> Index:
     return tuple(1 if j == i else 0 for j in range(K))
 
 
 def _linear(values: Mapping[Index, object], K: int) -> list[sympy.Expr]:
-    return [sympy.sympify(values.get(_unit(K, i), 1)) for i in range(K)]
+    return [sympy.sympify(values.get(unit_index(K, i), 1)) for i in range(K)]
 
 
 def _mass_power(linear: Sequence[sympy.Expr], index: Index) -> sympy.Expr:
@@ -321,7 +321,7 @@ def virial_to_cluster(a: Mapping[Index, object], order: int, nspecies: int | Non
     lin = [sympy.sympify(c) for c in (linear or [1] * K)]
     higher = {tuple(n): sympy.sympify(v) for n, v in a.items() if 2 <= sum(n) <= order and v != 0}
     ring = _working_ring(higher, K, backend)
-    coefficients = {_unit(K, i): 1 for i in range(K)}
+    coefficients = {unit_index(K, i): 1 for i in range(K)}
     coefficients.update(higher)
     P = Series.from_coefficients(ring, order + 1, coefficients)
     H = Series(ring, P.order, [ring.zero, ring.zero] +

@@ -9,11 +9,8 @@ import sympy
 
 from ..naming import cluster_symbol, virial_symbol
 from ..exact.series import indices_up_to
+from ..exact.virial import unit_index
 from .base import Clusters, Regime
-
-
-def unit(K: int, i: int) -> tuple[int, ...]:
-    return tuple(1 if j == i else 0 for j in range(K))
 
 
 class GenericRegime(Regime):
@@ -26,7 +23,7 @@ class GenericRegime(Regime):
         if plan.given_kind == "virial":
             from ..exact.virial import virial_to_cluster
             return Clusters(virial_to_cluster(plan.virial, plan.order, plan.K, linear=plan.linear))
-        b = {unit(plan.K, i): c for i, c in enumerate(plan.linear)}
+        b = {unit_index(plan.K, i): c for i, c in enumerate(plan.linear)}
         for index in indices_up_to(plan.K, plan.order, start=2):
             b[index] = plan.given.get(index, cluster_symbol(index))
         return Clusters(b)
@@ -34,7 +31,7 @@ class GenericRegime(Regime):
     def virials(self, plan) -> Mapping | None:
         if plan.given_kind != "virial":
             return None
-        a = {unit(plan.K, i): sympy.Integer(1) for i in range(plan.K)}
+        a = {unit_index(plan.K, i): sympy.Integer(1) for i in range(plan.K)}
         for index in indices_up_to(plan.K, plan.order, start=2):
             a[index] = plan.given.get(index, virial_symbol(index))
         return a

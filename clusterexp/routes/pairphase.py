@@ -260,7 +260,8 @@ class PairPhaseRegime(Regime):
         pieces = self._pieces(plan)
         given = plan.given_exact
         if plan.given_kind == "virial":
-            linear = [pieces[_unit(plan.K, i)] for i in range(plan.K)]
+            from ..exact.virial import unit_index
+            linear = [pieces[unit_index(plan.K, i)] for i in range(plan.K)]
             return Clusters(virial_to_cluster(plan.virial, plan.order, plan.K, linear=linear))
         out = {}
         for n, value in pieces.items():
@@ -335,7 +336,3 @@ class PairPhaseRegime(Regime):
                 text += (rf" The coverage is declared as ${coverage}={sympy.latex(system.tubes.value)}$; the values "
                          rf"are first order in it, $O({coverage}^2)$ unknown.")
         return [text]
-
-
-def _unit(K: int, i: int) -> tuple[int, ...]:
-    return tuple(1 if j == i else 0 for j in range(K))
