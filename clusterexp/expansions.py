@@ -82,6 +82,10 @@ class SeriesPiece:
         return self.side is not None
 
     @property
+    def heading(self) -> str:
+        return f"{self.variable} about {self.point} through order {self.known}"
+
+    @property
     def description(self) -> str:
         where = f"{self.variable} = {self.point}"
         if self.side is None:
@@ -124,27 +128,154 @@ def _constant_givens(system, symbol, index) -> tuple[str, ...]:
     return tuple(out)
 
 
+@dataclass(frozen=True)
+class TotalDegree:
+    """The remainder of a joint series: every monomial of total degree `degree` in the deviations
+    (p - p0, q - q0, ...) and beyond. `expr` is the sum of the monomials of that degree (printed inside
+    O(...) in text and LaTeX)."""
+
+    degree: int
+    deviations: tuple
+
+    @property
+    def expr(self) -> sympy.Expr:
+        from itertools import combinations_with_replacement
+        return sympy.Add(*(sympy.Mul(*c) for c in combinations_with_replacement(self.deviations, self.degree)))
+
+    def __str__(self) -> str:
+        return f"O({sympy.sstr(self.expr)})"
+
+
+@dataclass(frozen=True)
+class JointSeriesPiece(SeriesPiece):
+    """A joint series in several parameters through total degree `known` (`expand p, q about ...`):
+    `variables` ((symbol, point, side), ...), the first repeated in variable/point/side."""
+
+    variables: tuple = ()
+
+    @property
+    def heading(self) -> str:
+        names = ", ".join(str(v) for v, _, _ in self.variables)
+        points = ", ".join(str(p) for _, p, _ in self.variables)
+        return f"{names} about {points} through total degree {self.known}"
+
+    @property
+    def description(self) -> str:
+        parts = []
+        for v, p, s in self.variables:
+            if s is not None:
+                parts.append(f"{v} from {s}")
+        text = "joint Taylor series" + (f"; one-sided: {', '.join(parts)}" if parts else "")
+        if self.known < self.order:
+            text += f"; the given series stop at total degree {self.known}"
+        for note in self.notes:
+            text += f"; {note}"
+        return text
+
+
+def _freeze(expr: sympy.Expr, probes: dict, label, span) -> sympy.Expr:
+    """expr with every periodic part (floor, Mod) that involves the expansion variables frozen at its
+    value at the probe point (just off the expansion point on each variable's side)."""
+    from .errors import InputError
+    expr = expr.replace(lambda e: isinstance(e, PeriodicPart), lambda e: e.floor_form())
+    frozen = {}
+    for f in expr.atoms(sympy.floor):
+        if f.free_symbols & set(probes):
+            at = f.args[0].subs(probes)
+            if not at.is_number:
+                raise InputError(f"{label}: its periodic part {sympy.sstr(f)} depends on parameters outside the joint "
+                                 "series, so whether it jumps there is not decided; declare their ranges inside one "
+                                 "period or add them to the series", span)
+            frozen[f] = sympy.floor(at)
+    expr = expr.subs(frozen)
+    mods = {}
+    for m in expr.atoms(sympy.Mod):
+        if m.free_symbols & set(probes):
+            at = (m.args[0] / m.args[1]).subs(probes)
+            if not at.is_number:
+                raise InputError(f"{label}: its periodic part {sympy.sstr(m)} depends on parameters outside the joint "
+                                 "series; declare their ranges inside one period", span)
+            mods[m] = m.args[0] - m.args[1] * sympy.floor(at)
+    return expr.subs(mods)
+
+
+def _at_point(label, exact, limits, symbol, point, known, system, span):
+    """What a series in `symbol` about `point` can be: (highest known order, kinked there, which end of
+    the declared range the point is or None, the side inside the range or None); refuses a point
+    outside the range and a series of a value known only about 0 taken elsewhere."""
+    from .errors import InputError
+    from .pieces import any_kink
+    _check_point(label, exact, symbol, point, system.parameters, span)
+    if symbol in limits:
+        if point != 0:
+            raise InputError(f"{label} is known only as a series about {symbol} = 0 (to O({symbol}^{limits[symbol]})); "
+                             f"it cannot be expanded about {symbol} = {point}", span)
+        known = min(known, limits[symbol] - 1)
+    kinked = kinks(exact, symbol, point) or any_kink(system, exact, symbol, point)
+    edge = _range_edge(symbol, point, system.parameters)
+    return known, kinked, edge, {"lower": "above", "upper": "below", None: None}[edge]
+
+
+def joint_expansion_of(label: str, value: sympy.Expr, expansion, system, index=None) -> list[SeriesPiece]:
+    """The joint series of one coefficient in the parameters of `expand p, q, ... about p0, q0, ... to k`:
+    the Taylor polynomial through total degree k, one-sided in each parameter that has a kink there
+    (side from the declared range where the point ends it, else from `from above/below`). Named many-body pieces are expanded with
+    the perturbative route's Taylor coefficients where derived and named unknowns beyond."""
+    from .errors import InputError
+    from .pieces import any_kink, expand_pieces
+    parameters, span = system.parameters, expansion.span
+    exact, limits = split_truncation(value)
+    known = expansion.order
+    variables = []
+    for symbol, point in expansion.variables:
+        known, kinked, edge, inside = _at_point(label, exact, limits, symbol, point, known, system, span)
+        side = expansion.side   # for the parameters whose declared range does not end at the point
+        if kinked and edge is None and side is None:
+            raise InputError(f"{label} is not analytic at {symbol} = {point} (a kink, |{symbol}| term): declare the "
+                             f"range of {symbol} on one side of {point}, or say `from above` or `from below`", span)
+        variables.append((symbol, point, inside or (side if kinked or edge else None)))
+    derived: list[str] = []
+    expanded, unknowns = expand_pieces(system, exact, [(v, p, known, s) for v, p, s in variables], derived)
+    eps = sympy.Symbol("eps_joint", positive=True)
+    scale = {v: sympy.Symbol(f"u_{v.name}", positive=True) for v, _, _ in variables}
+    sign = {v: -1 if s == "below" else 1 for v, _, s in variables}
+    probes = {v: p + sign[v] * sympy.Rational(1, 10 ** 9) for v, p, _ in variables}
+    frozen = _freeze(expanded, probes, label, span)
+    shifted = sympy.expand(frozen.subs({v: p + sign[v] * eps * scale[v] for v, p, _ in variables}))
+    try:
+        if not shifted.is_polynomial(eps):
+            shifted = sympy.expand(sympy.series(shifted, eps, 0, known + 1).removeO())
+        poly = sympy.Poly(shifted, eps)
+    except (sympy.PolynomialError, NotImplementedError, ValueError, TypeError) as error:
+        raise InputError(f"{label} has no joint Taylor series there ({type(error).__name__}: a pole or a branch "
+                         "point)", span) from None
+    kept = sum((c for (k,), c in zip(poly.monoms(), poly.coeffs()) if k <= known), sympy.Integer(0))
+    back = {scale[v]: sign[v] * (v - p) for v, p, _ in variables}
+    polynomial = sympy.expand(kept.subs(back))
+    unknowns = [u for u in unknowns if polynomial.has(u.symbol)]
+    remainder = (TotalDegree(known + 1, tuple(v - p for v, p, _ in variables)),)
+    others = tuple(sympy.Order(s ** k) for s, k in sorted(limits.items(), key=lambda item: item[0].name)
+                   if s not in scale)
+    first, point, side = variables[0]
+    kinked = any(kinks(exact, v, p) or any_kink(system, exact, v, p) for v, p, _ in variables)
+    edge = any(_range_edge(v, p, parameters) for v, p, _ in variables)
+    return [JointSeriesPiece(first, point, expansion.order, known, side, kinked, edge, polynomial,
+                             remainder + others, tuple(unknowns), tuple(derived), tuple(variables))]
+
+
 def expansion_of(label: str, value: sympy.Expr, expansion, system, index=None) -> list[SeriesPiece]:
     """The series of one coefficient for one `expand` request (one piece per side); refuses a kinked
     expansion asked as if analytic, a side outside the declared range, and a series about another
     point than that of a given truncated series. Named many-body pieces that depend on the variable
     are expanded too, with named Taylor coefficients (`pieces.expand_pieces`)."""
     from .errors import InputError
-    from .pieces import any_kink, expand_pieces
-    parameters = system.parameters
+    from .pieces import expand_pieces
+    if expansion.others:
+        return joint_expansion_of(label, value, expansion, system, index)
     symbol, point, order, side, span = (expansion.symbol, expansion.point, expansion.order, expansion.side,
                                         expansion.span)
     exact, limits = split_truncation(value)
-    _check_point(label, exact, symbol, point, parameters, span)
-    known = order
-    if symbol in limits:
-        if point != 0:
-            raise InputError(f"{label} is known only as a series about {symbol} = 0 (to O({symbol}^{limits[symbol]})); "
-                             f"it cannot be expanded about {symbol} = {point}", span)
-        known = min(order, limits[symbol] - 1)
-    kinked = kinks(exact, symbol, point) or any_kink(system, exact, symbol, point)
-    edge = _range_edge(symbol, point, parameters)
-    inside = {"lower": "above", "upper": "below", None: None}[edge]
+    known, kinked, edge, inside = _at_point(label, exact, limits, symbol, point, order, system, span)
     if side is None:
         if kinked and edge is None:
             raise InputError(f"{label} is not analytic at {symbol} = {point} (a kink, |{symbol}| term): say "

@@ -132,13 +132,20 @@ class Tubes:
 
 @dataclass(frozen=True)
 class Expansion:
-    """`expand p about x0 to k [from above|below]`: print coefficients as series in p."""
+    """`expand p about x0 to k [from above|below]`: print coefficients as series in p. With `others`
+    ((symbol, point), ...) from `expand p, q about x0, y0 to k`: one joint series in all of them through
+    total degree k."""
 
     symbol: sympy.Symbol
     point: sympy.Expr
     order: int
     side: str | None
     span: Span
+    others: tuple = ()
+
+    @property
+    def variables(self) -> tuple:
+        return ((self.symbol, self.point),) + tuple(self.others)
 
 
 @dataclass(frozen=True)

@@ -94,7 +94,8 @@ class Derivation:
             # a coefficient free of the variable is its own series: no line for it
             from .pieces import depends_through_pieces
             self._series[key] = [piece for e in self.system.expansions
-                                 if c.value.has(e.symbol) or depends_through_pieces(self.system, c.value, e.symbol)
+                                 if any(c.value.has(v) or depends_through_pieces(self.system, c.value, v)
+                                        for v, _ in e.variables)
                                  for piece in expansion_of(c.label, c.value, e, self.system, c.index)]
         return self._series[key]
 

@@ -19,6 +19,8 @@ def about_point(piece) -> sympy.Expr:
     """The polynomial of a series piece in powers of (p - p0), lowest power first when printed: a
     series about p0 = 1 reads 1/4 - (alpha - 1)**2/2, not -alpha**2/2 + alpha - 1/4 (the same value)."""
     polynomial, variable, point = piece.polynomial, piece.variable, piece.point
+    if getattr(piece, "variables", ()):
+        return _about_joint_point(piece)
     if (point == 0 and not piece.unknowns) or not polynomial.has(variable):
         return polynomial
     shift = sympy.Dummy("u")
@@ -30,6 +32,24 @@ def about_point(piece) -> sympy.Expr:
     return sympy.Add(*terms, evaluate=False)
 
 
+def _about_joint_point(piece) -> sympy.Expr:
+    """A joint series' polynomial in powers of the deviations (p - p0, q - q0, ...), lowest total
+    degree first."""
+    variables = [(v, p) for v, p, _ in piece.variables]
+    if all(p == 0 for _, p in variables) and not piece.unknowns:
+        return piece.polynomial
+    shifts = [sympy.Dummy(f"u_{v.name}") for v, _ in variables]
+    shifted = sympy.expand(piece.polynomial.subs({v: p + u for (v, p), u in zip(variables, shifts)}))
+    poly = sympy.Poly(shifted, *shifts)
+    bases = [v - p if p != 0 else v for v, p in variables]
+    terms = []
+    for powers, c in sorted(zip(poly.monoms(), poly.coeffs()), key=lambda item: (sum(item[0]), item[0][::-1])):
+        factors = [b ** k if k > 1 else b for b, k in zip(bases, powers) if k]
+        coefficient = sympy.expand(c)
+        terms.append(sympy.Mul(coefficient, *factors, evaluate=False) if factors else coefficient)
+    return sympy.Add(*terms, evaluate=False) if terms else sympy.Integer(0)
+
+
 def series_value_text(piece) -> str:
     """Polynomial (in powers of p - p0) plus its O terms, sympy-parsable (the O terms printed apart so
     that sympy's own addition cannot reorder or swallow the known terms)."""
@@ -37,7 +57,9 @@ def series_value_text(piece) -> str:
 
 
 def _ordered_text(expr, piece) -> str:
-    if (piece.point == 0 and not piece.unknowns) or not isinstance(expr, sympy.Add):
+    joint_at_zero = getattr(piece, "variables", ()) and all(p == 0 for _, p, _ in piece.variables)
+    if (piece.point == 0 and not piece.unknowns and not getattr(piece, "variables", ())) or joint_at_zero \
+            and not piece.unknowns or not isinstance(expr, sympy.Add):
         return sympy.sstr(expr, order="lex")
     return _joined([sympy.sstr(term, order="lex") for term in expr.args])
 
@@ -51,7 +73,7 @@ def _joined(texts: list[str]) -> str:
 
 
 def series_text_lines(derivation: Derivation, c: Coefficient) -> list[str]:
-    return [f"series in {p.variable} about {p.point} through order {p.known} ({p.description}): "
+    return [f"series in {p.heading} ({p.description}): "
             f"{series_value_text(p)}" for p in derivation.series_of(c)]
 
 
@@ -63,6 +85,8 @@ def series_json(derivation: Derivation, c: Coefficient) -> dict:
     return {"series": [{
         "variable": p.variable.name,
         "point": sympy.sstr(p.point),
+        **({"joint": [{"variable": v.name, "point": sympy.sstr(q), "side": s} for v, q, s in p.variables]}
+           if getattr(p, "variables", ()) else {}),
         "order": p.order,
         "known_through": p.known,
         "side": p.side,
@@ -77,6 +101,10 @@ def series_json(derivation: Derivation, c: Coefficient) -> dict:
 
 
 def _side_latex(p) -> str:
+    if getattr(p, "variables", ()):
+        sides = [rf"{sympy.latex(v)}\to {sympy.latex(q)}^{{{'+' if s == 'above' else '-'}}}" if s else
+                 rf"{sympy.latex(v)}\to {sympy.latex(q)}" for v, q, s in p.variables]
+        return r"\text{joint series through total degree }" + f"{p.known}" + r":\ " + r",\ ".join(sides)
     var, point = sympy.latex(p.variable), sympy.latex(p.point)
     if p.side is None:
         return rf"\text{{series about }}{var}={point}"

@@ -315,6 +315,8 @@ class _Builder:
     def _expand(self, tree):
         self.expansions.append((tree, self.file))
 
+    _expand_joint = _expand
+
     def _claim(self, tree):
         self.products.append((tree, self.file))
 
@@ -412,18 +414,38 @@ class _Builder:
         out = []
         for tree, file in self.expansions:
             self.file = file
-            name, point, order, *side = tree.children
-            if str(name) not in self.parameters:
-                raise InputError(f"`expand` needs a declared parameter; '{name}' is not one", self.span(name),
-                                 did_you_mean(str(name), self.parameters))
+            side = [c for c in tree.children if isinstance(c, lark.Tree) and c.data.startswith("side_")]
+            rest = [c for c in tree.children if c not in side]
+            order = rest[-1]
+            names = [c for c in rest[:-1] if isinstance(c, lark.Token) and c.type == "NAME"]
+            points = rest[len(names):-1]
+            variables = []
+            for name in names:
+                if str(name) not in self.parameters:
+                    raise InputError(f"`expand` needs a declared parameter; '{name}' is not one", self.span(name),
+                                     did_you_mean(str(name), self.parameters))
+                symbol = self.parameters[str(name)].symbol
+                if symbol in [v for v, _ in variables]:
+                    raise InputError(f"'{name}' is listed twice", self.span(name))
+                variables.append((symbol, None))
+            if len(points) not in (1, len(names)):
+                raise InputError(f"`expand` lists {len(names)} parameters: give one point for all or one per "
+                                 f"parameter, not {len(points)}", self.span(tree))
             if not 0 <= int(order) <= 40:
                 raise InputError("`expand ... to k` needs 0 <= k <= 40", self.span(order))
-            value = self.expr(point)
-            if not value.is_number or value.is_real is False:
-                raise InputError("the expansion point must be a real number", self.span(point))
-            out.append(Expansion(self.parameters[str(name)].symbol, value, int(order),
-                                 None if not side else side[0].data[len("side_"):],
-                                 self.span(tree)))
+            values = []
+            for point in points:
+                value = self.expr(point)
+                if not value.is_number or value.is_real is False:
+                    raise InputError("the expansion point must be a real number", self.span(point))
+                values.append(value)
+            values = values * len(names) if len(values) == 1 else values
+            side = None if not side else side[0].data[len("side_"):]
+            if len(names) > 1 and side == "both":
+                raise InputError("a joint series takes one side per parameter, from its declared range or from "
+                                 "`from above`/`from below`; `from both` is for one parameter", self.span(tree))
+            out.append(Expansion(variables[0][0], values[0], int(order), side, self.span(tree),
+                                 tuple((v, p) for (v, _), p in zip(variables[1:], values[1:]))))
         self.file = self.main
         return tuple(out)
 
