@@ -7,7 +7,9 @@ Cases (targets from the issue, "seconds here"): one species through second order
 two species with exchange and mutual parameters through total degree 2 for every multi-index up to total
 order 6, three species up to total order 5; and the cluster -> virial composition of the first-order
 b's (the a_n through first order) for the same tables. Coefficients not derived at second order come
-back as named unknowns (unknown="name"), so the figures time the whole table.
+back as named unknowns (unknown="name"), so the figures time the whole table. Last, what a user runs:
+the joint series `expand alpha, nu about 0 to 2` of every b and a of two species up to total order 3-6,
+end to end (derive and print), beside the same input without the series (the ratio is the series' cost).
 """
 from __future__ import annotations
 
@@ -17,6 +19,9 @@ from pathlib import Path
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 
 import sympy  # noqa: E402
+
+import clusterexp  # noqa: E402
+from clusterexp.export import to_text  # noqa: E402
 
 from clusterexp.routes.perturbative import Species, expansion, taylor_coefficients  # noqa: E402
 from clusterexp.exact.series import indices_up_to  # noqa: E402
@@ -49,6 +54,14 @@ def first_order_virial(K, order):
     return [virial[n] for n in virial]  # every a_n converted to sympy
 
 
+JOINT = ("dimension 2 parameter alpha in [0, 1/2] parameter nu in [0, 1/2] species A exchange alpha "
+         "species B bose mutual A B = nu clusters pairphase order {order} ")
+
+
+def printed(text):
+    return to_text(clusterexp.derive(text))
+
+
 def main():
     first_order_virial(2, 3)  # warm-up (imports, ring construction)
     print("# benchmarks/perturbative.py: wall seconds (median of 3) for the whole table up to the order")
@@ -62,6 +75,11 @@ def main():
         for order in range(3, top + 1):
             t = seconds(lambda: first_order_virial(K, order), repeats=3)
             print(f"{f'K={K}, a_n through first order (b table + virial), |n| <= {order}':<58}{'':>13}{t:>10.4f}")
+    print(f"{'joint series, two species, total degree 2 (end to end)':<58}{'plain':>13}{'series':>10}{'ratio':>8}")
+    for order in range(3, 7):
+        plain = seconds(lambda: printed(JOINT.format(order=order)), repeats=1)
+        joint = seconds(lambda: printed(JOINT.format(order=order) + "expand alpha, nu about 0 to 2"), repeats=1)
+        print(f"{f'  |n| <= {order}':<58}{plain:>13.3f}{joint:>10.3f}{joint / plain:>8.1f}")
 
 
 if __name__ == "__main__":

@@ -216,6 +216,45 @@ def _at_point(label, exact, limits, symbol, point, known, system, span):
     return known, kinked, edge, {"lower": "above", "upper": "below", None: None}[edge]
 
 
+def _polynomial_part(frozen, variables, known):
+    """The Taylor polynomial through total degree `known` when the frozen value is a polynomial (with
+    rational coefficients) in the variables and its other symbols: ring arithmetic, then a filter on the
+    total degree in the shifts. None when it is not such a polynomial."""
+    from sympy.polys.rings import ring
+    from sympy import QQ
+    shifts = [sympy.Dummy(f"u_{v.name}") for v, _, _ in variables]
+    shifted = frozen.xreplace({v: p + u for (v, p, _), u in zip(variables, shifts)})
+    others = sorted(shifted.free_symbols - set(shifts), key=lambda x: x.name)
+    try:
+        R, *gens = ring(shifts + others, QQ)
+        element = R(shifted)
+    except Exception:  # noqa: BLE001 - not a polynomial over QQ: the caller takes the series route
+        return None
+    m = len(shifts)
+    kept = R({monomial: c for monomial, c in element.items() if sum(monomial[:m]) <= known})
+    back = {u: v - p for (v, p, _), u in zip(variables, shifts)}
+    return sympy.expand(kept.as_expr().xreplace(back))
+
+
+def _series_part(frozen, variables, sign, known, label, span):
+    """The Taylor polynomial through total degree `known` by one series in a common scale eps
+    (each deviation = its side's sign * eps * a positive symbol)."""
+    from .errors import InputError
+    eps = sympy.Symbol("eps_joint", positive=True)
+    scale = {v: sympy.Symbol(f"u_{v.name}", positive=True) for v, _, _ in variables}
+    shifted = sympy.expand(frozen.subs({v: p + sign[v] * eps * scale[v] for v, p, _ in variables}))
+    try:
+        if not shifted.is_polynomial(eps):
+            shifted = sympy.expand(sympy.series(shifted, eps, 0, known + 1).removeO())
+        poly = sympy.Poly(shifted, eps)
+    except (sympy.PolynomialError, NotImplementedError, ValueError, TypeError) as error:
+        raise InputError(f"{label} has no joint Taylor series there ({type(error).__name__}: a pole or a branch "
+                         "point)", span) from None
+    kept = sum((c for (k,), c in zip(poly.monoms(), poly.coeffs()) if k <= known), sympy.Integer(0))
+    back = {scale[v]: sign[v] * (v - p) for v, p, _ in variables}
+    return sympy.expand(kept.subs(back))
+
+
 def joint_expansion_of(label: str, value: sympy.Expr, expansion, system, index=None) -> list[SeriesPiece]:
     """The joint series of one coefficient in the parameters of `expand p, q, ... about p0, q0, ... to k`:
     the Taylor polynomial through total degree k, one-sided in each parameter that has a kink there
@@ -236,26 +275,16 @@ def joint_expansion_of(label: str, value: sympy.Expr, expansion, system, index=N
         variables.append((symbol, point, inside or (side if kinked or edge else None)))
     derived: list[str] = []
     expanded, unknowns = expand_pieces(system, exact, [(v, p, known, s) for v, p, s in variables], derived)
-    eps = sympy.Symbol("eps_joint", positive=True)
-    scale = {v: sympy.Symbol(f"u_{v.name}", positive=True) for v, _, _ in variables}
     sign = {v: -1 if s == "below" else 1 for v, _, s in variables}
     probes = {v: p + sign[v] * sympy.Rational(1, 10 ** 9) for v, p, _ in variables}
     frozen = _freeze(expanded, probes, label, span)
-    shifted = sympy.expand(frozen.subs({v: p + sign[v] * eps * scale[v] for v, p, _ in variables}))
-    try:
-        if not shifted.is_polynomial(eps):
-            shifted = sympy.expand(sympy.series(shifted, eps, 0, known + 1).removeO())
-        poly = sympy.Poly(shifted, eps)
-    except (sympy.PolynomialError, NotImplementedError, ValueError, TypeError) as error:
-        raise InputError(f"{label} has no joint Taylor series there ({type(error).__name__}: a pole or a branch "
-                         "point)", span) from None
-    kept = sum((c for (k,), c in zip(poly.monoms(), poly.coeffs()) if k <= known), sympy.Integer(0))
-    back = {scale[v]: sign[v] * (v - p) for v, p, _ in variables}
-    polynomial = sympy.expand(kept.subs(back))
+    polynomial = _polynomial_part(frozen, variables, known)
+    if polynomial is None:
+        polynomial = _series_part(frozen, variables, sign, known, label, span)
     unknowns = [u for u in unknowns if polynomial.has(u.symbol)]
     remainder = (TotalDegree(known + 1, tuple(v - p for v, p, _ in variables)),)
     others = tuple(sympy.Order(s ** k) for s, k in sorted(limits.items(), key=lambda item: item[0].name)
-                   if s not in scale)
+                   if s not in sign)
     first, point, side = variables[0]
     kinked = any(kinks(exact, v, p) or any_kink(system, exact, v, p) for v, p, _ in variables)
     edge = any(_range_edge(v, p, parameters) for v, p, _ in variables)

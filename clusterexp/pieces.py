@@ -215,12 +215,13 @@ def expand_pieces(system, value: sympy.Expr, variables: Sequence[tuple[sympy.Sym
         polynomial = sympy.Integer(0)
         derived = derived_taylor(system, piece, used)
         if derived is not None and derived[1] >= 1 and notes is not None:
-            notes.append(f"{piece_label(piece)} through order {derived[1]} from the perturbative route "
+            reach = f"{derived[1] - 1}, partly {derived[1]}," if derived[2] else f"{derived[1]}"
+            notes.append(f"{piece_label(piece)} through order {reach} from the perturbative route "
                          "(docs/perturbative.md)")
         for powers in itertools.product(*(range(k + 1) for _, _, k, _ in used)):
             monomial = tuple((v, p, e, s) for (v, p, _, s), e in zip(used, powers))
             coefficient = value_at(system, piece, {v: p for v, p, _, _ in used}) if not any(powers) else None
-            if derived is not None and sum(powers) <= derived[1]:
+            if derived is not None and sum(powers) <= derived[1] and powers not in derived[2]:
                 coefficient = derived[0].get(powers, sympy.Integer(0))
             if coefficient is None:
                 unknown = Unknown(sympy.Symbol(_name(piece, monomial)), piece, monomial)
@@ -261,10 +262,10 @@ def value_at(system, piece: sympy.Symbol, point: Mapping) -> sympy.Expr | None:
 def derived_taylor(system, piece: sympy.Symbol, used) -> tuple[dict, int] | None:
     """The Taylor coefficients of a cluster piece that the perturbative route derives
     (`routes.perturbative`, docs/perturbative.md), as ({powers of (v - v0) per used variable: value},
-    the total order through which all are derived), or None where it does not apply: every pair
+    the total order through which the route was asked, the powers it could not derive there), or None
+    where it does not apply: every pair
     phase of the piece's species must sit at a boson or fermion point (mutual: an integer) at the
     expansion point, each deviation linear in one expansion variable, masses rational, no tubes."""
-    from .errors import NotSupportedYet
     from .routes import regime_of
     from .routes.perturbative import Species as Perturbed, taylor_coefficients
     if piece.name in _NAMED or not piece.name.startswith("b_") or system.tubes is not None \
@@ -325,23 +326,24 @@ def derived_taylor(system, piece: sympy.Symbol, used) -> tuple[dict, int] | None
         if found[1]:
             mutual[(i, j)] = sympy.Symbol(f"d_{i}_{j}", real=True)
             deviations[mutual[(i, j)]] = found[1]
-    order = max(k for _, _, k, _ in used)
-    for derived_order in range(min(order, 2), -1, -1):
-        try:
-            terms = taylor_coefficients(species, mutual, index, tuple(about), derived_order)
-            break
-        except NotSupportedYet:
-            continue
-    polynomial = sympy.Integer(0)
+    order = min(max(k for _, _, k, _ in used), 2)
+    terms = taylor_coefficients(species, mutual, index, tuple(about), order, unknown="name")
+    shifts = [shift[v] for v, _, _, _ in used]
+    polynomial, missing = sympy.Integer(0), set()
     for monomial, value in terms.items():
         if value == 0:
             continue
         if any(deviations[a.args[0]][1] is None for a in monomial.atoms(sympy.Abs)):
             return None   # a kink the caller took for an analytic point
         term = monomial.replace(sympy.Abs, lambda x: deviations[x][1] * x)
-        polynomial += value * term.xreplace({x: dev for x, (dev, _) in deviations.items()})
-    polynomial = sympy.Poly(sympy.expand(polynomial), *[shift[v] for v, _, _, _ in used])
-    return {powers: c for powers, c in zip(polynomial.monoms(), polynomial.coeffs())}, derived_order
+        term = sympy.expand(term.xreplace({x: dev for x, (dev, _) in deviations.items()}))
+        if isinstance(value, sympy.Symbol):   # not derived: every power it reaches stays unknown
+            missing.update(sympy.Poly(term, *shifts).monoms())
+            continue
+        polynomial += value * term
+    polynomial = sympy.Poly(sympy.expand(polynomial), *shifts)
+    known = {powers: c for powers, c in zip(polynomial.monoms(), polynomial.coeffs()) if powers not in missing}
+    return known, order, frozenset(missing)
 
 
 def side_in_range(parameters: Iterable, symbol: sympy.Symbol, point) -> str | None:
