@@ -90,7 +90,11 @@ def state_latex(derivation, _escape) -> list[str]:
             record = result.record
             out.append(r"\subsection*{Equation of state}")
             out.append(_escape(record["lines"][0]) + ".")
-            out += [r"\begin{align*}", " \\\\\n".join(record["latex"]), r"\end{align*}"]
+            if record["latex"]:
+                out += [r"\begin{align*}", " \\\\\n".join(record["latex"]), r"\end{align*}"]
+            else:   # only a parametric form (an integral over momentum cells): stated in words
+                out += [r"\begin{itemize}"] + [r"\item " + _escape(line) for line in record["lines"][1:-1]] + \
+                    [r"\end{itemize}"]
             out.append(_escape(record["lines"][-1]) + ".")
             out.append(_escape(record["radius"].text if "radius" in record else record["radius_note"]) + ".")
         elif request.kind == "evaluate":

@@ -24,7 +24,7 @@ MAX_LINE_LENGTH = 100_000    # characters; longer lines are refused before parsi
 MAX_INPUT_LENGTH = 2_000_000  # characters in one file
 MAX_WHOLE_DIGITS = 30         # digits of a whole-number literal (orders, seeds, loop budgets, ...)
 STATEMENTS = ("dimension, order, parameter, species, mutual, reference, clusters, virials, derive, output, include, "
-              "claim, evaluate, tabulate, plot, typeset, sample, expand, tubes, statistics, size limit")
+              "claim, evaluate, tabulate, plot, typeset, sample, expand, tubes, statistics, size limit, equation of state")
 
 
 OPTIONS = dict(parser="lalr", propagate_positions=True, maybe_placeholders=False)

@@ -199,7 +199,8 @@ class StateBuilder:
             count = int(sympy.floor((stop - start) / step)) + 1
             if count > MAX_AXIS_POINTS:
                 raise InputError(f"{count:,} points on the axis {label} (at most {MAX_AXIS_POINTS:,})", span)
-            values = [sympy.nsimplify(start + k * step) for k in range(count)]
+            values = [start + k * step for k in range(count)]
+            values = [v if v.is_Rational else sympy.nsimplify(v) for v in values]
         if any(v.is_negative for v in values):
             raise InputError(f"the grid of {label} reaches a negative {word}; densities are >= 0", span)
         return DensityAxis(word, species, span, values=tuple(values))
