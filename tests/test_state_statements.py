@@ -140,6 +140,7 @@ def test_bilayer_figure_and_table_are_written(tmp_path):
 # -- the overlay: the tool's virial series against the exact equation of state ---------------------------
 @pytest.mark.parametrize("text,fixed,axis", [
     (LLL2, {"B": Fraction(1, 200)}, "A"),
+    (LLL2 + " spectrum", {"B": Fraction(1, 200)}, "A"),   # the harmonic-regulator route: the same gas
     ("dimension 3 species A bose species B fermi mass 2 clusters ideal", {"B": Fraction(1, 100)}, "A"),
     ("dimension 2 species A species B species C statistics matrix [[1/2, 1/3, 0], [1/5, 2/3, 1/7], [1/4, 0, 1/3]] "
      "clusters exclusion level", {"B": Fraction(1, 100), "C": Fraction(1, 300)}, "A"),
@@ -231,6 +232,12 @@ BAD = [
      "into \"x.png\"", "order 5 needs total order 5 but `order 3` is declared", 2, 28),
     ("dimension 2 species A species B clusters landau\nevaluate pressure at filling = 1/5, filling B = 0",
      "say whose filling", 2, 22),
+    ("dimension 2 species A exchange 1/3 clusters exclusion\ntabulate pressure over density from 0 to 100 step 1/10 "
+     "into \"t.csv\"", "would take about 17 minutes", 2, 1),
+    (LLL2 + "\nevaluate pressure, fugacity A, fugacity A at filling A = 0, filling B = 0", "fugacity A is listed twice",
+     2, 32),
+    ("dimension 3 species A exchange 0 clusters exclusion\nevaluate pressure at density A = 3",
+     "not supported yet", 2, 1),
 ]
 
 
@@ -258,3 +265,16 @@ def test_latex_document_has_the_equation_of_state(tmp_path):
     result = run_cli("run", str(BILAYER), "--format", "latex", "--document", "--no-files")
     assert result.returncode == 0, result.stderr
     assert r"\subsection*{Equation of state}" in result.stdout and r"\beta P / \rho_L =" in result.stdout
+
+
+def test_default_plot_range_stops_before_close_packing():
+    # one LLL species with g = 1/2: close packing at nu = 1/g = 2 (Dasnieres de Veigy & Ouvry 1994);
+    # the figure runs to 19/20 of it and marks it
+    from clusterexp.eos.axes import plot_interval
+    system = build_system("dimension 2 species A exchange 1/2 clusters landau\n"
+                          "plot pressure over filling with virial series 3 into \"p.png\"")
+    eos = REGIMES["landau"].equation_of_state(system)
+    assert plot_interval(eos, system.states[0], {}) == (0, sympy.Rational(19, 10), 2)
+    bose = build_system("dimension 3 species A bose clusters ideal\nplot pressure over density into \"p.png\"")
+    low, high, edge = plot_interval(REGIMES["ideal"].equation_of_state(bose), bose.states[0], {})
+    assert edge == sympy.zeta(sympy.Rational(3, 2)) and high == sympy.Rational(3, 2) * edge   # condensation

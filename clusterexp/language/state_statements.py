@@ -20,6 +20,7 @@ from .statements import FIGURE_SUFFIXES, MAX_AXIS_POINTS, MAX_TABLE_ROWS, Produc
 
 DENSITY_WORDS = ("density", "filling")
 MAX_SERIES_ORDER = 40
+MAX_TABLE_SECONDS = 600
 STATE_STATEMENTS = ("evaluate_state", "tabulate_state", "plot_state", "equation_of_state")
 
 
@@ -135,6 +136,9 @@ class StateBuilder:
         by_data = {getattr(c, "data", None): c for c in children}
         span = self.b.span(tree)
         quantities = tuple(self.quantity(i) for i in by_data["state_list"].children) if "state_list" in by_data else ()
+        for k, q in enumerate(quantities):
+            if any((p.quantity, p.species) == (q.quantity, q.species) for p in quantities[:k]):
+                raise InputError(f"the {q.text} is listed twice", q.span)
         if kind == "formula":
             along, _ = self.values(by_data.get("state_along"), allow_parameters=False)
             _, parameters = self.values(by_data.get("state_at"))
@@ -270,7 +274,13 @@ def check_request(eos, system, request: StateRequest) -> None:
     if request.kind == "evaluate":
         eos.check_point(request.fixed(), request.span, parameters)
     elif request.kind == "tabulate":
-        for point in axis_points(request):
+        points = axis_points(request)
+        seconds = len(points) * len(request.quantities) * eos.seconds_per_point
+        if seconds > MAX_TABLE_SECONDS:
+            raise InputError(f"this table of the {eos.regime} would take about {seconds / 60:.0f} minutes ({len(points):,} "
+                             f"rows x {len(request.quantities)} quantities, about {eos.seconds_per_point:g} s each): "
+                             f"use fewer points (at most about {MAX_TABLE_SECONDS / 60:.0f} minutes)", request.span)
+        for point in points:
             try:
                 eos.check_point(point, None, parameters)
             except InputError as error:
