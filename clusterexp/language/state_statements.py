@@ -289,3 +289,15 @@ def check_request(eos, system, request: StateRequest) -> None:
                 raise InputError(f"the grid reaches {shown}: {error.message}", where) from None
     else:
         check_axis_ends(eos, request, parameters)
+
+
+def expected_seconds(system) -> float:
+    """A generous estimate of the time the equation-of-state statements take (the fuzz tests only build
+    inputs above a few seconds)."""
+    from ..routes import regime_of
+    total = 0.0
+    for request in getattr(system, "states", ()):
+        eos = regime_of(system).equation_of_state(system, request.span)
+        points = {"evaluate": 1, "tabulate": len(axis_points(request)), "plot": eos.plot_samples}.get(request.kind, 0)
+        total += points * max(1, len(request.quantities)) * eos.seconds_per_point
+    return total
