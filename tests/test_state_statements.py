@@ -24,8 +24,7 @@ LLL2 = "dimension 2 species A exchange 1/3 species B exchange 1/5 mutual A B = 1
 
 
 def json_of(path_or_text, *extra):
-    args = ["run", str(path_or_text)] if not isinstance(path_or_text, str) or "\n" not in path_or_text and \
-        path_or_text.endswith(".gas") else ["run", "-e", path_or_text]
+    args = ["run", "-e", path_or_text] if isinstance(path_or_text, str) else ["run", str(path_or_text)]
     result = run_cli(*args, "--format", "json", "--no-files", *extra)
     assert result.returncode == 0, result.stderr
     return json.loads(result.stdout)["equation_of_state"]

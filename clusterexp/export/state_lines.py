@@ -106,4 +106,4 @@ def state_latex(derivation, _escape) -> list[str]:
 
 
 def _number(text: str) -> str:
-    return text.replace("inf", r"\infty").replace("e", r"\times10^{").replace("10^{-", "10^{-") + ("}" if "e" in text else "")
+    return text.replace("inf", r"\infty").replace("e", r"\times10^{") + ("}" if "e" in text else "")

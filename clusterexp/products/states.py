@@ -9,6 +9,7 @@ figure compares two independent routes to the same pressure.
 """
 from __future__ import annotations
 
+import textwrap
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -184,7 +185,6 @@ def draw_figure(derivation, eos, request: StateRequest, path: Path, into) -> Non
     if boundary is not None and not shown_boundary:
         caption_bits.append(f"{eos.boundary.kind} at {axis.word} {axis.species} = {sympy.sstr(boundary)}, beyond "
                             "the plotted range")
-    import textwrap
     caption = "\n".join(textwrap.wrap("; ".join(caption_bits), 95))
     figure = _figure(Figure, caption.count("\n") + 1)
     axes = figure.add_subplot()
