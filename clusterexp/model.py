@@ -296,6 +296,7 @@ class System:
     figures: tuple[Figure, ...] = ()
     typesetting: Typesetting = field(default_factory=Typesetting)
     samplings: tuple["Sampling", ...] = ()
+    states: tuple = ()  # equation-of-state statements (eos.requests.StateRequest)
 
     @property
     def species_names(self) -> tuple[str, ...]:

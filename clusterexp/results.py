@@ -164,6 +164,12 @@ class Derivation:
         from .products.run import run_tables
         return self._cached("_tables", run_tables)
 
+    @property
+    def states(self):
+        """Every equation-of-state statement with its numbers (`products.states.StateResult`)."""
+        from .products.states import run_states
+        return self._cached("_states", run_states)
+
     def unknowns(self) -> list:
         """The named Taylor coefficients of many-body pieces (`pieces.Unknown`) that the printed
         values, series and checks use, sorted by name."""
@@ -213,6 +219,7 @@ class Derivation:
                 progress.step(f"check {claim.target.label}")
             self.coefficient(claim.target.kind, claim.target.index, claim.target.component).value  # noqa: B018
         self.checks, self.evaluations, self.tables  # noqa: B018
+        self.states  # noqa: B018
         if progress is not None:
             progress.done()
 

@@ -350,6 +350,10 @@ def too_large(system) -> bool:
         from clusterexp.loops.request import expected_seconds
         if expected_seconds(system) > FUZZ_SAMPLING_SECONDS:
             return True
+    if system.states:   # equation-of-state statements: the continuum's points are numerical integrals
+        from clusterexp.language.state_statements import expected_seconds as state_seconds
+        if state_seconds(system) > FUZZ_SAMPLING_SECONDS:
+            return True
     return estimate(system).size > FUZZ_SIZE
 
 

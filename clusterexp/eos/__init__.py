@@ -11,10 +11,12 @@ Regimes (from a validated `model.System`):
 - `clusters exclusion` (continuum, d = 1, 2, 3): the integral over momentum cells, each cell solving
   Wu's equations, evaluated numerically (`continuum.py`); densities inverted for the fugacities.
 
-Other regimes (pair phases, generic, given, declared spectra) have no exact equation of state here:
-`equation_of_state` refuses them with an InputError that points to the virial series.
+Each regime owns its equation of state (`routes.base.Regime.equation_of_state`, which builds the
+classes here); the others (pair phases, generic, given, declared spectra) refuse with an InputError
+that points to the virial series. The input language reaches it through `evaluate`, `tabulate`,
+`plot` and `equation of state` (language/state_statements.py, products/states.py).
 
-API (what the `evaluate` / `tabulate` / `plot` statements are to call):
+API (what the `evaluate` / `tabulate` / `plot` / `equation of state` statements call):
 
     eos = equation_of_state(system)          # -> EquationOfState (raises InputError: no exact EOS)
     eos.quantities                           # ("pressure", "fugacity", "chemical_potential",
@@ -56,41 +58,15 @@ rho k_B T kappa_T = [d(beta P)/d rho]^(-1) at fixed composition (1 for a Boltzma
 """
 from __future__ import annotations
 
-from ..errors import InputError, NotSupportedYet
 from ..model import System
 from .base import QUANTITIES, Boundary, EquationOfState, RayBoundary
 from .radius import RadiusEstimate
 
-NO_EXACT_EOS = {
-    "pairphase": "two-body pair phases (anyons in the continuum): the many-body problem is not exactly solved",
-    "generic": "generic cluster coefficients (symbols)",
-    "given": "given cluster or virial coefficients",
-    "spectrum": "a declared trapped spectrum",
-}
-
-
 def equation_of_state(system: System, span=None) -> EquationOfState:
-    """The exact equation of state of the system's regime (InputError when there is none)."""
-    kind = system.source.kind
-    if kind == "ideal":
-        from .ideal import IdealEquationOfState
-        return IdealEquationOfState(system)
-    if kind == "landau":
-        from ..routes import landau_matrix
-        from .level import LevelEquationOfState
-        return LevelEquationOfState(system, landau_matrix(system), landau=True)
-    if kind == "exclusion":
-        if system.source.form == "level":
-            from .level import LevelEquationOfState
-            return LevelEquationOfState(system, system.source.matrix, landau=False)
-        from .continuum import ContinuumEquationOfState
-        return ContinuumEquationOfState(system)
-    what = NO_EXACT_EOS.get(kind)
-    if what is None:
-        raise NotSupportedYet(f"an equation of state for the regime {kind!r}", span or system.source.span)
-    raise InputError(f"no exact equation of state for {what}; use the virial series instead "
-                     "(derive virial up to N, then evaluate or plot its coefficients)",
-                     span or system.source.span)
+    """The exact equation of state of the system's regime (`Regime.equation_of_state`; InputError at
+    `span` when the regime has none, pointing to the virial series)."""
+    from ..routes import regime_of
+    return regime_of(system).equation_of_state(system, span)
 
 
 def check_densities(system: System, densities, span=None, parameters=None):

@@ -83,6 +83,11 @@ class EquationOfState:
 
     regime: str = ""
     quantities: tuple[str, ...] = QUANTITIES
+    # the word the input language uses for a density of this regime (`density A = 1/5`,
+    # `filling A = 1/5` where densities count particles per state: one level, the LLL)
+    density_word: str = "density"
+    plot_samples: int = 161   # points of a figure's exact curve (fewer where each point is an integral)
+    seconds_per_point: float = 0.001   # a generous estimate of one evaluation, for refusing huge tables up front
 
     def __init__(self, system: System):
         self.system = system

@@ -136,6 +136,9 @@ class Cells:
 class ContinuumEquationOfState(EquationOfState):
     """`clusters exclusion` in d = 1, 2, 3 (momentum cells shared by all species)."""
 
+    plot_samples = 21   # each point is a numerical integral (about half a second)
+    seconds_per_point = 1.0
+
     def __init__(self, system: System):
         super().__init__(system)
         d = self.d = system.dimension

@@ -34,6 +34,8 @@ from .base import Boundary, EquationOfState, Point, RayBoundary, fraction_of, su
 class LevelEquationOfState(EquationOfState):
     """`clusters exclusion level` (per single-particle level) and `clusters landau` (per rho_L)."""
 
+    density_word = "filling"
+
     def __init__(self, system: System, matrix: Sequence[Sequence[sympy.Expr]], landau: bool):
         super().__init__(system)
         self.matrix = tuple(tuple(sympy.sympify(v) for v in row) for row in matrix)

@@ -6,6 +6,7 @@ import sympy
 from ..model import System
 from ..routes import regime_of
 from .quantities import given_line, parameter_line
+from .state_lines import state_text_lines
 
 def species_statistics(system: System, i: int) -> tuple[str, sympy.Expr]:
     """How species i's statistics is stated in its regime: ("exchange", alpha_i) or ("g", g_ii)."""
@@ -75,6 +76,7 @@ def product_lines(derivation) -> list[str]:
             where = f"at {point_text(evaluation.point)} " if evaluation.point else ""
             lines.append(f"  {where}({evaluation.digits} significant digits):")
             lines += [f"    {label} = {number}" for label, number in rows]
+    lines += state_text_lines(derivation)
     files = [(t.path, "table of " + ", ".join(n.label for n in t.targets)) for t in system.tables]
     files += [(f.path, ("map of " if len(f.axes) == 2 else "plot of ") + ", ".join(n.label for n in f.targets))
               for f in system.figures]

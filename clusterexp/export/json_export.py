@@ -13,6 +13,7 @@ import sympy
 from .common import check_record, regime_lines, species_statistics
 from .quantities import conventions, given_records, parameter_records, quantities
 from .series_lines import series_json
+from .state_lines import state_json
 
 
 def to_json(derivation: Derivation) -> str:
@@ -49,6 +50,8 @@ def to_json(derivation: Derivation) -> str:
         document["values"] = [{"at": {s.name: sympy.sstr(v) for s, v in e.point}, "digits": e.digits,
                                "values": {label: number for label, number in rows}}
                               for e, rows in derivation.evaluations]
+    if system.states:
+        document["equation_of_state"] = state_json(derivation)
     if system.tables or system.figures:
         document["files"] = [t.path for t in system.tables] + [f.path for f in system.figures]
     unknowns = derivation.unknowns()

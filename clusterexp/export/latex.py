@@ -15,6 +15,7 @@ from .latex_lines import aligned_rows
 from ..naming import generated_latex_names, is_single_atom, latex_subscript, species_latex
 from ..exact.series import indices_up_to
 from .series_lines import series_latex_paragraphs, series_latex_rows
+from .state_lines import state_latex
 
 LETTERS = {"cluster": "b", "virial": "a"}
 
@@ -83,6 +84,8 @@ def latex_snippet(derivation: Derivation, environment: str = "align", align: boo
     if system.samplings and environment != "aligned":  # (aligned: inline display in notebooks)
         from ..loops.report import latex_block
         snippet += latex_block(derivation.sampled, system)
+    if system.states and environment != "aligned":
+        snippet += "".join(line + "\n" for line in state_latex(derivation, _escape))
     return snippet
 
 
@@ -132,6 +135,7 @@ def latex_document(derivation: Derivation) -> str:
         *_unknowns_latex(derivation, names),
         *_checks_latex(derivation, labels, w, names),
         *_values_latex(derivation, labels, w, names),
+        *state_latex(derivation, _escape),
         r"\end{document}",
     ]
     return "\n".join(lines) + "\n"

@@ -14,6 +14,7 @@ from .hints import did_you_mean
 from ..model import (FORMATS, QUANTITIES, Expansion, GivenValue, Mutual, OutputSettings, Parameter, Request, Source,
                     Species, System, Tubes)
 from .statements import build_products, product_names, product_order
+from .state_statements import build_states, check_states
 from .parse import read_source
 from .sources import MAX_INCLUDE_BYTES, SourceFile as _File, collect as _collect  # noqa: F401 (MAX_INCLUDE_BYTES: the API)
 from ..routes import REGIMES
@@ -66,6 +67,7 @@ class _Builder:
         self.expansions: list[tuple[lark.Tree, _File]] = []
         self.products: list[tuple[lark.Tree, _File]] = []
         self.samplings: list[tuple[lark.Tree, _File]] = []
+        self.states: list[tuple[lark.Tree, _File]] = []   # equation-of-state statements
 
     def span(self, item) -> Span:
         return self.file.span(item)
@@ -87,6 +89,7 @@ class _Builder:
         names = list(self.species)
         requests = [self._request(tree, source, names) for tree, source in self.requests]
         products = build_products(self, self.products, names)
+        products["states"] = build_states(self, self.states, names)
         needed = max([_total(r) for r in requests] + [product_order(products)] + [3] * bool(self.samplings), default=0)
         order = self.order[0] if self.order else max(needed, DEFAULT_ORDER if not requests else 1)
         if self.order:
@@ -111,6 +114,7 @@ class _Builder:
                         size_limit=self.size_limit, tubes=self.tubes, expansions=self._expansions(),
                         samplings=samplings, **products)
         REGIMES[source.kind].check_system(system)
+        check_states(system)
         if REGIMES[source.kind].named_pieces:
             from ..pieces import refuse_contradicted_given
             refuse_contradicted_given(system)
@@ -321,6 +325,11 @@ class _Builder:
         self.products.append((tree, self.file))
 
     _evaluate = _tabulate = _plot = _typeset = _typeset_wavelength = _claim
+
+    def _evaluate_state(self, tree):
+        self.states.append((tree, self.file))
+
+    _tabulate_state = _plot_state = _equation_of_state = _evaluate_state
 
     def _sample(self, tree):
         self.samplings.append((tree, self.file))

@@ -18,12 +18,13 @@ from ..errors import InputError, Span
 from .hints import did_you_mean
 from ..model import FORMATS, QUANTITIES
 from .resources import grammar_text
+from .state_hints import mixed_state_statement
 
 MAX_LINE_LENGTH = 100_000    # characters; longer lines are refused before parsing (parse time grows with them)
 MAX_INPUT_LENGTH = 2_000_000  # characters in one file
 MAX_WHOLE_DIGITS = 30         # digits of a whole-number literal (orders, seeds, loop budgets, ...)
 STATEMENTS = ("dimension, order, parameter, species, mutual, reference, clusters, virials, derive, output, include, "
-              "claim, evaluate, tabulate, plot, typeset, sample, expand, tubes, statistics, size limit")
+              "claim, evaluate, tabulate, plot, typeset, sample, expand, tubes, statistics, size limit, equation of state")
 
 
 OPTIONS = dict(parser="lalr", propagate_positions=True, maybe_placeholders=False)
@@ -232,6 +233,8 @@ def _friendly(error: UnexpectedInput, text: str, filename: str) -> InputError:
         message = f"unexpected {word!r}: expected a statement ({STATEMENTS})"
     elif token.type == "NAME" and word in ("given",):
         message = f"unexpected {word!r}"
+    elif mixed_state_statement(token, expected, _previous_word(text, token)):
+        message = mixed_state_statement(token, expected, _previous_word(text, token))
     else:
         message = f"unexpected {word!r}" + _expected_words(expected)
     after = getattr(token, "end_pos", None)

@@ -344,7 +344,7 @@ def product_names(fields: dict) -> list[CoefficientName]:
 
 def product_order(fields: dict) -> int:
     """The highest total order any product names."""
-    return max((sum(n.index) for n in product_names(fields)), default=0)
+    return max([sum(n.index) for n in product_names(fields)] + [s.order for s in fields.get("states", ())], default=0)
 
 
 def _is_decimal(token) -> bool:

@@ -190,12 +190,15 @@ def check_files(system, directory=".", overwrite: bool = False, protected: dict 
     directory = Path(directory)
     protected = protected_files(system) if protected is None else protected
     seen = {} if seen is None else seen
-    if (system.tables or system.figures or any(s.table or s.map for s in system.samplings)) \
+    if (system.tables or system.figures or any(s.table or s.map for s in system.samplings)
+            or any(s.path for s in system.states)) \
             and directory.exists() and not directory.is_dir():
         raise InputError(f"cannot write the tables and figures into {directory}: it is not a folder")
     for item in (*system.tables, *system.figures):
         path = directory / item.path
         claimed(seen, resolve(path, overwrite, protected, item.span, folder_may_be_missing=True), str(path), item.span)
+    from .states import check_state_files
+    check_state_files(system, directory, overwrite, protected, seen)
     if system.samplings:
         from ..loops.report import check_files as check_sampled_files
         check_sampled_files(system, overwrite, directory, protected, seen)
@@ -232,6 +235,8 @@ def stage_files(derivation, batch, directory=".", overwrite: bool = False) -> No
                                parameters=system.parameters, into=collector(figure.span))
         except InputError as error:
             raise _at(error, figure.span) from None
+    from .states import stage_state_files
+    stage_state_files(derivation, batch, directory, overwrite)
     if system.samplings:
         from ..loops.report import write_files as write_sampled_files
         write_sampled_files(derivation.sampled, system, overwrite, directory, batch=batch)

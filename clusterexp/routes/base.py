@@ -8,7 +8,9 @@ A regime is one module under `routes/` with one `Regime` subclass and one line i
 - `derivation` calls `clusters` (and `virials` where the input gives virial coefficients), and
   `truncation`/`known_zero` for what is known only to some order or exactly zero;
 - the printers call `quantities` (per lambda^d, rho_L, state or Z_1), `statistics` (how a species'
-  statistics is stated), `text_lines` and `latex_paragraphs` (closed forms, implicit equation of state).
+  statistics is stated), `text_lines` and `latex_paragraphs` (closed forms, implicit equation of state);
+- the equation-of-state statements (`evaluate pressure at density A = ...`, `eos/`) call
+  `equation_of_state` (the exact pressure at finite density, or a refusal pointing to the virial series).
 
 Contributor guide, "How to add a regime" (DEVELOPERS.md), walks through a new one.
 """
@@ -165,3 +167,16 @@ class Regime:
     def latex_paragraphs(self, system, labels: list[str]) -> list[str]:
         """The same for the LaTeX document."""
         return []
+
+    # --- the exact equation of state at finite density (clusterexp.eos) ----------------------------
+    # what the regime is, said when it has no exact equation of state
+    no_equation_of_state = "this regime"
+
+    def equation_of_state(self, system, span=None):
+        """The exact equation of state (`eos.base.EquationOfState`) of the system, or an InputError at
+        `span` (default: the `clusters` line) that says why there is none and points to the virial
+        series."""
+        from ..errors import InputError
+        raise InputError(f"no exact equation of state for {self.no_equation_of_state}; use the virial series "
+                         "instead (derive virial up to N, then evaluate, tabulate or plot its coefficients a[..])",
+                         span or system.source.span)

@@ -314,6 +314,14 @@ class ExclusionRegime(Regime):
     def matrix(self, system):
         return system.source.matrix
 
+    def equation_of_state(self, system, span=None):
+        """One level: the closed form for any matrix; the continuum: the momentum-cell integral."""
+        if system.source.form == "level":
+            from ..eos.level import LevelEquationOfState
+            return LevelEquationOfState(system, system.source.matrix, landau=False)
+        from ..eos.continuum import ContinuumEquationOfState
+        return ContinuumEquationOfState(system)
+
     def text_lines(self, system) -> list[str]:
         level = system.source.form == "level"
         head = ["regime: exclusion statistics (Haldane's g_ij = -d(states of i)/d(particles of j)), "

@@ -17,6 +17,7 @@ class GenericRegime(Regime):
     """`clusters generic` and `clusters given { b[...] = ... }`: the b's not stated are symbols."""
 
     kind = "generic"
+    no_equation_of_state = "generic cluster coefficients (symbols)"
     computed = False
 
     def clusters(self, plan) -> Clusters:
@@ -41,4 +42,5 @@ class GivenRegime(GenericRegime):
     """`clusters given { ... }` / `virials given { ... }` (a grammar block of its own)."""
 
     kind = "given"
+    no_equation_of_state = "given cluster or virial coefficients"
     forms = ()

@@ -59,6 +59,11 @@ class IdealRegime(Regime):
         return Clusters(ideal_clusters(stats, [s.mass for s in system.species], system.reference_mass,
                                        system.dimension, plan.order))
 
+    def equation_of_state(self, system, span=None):
+        """Polylogarithms in the densities (clusterexp.eos.ideal)."""
+        from ..eos.ideal import IdealEquationOfState
+        return IdealEquationOfState(system)
+
     def text_lines(self, system) -> list[str]:
         return ["regime: ideal gases, b_(l of species i) = (m_i/m_ref)^(d/2) (+-1)^(l+1) l^(-1-d/2) "
                 "(+ bose, - fermi; boltzmann: b_1 only); no mixed coefficients"]

@@ -125,6 +125,12 @@ class LandauRegime(Regime):
     def matrix(self, system):
         return landau_matrix(system)
 
+    def equation_of_state(self, system, span=None):
+        """The one-level closed form with the exchange matrix (Isakov, Mashkevich, Ouvry, Nucl. Phys. B
+        448 (1995) 457), in the fillings nu_i = rho_i / rho_L; both routes of the regime give it."""
+        from ..eos.level import LevelEquationOfState
+        return LevelEquationOfState(system, landau_matrix(system), landau=True)
+
     def text_lines(self, system) -> list[str]:
         head = ["regime: lowest Landau level, beta P / rho_L = sum_n b_n z^n, virial coefficients in "
                 "nu = rho / rho_L (rho_L = eB/h, all species with the same charge); route: "

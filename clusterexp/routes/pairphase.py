@@ -199,6 +199,8 @@ class PairPhaseRegime(Regime):
     as cluster or as virial coefficients."""
 
     kind = "pairphase"
+    no_equation_of_state = ("two-body pair phases (anyons in the continuum): the many-body problem is not "
+                            "exactly solved")
     named_pieces = True
     sampled_by_loops = True
     takes_tubes = True

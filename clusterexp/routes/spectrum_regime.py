@@ -109,6 +109,7 @@ class SpectrumRegime(Regime):
     the harmonic regulator (route R2) and the declared area weight."""
 
     kind = "spectrum"
+    no_equation_of_state = "a declared trapped spectrum"
     forms = ()   # `clusters spectrum { ... }`: a grammar block of its own
 
     def check(self, builder, source, names):
