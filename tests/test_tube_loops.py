@@ -234,3 +234,71 @@ def test_two_tube_samples_weights_are_finite():
     values = samples.values(0.5, 0.5)
     assert all(np.all(np.isfinite(v)) for v in values.values())
     assert flux_shift(0.5) == one_tube(0.5)
+
+
+# ---------------------------------------------------------------------------- exact composition
+
+
+def _virial_by_undetermined_coefficients(b: dict, order: int, truncation: int) -> dict:
+    """Independent route (plain sympy, not the project's kernel): z = sum c_k rho^k solved order by order
+    from rho = sum l b_l z^l (each c_k from its linear equation, 1/b_1 as a truncated geometric series),
+    then P = sum b_l z^l expanded in rho; every power n^truncation and beyond dropped along the way."""
+    import sympy
+    from clusterexp.loops.tube_virial import COVERAGE as n
+    rho = sympy.Symbol("rho")
+
+    def cut(expr):
+        expr = sympy.expand(expr)
+        return sum(expr.coeff(n, j) * n ** j for j in range(truncation))
+
+    inverse_b1 = cut(sum((1 - b[(1,)]) ** j for j in range(truncation)))
+    c = []
+    for k in range(1, order + 1):
+        z = sum(ck * rho ** (j + 1) for j, ck in enumerate(c))
+        rest = sympy.expand(sum(l * b[(l,)] * z ** l for l in range(1, order + 1))).coeff(rho, k)
+        c.append(cut(((1 if k == 1 else 0) - rest) * inverse_b1))
+    z = sum(ck * rho ** (j + 1) for j, ck in enumerate(c))
+    pressure = sympy.expand(sum(b[(l,)] * z ** l for l in range(1, order + 1)))
+    return {(k,): cut(pressure.coeff(rho, k)) for k in range(1, order + 1)}
+
+
+@pytest.mark.parametrize("statistics,flux,order", [("bose", "1/2", 4), ("fermi", "1/3", 3), ("1/2", "1/4", 2)])
+def test_tube_virials_against_an_independent_inversion(statistics, flux, order):
+    import sympy
+    from clusterexp.loops.tube_virial import tube_coefficients
+    coefficients = tube_coefficients(sympy.Rational(statistics) if "/" in statistics else statistics,
+                                     sympy.Rational(flux), order)
+    k = next(iter(coefficients.truncation.values()))
+    reference = _virial_by_undetermined_coefficients(coefficients.clusters, order, k)
+    for index, value in coefficients.virial.items():
+        assert sympy.expand(value - reference[index]) == 0
+
+
+def test_tube_virials_see_only_the_fluctuation_of_the_winding_area():
+    # If every loop had the same X = l F (no fluctuation, T2 = F^2) the tubes would only shift the
+    # chemical potential (z -> z e^{nF}), which leaves the equation of state in densities unchanged: every
+    # a_l is the free one (ideal 2D Bose: B_{l-1}/l!; Viefers, Ravndal, Haugset, Am. J. Phys. 63 (1995) 369).
+    import sympy
+    from clusterexp.loops.tube_virial import COVERAGE, TWO_TUBES, one_tube, tube_coefficients
+    f = one_tube(sympy.Rational(1, 3))
+    c = tube_coefficients("bose", sympy.Rational(1, 3), 4)
+    free = {(1,): 1, (2,): sympy.Rational(-1, 4), (3,): sympy.Rational(1, 36), (4,): 0}
+    for index, value in c.virial.items():
+        assert sympy.expand(value.subs(TWO_TUBES, f ** 2)) == free[index]
+    # and the hand derivation of docs/tubes.md: a_2 = -1/4 - (n^2/4)(T2 - F^2) + O(n^3)
+    assert sympy.expand(c.virial[(2,)] - (-sympy.Rational(1, 4) - COVERAGE ** 2 * (TWO_TUBES - f ** 2) / 4)) == 0
+
+
+def test_anyon_virial_first_order_agrees_between_exact_and_sampled_routes():
+    import sympy
+    from clusterexp.loops.tube_virial import ANYON_TUBE, COVERAGE, compose, tube_coefficients
+    from clusterexp.loops.estimator import Estimate
+    point = estimate_anyons_tube([(0.5, 0.25)], samples=4000, seed=3).points[0]
+    c = tube_coefficients(sympy.Rational(1, 2), sympy.Rational(1, 4), 2)
+    slope = sympy.diff(c.virial[(2,)], COVERAGE)
+    value = compose(slope, {ANYON_TUBE: point.values["b2_coverage1"]}, {})
+    assert value.value == pytest.approx(point.values["a2_coverage1"].value, abs=1e-12)
+    assert value.error == pytest.approx(point.values["a2_coverage1"].error, rel=1e-12)
+    with pytest.raises(Exception, match="not supported yet|order 3"):
+        tube_coefficients(sympy.Rational(1, 2), sympy.Rational(1, 4), 3)
+    assert compose(COVERAGE * ANYON_TUBE, {ANYON_TUBE: Estimate(2.0, 0.5)}, {COVERAGE: 3}) == Estimate(6.0, 1.5)
