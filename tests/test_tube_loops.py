@@ -118,6 +118,21 @@ def test_far_apart_tubes_are_not_connected():
     assert abs(run.points[0].values["connected"].value) < 1e-6
 
 
+def test_two_tube_integral_equals_the_integral_of_the_fixed_separation_family():
+    # Independent sampling geometry: T2 = int d^2d K(d) = int 2 pi d K(d) dd, K from loops with the tubes
+    # a fixed distance apart (their midpoint sampled), integrated by Gauss-Legendre on [0, 1] (K(1) < 1e-7,
+    # docs/tubes.md); against the two-tube family, whose tubes are drawn independently.
+    nodes, weights = np.polynomial.legendre.leggauss(10)
+    value, variance = 0.0, 0.0
+    for x, w in zip(nodes, weights):
+        d = 0.5 * (x + 1.0)
+        k = estimate_separation([(0.5, -0.25)], separation=d, samples=3000, seed=40).points[0].values["connected"]
+        value += 0.5 * w * 2 * math.pi * d * k.value
+        variance += (0.5 * w * 2 * math.pi * d * k.error) ** 2
+    direct = estimate_two_tubes([(0.5, -0.25)], samples=12000, seed=41).points[0].values["connected"]
+    assert abs(value - direct.value) < SIGMAS * math.hypot(math.sqrt(variance), direct.error) + 0.03 * direct.value
+
+
 # ---------------------------------------------------------------------------- small flux
 
 
@@ -201,6 +216,11 @@ def test_braiding_species_with_a_tube():
 
 
 # ---------------------------------------------------------------------------- runs and refusals
+
+
+def test_time_cap_alone_is_a_budget():
+    run = estimate_two_tubes([(0.5, 0.5)], time_cap=0.5, seed=3, batch=200)
+    assert run.rounds >= 2 and run.samples == 200 * run.rounds
 
 
 def test_seeded_runs_repeat_and_workers_do_not_matter():
