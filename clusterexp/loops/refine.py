@@ -4,8 +4,8 @@ The slice factor of `pairfactor` is exact for one pair: given the endpoints of a
 the pair's relative vector sweeps has a known law.  When one body takes part in two pairs (a mobile
 particle and two flux tubes, two mobile particles and a tube), the two angles of one slice are
 correlated, and the product of the two exact factors is only right when at most one of the pairs is
-close (within a few slice lengths) -- the far pair then sweeps its minimal angle except with
-probability below exp(-NEAR_CUT/2) ... exp(-NEAR_CUT).
+close (within a few slice lengths) -- the far pair then sweeps its minimal angle except with a
+probability below exp(-NEAR_CUT) (a sideways bridge excursion, see `pairfactor`).
 
 `refine` therefore cuts every slice on which two or more pairs are near into two halves, drawing the
 midpoint of every mobile body from its exact Brownian-bridge law (mean the chord's midpoint,
