@@ -191,6 +191,24 @@ def test_anyon_tube_contact_term_at_small_flux(anyon_run):
     assert abs(even - (-0.05 * arovas_b2(0.5))) < 0.2 * 0.05 * abs(arovas_b2(0.5)) + SIGMAS * plus.error
 
 
+def test_contact_law_agrees_with_the_perturbative_route_for_an_infinitely_heavy_species():
+    """Independent route: a tube is a particle of infinite mass whose mutual parameter with the mobile
+    species is its flux.  The perturbative route (routes/perturbative.py: contact vertices fixed by the
+    exact two-body b, Hartree-Fock ring for |x||y|; docs/perturbative.md) gives b_{2,1} of two bosonic
+    anyons and one particle of mass M through second order; divided by b_{0,1} = M it is the first order
+    in the coverage.  Its |gamma| and |alpha||gamma| coefficients must tend to those of the derived law
+    b2^(1) = -|gamma| b_2(alpha) + ... = -|gamma|/4 + |alpha||gamma| + ... (docs/tubes.md)."""
+    import sympy
+    from clusterexp.routes.perturbative import Species, taylor_coefficients
+    e, d = sympy.symbols("e d", real=True)
+    for mass in (10 ** 3, 10 ** 6):
+        c = taylor_coefficients([Species(e), Species(None, mass=mass)], {(0, 1): d}, (2, 1), "boson", 2,
+                                unknown="name")
+        assert abs(c[sympy.Abs(d)] / mass - sympy.Rational(-1, 4)) <= sympy.Rational(1, mass)
+        assert abs(c[sympy.Abs(d) * sympy.Abs(e)] / mass - 1) <= sympy.Rational(1, mass)
+        assert c[sympy.Abs(e)] == 0
+
+
 def test_half_flux_symmetry_of_the_exchange_part():
     # At gamma = 1/2 the winding factor e^{i pi w} is real; the exchange phase obeys
     # Phi(1 - alpha) = -conj Phi(alpha) (odd multiples of pi), so the exchange part is odd under
