@@ -152,6 +152,23 @@ def test_small_flux_contact_and_mean_field_terms():
     assert abs((opposite.value - same.value) / (g * g / 6) - 1.0) < 0.3
 
 
+def test_small_flux_law_agrees_with_the_perturbative_route_for_two_heavy_species():
+    """Independent route for T2 = |g1||g2|/4 - g1 g2/12 + ...: two tube species are two particle species of
+    mass M -> infinity with mutual parameters g1, g2 with the mobile one; b_{1,1,1}/(b_{0,1,0} b_{0,0,1}) is
+    then the connected integral of one loop and two tubes.  The perturbative route (routes/perturbative.py:
+    Hartree-Fock ring of the contacts for |x||y|, the Landau mean-field term for d_ij d_ik;
+    docs/perturbative.md) gives (M+1)^2/(4 M^2) and -1/12."""
+    import sympy
+    from clusterexp.routes.perturbative import Species, taylor_coefficients
+    d1, d2 = sympy.symbols("d1 d2", real=True)
+    for mass in (10 ** 3, 10 ** 6):
+        c = taylor_coefficients([Species(None), Species(None, mass=mass), Species(None, mass=mass)],
+                                {(0, 1): d1, (0, 2): d2}, (1, 1, 1), "boson", 2, unknown="name")
+        assert abs(c[sympy.Abs(d1) * sympy.Abs(d2)] / mass ** 2 - sympy.Rational(1, 4)) <= sympy.Rational(1, mass)
+        assert c[d1 * d2] / mass ** 2 == sympy.Rational(-1, 12)
+        assert c[sympy.Abs(d1)] == 0 and c[d1 ** 2] == 0
+
+
 # ---------------------------------------------------------------------------- two anyons and one tube
 
 
