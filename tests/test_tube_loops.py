@@ -357,3 +357,7 @@ def test_anyon_virial_first_order_agrees_between_exact_and_sampled_routes():
     with pytest.raises(Exception, match="not supported yet|order 3"):
         tube_coefficients(sympy.Rational(1, 2), sympy.Rational(1, 4), 3)
     assert compose(COVERAGE * ANYON_TUBE, {ANYON_TUBE: Estimate(2.0, 0.5)}, {COVERAGE: 3}) == Estimate(6.0, 1.5)
+    with pytest.raises(ValueError, match="exact rational"):
+        tube_coefficients("bose", 0.1, 2)
+    with pytest.raises(ValueError, match="exact rational"):
+        tube_coefficients(0.5, sympy.Rational(1, 4), 2)

@@ -79,10 +79,10 @@ def _make(family: str, rng, count: int, slices: int, depth: int, separation):
 
 
 def _family_values(family: str, samples, point: tuple) -> dict[str, np.ndarray]:
+    """pair_tube takes (alpha, flux felt by particle 1, by particle 2): an identical pair's point
+    (alpha, gamma) gives both the same flux; every other family takes the point's first two entries."""
     if family == "pair_tube":
         return samples.values(point[0], point[1], point[-1])
-    if family == "swap_tube":
-        return samples.values(point[0], point[1])
     return samples.values(point[0], point[1])
 
 

@@ -32,9 +32,16 @@ TWO_TUBES = sympy.Symbol("T_two_tubes", real=True)
 ANYON_TUBE = sympy.Symbol("B_anyon_tube", real=True)
 
 
+def _exact(value, what: str) -> sympy.Rational:
+    if isinstance(value, float) or not sympy.sympify(value).is_Rational:
+        raise ValueError(f"{what} must be an exact rational number (sympy.Rational or int), got {value!r}: "
+                         "the derivation stays exact; floats enter only through `compose`")
+    return sympy.Rational(value)
+
+
 def one_tube(flux) -> sympy.Expr:
     """-s(1 - s)/2 with s = flux mod 1 (exact for a rational flux)."""
-    s = sympy.Rational(flux) % 1
+    s = _exact(flux, "the flux") % 1
     return -s * (1 - s) / 2
 
 
@@ -53,8 +60,10 @@ def tube_coefficients(statistics, flux, order: int) -> TubeCoefficients:
     """
     f = one_tube(flux)
     n = COVERAGE
-    if statistics in ("bose", "fermi") or (sympy.Rational(statistics) % 2) in (0, 1):
-        fermi = statistics == "fermi" or (statistics != "bose" and sympy.Rational(statistics) % 2 == 1)
+    if statistics not in ("bose", "fermi"):
+        statistics = _exact(statistics, "the exchange parameter")
+    if statistics in ("bose", "fermi") or statistics % 2 in (0, 1):
+        fermi = statistics == "fermi" or (statistics != "bose" and statistics % 2 == 1)
         b = {(l,): (-1 if fermi and l % 2 == 0 else 1) * (sympy.Rational(1, l * l) + n * f / l + n ** 2 * TWO_TUBES / 2)
              for l in range(1, order + 1)}
         truncation = {n: 3}
@@ -63,7 +72,7 @@ def tube_coefficients(statistics, flux, order: int) -> TubeCoefficients:
             raise NotSupportedYet(f"anyons among flux tubes to order {order}: b_l with l >= 3 are many-body "
                                   "pieces with tubes and are not derived; supported: order 2 (b_1 exact, b_2 to "
                                   "first order in the coverage with the sampled piece B_anyon_tube)")
-        a = sympy.Rational(statistics) % 2
+        a = statistics % 2
         b = {(1,): 1 + n * f, (2,): sympy.Rational(1, 4) - a + a ** 2 / 2 + n * ANYON_TUBE}
         b = {k: v for k, v in b.items() if k[0] <= order}
         truncation = {n: 2}
