@@ -120,7 +120,10 @@ def _sampling(builder, statement: _Statement, source, names, order) -> Sampling:
         raise InputError("sampled numbers enter the pair-phase regime: declare `clusters pairphase` "
                          f"(the coefficients come from `clusters {source.kind}` here); {SUPPORTED}", span)
     if builder.tubes is not None:
-        raise InputError("sampling with flux tubes is not supported (the loops carry no tubes); " + SUPPORTED, span)
+        raise InputError("sampling with flux tubes is not supported in the input language (one mobile particle and "
+                         "two tubes, two mobile particles and one tube are sampled from Python: "
+                         "clusterexp.loops.tube_estimates, docs/tubes.md; three tubes or more than two mobile "
+                         "particles with a tube are not); " + SUPPORTED, span)
     if order < 3:
         raise InputError(f"sampled coefficients are of total order 3, beyond the declared `order {order}`",
                          coefficients[0][2])

@@ -113,6 +113,8 @@ def separates(system, index) -> bool:
 
 
 ADJECTIVE = {"bose": "bosonic", "fermi": "fermionic"}
+TUBES_SUPPORTED = ("supported in the input language: `tubes flux gamma coverage n` with `clusters pairphase` in "
+                   "`dimension 2` and bose or fermi mobile species that do not braid, to first order in the coverage")
 
 
 def known_piece(system, index) -> str | None:
@@ -230,6 +232,9 @@ class PairPhaseRegime(Regime):
 
     def check(self, builder, source, names):
         from ..errors import InputError, NotSupportedYet
+        if builder.dimension != 2 and builder.tubes is not None:
+            raise InputError(f"flux tubes thread the plane (their Aharonov-Bohm phases are windings): declare "
+                             f"`dimension 2`, not {builder.dimension}; {TUBES_SUPPORTED}", builder.tubes.span)
         if builder.dimension != 2:
             raise InputError(f"pair phases are a property of the plane; declare `dimension 2`, not {builder.dimension}",
                              source.span)
@@ -238,8 +243,13 @@ class PairPhaseRegime(Regime):
             anyonic = [s for s in builder.species.values() if species_statistics(s, builder.by_symbol()) is None]
             braiding = [m for m in builder.mutuals if braids(m.value, builder.by_symbol()) is not False]
             if anyonic or braiding:
-                raise NotSupportedYet("flux tubes with anyonic or mutually braiding mobile species (the cycle-around-"
-                                      "tube pieces of several mobile particles are many-body and not yet named)",
+                who = (f"species {anyonic[0].name} is anyonic" if anyonic
+                       else f"species {braiding[0].first} and {braiding[0].second} braid")
+                raise NotSupportedYet(f"flux tubes with anyonic or braiding mobile species in the input language ({who}); "
+                                      "their first order in the coverage (b_2 of identical anyons, b_11 of two braiding "
+                                      "species: two mobile particles and one tube) and the coverage-squared integral are "
+                                      "sampled from Python (clusterexp.loops.tube_estimates, composed exactly by "
+                                      "clusterexp.loops.tube_virial; docs/tubes.md); " + TUBES_SUPPORTED,
                                       builder.tubes.span)
         return source
 

@@ -1,0 +1,46 @@
+"""Flux tubes in the input language: what is refused, where, and with what it says is supported
+(issue on the three-body problems with tubes; docs/tubes.md)."""
+import pytest
+
+import clusterexp
+from clusterexp import InputError
+
+
+@pytest.mark.parametrize("text, needle, where", [
+    # tubes with a non-planar dimension: refused at the tubes line, saying what is supported
+    ("dimension 3 parameter n species A bose\ntubes flux 1/2 coverage n clusters pairphase",
+     "flux tubes thread the plane", "2:1"),
+    ("dimension 1 parameter n species A fermi\ntubes flux 1/3 coverage n clusters pairphase",
+     "declare `dimension 2`, not 1", "2:1"),
+    # sampling with tubes (three tubes, more mobile particles) in the language
+    ("dimension 2 parameter n species A exchange 1/2 clusters pairphase tubes flux 1/2 coverage n\n"
+     "sample a[3] at n = 1/10", "sampling with flux tubes is not supported in the input language", "2:1"),
+])
+def test_tube_requests_refused_at_their_line(text, needle, where):
+    with pytest.raises(InputError) as caught:
+        clusterexp.derive(text)
+    assert needle in str(caught.value)
+    assert str(caught.value.span).endswith(where)
+    assert "supported" in str(caught.value)
+
+
+@pytest.mark.parametrize("text, who", [
+    ("dimension 2 parameter n species A exchange 1/2 tubes flux 1/2 coverage n clusters pairphase",
+     "species A is anyonic"),
+    ("dimension 2 parameter n species A bose species B fermi mutual A B = 1/3 tubes flux 1/2 coverage n "
+     "clusters pairphase", "species A and B braid"),
+])
+def test_anyonic_or_braiding_mobile_species_with_tubes_say_where_the_numbers_are(text, who):
+    with pytest.raises(clusterexp.NotSupportedYet) as caught:
+        clusterexp.derive(text)
+    message = str(caught.value)
+    assert "not supported yet" in message and who in message
+    assert "clusterexp.loops.tube_estimates" in message and "bose or fermi mobile species" in message
+
+
+def test_cli_refusal_has_caret_and_exit_code_2(cli):
+    result = cli("run", "-e", "dimension 3 parameter n species A bose tubes flux 1/2 coverage n clusters pairphase "
+                 "derive virial up to 2")
+    assert result.returncode == 2
+    assert "flux tubes thread the plane" in result.stderr and "^" in result.stderr
+    assert "Traceback" not in result.stderr
