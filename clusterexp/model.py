@@ -266,6 +266,20 @@ class Typesetting:
 
 
 @dataclass(frozen=True)
+class Presentation:
+    """How results are written (`language/manuscript.py`): `form` of the values (`forms.FORMS`) with
+    `collect_in` (parameter names, or ("pieces",) for the generated symbols), the LaTeX document's
+    `title`, the coefficients of a `snippet` (each its own labelled equation), and the figures'
+    `figure_options` ("latex_engine", "footer")."""
+
+    form: str = "expanded"
+    collect_in: tuple[str, ...] = ()
+    title: str | None = None
+    snippet: tuple[CoefficientName, ...] = ()
+    figure_options: tuple[str, ...] = ()
+
+
+@dataclass(frozen=True)
 class System:
     """A validated gas: what the derivation stage consumes."""
 
@@ -289,6 +303,7 @@ class System:
     figures: tuple[Figure, ...] = ()
     typesetting: Typesetting = field(default_factory=Typesetting)
     samplings: tuple["Sampling", ...] = ()
+    presentation: Presentation = field(default_factory=Presentation)
 
     @property
     def species_names(self) -> tuple[str, ...]:

@@ -15,6 +15,14 @@ from .quantities import conventions, given_records, parameter_records, quantitie
 from .series_lines import series_json
 
 
+def form_record(derivation, c) -> dict:
+    """{"form": ..., "form_note": ...} when the input chose how values are written."""
+    if derivation.system.presentation.form == "expanded":
+        return {}
+    shaped = derivation.shaped(c)
+    return {"form": shaped.form, **({"form_note": shaped.note} if shaped.note else {})}
+
+
 def to_json(derivation: Derivation) -> str:
     system = derivation.system
     names = list(system.species_names)
@@ -37,7 +45,8 @@ def to_json(derivation: Derivation) -> str:
                 "index": list(c.index),
                 "species": dict(zip(names, c.index)),
                 **({"component": c.component} if c.component else {}),
-                "value": c.text,
+                "value": derivation.shaped(c).text(c),
+                **form_record(derivation, c),
                 **series_json(derivation, c),
             }
             for c in derivation

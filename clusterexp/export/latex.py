@@ -11,7 +11,8 @@ import sympy
 from ..routes import regime_of
 from .common import species_statistics
 from .quantities import assumptions_latex, conventions_latex, quantities
-from .latex_lines import aligned_rows
+from .equations import labelled_equations
+from .latex_lines import aligned_rows, top_level_terms
 from ..naming import generated_latex_names, is_single_atom, latex_subscript, species_latex
 from ..exact.series import indices_up_to
 from .series_lines import series_latex_paragraphs, series_latex_rows
@@ -64,6 +65,19 @@ def _monomial(index, labels, factor) -> str:
     return " ".join(factors)
 
 
+def value_latex(derivation: Derivation, c: Coefficient, names) -> list[str]:
+    """The LaTeX of a coefficient's value as the input's `values` statement writes it: its terms with
+    their signs (the break points of a long line)."""
+    return (derivation.shaped(c).latex_terms(names) or c.latex_terms(names)
+            or top_level_terms(c.latex(names)) or [c.latex(names)])
+
+
+def coefficient_lhs(derivation: Derivation, c: Coefficient) -> str:
+    """The LaTeX name of coefficient c in the derivation's conventions and `typeset` names."""
+    system = derivation.system
+    return _lhs(c, species_labels(system), system.dimension, system.typesetting.wavelength, quantities(system))
+
+
 def latex_snippet(derivation: Derivation, environment: str = "align", align: bool | None = None) -> str:
     """The coefficients as one LaTeX environment (`align`, `align*` or `aligned`)."""
     system = derivation.system
@@ -73,10 +87,14 @@ def latex_snippet(derivation: Derivation, environment: str = "align", align: boo
     amp = "&" if use_align else ""
     q = quantities(system)
     wavelength = system.typesetting.wavelength
+    if system.presentation.snippet and environment != "aligned":
+        chosen = [derivation.coefficient(t.kind, t.index, t.component) for t in system.presentation.snippet]
+        return labelled_equations(derivation, [(c, coefficient_lhs(derivation, c), value_latex(derivation, c, names))
+                                               for c in chosen])
     rows = [row for c in derivation for row in
-            [aligned_rows(_lhs(c, labels, system.dimension, wavelength, q), c.latex_terms(names) or c.latex(names))
+            [aligned_rows(_lhs(c, labels, system.dimension, wavelength, q), value_latex(derivation, c, names))
              if use_align else
-             f"  {_lhs(c, labels, system.dimension, wavelength, q)} = {c.latex(names)}",
+             f"  {_lhs(c, labels, system.dimension, wavelength, q)} = {' '.join(value_latex(derivation, c, names))}",
              *series_latex_rows(derivation, c, amp, names)]]
     body = " \\\\\n".join(rows)
     snippet = f"\\begin{{{environment}}}\n{body}\n\\end{{{environment}}}\n"
