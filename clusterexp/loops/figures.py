@@ -1,7 +1,7 @@
 """Heat map of a sampled coefficient over two scanned parameters (e.g. alpha_1 and alpha_12).
 
-Built like `clusterexp.products.plots.plot_map` (a `Figure` without pyplot, the same caption and file
-handling, byte-stable files), but from Monte Carlo values on the statement's grid instead of an
+Built like `clusterexp.products.plots.plot_map` (a `Figure` without pyplot, the same style, files
+and metadata, byte-stable files; the caption in the metadata, a footer only with `figures footer`), but from Monte Carlo values on the statement's grid instead of an
 expression: each grid point is one cell, and the caption gives the largest error bar.
 """
 from __future__ import annotations
@@ -11,12 +11,18 @@ from pathlib import Path
 from types import SimpleNamespace
 
 from ..errors import InputError
-from ..products.plots import (_figure, _format, _matplotlib, _place_caption, _save, coefficient_latex, conventions_caption,
-                     symbol_latex)
+from ..products.figure_style import style
+from ..products.plots import _figure, _format, _matplotlib, coefficient_latex, conventions_caption, finish, symbol_latex
 from .quoting import METHOD, plus_minus
 
 
 def sampled_map(statement, system, path: Path, into=None) -> Path:
+    options = system.presentation.figure_options
+    with style(options):
+        return _draw(statement, system, path, into, options)
+
+
+def _draw(statement, system, path: Path, into, options) -> Path:
     _, Figure, numpy = _matplotlib()
     sampling = statement.sampling
     (first, xs), (second, ys) = sampling.axes
@@ -30,7 +36,7 @@ def sampled_map(statement, system, path: Path, into=None) -> Path:
     caption = (f"{conventions_caption(system)}; {METHOD}, seed {sampling.seed}; largest error bar "
                f"{plus_minus(v.value, v.error)}" + (f"; fixed: {fixed}" if fixed else ""))
     caption = "\n".join(textwrap.wrap(caption, 95))
-    figure = _figure(Figure, caption.count("\n") + 1)
+    figure = _figure(Figure, caption.count("\n") + 1 if "footer" in options else 0)
     axes = figure.add_subplot()
     low, high = float(values.min()), float(values.max())
     if low < 0 < high:
@@ -39,11 +45,11 @@ def sampled_map(statement, system, path: Path, into=None) -> Path:
     else:
         mesh = axes.pcolormesh(x, y, values, shading="nearest", cmap="viridis")
     item = SimpleNamespace(kind=v.kind, index=v.index, species=system.species_names, component=None)
-    figure.colorbar(mesh, ax=axes).set_label(f"${coefficient_latex(item)}$ (sampled)")
+    figure.colorbar(mesh, ax=axes).set_label(f"${coefficient_latex(item, system)}$ (sampled)")
     axes.set_xlabel(f"${symbol_latex(first.name)}$")
     axes.set_ylabel(f"${symbol_latex(second.name)}$")
-    _place_caption(figure, caption)
+    _format(path)
     try:
-        return _save(figure, path, _format(path), into)
+        return finish(figure, path, caption, into, options, None, f"{v.label} sampled over {first.name}, {second.name}")
     except OSError as error:
         raise InputError(f"cannot write {path}: {error.strerror}", sampling.clause_span("map")) from None

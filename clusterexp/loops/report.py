@@ -119,8 +119,9 @@ def check_files(system, overwrite: bool = False, base: Path | None = None, prote
             if name is None:
                 continue
             span = s.clause_span(clause)
-            target = resolve(base / name, overwrite, protected, span, folder_may_be_missing=True)
-            claimed(seen, target, str(base / name), span)
+            from ..products.figure_style import figure_paths   # a map is written as PDF and PNG
+            for path in ([base / name] if clause == "table" else figure_paths(base / name)[:-1]):
+                claimed(seen, resolve(path, overwrite, protected, span, folder_may_be_missing=True), str(path), span)
 
 
 def write_files(numbers: SampledNumbers, system, overwrite: bool = False, base: Path | None = None,
