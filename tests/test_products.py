@@ -286,7 +286,7 @@ def test_document_with_checks_values_and_tables_compiles(tmp_path):
                           "evaluate a[1,1], a[2,0] at alpha = 1/3, nu = 1/4 digits 20\n"
                           "tabulate a[1,1] over nu from 0 to 1 step 1/4 into \"t.csv\"")
     source = latex_document(d)
-    assert r"\subsection*{Checks of hand results}" in source and "mismatch" in source
+    assert r"\section{Checks of hand results}" in source and "mismatch" in source
     assert r"\begin{tabular}" in source and r"\tilde{\nu}_{AB}" in source
     (tmp_path / "doc.tex").write_text(source)
     result = subprocess.run(["pdflatex", "-interaction=nonstopmode", "-halt-on-error", "doc.tex"],

@@ -6,18 +6,20 @@ wide as their wider part, scripts at 70 %); the document's compile test (tests/t
 pdflatex's log for any overfull line, so an estimate that errs on the narrow side is caught.
 
 >>> round(math_width(r"\\frac{7 \\nu}{10}"))
-18
+16
 """
 from __future__ import annotations
 
 import re
 
 TEXT_WIDTH_PT = 455.0            # a4paper with 2.5 cm margins (the document's geometry)
+FONT_SCALE = 1.1                 # the document is set at 11 pt; the widths below are those at 10 pt
 EQUATION_NUMBER_PT = 30.0        # room kept for the number at the end of the last line
 GLYPH_PT = 5.6
 _TOKEN = re.compile(r"\\[A-Za-z]+\*?|\\.|[{}^_]|[^\\{}^_]")
 _WIDE = {"quad": 10.0, "qquad": 20.0, ",": 1.7, ";": 2.8, ":": 2.2, "!": -1.7, " ": 3.3}
-_ZERO = {"left", "right", "nonumber", "displaystyle", "textstyle", "limits", "notag", "mathrm", "mathit",
+_GROWING = {"left", "right"}    # a delimiter that grows around a fraction: wider than the plain one
+_ZERO = {"nonumber", "displaystyle", "textstyle", "limits", "notag", "mathrm", "mathit",
          "mathbf", "mathsf", "mathtt", "mathcal", "boldsymbol", "operatorname", "hat", "bar", "tilde",
          "widetilde", "widehat", "vec", "dot", "ddot", "overline", "underline", "check", "breve"}
 _DELIMITER = {"bigl", "bigr", "Bigl", "Bigr", "biggl", "biggr", "big", "Big"}
@@ -29,7 +31,7 @@ def math_width(latex: str) -> float:
     """Estimated width in points of `latex` typeset in display math at 10 pt."""
     tokens = _TOKEN.findall(latex)
     width, _ = _group_width(tokens, 0, 1.0)
-    return width
+    return width * FONT_SCALE
 
 
 def _group_width(tokens, k, scale, stop="}"):
@@ -59,6 +61,8 @@ def _group_width(tokens, k, scale, stop="}"):
                 width += inner + 8.4 * scale
             elif name in _DELIMITER:
                 width += 5.0 * scale
+            elif name in _GROWING:
+                width += 3.5 * scale
             elif name in _ZERO:
                 continue
             elif name in ("bmod", "mod"):

@@ -210,6 +210,7 @@ def stage_files(derivation, batch, directory=".", overwrite: bool = False) -> No
     directory = Path(directory)
     system = derivation.system
     check_files(system, directory, overwrite, batch.protected)
+    derivation.__dict__["_files_folder"] = directory   # where the document finds the figures
 
     def collector(span):
         return lambda path, data: batch.add(path, data, overwrite, span, make_folder=True)
