@@ -49,7 +49,12 @@ class Shaped:
         """Sympy-parsable text of `coefficient` (a `results.Coefficient`) as written."""
         if self.expr is None:
             return coefficient.text
-        return " + ".join([sympy.sstr(self.expr)] + [sympy.sstr(o) for o in self.orders])
+        if self.structure[0] == "sum":   # the terms in the written order, each printed as sympy does
+            texts = [sympy.sstr(t) for t in self.expr.args] if isinstance(self.expr, sympy.Add) else [sympy.sstr(self.expr)]
+            written = texts[0] + "".join(f" - {t[1:]}" if t.startswith("-") else f" + {t}" for t in texts[1:])
+        else:
+            written = sympy.sstr(self.expr)
+        return " + ".join([written] + [sympy.sstr(o) for o in self.orders])
 
     def latex_terms(self, names: dict) -> list[str] | None:
         """The LaTeX as terms with their signs (break points of a long line); None: expanded."""
@@ -64,11 +69,38 @@ class Shaped:
                 terms = [rf"{prefactor} \left({inner[0]}\right)"]
             else:
                 terms = [rf"{prefactor} \Bigl({inner[0]}", *inner[1:-1], rf"{inner[-1]}\Bigr)"]
-        elif isinstance(self.expr, sympy.Add):
-            terms = _signed([tex(t) for t in self.expr.args])
+        elif self.structure[0] == "sum":
+            terms = _signed([_term_latex(m, part, tex) for m, part in self.structure[1]])
+        elif self.structure[0] == "product":
+            terms = [_term_latex(sympy.Integer(1), self.structure, tex)]
         else:
-            terms = [tex(self.expr)]
+            terms = _signed([tex(t) for t in sympy.sympify(self.structure[1]).as_ordered_terms()])
         return terms + [f"+ {tex(o)}" for o in self.orders]
+
+
+def _inner_fraction(f) -> bool:
+    return f.is_Add and any(not t.as_coeff_Mul()[0].is_Integer for t in f.args)
+
+
+def _term_latex(monomial, part, tex) -> str:
+    """One term, a monomial times a structure; a factor with fractions inside is not put over a common
+    denominator: (1/r)(-alpha^2/2 + alpha - 1/4), not a fraction within a fraction."""
+    if part[0] == "number":
+        value = sympy.sympify(part[1])
+        if monomial == 1 or not value.is_Add:
+            return tex(value * monomial)
+        return rf"{tex(monomial)} \left({tex(value)}\right)"
+    coefficient, factors = part[1], part[2]
+    if not any(_inner_fraction(f) for f, k in factors if k > 0):
+        return tex(assemble(("sum", [(monomial, part)])))
+    prefix = coefficient / sympy.Mul(*[f ** -k for f, k in factors if k < 0])
+    pieces = [] if monomial == 1 else [tex(monomial)]
+    for f, k in factors:
+        if k > 0:
+            body = rf"\left({tex(f)}\right)" if f.is_Add else tex(f)
+            pieces.append(body if k == 1 else f"{body}^{{{k}}}")
+    head = "" if prefix == 1 else "-" if prefix == -1 else tex(prefix) + " "
+    return head + " ".join(pieces)
 
 
 class FormUnreached(Exception):
@@ -90,7 +122,7 @@ def shape(value: sympy.Expr, form: str, collect_in: tuple = (), masses: tuple = 
                       f"{terms} terms, more than the {TERM_LIMIT} the {_word(form)} form is tried for: printed expanded")
     job = (exact, form, tuple(collect_in), tuple(masses))
     try:
-        structure = structure_of(*job) if terms <= IN_PROCESS_TERMS or runner is None else runner.run(job)
+        structure = _in_process(job) if terms <= IN_PROCESS_TERMS or runner is None else runner.run(job)
     except FormUnreached as why:
         return Shaped(None, "expanded", orders, f"{_word(form)} form {why}: printed expanded")
     return Shaped(assemble(structure), form, orders, structure=structure)
@@ -99,6 +131,15 @@ def shape(value: sympy.Expr, form: str, collect_in: tuple = (), masses: tuple = 
 def _signed(texts: list[str]) -> list[str]:
     """Printed terms with their signs: the first as printed, the others led by `+ ` or `- `."""
     return texts[:1] + [f"- {t[1:].lstrip()}" if t.startswith("-") else f"+ {t}" for t in texts[1:]]
+
+
+def _in_process(job):
+    try:
+        return structure_of(*job)
+    except FormUnreached:
+        raise
+    except Exception as why:  # noqa: BLE001 -- any failure of the algebra means: print expanded
+        raise FormUnreached(f"failed in sympy ({type(why).__name__})") from None
 
 
 def _word(form: str) -> str:
@@ -114,7 +155,7 @@ def _has_fraction(expr) -> bool:
 def structure_of(exact, form, collect_in, masses):
     """Plain data describing the rearranged value, verified equal to `exact`."""
     if form == "factored":
-        structure = ("product", *_factors(exact))
+        structure = _product(exact)
     elif form == "mass_prefactor":
         coefficient, factors = _factors(exact)
         outside = [(f, k) for f, k in factors if f.free_symbols and f.free_symbols <= set(masses)]
@@ -127,13 +168,28 @@ def structure_of(exact, form, collect_in, masses):
     elif form == "collected":
         expanded = sympy.expand(exact)
         groups = sympy.collect(expanded, list(collect_in), evaluate=False) if collect_in else {sympy.Integer(1): expanded}
-        rows = sorted(groups.items(), key=lambda kv: sympy.default_sort_key(kv[0]))
-        structure = ("sum", [(monomial, ("product", *_factors(part))) for monomial, part in rows])
+        rows = sorted(groups.items(), key=lambda kv: (sum(kv[0].as_powers_dict().get(x, 0) for x in collect_in),
+                                                      sympy.default_sort_key(kv[0])))   # ascending powers
+        structure = ("sum", [(monomial, _product(part)) for monomial, part in rows])
     else:
         raise ValueError(form)
     if sympy.cancel(sympy.together(evaluated(structure) - exact)) != 0:
         raise FormUnreached("could not be verified equal to the expanded value")
     return structure
+
+
+def _product(expr):
+    """The factored structure of expr; a polynomial that does not factor (one factor, no denominator)
+    stays expanded: -1/4 + alpha - alpha^2/2 reads better than -(2 alpha^2 - 4 alpha + 1)/4."""
+    coefficient, factors = _factors(expr)
+    if len(factors) == 1 and factors[0][1] == 1 and factors[0][0].is_Add:
+        return ("number", sympy.expand(expr))
+    long = [k for k, (f, e) in enumerate(factors) if e == 1 and f.is_Add and len(f.args) >= 3]
+    if len(long) == 1 and abs(coefficient) != 1:   # (-alpha^2/2 + alpha - 1/4)/r, not -(2 alpha^2 - ...)/(4 r)
+        f, _ = factors[long[0]]
+        factors = [*factors[:long[0]], (sympy.expand(coefficient * f), 1), *factors[long[0] + 1:]]
+        coefficient = sympy.Integer(1)
+    return ("product", coefficient, factors)
 
 
 def _factors(expr):
@@ -148,6 +204,8 @@ def _factors(expr):
         if f.is_Add and _leading_negative(f):
             f, coefficient = sympy.expand(-f), coefficient * (-1) ** k
         factors.append((f, k))
+    # symbols first, then sums by size: nu (1 - nu) (r + 1), as written by hand
+    factors.sort(key=lambda fk: (fk[0].is_Add, len(fk[0].args), sympy.default_sort_key(fk[0])))
     return coefficient, factors
 
 

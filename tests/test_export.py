@@ -8,7 +8,6 @@ import clusterexp
 from clusterexp.exact.series import available_backends
 from clusterexp.export import latex_document, latex_snippet, to_json, to_text
 from clusterexp.exact.terms import TermSum
-from conftest import ROOT
 
 TEXT = """dimension 2 parameter nu in [0, 1] species A species B mass 2 mutual A B = nu
 clusters given { b[1,1] = -nu*(1 - nu) } derive virial up to 3 derive fugacity up to 2"""
@@ -221,5 +220,5 @@ def test_exclusion_species_are_listed_by_their_g_not_by_an_exchange_parameter():
                           "derive virial up to 2")
     assert "A (mass 1, g_AA = 1/3), B (mass 1, g_BB = 1)" in to_text(d)
     assert "exchange 0" not in to_text(d)
-    assert r"$A$ & $1$ & exclusion & $g_{AA}=\frac{1}{3}$ \\" in latex_document(d)   # the species table
+    assert r"$A$ & $1$ & exclusion & $g_{A A}=\frac{1}{3}$ \\" in latex_document(d)   # the species table
     assert json.loads(to_json(d))["species"][0] == {"name": "A", "mass": "1", "g": "1/3"}

@@ -22,7 +22,8 @@ def _forms(text: str) -> list[str]:
 
 @pytest.mark.parametrize("folder", WORKED, ids=[p.name for p in WORKED])
 def test_every_form_equals_the_expanded_value_on_every_worked_example(folder):
-    text = (folder / "input.gas").read_text()
+    text = "\n".join(line for line in (folder / "input.gas").read_text().splitlines()
+                     if not line.startswith("values "))   # each form in turn, instead of the example's own
     for form in _forms(text):
         d = derive(text + "\n" + form + "\n", base_dir=str(folder))
         symbols = {p.name: p.symbol for p in d.system.parameters}   # with their assumptions

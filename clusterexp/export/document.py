@@ -17,7 +17,7 @@ if TYPE_CHECKING:  # the results import the printers for their notebook display,
 
 import sympy
 
-from .common import species_statistics
+from .common import form_line, species_statistics
 from .document_results import checks_section, coefficient_sections, figures_section, values_section
 from .latex import escape_text, latex_symbol_names, regime_latex, species_labels, unknowns_latex
 from .latex_width import fitting_rows
@@ -85,10 +85,9 @@ def system_section(derivation: Derivation, names: dict, labels: list[str]) -> li
                   [[f"${label}$", f"${math(s.mass)}$", *_statistics(system, i, label, math)]
                    for i, (label, s) in enumerate(zip(labels, system.species))])
     if system.mutuals:
-        rows = [[f"${labels[system.species_names.index(m.first)]}$, ${labels[system.species_names.index(m.second)]}$",
-                 rf"$\alpha_{{{labels[system.species_names.index(m.first)]}"
-                 rf"{labels[system.species_names.index(m.second)]}}}={math(m.value)}$", "$1$"]
-                for m in system.mutuals]
+        pairs = [(labels[system.species_names.index(m.first)], labels[system.species_names.index(m.second)], m.value)
+                 for m in system.mutuals]
+        rows = [[f"${i}$, ${j}$", rf"$\alpha_{{{i} {j}}}={math(value)}$", "$1$"] for i, j, value in pairs]
         out += _table("mutual", r"Mutual (braiding) parameters: a particle taken once around the other picks up "
                       r"$e^{2\pi i\alpha_{ij}}$.", "lll", ["Pair", "Mutual parameter", "Period"], rows)
     if system.parameters:
@@ -104,6 +103,9 @@ def system_section(derivation: Derivation, names: dict, labels: list[str]) -> li
                    rf"${w}^2$ of the reference species{value}; every coefficient is known to first order in the "
                    rf"coverage and carries $O({math(t.coverage)}^2)$.")
     out += _given(system, math)
+    form = form_line(system)
+    out += [f"The values below are {form[7:]} (a value the algebra does not reach within its time bound is "
+            "printed expanded, and said so)."] if form else []
     out += [r"\subsection*{Regime and equation of state}", *regime_latex(system),
             conventions_latex(system, system.typesetting.wavelength), *series_latex_paragraphs(derivation)]
     return out
@@ -114,7 +116,7 @@ def _statistics(system, i, label, math) -> list[str]:
     if word == "exchange":
         what = {0: "boson", 1: "fermion"}.get(value, "anyon") if value.is_number else "anyon"
         return [what, rf"$\alpha_{{{label}}}={math(value)}$"]
-    return ["exclusion", rf"$g_{{{label}{label}}}={math(value)}$"]
+    return ["exclusion", rf"$g_{{{label} {label}}}={math(value)}$"]
 
 
 def _range(p, math) -> str:

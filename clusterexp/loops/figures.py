@@ -12,7 +12,7 @@ from types import SimpleNamespace
 
 from ..errors import InputError
 from ..products.figure_style import style
-from ..products.plots import _figure, _format, _matplotlib, coefficient_latex, conventions_caption, finish, symbol_latex
+from ..products.plots import _figure, _format, _matplotlib, axis_latex, coefficient_latex, conventions_caption, finish
 from .quoting import METHOD, plus_minus
 
 
@@ -46,8 +46,8 @@ def _draw(statement, system, path: Path, into, options) -> Path:
         mesh = axes.pcolormesh(x, y, values, shading="nearest", cmap="viridis")
     item = SimpleNamespace(kind=v.kind, index=v.index, species=system.species_names, component=None)
     figure.colorbar(mesh, ax=axes).set_label(f"${coefficient_latex(item, system)}$ (sampled)")
-    axes.set_xlabel(f"${symbol_latex(first.name)}$")
-    axes.set_ylabel(f"${symbol_latex(second.name)}$")
+    axes.set_xlabel(f"${axis_latex(first.name, system)}$")
+    axes.set_ylabel(f"${axis_latex(second.name, system)}$")
     _format(path)
     try:
         return finish(figure, path, caption, into, options, None, f"{v.label} sampled over {first.name}, {second.name}")
