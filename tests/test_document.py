@@ -92,3 +92,21 @@ def test_the_document_groups_by_kind_and_order_and_lists_zeros_compactly():
     zero = clusterexp.derive("dimension 2 species A bose species B fermi clusters ideal derive virial up to 2")
     text = latex_document(zero)
     assert r"Vanishing: $a_{A B}$." in text and r"\label{a:A-B}" not in text   # a zero is not numbered
+
+
+@needs_pdflatex
+def test_a_sampled_map_is_a_figure_of_the_document(tmp_path):
+    pytest.importorskip("matplotlib")
+    text = ("dimension 2 parameter alpha in [0, 1] parameter nu in [0, 1] species A exchange alpha "
+            "species B exchange alpha mutual A B = nu typeset nu as \"\\nu_{AB}\" clusters pairphase "
+            "derive virial a[2,1] sample a[2,1] over alpha = [0, 1/2], nu = [0, 1/2] seed 9 with 2800 loops "
+            "map \"grid.png\"\n")
+    result = run_cli("run", "-e", text, "--format", "latex", "--document", "--files-into", str(tmp_path),
+                     "-o", str(tmp_path / "doc.tex"))
+    assert result.returncode == 0, result.stderr
+    assert sorted(p.name for p in tmp_path.glob("grid*")) == ["grid.caption.tex", "grid.pdf", "grid.png"]
+    source = (tmp_path / "doc.tex").read_text()
+    caption = (tmp_path / "grid.caption.tex").read_text().rstrip("\n")
+    assert r"\includegraphics[width=0.8\textwidth]{grid.pdf}" in source and caption in source
+    assert caption.startswith(r"Sampled $a_{A^{2} B}$ over $\alpha$ and $\nu_{AB}$") and r"\pm" in caption
+    assert layout_problems(compile_twice(tmp_path)) == []

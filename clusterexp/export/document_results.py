@@ -147,19 +147,24 @@ def values_section(derivation: Derivation, names: dict) -> list[str]:
 def figures_section(derivation: Derivation) -> list[str]:
     """Each `plot` as a figure: the vector PDF when the run wrote it, else a framed note."""
     system = derivation.system
-    if not system.figures:
+    figures = [(figure.path, lambda figure=figure: figure_caption_latex(derivation, figure)) for figure in system.figures]
+    if any(s.map for s in system.samplings):
+        from ..loops.figures import map_caption_latex
+        figures += [(statement.sampling.map, lambda statement=statement: map_caption_latex(statement, system))
+                    for statement in derivation.sampled if statement.sampling.map]
+    if not figures:
         return []
     out = [r"\section{Figures}"]
     folder = derivation.__dict__.get("_files_folder")
     document = derivation.__dict__.get("_document_folder")
-    for figure in system.figures:
-        pdf = Path(figure.path).with_suffix(".pdf")
+    for path, caption in figures:
+        pdf = Path(path).with_suffix(".pdf")
         if derivation.files_written and folder is not None:
             where = os.path.relpath(Path(folder) / pdf, document if document is not None else ".")
             body = rf"\includegraphics[width=0.8\textwidth]{{{Path(where).as_posix()}}}"
         else:
             body = rf"\fbox{{\parbox{{0.6\textwidth}}{{\centering The figure {escape_text(str(pdf))} is not written in this run.}}}}"
-        label = "fig:" + "".join(ch if ch.isalnum() else "-" for ch in Path(figure.path).stem)
-        out += [r"\begin{figure}[htbp]", r"\centering", body,
-                rf"\caption{{{figure_caption_latex(derivation, figure)}}}\label{{{label}}}", r"\end{figure}"]
+        label = "fig:" + "".join(ch if ch.isalnum() else "-" for ch in Path(path).stem)
+        out += [r"\begin{figure}[htbp]", r"\centering", body, rf"\caption{{{caption()}}}\label{{{label}}}",
+                r"\end{figure}"]
     return out

@@ -10,16 +10,32 @@ import textwrap
 from pathlib import Path
 from types import SimpleNamespace
 
+import sympy
+
 from ..errors import InputError
 from ..products.figure_style import style
 from ..products.plots import _figure, _format, _matplotlib, axis_latex, coefficient_latex, conventions_caption, finish
-from .quoting import METHOD, plus_minus
+from .quoting import METHOD, PLUS_MINUS_LATEX, plus_minus
 
 
 def sampled_map(statement, system, path: Path, into=None) -> Path:
     options = system.presentation.figure_options
     with style(options):
         return _draw(statement, system, path, into, options)
+
+
+def map_caption_latex(statement, system) -> str:
+    """The LaTeX caption of a sampled map (written beside it and used by the document)."""
+    from ..export.quantities import conventions_latex
+    sampling = statement.sampling
+    (first, _), (second, _) = sampling.axes
+    v = max((p.values[0] for p in statement.points), key=lambda value: value.error)
+    item = SimpleNamespace(kind=v.kind, index=v.index, species=system.species_names, component=None)
+    fixed = ", ".join(f"${axis_latex(s.name, system)}={sympy.latex(value)}$" for s, value in sampling.fixed)
+    return (f"Sampled ${coefficient_latex(item, system)}$ over ${axis_latex(first.name, system)}$ and "
+            f"${axis_latex(second.name, system)}$, one cell per grid point ({METHOD}, seed "
+            f"{sampling.seed}); largest error bar ${plus_minus(v.value, v.error, PLUS_MINUS_LATEX)}$."
+            + (f" Fixed: {fixed}." if fixed else "") + " " + conventions_latex(system, system.typesetting.wavelength))
 
 
 def _draw(statement, system, path: Path, into, options) -> Path:
@@ -50,6 +66,7 @@ def _draw(statement, system, path: Path, into, options) -> Path:
     axes.set_ylabel(f"${axis_latex(second.name, system)}$")
     _format(path)
     try:
-        return finish(figure, path, caption, into, options, None, f"{v.label} sampled over {first.name}, {second.name}")
+        return finish(figure, path, caption, into, options, map_caption_latex(statement, system),
+                      f"{v.label} sampled over {first.name}, {second.name}")
     except OSError as error:
         raise InputError(f"cannot write {path}: {error.strerror}", sampling.clause_span("map")) from None
