@@ -110,3 +110,27 @@ def test_a_sampled_map_is_a_figure_of_the_document(tmp_path):
     assert r"\includegraphics[width=0.8\textwidth]{grid.pdf}" in source and caption in source
     assert caption.startswith(r"Sampled $a_{A^{2} B}$ over $\alpha$ and $\nu_{AB}$") and r"\pm" in caption
     assert layout_problems(compile_twice(tmp_path)) == []
+
+
+@needs_pdflatex
+def test_snippet_equations_carry_labels_from_their_names(tmp_path):
+    text = ("dimension 2 parameter nu in [0, 1) parameter r positive species L exchange 1/3 species H mass r "
+            "exchange 1/3 mutual L H = nu clusters pairphase derive virial up to 3 values collected in pieces "
+            "snippet a[1,1], a[2,1]\n")
+    result = run_cli("run", "-e", text, "--format", "latex")
+    assert result.returncode == 0, result.stderr
+    snippet = result.stdout
+    assert snippet.count(r"\begin{align}") == 2 and snippet.count(r"\label{") == 2
+    assert r"\label{a:L-H}" in snippet and r"\label{a:L2-H}" in snippet and "a_{L^{2}}" not in snippet
+    # pasted into a manuscript, the labels resolve and the lines fit the page
+    (tmp_path / "paper.tex").write_text("\n".join([
+        r"\documentclass[11pt]{article}", r"\usepackage[a4paper,margin=2.5cm]{geometry}", r"\usepackage{amsmath}",
+        r"\begin{document}", r"By \eqref{a:L-H} and \eqref{a:L2-H}:", snippet, r"\end{document}"]))
+    assert layout_problems(compile_twice(tmp_path, "paper")) == []
+
+
+def test_values_with_many_digits_may_break():
+    d = clusterexp.derive("dimension 3 species F fermi clusters ideal derive virial up to 3 "
+                          "evaluate a[3] digits 200")
+    source = latex_document(d)
+    assert source.count(r"\allowbreak") >= 15

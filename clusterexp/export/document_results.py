@@ -123,9 +123,10 @@ def values_section(derivation: Derivation, names: dict) -> list[str]:
     for evaluation, rows in derivation.evaluations:
         at = ", ".join(rf"${sympy.latex(s, symbol_names=names)}={sympy.latex(v)}$" for s, v in evaluation.point)
         out += [rf"\subsection*{{Values{' at ' + at if at else ''}}}",
-                rf"To {evaluation.digits} significant digits.", r"\begin{center}", r"\begin{tabular}{ll}", r"\toprule",
+                rf"To {evaluation.digits} significant digits.", r"\begin{center}",
+                r"\begin{tabular}{lp{0.7\textwidth}}", r"\toprule",
                 r"Coefficient & Value \\", r"\midrule"]
-        out += [rf"${claim_latex_name(derivation, t)}$ & ${number_latex(number)}$ \\"
+        out += [rf"${claim_latex_name(derivation, t)}$ & ${_breakable(number_latex(number))}$ \\"
                 for t, (_, number) in zip(evaluation.targets, rows)]
         out += [r"\bottomrule", r"\end{tabular}", r"\end{center}"]
     for table, rows in derivation.tables:
@@ -142,6 +143,13 @@ def values_section(derivation: Derivation, names: dict) -> list[str]:
         out += [" & ".join(f"${number_latex(cell)}$" for cell in row) + r" \\" for row in rows[1:]]
         out += [r"\bottomrule", r"\end{tabular}", r"\end{center}"]
     return out
+
+
+def _breakable(number: str, group: int = 10) -> str:
+    """A long decimal may break after every `group` digits (values asked with many digits)."""
+    if len(number) <= 4 * group:
+        return number
+    return r"\allowbreak ".join(number[k:k + group] for k in range(0, len(number), group))
 
 
 def figures_section(derivation: Derivation) -> list[str]:

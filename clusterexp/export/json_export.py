@@ -39,6 +39,8 @@ def to_json(derivation: Derivation) -> str:
         "reference": system.reference,
         "order": system.order,
         "source": system.source.kind,
+        **({"values_form": {"form": system.presentation.form, "collected_in": list(system.presentation.collect_in)}}
+           if system.presentation.form != "expanded" else {}),
         "coefficients": [
             {
                 "kind": c.kind,
