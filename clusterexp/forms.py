@@ -264,8 +264,13 @@ def assemble(structure) -> sympy.Expr:
 # -- the bound: one worker process, stopped when a value takes too long ---------------------------------
 
 def _serve(connection):
+    import signal
+    signal.signal(signal.SIGINT, signal.SIG_IGN)   # Ctrl-C is the parent's to handle; it ends the worker
     while True:
-        job = connection.recv()
+        try:
+            job = connection.recv()
+        except (EOFError, OSError):   # the parent is gone: end quietly
+            return
         if job is None:
             return
         try:
@@ -296,12 +301,19 @@ class WorkerRunner:
 
     def run(self, job):
         if self.process is None or not self.process.is_alive():
-            self._start()
-        self.connection.send(job)
-        if not self.connection.poll(self.seconds):
+            try:
+                self._start()
+            except OSError as why:
+                raise FormUnreached(f"not tried: no worker process could be started ({why.strerror})") from None
+        try:
+            self.connection.send(job)
+            if not self.connection.poll(self.seconds):
+                self.close(kill=True)
+                raise FormUnreached(f"not reached within {self.seconds:g} s")
+            status, payload = self.connection.recv()
+        except (EOFError, OSError):   # the worker died (memory, a signal): the next value gets a new one
             self.close(kill=True)
-            raise FormUnreached(f"not reached within {self.seconds:g} s")
-        status, payload = self.connection.recv()
+            raise FormUnreached("not reached: the worker process ended") from None
         if status != "ok":
             raise FormUnreached(payload)
         return payload

@@ -120,3 +120,16 @@ def test_bad_presentation_statements(statement, message, column):
 
 def test_shaped_expanded_default():
     assert derive(MIXTURE).shaped(derive(MIXTURE).coefficients[0]) == Shaped(None, "expanded")
+
+
+def test_a_worker_that_dies_is_replaced():
+    x = sympy.symbols("x0:4")
+    value = sympy.expand(sympy.prod(xi + 1 for xi in x) ** 2)
+    with WorkerRunner(seconds=30) as runner:
+        assert shape(value, "factored", runner=runner).form == "factored"
+        runner.process.kill()
+        runner.process.join()
+        first = shape(value, "factored", runner=runner)     # noticed: printed expanded, said so
+        second = shape(value, "factored", runner=runner)    # a new worker
+    assert first.form == "factored" or "worker process ended" in first.note
+    assert second.form == "factored"
