@@ -225,6 +225,9 @@ class Derivation:
                 progress.step(f"check {claim.target.label}")
             self.coefficient(claim.target.kind, claim.target.index, claim.target.component).value  # noqa: B018
         self.checks, self.evaluations, self.tables  # noqa: B018
+        if self.system.presentation.form != "expanded":   # the written forms, each within its bound
+            from .forms import shape_all
+            self.__dict__.setdefault("_shaped", {}).update(shape_all(self.system, self.coefficients, progress))
         if progress is not None:
             progress.done()
 
