@@ -120,8 +120,9 @@ def _statistics(system, i, label, math) -> list[str]:
 
 
 def _range(p, math) -> str:
-    if p.lower is None and p.upper is None:
-        return r"(-\infty,\infty)"
+    if p.lower is None and p.upper is None:   # the assumptions are the range
+        return {"positive": r"(0,\infty)", "nonnegative": r"[0,\infty)"}.get(
+            next((a for a in p.assumptions if a in ("positive", "nonnegative")), ""), r"(-\infty,\infty)")
     low = r"-\infty" if p.lower is None else math(p.lower)
     high = r"\infty" if p.upper is None else math(p.upper)
     return (f"{'(' if p.lower_open or p.lower is None else '['}{low},{high}"
