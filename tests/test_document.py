@@ -134,3 +134,13 @@ def test_values_with_many_digits_may_break():
                           "evaluate a[3] digits 200")
     source = latex_document(d)
     assert source.count(r"\allowbreak") >= 15
+
+
+@needs_pdflatex
+def test_a_series_coefficient_longer_than_a_line_is_opened_over_several(tmp_path):
+    # order 4: the coefficient of (nu - 1/2)^2 in a_{A^2 B^2} alone is about three lines long
+    text = LONG.replace("derive virial up to 3", "derive virial up to 4").replace("to 3 from above", "to 2 from above")
+    source = latex_document(clusterexp.derive(text.replace("expand nu about 1/2 to 3", "expand nu about 1/2 to 2")))
+    assert r"\biggl(" in source and source.count(r"\biggl(") == source.count(r"\biggr)")
+    (tmp_path / "doc.tex").write_text(source)
+    assert layout_problems(compile_twice(tmp_path)) == []

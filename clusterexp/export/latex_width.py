@@ -12,6 +12,8 @@ from __future__ import annotations
 
 import re
 
+from .latex_lines import top_level_terms
+
 TEXT_WIDTH_PT = 455.0            # a4paper with 2.5 cm margins (the document's geometry)
 FONT_SCALE = 1.1                 # the document is set at 11 pt; the widths below are those at 10 pt
 EQUATION_NUMBER_PT = 30.0        # room kept for the number at the end of the last line
@@ -104,6 +106,7 @@ def broken_lines(lhs: str, terms: list[str], continuation_indent: float = 10.0) 
     lhs_width = math_width(lhs) + 13.0
     first_room = TEXT_WIDTH_PT - lhs_width - EQUATION_NUMBER_PT
     room = TEXT_WIDTH_PT - lhs_width - continuation_indent - EQUATION_NUMBER_PT
+    terms = [part for term in terms for part in opened(term, room)]
     lines, current, used = [], [], 0.0
     for term in terms:
         w = math_width(term) + 2.0
@@ -116,6 +119,35 @@ def broken_lines(lhs: str, terms: list[str], continuation_indent: float = 10.0) 
     if current:
         lines.append(" ".join(current))
     return lines
+
+
+def opened(term: str, room: float) -> list[str]:
+    """A term `c \\left(t_1 + t_2 + ...\\right)` wider than `room` as the pieces `c \\biggl(t_1`, `+ t_2`,
+    ..., `+ t_n\\biggr)`, which may go on separate lines (a series coefficient of many terms); any
+    other term as it is."""
+    group = _last_group(term) if math_width(term) > room else None
+    if group is None:
+        return [term]
+    head, inner = group
+    parts = [part for piece in top_level_terms(inner) for part in opened(piece, room)]
+    if len(parts) < 2:
+        return [term]
+    return [rf"{head}\biggl({parts[0]}", *parts[1:-1], rf"{parts[-1]}\biggr)"]
+
+
+def _last_group(term: str):
+    """(what precedes, what is inside) of the `\\left( ... \\right)` that ends `term`, else None."""
+    if not term.endswith(r"\right)"):
+        return None
+    depth = 0
+    for match in reversed(list(re.finditer(r"\\left\b|\\right\b", term))):
+        depth += 1 if match.group() == r"\right" else -1
+        if depth == 0:
+            start = match.start()
+            if not term.startswith(r"\left(", start):
+                return None
+            return term[:start], term[start + len(r"\left("):-len(r"\right)")]
+    return None
 
 
 def fitting_rows(lhs: str, terms: list[str], label: str | None = None, relation: str = "=") -> str:
