@@ -158,6 +158,8 @@ def _run(args, progress) -> int:
         # everything is made before anything is written: a run that fails (exit 2) writes no file
         if not args.no_files:
             derivation.stage_files(batch, _files_folder(args), args.overwrite)
+        if not to_stdout:   # the document's figure paths are relative to its own folder
+            derivation.__dict__["_document_folder"] = Path(args.output).parent
         text = _formatted(derivation, fmt, args.document)
         if not to_stdout:
             batch.add(Path(args.output), text.encode("utf-8"), args.overwrite)

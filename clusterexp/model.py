@@ -273,6 +273,20 @@ class Typesetting:
 
 
 @dataclass(frozen=True)
+class Presentation:
+    """How results are written (`language/manuscript.py`): `form` of the values (`forms.FORMS`) with
+    `collect_in` (parameter names, or ("pieces",) for the generated symbols), the LaTeX document's
+    `title`, the coefficients of a `snippet` (each its own labelled equation), and the figures'
+    `figure_options` ("latex_engine", "footer")."""
+
+    form: str = "expanded"
+    collect_in: tuple[str, ...] = ()
+    title: str | None = None
+    snippet: tuple[CoefficientName, ...] = ()
+    figure_options: tuple[str, ...] = ()
+
+
+@dataclass(frozen=True)
 class System:
     """A validated gas: what the derivation stage consumes."""
 
@@ -297,6 +311,7 @@ class System:
     typesetting: Typesetting = field(default_factory=Typesetting)
     samplings: tuple["Sampling", ...] = ()
     states: tuple = ()  # equation-of-state statements (eos.requests.StateRequest)
+    presentation: Presentation = field(default_factory=Presentation)
 
     @property
     def species_names(self) -> tuple[str, ...]:

@@ -52,8 +52,9 @@ def coefficient_label(kind: str, index: Index, component: str | None = None) -> 
 
 
 def latex_subscript(index: Index, species_latex: Sequence[str]) -> str:
-    """Species labels as subscripts: (2, 1) with A, B -> A^{2}B; one species: (3,) -> 3. A label
-    that is not a single symbol is put in parentheses before it takes a power."""
+    """Species labels as subscripts: (2, 1) with A, B -> A^{2} B; one species: (3,) -> 3. A label
+    that is not a single symbol is put in parentheses before it takes a power; upright names of
+    several letters are separated by commas (a_{top,mid}, not a_{topmid})."""
     if len(index) == 1:
         return str(index[0])
     parts = []
@@ -63,7 +64,9 @@ def latex_subscript(index: Index, species_latex: Sequence[str]) -> str:
         elif n > 1:
             base = label if is_single_atom(label) else rf"\left({label}\right)"
             parts.append(f"{base}^{{{n}}}")
-    return " ".join(parts)
+    # upright names of several letters would run together (a_{topmid}): a comma between them
+    wordy = any(re.match(r"\\mathrm\{[^}]{2,}\}", label) for n, label in zip(index, species_latex) if n)
+    return ("," if wordy else " ").join(parts)
 
 
 def species_latex(name: str) -> str:

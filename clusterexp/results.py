@@ -146,6 +146,19 @@ class Derivation:
             extra[key] = self.make(kind, index, component)
         return extra[key]
 
+    def shaped(self, c: Coefficient):
+        """Coefficient c as the input's `values` statement writes it (`forms.Shaped`); the values of
+        one derivation are rearranged together, each within its time bound."""
+        from .forms import Shaped, shape_all
+        if self.system.presentation.form == "expanded":
+            return Shaped(None, "expanded")
+        cache = self.__dict__.setdefault("_shaped", {})
+        key = (c.kind, c.index, c.component)
+        if key not in cache:
+            todo = [d for d in self.coefficients if (d.kind, d.index, d.component) not in cache]
+            cache.update(shape_all(self.system, todo if c in todo else [c]))
+        return cache[key]
+
     @property
     def checks(self):
         """The outcome of every `claim`, in input order (`checks.CheckResult`)."""
@@ -220,6 +233,9 @@ class Derivation:
             self.coefficient(claim.target.kind, claim.target.index, claim.target.component).value  # noqa: B018
         self.checks, self.evaluations, self.tables  # noqa: B018
         self.states  # noqa: B018
+        if self.system.presentation.form != "expanded":   # the written forms, each within its bound
+            from .forms import shape_all
+            self.__dict__.setdefault("_shaped", {}).update(shape_all(self.system, self.coefficients, progress))
         if progress is not None:
             progress.done()
 

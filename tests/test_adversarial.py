@@ -435,7 +435,7 @@ def test_a_failing_run_writes_no_file(tmp_path):
     fixed = TRUNCATED + 'plot a[2] over alpha into "f.png"\n'
     code, _, err = run_main(["run", "-e", fixed, "--files-into", str(tmp_path), "-o", str(tmp_path / "out.txt")])
     assert code == 0, err
-    assert sorted(os.listdir(tmp_path)) == ["f.png", "out.txt", "t.csv"]
+    assert sorted(os.listdir(tmp_path)) == ["f.caption.tex", "f.pdf", "f.png", "out.txt", "t.csv"]
     # from Python too
     with pytest.raises(InputError, match="known only as a series"):
         clusterexp.derive(bad).write_files(tmp_path / "py")

@@ -282,8 +282,10 @@ def test_latex_series_rows_in_snippet_and_document():
     assert r"\alpha\to 0^{-}" in snippet and r"\text{series about }\alpha=\frac{1}{2}" in snippet
     # rows: a_1 (free of alpha: no series rows); a_2 with two sides at 0 and one series about 1/2
     assert snippet.count(r"\\") == 5 - 1
-    document = latex_document(d)
-    assert snippet.rstrip("\n") in document and "one-sided expansions" in document
+    document = latex_document(d)   # each series under its coefficient, named by its side
+    assert "one-sided expansions" in document
+    assert r"Series of $a_{2}$ \eqref{a:A2} ($\alpha\to 0^{+},\ \text{non-analytic at }\alpha=0$):" in document
+    assert document.count("Series of $a_{2}$") == 3
 
 
 @pytest.mark.skipif(shutil.which("pdflatex") is None and not os.environ.get("CI"),

@@ -58,7 +58,8 @@ def test_line_plot_png_and_pdf(tmp_path, pair):
     assert data.startswith(b"%PDF") and len(data) > 5000
     again = plot_line(coefficients, "g", (0, 1), tmp_path / "again.pdf", other_values={"t": "1/3"}, system=pair.system)
     assert again.read_bytes() == data  # no creation date: same input, same bytes
-    assert sorted(p.name for p in tmp_path.iterdir()) == ["again.pdf", "line.pdf", "line.png"]
+    # every figure is written as vector PDF and as PNG (figure_style)
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["again.pdf", "again.png", "line.pdf", "line.png"]
 
 
 def test_heat_map_png(tmp_path, pair):

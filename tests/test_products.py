@@ -221,9 +221,13 @@ def test_plot_writes_real_images(tmp_path):
                           "parameter r in [1/2, 2]\nspecies C mass r bose\nmutual A C = nu\n"
                           "plot a[1,0,1] over nu, r into \"map.pdf\"")
     paths = d.write_files(tmp_path)
-    png, pdf = (p.read_bytes() for p in paths)
-    assert png.startswith(b"\x89PNG") and len(png) > 10_000
-    assert pdf.startswith(b"%PDF") and len(pdf) > 5_000
+    # each figure as vector PDF and PNG, with its caption beside it
+    assert sorted(p.name for p in paths) == ["line.caption.tex", "line.pdf", "line.png",
+                                             "map.caption.tex", "map.pdf", "map.png"]
+    for name in ("line", "map"):
+        png, pdf = (tmp_path / f"{name}.png").read_bytes(), (tmp_path / f"{name}.pdf").read_bytes()
+        assert png.startswith(b"\x89PNG") and len(png) > 10_000
+        assert pdf.startswith(b"%PDF") and len(pdf) > 5_000
 
 
 @pytest.mark.parametrize("text, message, column", [
@@ -282,7 +286,7 @@ def test_document_with_checks_values_and_tables_compiles(tmp_path):
                           "evaluate a[1,1], a[2,0] at alpha = 1/3, nu = 1/4 digits 20\n"
                           "tabulate a[1,1] over nu from 0 to 1 step 1/4 into \"t.csv\"")
     source = latex_document(d)
-    assert r"\subsection*{Checks of hand results}" in source and "mismatch" in source
+    assert r"\section{Checks of hand results}" in source and "mismatch" in source
     assert r"\begin{tabular}" in source and r"\tilde{\nu}_{AB}" in source
     (tmp_path / "doc.tex").write_text(source)
     result = subprocess.run(["pdflatex", "-interaction=nonstopmode", "-halt-on-error", "doc.tex"],
@@ -382,8 +386,8 @@ def test_periodic_closed_forms_plot_over_several_periods(tmp_path):
     d = clusterexp.derive("dimension 2 parameter alpha species A exchange alpha clusters pairphase {} "
                           "derive virial up to 2 plot a[2] over alpha from -1 to 3 into \"p.png\" "
                           "evaluate a[2] at alpha = 3 claim a[2] = -1/4 + Mod(alpha, 2) - Mod(alpha, 2)^2/2")
-    (path,) = d.write_files(tmp_path)
-    assert path.read_bytes().startswith(b"\x89PNG")
+    d.write_files(tmp_path)
+    assert (tmp_path / "p.png").read_bytes().startswith(b"\x89PNG")
     # period 2 (Arovas, Schrieffer, Wilczek, Zee 1985): a_2(3) = a_2(1) = 1/4
     assert d.evaluations[0][1] == [("a[2]", "0.25")]
     assert d.checks[0].ok

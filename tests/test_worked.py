@@ -226,3 +226,27 @@ def test_semion_bilayer_against_published_a3_and_the_vanishing_mixed_coefficient
     for integer in ("0", "1"):  # no mutual statistics at integer nu (fact of the trade)
         assert abs(mixed[integer]["value"]) < 1e-12 and mixed[integer]["error"] < 1e-12
     assert mixed["1/2"]["error"] > 0  # no independent reference value at nu = 1/2 (not published)
+
+
+def test_anyon_film_manuscript_forms_against_the_two_body_formulas():
+    # Each species alone: a_2 = -1/4 + alpha - alpha^2/2 on [0, 1] (Arovas, Schrieffer, Wilczek, Zee,
+    # Nucl. Phys. B 251 (1985) 117), in the species' own rho lambda^2; for h (mass r m_l) in the units
+    # of l: a_(0,2) = a_2 / r. Mixed: b_(1,1) = -((1 + r)/2) nu (1 - nu) (physics.md R3) and
+    # a_(1,1) = -b_(1,1) / (b_(1,0) b_(0,1)) with b_(0,1) = r (d = 2).
+    folder = ROOT / "worked" / "anyon_film_manuscript"
+    result = run_cli("run", str(folder / "input.gas"), "--format", "json", "--no-files")
+    assert result.returncode == 0, result.stderr
+    data = json.loads(result.stdout)
+    alpha, nu, r = sympy.symbols("alpha nu r")
+    written = {tuple(c["index"]): c for c in data["coefficients"]}
+    aswz = sympy.Rational(-1, 4) + alpha - alpha ** 2 / 2
+    expected = {(2, 0): aswz, (0, 2): aswz / r, (1, 1): (1 + r) * nu * (1 - nu) / (2 * r)}
+    for index, value in expected.items():
+        assert sympy.simplify(sympy.sympify(written[index]["value"]) - value) == 0
+        assert written[index]["form"] == "collected"
+    # the form asked for: a_(1,1) reads as the product of the formula, a_(2,1) linear in its piece
+    assert written[(1, 1)]["value"] == "nu*(1 - nu)*(r + 1)/(2*r)"
+    assert written[(2, 1)]["value"].endswith(" - 2*b_2_1/r")
+    # the series about the boson point of a_2 is the polynomial itself, through alpha^2
+    (series,) = written[(2, 0)]["series"]
+    assert sympy.sympify(series["value"].replace(" + O(alpha**3)", "")) - aswz == 0

@@ -3,7 +3,8 @@ import functools
 import sys
 
 from .json_export import to_json
-from .latex import latex_document, latex_snippet
+from .document import latex_document
+from .latex import latex_snippet
 from .text import to_text
 
 

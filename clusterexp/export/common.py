@@ -24,8 +24,16 @@ def summary_lines(system: System) -> list[str]:
     if system.mutuals:
         lines.append("mutual parameters: " + ", ".join(
             f"{m.first}-{m.second} = {m.value}" for m in system.mutuals))
-    lines += [line for line in (parameter_line(system), given_line(system)) if line]
+    lines += [line for line in (parameter_line(system), given_line(system), form_line(system)) if line]
     return lines
+
+
+def form_line(system: System) -> str | None:
+    """How the values are written, when the input chose a form (`values ...`)."""
+    p = system.presentation
+    if p.form == "expanded":
+        return None
+    return f"values written {p.form.replace('_', ' ')}" + (f" in {', '.join(p.collect_in)}" if p.collect_in else "")
 
 
 def regime_lines(system: System) -> list[str]:

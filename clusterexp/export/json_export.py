@@ -16,6 +16,14 @@ from .series_lines import series_json
 from .state_lines import state_json
 
 
+def form_record(derivation, c) -> dict:
+    """{"form": ..., "form_note": ...} when the input chose how values are written."""
+    if derivation.system.presentation.form == "expanded":
+        return {}
+    shaped = derivation.shaped(c)
+    return {"form": shaped.form, **({"form_note": shaped.note} if shaped.note else {})}
+
+
 def to_json(derivation: Derivation) -> str:
     system = derivation.system
     names = list(system.species_names)
@@ -32,13 +40,16 @@ def to_json(derivation: Derivation) -> str:
         "reference": system.reference,
         "order": system.order,
         "source": system.source.kind,
+        **({"values_form": {"form": system.presentation.form, "collected_in": list(system.presentation.collect_in)}}
+           if system.presentation.form != "expanded" else {}),
         "coefficients": [
             {
                 "kind": c.kind,
                 "index": list(c.index),
                 "species": dict(zip(names, c.index)),
                 **({"component": c.component} if c.component else {}),
-                "value": c.text,
+                "value": derivation.shaped(c).text(c),
+                **form_record(derivation, c),
                 **series_json(derivation, c),
             }
             for c in derivation

@@ -9,13 +9,12 @@ if TYPE_CHECKING:  # the results import the printers for their notebook display,
 import sympy
 
 from ..routes import regime_of
-from .common import species_statistics
-from .quantities import assumptions_latex, conventions_latex, quantities
-from .latex_lines import aligned_rows
+from .quantities import quantities
+from .equations import labelled_equations
+from .latex_lines import aligned_rows, top_level_terms
 from ..naming import generated_latex_names, is_single_atom, latex_subscript, species_latex
 from ..exact.series import indices_up_to
-from .series_lines import series_latex_paragraphs, series_latex_rows
-from .state_lines import state_latex
+from .series_lines import series_latex_rows
 
 LETTERS = {"cluster": "b", "virial": "a"}
 
@@ -65,6 +64,19 @@ def _monomial(index, labels, factor) -> str:
     return " ".join(factors)
 
 
+def value_latex(derivation: Derivation, c: Coefficient, names) -> list[str]:
+    """The LaTeX of a coefficient's value as the input's `values` statement writes it: its terms with
+    their signs (the break points of a long line)."""
+    return (derivation.shaped(c).latex_terms(names) or c.latex_terms(names)
+            or top_level_terms(c.latex(names)) or [c.latex(names)])
+
+
+def coefficient_lhs(derivation: Derivation, c: Coefficient) -> str:
+    """The LaTeX name of coefficient c in the derivation's conventions and `typeset` names."""
+    system = derivation.system
+    return _lhs(c, species_labels(system), system.dimension, system.typesetting.wavelength, quantities(system))
+
+
 def latex_snippet(derivation: Derivation, environment: str = "align", align: bool | None = None) -> str:
     """The coefficients as one LaTeX environment (`align`, `align*` or `aligned`)."""
     system = derivation.system
@@ -74,18 +86,20 @@ def latex_snippet(derivation: Derivation, environment: str = "align", align: boo
     amp = "&" if use_align else ""
     q = quantities(system)
     wavelength = system.typesetting.wavelength
+    if system.presentation.snippet and environment != "aligned":
+        chosen = [derivation.coefficient(t.kind, t.index, t.component) for t in system.presentation.snippet]
+        return labelled_equations(derivation, [(c, coefficient_lhs(derivation, c), value_latex(derivation, c, names))
+                                               for c in chosen])
     rows = [row for c in derivation for row in
-            [aligned_rows(_lhs(c, labels, system.dimension, wavelength, q), c.latex_terms(names) or c.latex(names))
+            [aligned_rows(_lhs(c, labels, system.dimension, wavelength, q), value_latex(derivation, c, names))
              if use_align else
-             f"  {_lhs(c, labels, system.dimension, wavelength, q)} = {c.latex(names)}",
+             f"  {_lhs(c, labels, system.dimension, wavelength, q)} = {' '.join(value_latex(derivation, c, names))}",
              *series_latex_rows(derivation, c, amp, names)]]
     body = " \\\\\n".join(rows)
     snippet = f"\\begin{{{environment}}}\n{body}\n\\end{{{environment}}}\n"
     if system.samplings and environment != "aligned":  # (aligned: inline display in notebooks)
         from ..loops.report import latex_block
         snippet += latex_block(derivation.sampled, system)
-    if system.states and environment != "aligned":
-        snippet += "".join(line + "\n" for line in state_latex(derivation, _escape))
     return snippet
 
 
@@ -94,59 +108,12 @@ def regime_latex(system) -> list[str]:
     return regime_of(system).latex_paragraphs(system, species_labels(system))
 
 
-def latex_document(derivation: Derivation) -> str:
-    """A standalone document that compiles with pdflatex: conventions, the declared system, each
-    coefficient as a numbered equation, then the checks of the user's claims, the values asked for
-    and small tables."""
-    system = derivation.system
-    derivation.checks  # noqa: B018 -- first: their equations may name Taylor coefficients of pieces
-    names = _symbol_names(derivation)
-    labels = species_labels(system)
-    w = "{" + system.typesetting.wavelength + "}"
-
-    def math(expr) -> str:
-        return sympy.latex(expr, symbol_names=names)
-
-    def statistics(i, label) -> str:
-        word, value = species_statistics(system, i)
-        return (f"exchange parameter ${math(value)}$" if word == "exchange" else
-                f"exclusion statistics $g_{{{label}{label}}}={math(value)}$")
-    species = ", ".join(f"${label}$ (mass ${math(s.mass)}$, {statistics(i, label)})"
-                        for i, (label, s) in enumerate(zip(labels, system.species)))
-    lines = [
-        r"\documentclass{article}",
-        r"\usepackage{amsmath}",
-        r"\allowdisplaybreaks",
-        r"\begin{document}",
-        r"\section*{Cluster and virial coefficients}",
-        rf"Dimension $d={system.dimension}$; species {species}; reference species "
-        rf"${labels[system.species_names.index(system.reference)]}$ with thermal wavelength ${w}$.",
-    ]
-    if system.mutuals:
-        lines.append("Mutual (braiding) parameters: " + ", ".join(
-            rf"$\alpha_{{{labels[system.species_names.index(m.first)]}{labels[system.species_names.index(m.second)]}}}"
-            rf"={math(m.value)}$" for m in system.mutuals) + r" (period $1$).")
-    lines += [
-        *assumptions_latex(system, math),
-        conventions_latex(system, system.typesetting.wavelength),
-        *regime_latex(system),
-        *series_latex_paragraphs(derivation),
-        latex_snippet(derivation).rstrip("\n"),
-        *_unknowns_latex(derivation, names),
-        *_checks_latex(derivation, labels, w, names),
-        *_values_latex(derivation, labels, w, names),
-        *state_latex(derivation, _escape),
-        r"\end{document}",
-    ]
-    return "\n".join(lines) + "\n"
-
-
 def _name(derivation, target, labels, w) -> str:
     c = derivation.coefficient(target.kind, target.index, target.component)
     return _lhs(c, labels, derivation.system.dimension, w.strip("{}"), quantities(derivation.system))
 
 
-def _unknowns_latex(derivation: Derivation, names) -> list[str]:
+def unknowns_latex(derivation: Derivation, names) -> list[str]:
     """What each named Taylor coefficient of a many-body piece stands for."""
     unknowns = derivation.unknowns()
     if not unknowns:
@@ -167,67 +134,17 @@ def latex_symbol_names(derivation: Derivation) -> dict:
     return _symbol_names(derivation)
 
 
-def _checks_latex(derivation: Derivation, labels, w, names) -> list[str]:
-    system = derivation.system
-    if not system.claims:
-        return []
-    out = [r"\subsection*{Checks of hand results}", r"\begin{itemize}"]
-    for claim, result in zip(system.claims, derivation.checks):
-        line = rf"\item ${_name(derivation, claim.target, labels, w)}$"
-        if claim.limits or result.label != claim.target.label:
-            line += " (compared below " + ", ".join(rf"${sympy.latex(s)}^{{{k}}}$" for s, k in
-                                                     sorted(dict(claim.limits).items(), key=lambda kv: kv[0].name)) \
-                if claim.limits else " (compared as a truncated series"
-            line += ")"
-        line += f": {result.status} ({_escape(result.method)})"
-        if result.status == "mismatch" and result.difference is not None:
-            difference = aligned_rows(r"\Delta", sympy.latex(result.difference, symbol_names=names))
-            line += "; claimed minus derived:\n" + "\\begin{align*}\n" + difference + "\n\\end{align*}"
-        elif result.conditions:
-            rows = r" \\ ".join(f"{sympy.latex(e.lhs, symbol_names=names)} &= {sympy.latex(e.rhs, symbol_names=names)}"
-                                for e in result.conditions)
-            line += "; it holds if and only if\n\\begin{align*}\n" + rows + "\n\\end{align*}"
-        else:
-            line += "."
-        out.append(line)
-    out.append(r"\end{itemize}")
-    return out
-
-
-def _values_latex(derivation: Derivation, labels, w, names) -> list[str]:
-    system = derivation.system
-    out = []
-    for evaluation, rows in derivation.evaluations:
-        at = ", ".join(rf"${sympy.latex(s, symbol_names=names)}={sympy.latex(v)}$" for s, v in evaluation.point)
-        out += [rf"\subsection*{{Values{' at ' + at if at else ''}}}", r"\begin{tabular}{ll}"]
-        out += [rf"${_name(derivation, t, labels, w)}$ & ${number}$ \\" for t, (_, number) in zip(evaluation.targets, rows)]
-        out.append(r"\end{tabular}")
-    for table, rows in derivation.tables:
-        header = [rf"${sympy.latex(s, symbol_names=names)}$" for s, _ in table.axes] + \
-                 [rf"${sympy.latex(s, symbol_names=names)}$" for s, _ in table.fixed] + \
-                 [rf"${_name(derivation, t, labels, w)}$" for t in table.targets]
-        out.append(rf"\subsection*{{Table ({_escape(table.path)})}}")
-        if len(rows) > TABLE_ROWS_SHOWN + 1:
-            where = "written to" if derivation.files_written else "for"
-            out.append(f"{len(rows) - 1} rows, {where} the file {_escape(table.path)}.")
-            continue
-        out += [r"\begin{tabular}{" + "r" * len(header) + "}", " & ".join(header) + r" \\ \hline"]
-        out += [" & ".join(f"${_number_latex(cell)}$" for cell in row) + r" \\" for row in rows[1:]]
-        out.append(r"\end{tabular}")
-    return out
-
-
 TABLE_ROWS_SHOWN = 40
 
 
-def _number_latex(text: str) -> str:
+def number_latex(text: str) -> str:
     if "/" in text:
         p, q = text.lstrip("-").split("/", 1)
         return ("-" if text.startswith("-") else "") + rf"\tfrac{{{p}}}{{{q}}}"
     return text.replace("j", "i").replace("e", r"\times10^{") + ("}" if "e" in text else "")
 
 
-def _escape(text: str) -> str:
+def escape_text(text: str) -> str:
     for char, replacement in (("\\", r"\textbackslash{}"), ("_", r"\_"), ("%", r"\%"), ("&", r"\&"), ("#", r"\#"),
                               ("$", r"\$"), ("{", r"\{"), ("}", r"\}"), ("^", r"\^{}"), ("~", r"\~{}")):
         text = text.replace(char, replacement) if char != "\\" else text.replace(char, "\0")

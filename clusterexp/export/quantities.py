@@ -95,32 +95,3 @@ def conventions_latex(system, wavelength: str) -> str:
     pressure, variable = q.pressure_latex.format(w=w), q.variable_latex.format(w=w)
     return (rf"Conventions: ${pressure}=\sum_n b_n z^n=\sum_n a_n{variable}^n$; exchange parameter "
             r"$\alpha=0$ bosons, $\alpha=1$ fermions (period $2$); " + q.single_latex.format(w=w) + ".")
-
-
-def assumptions_latex(system, math) -> list[str]:
-    """The declared parameter ranges and the given pieces (with their O terms), for the document."""
-    out = []
-    if system.parameters:
-        parts = []
-        for p in system.parameters:
-            text = f"${math(p.symbol)}"
-            if p.lower is not None or p.upper is not None:
-                low = r"-\infty" if p.lower is None else math(p.lower)
-                high = r"\infty" if p.upper is None else math(p.upper)
-                text += (rf"\in{'(' if p.lower_open or p.lower is None else '['}{low},{high}"
-                         rf"{')' if p.upper_open or p.upper is None else ']'}")
-            text += "$" + (f" ({', '.join(p.assumptions)})" if p.assumptions else "")
-            parts.append(text)
-        out.append("Parameters: " + ", ".join(parts) + ". Every coefficient below holds for these values only "
-                   "(a periodic closed form is printed as its branch on the declared range).")
-    if system.source.values:
-        rows = []
-        for v in system.source.values:
-            value = sympy.sympify(v.value)
-            orders = [t for t in sympy.Add.make_args(value) if isinstance(t, sympy.Order)]
-            known = math(value.removeO()) if orders else math(value)
-            tail = "".join(rf"+O\left({sympy.latex(o.expr)}\right)" for o in orders)
-            letter = "b" if v.kind == "cluster" else "a"
-            rows.append(f"${letter}_{{{','.join(str(n) for n in v.index)}}}={known}{tail}$")
-        out.append("Given as input: " + ", ".join(rows) + ".")
-    return out

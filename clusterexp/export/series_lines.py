@@ -113,18 +113,27 @@ def _side_latex(p) -> str:
     return rf"{arrow},\ {why}{var}={point}"
 
 
+def _body_latex(p, symbol_names) -> str:
+    shifted = about_point(p)
+    if (p.point != 0 or p.unknowns) and isinstance(shifted, sympy.Add):
+        return _joined([sympy.latex(t, symbol_names=symbol_names or {}) for t in shifted.args])
+    return sympy.latex(shifted, symbol_names=symbol_names or {}, order="lex")
+
+
 def series_latex_rows(derivation: Derivation, c: Coefficient, amp: str, symbol_names=None) -> list[str]:
     """Extra rows under a coefficient: `&= polynomial + O(...) \\qquad (side)`."""
     rows = []
     for p in derivation.series_of(c):
-        shifted = about_point(p)
-        if (p.point != 0 or p.unknowns) and isinstance(shifted, sympy.Add):
-            body = _joined([sympy.latex(t, symbol_names=symbol_names or {}) for t in shifted.args])
-        else:
-            body = sympy.latex(shifted, symbol_names=symbol_names or {}, order="lex")
         orders = " + ".join(_order_latex(o) for o in p.remainder)
-        rows.append(rf"  {amp}= {body} + {orders} \qquad \left({_side_latex(p)}\right)")
+        rows.append(rf"  {amp}= {_body_latex(p, symbol_names)} + {orders} \qquad \left({_side_latex(p)}\right)")
     return rows
+
+
+def series_document_pieces(derivation: Derivation, c: Coefficient, symbol_names=None) -> list[tuple[str, str]]:
+    """For the document: (what the series is, in math: variable, point, side; its LaTeX with the O terms)
+    per series of coefficient c; the document breaks the value over lines."""
+    return [(_side_latex(p), _body_latex(p, symbol_names) + " + " + " + ".join(_order_latex(o) for o in p.remainder))
+            for p in derivation.series_of(c)]
 
 
 def _order_latex(o) -> str:

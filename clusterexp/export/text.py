@@ -23,7 +23,9 @@ def to_text(derivation: Derivation) -> str:
             kind = c.kind
             lines.append("")
             lines.append(titles[kind] + ":")
-        lines.append(f"  {c.label} = {c.text}")
+        shaped = derivation.shaped(c)
+        lines.append(f"  {c.label} = {shaped.text(c)}")
+        lines += [f"    ({shaped.note})"] if shaped.note else []
         lines += [f"    {line}" for line in series_text_lines(derivation, c)]
     lines += product_lines(derivation)
     unknowns = derivation.unknowns()

@@ -325,6 +325,7 @@ class _Builder:
         self.products.append((tree, self.file))
 
     _evaluate = _tabulate = _plot = _typeset = _typeset_wavelength = _claim
+    _values_form = _document_title = _snippet = _figure_options = _claim  # language/manuscript.py
 
     def _evaluate_state(self, tree):
         self.states.append((tree, self.file))

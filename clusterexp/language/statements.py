@@ -12,6 +12,7 @@ import sympy
 from ..errors import InputError
 from .expressions import ExpressionBuilder
 from .hints import did_you_mean
+from . import manuscript
 from ..model import Claim, CoefficientName, Evaluation, Figure, Table, Typesetting
 
 DEFAULT_DIGITS = 15
@@ -315,11 +316,14 @@ def build_products(builder, trees, names: list[str]) -> dict:
     typeset = []
     make = {"claim": ("claims", products.claim), "evaluate": ("evaluations", products.evaluation),
             "tabulate": ("tables", products.table), "plot": ("figures", products.figure)}
+    presentation = []
     for tree, file in trees:
         builder.file = file
         if tree.data in make:
             field, function = make[tree.data]
             out[field].append(function(tree))
+        elif tree.data in manuscript.STATEMENTS:
+            presentation.append((tree, file))
         else:
             typeset.append(tree)
     builder.file = builder.main
@@ -331,6 +335,7 @@ def build_products(builder, trees, names: list[str]) -> dict:
         seen[item.path] = item.span
     result = {k: tuple(v) for k, v in out.items()}
     result["typesetting"] = products.typesetting(typeset)
+    result["presentation"] = manuscript.presentation(products, presentation, latex_problem)
     return result
 
 
@@ -339,6 +344,7 @@ def product_names(fields: dict) -> list[CoefficientName]:
     names = [c.target for c in fields["claims"]]
     for group in ("evaluations", "tables", "figures"):
         names += [t for item in fields[group] for t in item.targets]
+    names += list(fields["presentation"].snippet) if "presentation" in fields else []
     return names
 
 

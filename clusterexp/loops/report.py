@@ -58,11 +58,12 @@ def _rounding_text(sampling, run) -> str:
 
 def latex_block(numbers: SampledNumbers, system) -> str:
     """An `align*` environment: one row per coefficient and point, value \\pm error."""
-    labels = [species_latex(n) for n in system.species_names]
+    labels = [system.typesetting.symbol(n) or species_latex(n) for n in system.species_names]
     rows = []
     for statement in numbers:
         for point in statement.points:
-            where = ", ".join(f"{_latex_name(name)}={sympy.latex(value)}" for name, value in point.point)
+            where = ", ".join(f"{system.typesetting.symbol(name) or _latex_name(name)}={sympy.latex(value)}"
+                              for name, value in point.point)
             for v in point.values:
                 letter = "b" if v.kind == "cluster" else "a"
                 lhs = f"{letter}_{{{latex_subscript(v.index, labels)}}}" + (rf"\big|_{{{where}}}" if where else "")
@@ -119,8 +120,9 @@ def check_files(system, overwrite: bool = False, base: Path | None = None, prote
             if name is None:
                 continue
             span = s.clause_span(clause)
-            target = resolve(base / name, overwrite, protected, span, folder_may_be_missing=True)
-            claimed(seen, target, str(base / name), span)
+            from ..products.figure_style import figure_paths   # a map: PDF, PNG and its caption
+            for path in ([base / name] if clause == "table" else figure_paths(base / name)):
+                claimed(seen, resolve(path, overwrite, protected, span, folder_may_be_missing=True), str(path), span)
 
 
 def write_files(numbers: SampledNumbers, system, overwrite: bool = False, base: Path | None = None,

@@ -8,11 +8,14 @@ gives the same bytes.
 
 Values are evaluated in floating point (numpy through `sympy.lambdify`) after the fixed parameters
 have been substituted exactly; a coefficient that is not finite at a point leaves a gap there.
-Axis labels are LaTeX (matplotlib mathtext) made from the symbol names: alpha -> \\alpha,
-nu_AB -> \\nu_{AB}; the caption states the conventions.
+Axis labels and legends are LaTeX (matplotlib mathtext, Computer Modern) in the `typeset` names, else
+made from the symbol names: alpha -> \\alpha, nu_AB -> \\nu_{AB}. The conventions go into the
+caption written beside the figure and into the file's metadata (`figure_style`); a text footer only
+with `figures footer`.
 """
 from __future__ import annotations
 
+import functools
 import io
 import re
 import textwrap
@@ -23,6 +26,7 @@ import sympy
 
 from ..errors import InputError
 from ..naming import bracket_label, latex_subscript, species_latex
+from .figure_style import save_all, style
 from .numbers import Interval, atomic_write_bytes, exact_number, parameter_interval
 
 FORMATS = {".png": "png", ".pdf": "pdf", ".svg": "svg"}
@@ -94,16 +98,22 @@ def _word(word: str, upright_long: bool) -> str:
     return r"\mathrm{" + word + "}"
 
 
-def coefficient_latex(coefficient) -> str:
-    """mathtext for a coefficient: a_{A^{2} B}, b_{3}; density / fugacity: rho_A[2,1], z_A[2,1]."""
+def coefficient_latex(coefficient, system=None) -> str:
+    """mathtext for a coefficient: a_{A^{2} B}, b_{3}; density / fugacity: rho_A[2,1], z_A[2,1]; the
+    species in their `typeset` LaTeX where mathtext can draw it."""
     if not hasattr(coefficient, "kind"):
         return sympy.latex(sympy.sympify(coefficient))
-    labels = [species_latex(s) for s in coefficient.species]
+    labels = [_species_mathtext(s, system) for s in coefficient.species]
     if coefficient.kind in ("cluster", "virial"):
         letter = "b" if coefficient.kind == "cluster" else "a"
         return f"{letter}_{{{latex_subscript(coefficient.index, labels)}}}"
     letter = r"\rho" if coefficient.kind == "density" else "z"
-    return f"{letter}_{{{species_latex(coefficient.component or '')}}}{bracket_label(coefficient.index)}"
+    return f"{letter}_{{{_species_mathtext(coefficient.component or '', system)}}}{bracket_label(coefficient.index)}"
+
+
+def _species_mathtext(name: str, system) -> str:
+    chosen = axis_latex(name, system)
+    return chosen if chosen != symbol_latex(name) else species_latex(name)
 
 
 def conventions_caption(system=None) -> str:
@@ -287,19 +297,31 @@ def _caption_text(caption, system, other: dict, intervals: dict) -> str:
     return "\n".join(textwrap.wrap(text + ("; " + "; ".join(extra) if extra else ""), 95))
 
 
-def _save(figure, path: Path, fmt: str, into=None) -> Path:
-    """Render the figure and write it to `path`, or hand (path, bytes) to `into` (a `files.Batch`'s
-    collector) when the caller writes its files together."""
+def styled(draw):
+    """Draw (and save) a figure in the figure style of `options` (`figure_style.style`)."""
+    @functools.wraps(draw)
+    def wrapped(*args, options=(), **kwargs):
+        _matplotlib()
+        with style(options):
+            return draw(*args, options=options, **kwargs)
+    return wrapped
+
+
+def finish(figure, path: Path, caption: str, into=None, options=(), caption_tex=None, title: str = "") -> Path:
+    """The footer when `options` ask for it, then every file of the figure (`figure_style.save_all`),
+    handed to `into` or written at once."""
     if path.is_dir():
         raise PlotError(f"{path} is a folder; give a file name")
-    buffer = io.BytesIO()
-    metadata = {"CreationDate": None} if fmt == "pdf" else ({"Date": None} if fmt == "svg" else None)
-    figure.savefig(buffer, format=fmt, dpi=150, metadata=metadata)
-    if into is not None:
-        into(path, buffer.getvalue())
+    if "footer" in options:
+        _place_caption(figure, caption)
     else:
-        atomic_write_bytes(path, buffer.getvalue())
+        figure.tight_layout()
+    save_all(figure, path, title, caption.replace("\n", " "), into or atomic_write_bytes, options, caption_tex)
     return path
+
+
+def _title(items, axes) -> str:
+    return ", ".join(_label(i) for i in items) + " against " + ", ".join(axes)
 
 
 def _figure(Figure, caption_lines: int):
@@ -316,9 +338,10 @@ def _place_caption(figure, caption: str):
 # the figures
 
 
+@styled
 def plot_line(coefficients, parameter, interval=None, path="coefficients.png", *, other_values: Mapping | None = None,
               caption: str | None = None, system=None, parameters: Sequence = (), samples: int = 401,
-              title: str | None = None, into=None) -> Path:
+              title: str | None = None, into=None, options=(), caption_tex: str | None = None) -> Path:
     """One or several coefficients against `parameter` over `interval` (default: one period of an
     exchange [0, 2] or mutual [0, 1] parameter of `system`, else the declared range); every other
     parameter they depend on needs a value in `other_values`. Returns the path written (`into`: a
@@ -329,17 +352,17 @@ def plot_line(coefficients, parameter, interval=None, path="coefficients.png", *
     prepared, other = _prepare(items, [name], other_values, system, parameters)
     span = _interval(name, interval, system, parameters)
     path = Path(path)
-    fmt = _format(path)
+    _format(path)
     x = _samples(span, max(2, int(samples)), numpy)
     caption_text = _caption_text(caption, system, other, {name: span})
-    figure = _figure(Figure, caption_text.count("\n") + 1)
+    figure = _figure(Figure, caption_text.count("\n") + 1 if "footer" in options else 0)
     axes = figure.add_subplot()
     drawn = 0
     for item, expr in zip(items, prepared):
         y = _evaluator(expr, [name], numpy)(x)
         if numpy.isfinite(y).any():
             drawn += 1
-        axes.plot(x, y, label=f"${coefficient_latex(item)}$", linewidth=1.5)
+        axes.plot(x, y, label=f"${coefficient_latex(item, system)}$", linewidth=1.5)
     if not drawn:
         raise PlotError(f"no coefficient is finite anywhere on {name} in {span}")
     low, high = axes.get_ylim()
@@ -349,7 +372,7 @@ def plot_line(coefficients, parameter, interval=None, path="coefficients.png", *
     axes.set_xlabel(f"${axis_latex(name, system)}$")
     kinds = {getattr(i, "kind", None) for i in items}
     if len(items) == 1:
-        axes.set_ylabel(f"${coefficient_latex(items[0])}$")
+        axes.set_ylabel(f"${coefficient_latex(items[0], system)}$")
     else:
         axes.set_ylabel({"virial": "virial coefficients", "cluster": "cluster coefficients"}.get(
             kinds.pop() if len(kinds) == 1 else None, "coefficients"))
@@ -357,13 +380,13 @@ def plot_line(coefficients, parameter, interval=None, path="coefficients.png", *
     if title:
         axes.set_title(title)
     axes.grid(True, linewidth=0.3, alpha=0.5)
-    _place_caption(figure, caption_text)
-    return _save(figure, path, fmt, into)
+    return finish(figure, path, caption_text, into, options, caption_tex, _title(items, [name]))
 
 
+@styled
 def plot_map(coefficient, first, second, path="coefficient_map.png", *, other_values: Mapping | None = None,
              caption: str | None = None, system=None, parameters: Sequence = (), resolution: int = 121,
-             title: str | None = None, into=None) -> Path:
+             title: str | None = None, into=None, options=(), caption_tex: str | None = None) -> Path:
     """A heat map of one coefficient against two parameters: `first` and `second` are names or
     (name, interval) pairs (interval None: the default of `plot_line`). Where the coefficient changes
     sign the colours are centred on 0 and its zero line is drawn. Returns the path written (`into`:
@@ -379,7 +402,7 @@ def plot_map(coefficient, first, second, path="coefficient_map.png", *, other_va
     span1 = _interval(name1, interval1, system, parameters)
     span2 = _interval(name2, interval2, system, parameters)
     path = Path(path)
-    fmt = _format(path)
+    _format(path)
     count = max(2, int(resolution))
     x, y = _samples(span1, count, numpy), _samples(span2, count, numpy)
     grid_x, grid_y = numpy.meshgrid(x, y)
@@ -387,7 +410,7 @@ def plot_map(coefficient, first, second, path="coefficient_map.png", *, other_va
     if not numpy.isfinite(z).any():
         raise PlotError(f"{_label(items[0])} is not finite anywhere on the map")
     caption_text = _caption_text(caption, system, other, {name1: span1, name2: span2})
-    figure = _figure(Figure, caption_text.count("\n") + 1)
+    figure = _figure(Figure, caption_text.count("\n") + 1 if "footer" in options else 0)
     axes = figure.add_subplot()
     masked = numpy.ma.masked_invalid(z)
     low, high = float(masked.min()), float(masked.max())
@@ -399,13 +422,12 @@ def plot_map(coefficient, first, second, path="coefficient_map.png", *, other_va
     else:
         mesh = axes.pcolormesh(grid_x, grid_y, masked, shading="auto", cmap="viridis")
     bar = figure.colorbar(mesh, ax=axes)
-    bar.set_label(f"${coefficient_latex(items[0])}$")
+    bar.set_label(f"${coefficient_latex(items[0], system)}$")
     axes.set_xlabel(f"${axis_latex(name1, system)}$")
     axes.set_ylabel(f"${axis_latex(name2, system)}$")
     if title:
         axes.set_title(title)
-    _place_caption(figure, caption_text)
-    return _save(figure, path, fmt, into)
+    return finish(figure, path, caption_text, into, options, caption_tex, _title(items, [name1, name2]))
 
 
 def _axis(spec) -> tuple[str, object]:

@@ -194,8 +194,9 @@ def check_files(system, directory=".", overwrite: bool = False, protected: dict 
             or any(s.path for s in system.states)) \
             and directory.exists() and not directory.is_dir():
         raise InputError(f"cannot write the tables and figures into {directory}: it is not a folder")
-    for item in (*system.tables, *system.figures):
-        path = directory / item.path
+    from .figure_style import figure_paths   # a figure is written as PDF, PNG and its caption
+    for item, path in [(t, directory / t.path) for t in system.tables] + \
+            [(f, p) for f in system.figures for p in figure_paths(directory / f.path)]:
         claimed(seen, resolve(path, overwrite, protected, item.span, folder_may_be_missing=True), str(path), item.span)
     from .states import check_state_files
     check_state_files(system, directory, overwrite, protected, seen)
@@ -212,6 +213,7 @@ def stage_files(derivation, batch, directory=".", overwrite: bool = False) -> No
     directory = Path(directory)
     system = derivation.system
     check_files(system, directory, overwrite, batch.protected)
+    derivation.__dict__["_files_folder"] = directory   # where the document finds the figures
 
     def collector(span):
         return lambda path, data: batch.add(path, data, overwrite, span, make_folder=True)
@@ -220,19 +222,20 @@ def stage_files(derivation, batch, directory=".", overwrite: bool = False) -> No
             collector(table.span)(directory / table.path, csv_bytes(rows))
         except InputError as error:
             raise _at(error, table.span) from None
+    from ..export.captions import figure_caption_latex
     for figure in system.figures:
         items = [_plain(derivation, t, figure.span) for t in figure.targets]
-        other = {s.name: v for s, v in figure.fixed}
         path = directory / figure.path
+        style = {"other_values": {s.name: v for s, v in figure.fixed}, "system": system, "parameters": system.parameters,
+                 "into": collector(figure.span), "options": system.presentation.figure_options,
+                 "caption_tex": figure_caption_latex(derivation, figure)}
         try:
             if len(figure.axes) == 1:
                 (symbol, interval), = figure.axes
-                plots.plot_line(items, symbol.name, interval, path, other_values=other, system=system,
-                                parameters=system.parameters, into=collector(figure.span))
+                plots.plot_line(items, symbol.name, interval, path, **style)
             else:
                 first, second = ((s.name, interval) for s, interval in figure.axes)
-                plots.plot_map(items[0], first, second, path, other_values=other, system=system,
-                               parameters=system.parameters, into=collector(figure.span))
+                plots.plot_map(items[0], first, second, path, **style)
         except InputError as error:
             raise _at(error, figure.span) from None
     from .states import stage_state_files
