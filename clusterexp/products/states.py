@@ -158,9 +158,19 @@ def virial_polynomial(derivation, eos, request: StateRequest, order: int, t: sym
 
 
 def draw_figure(derivation, eos, request: StateRequest, path: Path, into) -> None:
-    from .plots import PlotError, _figure, _format, _matplotlib, _place_caption, _save
+    from .figure_style import style
+    from .plots import _matplotlib
+    options = derivation.system.presentation.figure_options
+    _matplotlib()
+    with style(options):
+        _draw_figure(derivation, eos, request, path, into, options)
+
+
+def _draw_figure(derivation, eos, request: StateRequest, path: Path, into, options) -> None:
+    from ..export.latex import escape_text
+    from .plots import PlotError, _figure, _format, _matplotlib, finish
     _, Figure, numpy = _matplotlib()
-    fmt = _format(path)
+    _format(path)
     parameters = request.parameter_values()
     axis = request.axes[0]
     low, high, boundary = plot_interval(eos, request, parameters)
@@ -212,8 +222,8 @@ def draw_figure(derivation, eos, request: StateRequest, path: Path, into) -> Non
     else:
         axes.legend(loc="best", fontsize=8)
     axes.grid(True, linewidth=0.3, alpha=0.5)
-    _place_caption(figure, caption)
-    _save(figure, path, fmt, into)
+    finish(figure, path, caption, into, options, caption_tex=escape_text(caption.replace("\n", " ")) + ".",
+           title=f"equation of state: {', '.join(labels)}")
 
 
 def _density_latex(eos, species: str) -> str:
