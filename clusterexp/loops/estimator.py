@@ -14,7 +14,10 @@ import math
 import sys
 from dataclasses import dataclass, field
 
+import functools
+
 from . import exact
+from .distributed import cluster_pool, scheduler_address
 from .runner import LoopsError, RunPlan, TargetNotReachable, combined_error, execute, rounds_for
 
 __all__ = ["Estimate", "ThirdOrderResult", "SecondOrderResult", "estimate_third_order", "scan_third_order",
@@ -152,8 +155,11 @@ def _check_number(name: str, value) -> float:
     return out
 
 
+SEQUENCES = ("random", "sobol")
+
+
 def _plan(kind_key, kind, params, samples, time_cap, target_error, seed, workers, slices, batch, progress,
-          label, extrapolate=True, allocation=None) -> RunPlan:
+          label, extrapolate=True, allocation=None, scheduler=None, sequence="random") -> RunPlan:
     if samples is None and time_cap is None and target_error is None:
         raise LoopsError("give a budget: samples, time_cap (seconds) and/or target_error")
     if not isinstance(slices, int) or slices < 2:
@@ -178,12 +184,19 @@ def _plan(kind_key, kind, params, samples, time_cap, target_error, seed, workers
         batch = DEFAULT_UNIT
         if samples is not None:
             batch = int(min(DEFAULT_UNIT, max(10, samples // (units * 20))))
+    if sequence not in SEQUENCES:
+        raise LoopsError(f"sequence must be one of {', '.join(SEQUENCES)}, got {sequence!r}")
     families = {f: k * batch for f, k in alloc.items()}
+    if sequence == "sobol":
+        # scrambled Sobol points keep their balance only in blocks of a power of two
+        families = {f: 1 << max(1, round(math.log2(n))) for f, n in families.items()}
+    address = scheduler_address(scheduler)
+    pool = functools.partial(cluster_pool, address) if address else None
     max_rounds = None if samples is None else rounds_for(int(samples), sum(families.values()))
     if progress is None:
         progress = bool(getattr(sys.stderr, "isatty", lambda: False)())
     return RunPlan(kind, families, params, slices, seed, workers, max_rounds, time_cap, target_error,
-                   label, progress, bool(extrapolate))
+                   label, progress, bool(extrapolate), pool, sequence)
 
 
 def _summaries(out, n_params):
@@ -209,7 +222,8 @@ def scan_third_order(kind: str = "identical", alphas=None, *, grid=None, samples
                      workers: int = 2, slices: int = DEFAULT_SLICES, batch: int | None = None,
                      progress: bool | None = None, order: int = 3, dimension: int = 2,
                      species: int | None = None, extrapolate: bool = True,
-                     allocation: dict[str, int] | None = None) -> list[ThirdOrderResult]:
+                     allocation: dict[str, int] | None = None, scheduler: str | None = None,
+                     sequence: str = "random") -> list[ThirdOrderResult]:
     """Third-order coefficients at many parameter points from one set of loops.
 
     identical: alphas = sequence of exchange parameters.  pair_plus_one: grid = sequence of
@@ -217,7 +231,10 @@ def scan_third_order(kind: str = "identical", alphas=None, *, grid=None, samples
     every point's phase is evaluated on them, so a point's value equals a separate run with the same
     seed, budget and slices.  target_error applies to the worst point.  extrapolate=False switches the
     slice-number extrapolation off (then the O(1/slices) pair-product error remains).  allocation:
-    relative numbers of samples per family in a round (default ALLOCATION[kind]).
+    relative numbers of samples per family in a round (default ALLOCATION[kind]).  scheduler: the
+    address of a dask scheduler to run the batches on (default: the environment variable
+    CLUSTEREXP_SAMPLE_CLUSTER, else worker processes on this machine); the numbers are the same.
+    sequence="sobol": randomized quasi-Monte Carlo (quasi.py), one independent scramble per batch.
     """
     if kind == "identical":
         _check_domain(kind, order, dimension, species, 0.0, None)
@@ -233,7 +250,7 @@ def scan_third_order(kind: str = "identical", alphas=None, *, grid=None, samples
         raise LoopsError("empty scan")
     name = "b_3" if kind == "identical" else "b_21"
     plan = _plan(kind, kind, params, samples, time_cap, target_error, seed, workers, slices, batch,
-                 progress, name, extrapolate, allocation)
+                 progress, name, extrapolate, allocation, scheduler, sequence)
     out = execute(plan)
     per_family = {f: n * out.rounds for f, n in plan.families.items()}
     results = []
@@ -261,7 +278,8 @@ def estimate_third_order(kind: str = "identical", alpha: float | None = None, al
                          target_error: float | None = None, seed: int = 0, workers: int = 2,
                          slices: int = DEFAULT_SLICES, batch: int | None = None, progress: bool | None = None,
                          order: int = 3, dimension: int = 2, species: int | None = None,
-                         extrapolate: bool = True, allocation: dict[str, int] | None = None) -> ThirdOrderResult:
+                         extrapolate: bool = True, allocation: dict[str, int] | None = None,
+                         scheduler: str | None = None, sequence: str = "random") -> ThirdOrderResult:
     """b_3 and a_3 of identical anyons, or b_21 and a_21 of two identical anyons plus one other particle.
 
     Budget: samples (total loop samples), time_cap (seconds) and/or target_error (standard error of the
@@ -274,15 +292,17 @@ def estimate_third_order(kind: str = "identical", alpha: float | None = None, al
     if kind == "identical":
         return scan_third_order(kind, [alpha], samples=samples, time_cap=time_cap, target_error=target_error,
                                 seed=seed, workers=workers, slices=slices, batch=batch, progress=progress,
-                                extrapolate=extrapolate, allocation=allocation)[0]
+                                extrapolate=extrapolate, allocation=allocation, scheduler=scheduler,
+                                sequence=sequence)[0]
     return scan_third_order(kind, grid=[(alpha, alpha_12)], samples=samples, time_cap=time_cap,
                             target_error=target_error, seed=seed, workers=workers, slices=slices, batch=batch,
-                            progress=progress, extrapolate=extrapolate, allocation=allocation)[0]
+                            progress=progress, extrapolate=extrapolate, allocation=allocation,
+                            scheduler=scheduler, sequence=sequence)[0]
 
 
 def estimate_second_order(kind: str = "identical", alpha: float = 0.0, *, samples: int = 100_000,
                           seed: int = 0, workers: int = 1, slices: int = DEFAULT_SLICES,
-                          batch: int | None = None) -> SecondOrderResult:
+                          batch: int | None = None, sequence: str = "random") -> SecondOrderResult:
     """Sample b_2 (kind='identical', exchange alpha) or b_11 (kind='distinct', mutual alpha) with the
     same loops, slice factors and importance sampling as the third-order families; the exact values
     are known, so this validates normalisations and error bars."""
@@ -291,7 +311,7 @@ def estimate_second_order(kind: str = "identical", alpha: float = 0.0, *, sample
     a = _check_number("alpha", alpha)
     key = "second_" + kind
     plan = _plan(key, kind, [(a,)], samples, None, None, seed, workers, slices, batch, False,
-                 "b_2" if kind == "identical" else "b_11", extrapolate=False)
+                 "b_2" if kind == "identical" else "b_11", extrapolate=False, sequence=sequence)
     out = execute(plan)
     value, err, parts, _, _ = _summaries(out, 1)[0]
     if kind == "identical":

@@ -72,7 +72,8 @@ EXTRAPOLATED_FAMILIES = ("cycle",)
 
 
 def run_batch(kind: str, family: str, index: int, count: int, slices: int, seed: int,
-              params: list[tuple], extrapolate: bool = True) -> tuple[np.ndarray, np.ndarray, float]:
+              params: list[tuple], extrapolate: bool = True,
+              sequence: str = "random") -> tuple[np.ndarray, np.ndarray, float]:
     """One batch at every parameter point: the mean of the family's per-sample values and the mean
     at the full slice number without extrapolation.
 
@@ -86,6 +87,9 @@ def run_batch(kind: str, family: str, index: int, count: int, slices: int, seed:
     rng = np.random.default_rng(seq)
     extrapolate = extrapolate and family in EXTRAPOLATED_FAMILIES
     strides = (1, 2) if extrapolate else (1,)
+    if sequence == "sobol":
+        from .quasi import scrambled_source
+        rng = scrambled_source(SAMPLE_CLASSES[family], rng, count, slices, strides)
     samples = SAMPLE_CLASSES[family](rng, count, slices, strides)
     means = np.empty(len(params))
     raw = np.empty(len(params))
@@ -112,6 +116,9 @@ class RunPlan:
     label: str                        # name of the estimated coefficient, for messages
     progress: bool
     extrapolate: bool = True
+    pool: object = None               # callable -> (context, submit, first finished, slots) on a
+                                      # cluster (distributed.cluster_pool); None: processes here
+    sequence: str = "random"          # "random" (pseudo-random) or "sobol" (randomized quasi-Monte Carlo)
 
 
 @dataclass
@@ -134,8 +141,17 @@ def combined_error(batch_means: dict[str, np.ndarray]) -> np.ndarray:
 
 
 def _round_tasks(plan: RunPlan, r: int):
-    return [(plan.kind, f, r, n, plan.slices, plan.seed, plan.params, plan.extrapolate)
+    return [(plan.kind, f, r, n, plan.slices, plan.seed, plan.params, plan.extrapolate, plan.sequence)
             for f, n in plan.families.items()]
+
+
+def _local_pool(workers: int):
+    """Worker processes on this machine: (context manager, submit, wait for the first finished)."""
+    # fork: workers need no re-import of the caller's script (spawn would require a main guard)
+    ctx = get_context("fork" if "fork" in get_all_start_methods() else "spawn")
+    pool = ProcessPoolExecutor(max_workers=workers, mp_context=ctx)
+    return pool, (lambda task: pool.submit(run_batch, *task)), \
+        (lambda futures: wait(futures, return_when=FIRST_COMPLETED)[0])
 
 
 def execute(plan: RunPlan) -> RunOutcome:
@@ -215,7 +231,7 @@ def execute(plan: RunPlan) -> RunOutcome:
         return True
 
     try:
-        if plan.workers <= 1:
+        if plan.workers <= 1 and plan.pool is None:
             while may_submit():
                 for task in _round_tasks(plan, next_round):
                     done[(task[1], task[2])] = run_batch(*task)
@@ -225,19 +241,22 @@ def execute(plan: RunPlan) -> RunOutcome:
                 if check_target(prefix):
                     break
         else:
-            # fork: workers need no re-import of the caller's script (spawn would require a main guard)
-            ctx = get_context("fork" if "fork" in get_all_start_methods() else "spawn")
-            with ProcessPoolExecutor(max_workers=plan.workers, mp_context=ctx) as pool:
+            if plan.pool is not None:
+                context, submit, first_finished, slots = plan.pool()
+            else:
+                (context, submit, first_finished), slots = _local_pool(plan.workers), plan.workers
+            with context:
                 pending = {}
                 while True:
-                    while may_submit() and len(pending) < (plan.workers + 1) * len(plan.families):
+                    while may_submit() and len(pending) < (slots + 1) * len(plan.families):
                         for task in _round_tasks(plan, next_round):
-                            pending[pool.submit(run_batch, *task)] = (task[1], task[2])
+                            pending[submit(task)] = (task[1], task[2])
                         next_round += 1
                     if not pending:
                         break
-                    finished, _ = wait(list(pending), return_when=FIRST_COMPLETED)
-                    for fut in finished:
+                    for fut in first_finished(list(pending)):
+                        # keyed by (family, round): a batch recomputed after a lost worker replaces
+                        # nothing and is never counted twice
                         done[pending.pop(fut)] = fut.result()
                     prefix = complete_prefix()
                     report(prefix)

@@ -70,6 +70,8 @@ class PhaseData:
 
 def brownian_loops(rng: np.random.Generator, count: int, segments: int, duration: float) -> np.ndarray:
     """`count` planar Brownian bridges from 0 back to 0, `segments` equal slices over `duration`."""
+    if hasattr(rng, "brownian_bridge"):    # randomized quasi-Monte Carlo (quasi.py): Levy construction
+        return rng.brownian_bridge(count, segments, duration)
     scale = np.sqrt(duration / segments / (2.0 * np.pi))
     steps = rng.standard_normal((count, segments, 2)) * scale
     walk = np.zeros((count, segments + 1), dtype=complex)
