@@ -190,13 +190,19 @@ def _checks_latex(derivation: Derivation, labels, w, names) -> list[str]:
     return out
 
 
+def _sampled_latex(number: str) -> str:
+    """A Monte Carlo value (`0.0362 +- 0.0013 (Monte Carlo)`) in LaTeX; other numbers unchanged."""
+    return number.replace(" +- ", r" \pm ").replace(" (Monte Carlo)", r"\ \text{(Monte Carlo)}")
+
+
 def _values_latex(derivation: Derivation, labels, w, names) -> list[str]:
     system = derivation.system
     out = []
     for evaluation, rows in derivation.evaluations:
         at = ", ".join(rf"${sympy.latex(s, symbol_names=names)}={sympy.latex(v)}$" for s, v in evaluation.point)
         out += [rf"\subsection*{{Values{' at ' + at if at else ''}}}", r"\begin{tabular}{ll}"]
-        out += [rf"${_name(derivation, t, labels, w)}$ & ${number}$ \\" for t, (_, number) in zip(evaluation.targets, rows)]
+        out += [rf"${_name(derivation, t, labels, w)}$ & ${_sampled_latex(number)}$ \\"
+                for t, (_, number) in zip(evaluation.targets, rows)]
         out.append(r"\end{tabular}")
     for table, rows in derivation.tables:
         header = [rf"${sympy.latex(s, symbol_names=names)}$" for s, _ in table.axes] + \
