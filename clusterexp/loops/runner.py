@@ -10,6 +10,7 @@ Errors come from the scatter of independent batch means (every batch of a family
 """
 from __future__ import annotations
 
+import functools
 import math
 import sys
 import time
@@ -32,6 +33,20 @@ SAMPLE_CLASSES = {
     "pair_swap": sampler.PairSwapSamples,
 }
 MIN_ROUNDS_FOR_TARGET = 10
+
+
+@dataclass(frozen=True)
+class Reduction:
+    """Variance-reduction settings of a run (docs/loops.md, "Variance reduction"); part of what a
+    batch's numbers depend on.  control: the triple family's control variate (pair terms with exact
+    mean); triple_width: the main width of its offset density; sequence: "random" or "sobol"."""
+
+    control: bool = True
+    triple_width: float = sampler.WIDTH_TRIPLE
+    sequence: str = "random"
+
+
+BEFORE = Reduction(control=False, triple_width=sampler.WIDTH_TRIPLE_BEFORE)
 EARLY_MARGIN = 2.0       # give up early when the projection exceeds the cap by this factor ...
 EARLY_FRACTION = 0.1     # ... and at least this fraction of the cap has been spent
 
@@ -71,9 +86,16 @@ def family_values(kind: str, family: str, samples, params: tuple, stride: int = 
 EXTRAPOLATED_FAMILIES = ("cycle",)
 
 
+def _control(kind: str, samples, params: tuple, stride: int) -> np.ndarray:
+    """The triple family's control (mean zero exactly) at one parameter point."""
+    if kind == "pair_plus_one":
+        return samples.control(params[0], params[1], params[1], stride)
+    return samples.control(params[0], params[0], params[0], stride)
+
+
 def run_batch(kind: str, family: str, index: int, count: int, slices: int, seed: int,
               params: list[tuple], extrapolate: bool = True,
-              sequence: str = "random") -> tuple[np.ndarray, np.ndarray, float]:
+              reduction: Reduction = Reduction()) -> tuple:
     """One batch at every parameter point: the mean of the family's per-sample values and the mean
     at the full slice number without extrapolation.
 
@@ -87,19 +109,28 @@ def run_batch(kind: str, family: str, index: int, count: int, slices: int, seed:
     rng = np.random.default_rng(seq)
     extrapolate = extrapolate and family in EXTRAPOLATED_FAMILIES
     strides = (1, 2) if extrapolate else (1,)
-    if sequence == "sobol":
+    make = SAMPLE_CLASSES[family]
+    if family == "triple":
+        make = functools.partial(make, width=reduction.triple_width)
+    if reduction.sequence == "sobol":
         from .quasi import scrambled_source
-        rng = scrambled_source(SAMPLE_CLASSES[family], rng, count, slices, strides)
-    samples = SAMPLE_CLASSES[family](rng, count, slices, strides)
+        rng = scrambled_source(make, rng, count, slices, strides)
+    samples = make(rng, count, slices, strides)
     means = np.empty(len(params))
     raw = np.empty(len(params))
+    controlled = reduction.control and family == "triple"
+    # per point: the control's mean, its covariance with the values and its variance (within the batch)
+    control = np.zeros((3, len(params))) if controlled else None
     for k, p in enumerate(params):
         v = family_values(kind, family, samples, p, 1)
         raw[k] = v.mean()
         if extrapolate:
             v = 2.0 * v - family_values(kind, family, samples, p, 2)
         means[k] = v.mean()
-    return means, raw, time.perf_counter() - start
+        if controlled:
+            c = _control(kind, samples, p, 1)
+            control[:, k] = c.mean(), np.mean((v - means[k]) * (c - c.mean())), c.var()
+    return means, raw, time.perf_counter() - start, control
 
 
 @dataclass
@@ -118,7 +149,7 @@ class RunPlan:
     extrapolate: bool = True
     pool: object = None               # callable -> (context, submit, first finished, slots) on a
                                       # cluster (distributed.cluster_pool); None: processes here
-    sequence: str = "random"          # "random" (pseudo-random) or "sobol" (randomized quasi-Monte Carlo)
+    reduction: Reduction = Reduction()
 
 
 @dataclass
@@ -127,6 +158,15 @@ class RunOutcome:
     seconds: float
     batch_means: dict[str, np.ndarray]     # family -> (rounds, params), extrapolated in slices
     batch_raw: dict[str, np.ndarray]       # the same at the full slice number, not extrapolated
+
+
+def controlled(stats: np.ndarray, means: np.ndarray, raw: np.ndarray):
+    """Batch means corrected by the control variate: m - beta c, with beta = pooled within-batch
+    covariance / variance over every round used (one beta per point, the same for all rounds, so the
+    rounds stay independent and equally weighted; its estimation bias is O(1/samples))."""
+    covariance, variance = stats[:, 1, :].sum(axis=0), stats[:, 2, :].sum(axis=0)
+    beta = np.divide(covariance, variance, out=np.zeros_like(covariance), where=variance > 0)
+    return means - beta * stats[:, 0, :], raw - beta * stats[:, 0, :]
 
 
 def combined_error(batch_means: dict[str, np.ndarray]) -> np.ndarray:
@@ -141,7 +181,7 @@ def combined_error(batch_means: dict[str, np.ndarray]) -> np.ndarray:
 
 
 def _round_tasks(plan: RunPlan, r: int):
-    return [(plan.kind, f, r, n, plan.slices, plan.seed, plan.params, plan.extrapolate, plan.sequence)
+    return [(plan.kind, f, r, n, plan.slices, plan.seed, plan.params, plan.extrapolate, plan.reduction)
             for f, n in plan.families.items()]
 
 
@@ -174,6 +214,9 @@ def execute(plan: RunPlan) -> RunOutcome:
                  for f in plan.families}
         raw = {f: np.array([done[(f, r)][1] for r in range(rounds)]).reshape(rounds, len(plan.params))
                for f in plan.families}
+        for f in plan.families:
+            if done[(f, 0)][3] is not None:
+                means[f], raw[f] = controlled(np.array([done[(f, r)][3] for r in range(rounds)]), means[f], raw[f])
         return RunOutcome(rounds, time.perf_counter() - start, means, raw)
 
     def check_target(rounds: int) -> bool:
