@@ -36,6 +36,16 @@ def _warm():
     import clusterexp.loops.runner  # noqa: F401
 
 
+def _cpu():
+    import resource
+    use = resource.getrusage(resource.RUSAGE_SELF)
+    return use.ru_utime + use.ru_stime
+
+
+def _worker_cpu(client) -> float:
+    return sum(client.run(_cpu).values())
+
+
 def run(samples: int, **kw):
     start = time.perf_counter()
     r = estimate_third_order("identical", 0.5, samples=samples, seed=77, symmetric=True, allocation=ALLOCATION,
@@ -43,8 +53,16 @@ def run(samples: int, **kw):
     return r, time.perf_counter() - start
 
 
+# glibc's allocator returns the loops' large temporary arrays to the system after every batch in a dask
+# worker (dask sets MALLOC_TRIM_THRESHOLD_ low for its workers): measured 3x the system time and about
+# 2x the CPU per batch.  Workers started with these variables run the batches at the in-process cost.
+WORKER_ENVIRONMENT = {"MALLOC_TRIM_THRESHOLD_": 2 ** 30, "MALLOC_MMAP_THRESHOLD_": 2 ** 30, "MALLOC_TOP_PAD_": 2 ** 28}
+
+
 def main() -> None:
+    import dask
     from dask.distributed import Client, LocalCluster
+    dask.config.set({"distributed.nanny.pre-spawn-environ": WORKER_ENVIRONMENT})
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--samples", type=int, default=240_000)
     parser.add_argument("--kill-after", type=float, default=3.0)
@@ -53,8 +71,10 @@ def main() -> None:
     BATCH[0] = args.batch
     print(f"# loops_cluster: a_3(1/2), {args.samples} samples in batches of {args.batch} x {ALLOCATION}, cpus={os.cpu_count()}, "
           f"load average {os.getloadavg()[0]:.2f}")
+    cpu = time.process_time()
     reference, t_one = run(args.samples, workers=1)
-    print(f"in this process:         {t_one:6.1f} s   a_3 = {reference.a3}  ({reference.rounds} rounds)")
+    cpu_one = time.process_time() - cpu
+    print(f"in this process:         {t_one:6.1f} s (CPU {cpu_one:.1f} s)  a_3 = {reference.a3}  ({reference.rounds} rounds)")
     rows = [("in this process", t_one, True)]
     pool, t_pool = run(args.samples, workers=2)
     rows.append(("local process pool, 2", t_pool, pool.round_values == reference.round_values))
@@ -62,8 +82,12 @@ def main() -> None:
         with LocalCluster(n_workers=workers, threads_per_worker=1, processes=True, host="127.0.0.1",
                           dashboard_address=None) as cluster, Client(cluster) as client:
             client.run(_warm)   # the workers' one-time import of clusterexp is not timed
+            before = _worker_cpu(client)
             r, t = run(args.samples, scheduler=cluster.scheduler_address)
+            cpu_workers = _worker_cpu(client) - before
             rows.append((f"dask LocalCluster, {workers}", t, r.round_values == reference.round_values))
+            print(f"dask, {workers} worker(s): worker CPU {cpu_workers:.1f} s against {cpu_one:.1f} s in this process "
+                  f"(CPU efficiency {cpu_one / cpu_workers:.2f})")
     with LocalCluster(n_workers=2, threads_per_worker=1, processes=True, host="127.0.0.1",
                       dashboard_address=None) as cluster, Client(cluster) as client:
         client.run(_warm)

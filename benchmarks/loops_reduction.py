@@ -27,11 +27,13 @@ from clusterexp.loops.sampler import WIDTH_TRIPLE  # noqa: E402
 
 TARGET = 1e-5
 PUBLISHED = 1 / 36 + 1 / (12 * math.pi ** 2) - 1.65e-5
-CONTROL_ONLY = replace(BEFORE, control=True)
+CLOSED = replace(BEFORE, closed_half=True)
+CONTROL_ONLY = replace(CLOSED, control=True)
 AFTER = Reduction()
 # (name, reduction, symmetric, allocation)
 CONFIGURATIONS = [
     ("before (as of the last loops benchmark)", BEFORE, False, {"cycle": 2, "exchange": 1, "triple": 6}),
+    ("+ closed-form slice factor at alpha = 1/2", CLOSED, False, {"cycle": 2, "exchange": 1, "triple": 6}),
     ("+ control variate (triple family)", CONTROL_ONLY, False, {"cycle": 2, "exchange": 1, "triple": 6}),
     (f"+ importance: triple offsets width {WIDTH_TRIPLE}", AFTER, False, {"cycle": 2, "exchange": 1, "triple": 6}),
     ("+ Sen's symmetry (exchange family exact)", AFTER, True, {"cycle": 2, "triple": 6}),

@@ -22,7 +22,7 @@ import numpy as np
 
 from clusterexp.errors import ClusterexpError
 
-from . import sampler
+from . import pairfactor, sampler
 
 FAMILY_IDS = {"cycle": 1, "exchange": 2, "triple": 3, "pair_loop": 4, "pair_swap": 5}
 SAMPLE_CLASSES = {
@@ -44,9 +44,10 @@ class Reduction:
     control: bool = True
     triple_width: float = sampler.WIDTH_TRIPLE
     sequence: str = "random"
+    closed_half: bool = True      # the slice factor's closed form at half-integer alpha (pairfactor.py)
 
 
-BEFORE = Reduction(control=False, triple_width=sampler.WIDTH_TRIPLE_BEFORE)
+BEFORE = Reduction(control=False, triple_width=sampler.WIDTH_TRIPLE_BEFORE, closed_half=False)
 EARLY_MARGIN = 2.0       # give up early when the projection exceeds the cap by this factor ...
 EARLY_FRACTION = 0.1     # ... and at least this fraction of the cap has been spent
 
@@ -96,14 +97,24 @@ def _control(kind: str, samples, params: tuple, stride: int) -> np.ndarray:
 def run_batch(kind: str, family: str, index: int, count: int, slices: int, seed: int,
               params: list[tuple], extrapolate: bool = True,
               reduction: Reduction = Reduction()) -> tuple:
-    """One batch at every parameter point: the mean of the family's per-sample values and the mean
-    at the full slice number without extrapolation.
+    """One batch at every parameter point: (mean of the family's per-sample values, the mean at the
+    full slice number without extrapolation, seconds, control statistics or None); `reduction` holds
+    the variance-reduction settings (the control statistics are the control's mean, its covariance
+    with the values and its variance, per point, for the triple family with `reduction.control`).
 
     With `extrapolate` (cycle family only), each sample is evaluated on its own path with `slices` slices and with every
     second slice point only (slices/2), and contributes 2 V(slices) - V(slices/2): the pair-product
     error is O(1/slices), so this removes it to O(1/slices^2) at little cost in variance because the
     two values are strongly correlated.
     """
+    pairfactor.SETTINGS.closed_half = reduction.closed_half
+    try:
+        return _batch(kind, family, index, count, slices, seed, params, extrapolate, reduction)
+    finally:
+        pairfactor.SETTINGS.closed_half = True
+
+
+def _batch(kind, family, index, count, slices, seed, params, extrapolate, reduction):
     start = time.perf_counter()
     seq = np.random.SeedSequence(entropy=seed, spawn_key=(FAMILY_IDS[family], index))
     rng = np.random.default_rng(seq)
