@@ -28,7 +28,6 @@ from __future__ import annotations
 import threading
 
 import numpy as np
-from scipy.special import erf
 
 # 2 d^2 / v below this marks a slice "near": its chord passes within d of the origin.  The probability
 # that a bridge strays a distance d sideways is exp(-2 d^2 / v), so far slices err by < exp(-18) (in fact far less: the path must also wind).
@@ -146,6 +145,7 @@ def pair_factor(alpha: float, x: np.ndarray, phi: np.ndarray, accuracy=PRECISE) 
         # half-integer orders: I_{|m+1/2|} are elementary and the Bessel sum closes into the error
         # function, R(1/2; x, phi) = e^{i phi/2} erf(sqrt(2x) cos(phi/2)) (exact; the test compares it
         # with the Bessel sum); about ten times cheaper than the quadrature
+        from scipy.special import erf     # here: importing scipy is slow and most runs never need it
         return base * np.exp(0.5j * phi) * erf(np.sqrt(2.0 * x) * np.cos(0.5 * phi))
     neg = phi < 0
     r = _reduced_factor(a, x, np.abs(phi), accuracy)
