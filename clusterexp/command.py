@@ -62,6 +62,9 @@ def _parser() -> argparse.ArgumentParser:
                      help="folder for the tables and figures the input asks for (default: the current one; "
                           "created when missing)")
     run.add_argument("--no-files", action="store_true", help="do not write the input's tables and figures")
+    run.add_argument("--sample-cluster", metavar="ADDRESS", default=None,
+                     help="run the `sample` statements' loop batches on the dask cluster whose scheduler is at "
+                          "ADDRESS (e.g. tcp://head:8786; default: $CLUSTEREXP_SAMPLE_CLUSTER, else this machine)")
     return parser
 
 
@@ -137,6 +140,8 @@ def main(argv: list[str] | None = None) -> int:
 
 def _run(args, progress) -> int:
     to_stdout = args.output in (None, STANDARD_STREAM)
+    if args.sample_cluster:   # read where the loop batches are submitted (loops/distributed.py)
+        os.environ["CLUSTEREXP_SAMPLE_CLUSTER"] = args.sample_cluster
     if args.document and args.format not in (None, "latex"):
         return _refuse(f"--document makes a standalone LaTeX document: it needs --format latex, not {args.format}")
     if args.no_files and args.files_into is not None:

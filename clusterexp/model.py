@@ -222,6 +222,7 @@ class Claim:
     limits: tuple[tuple[sympy.Symbol, int], ...] = ()
     decimals: tuple[str, ...] = ()
     rounded: str | None = None
+    errors: float | None = None   # `within k errors`: the tolerance against sampled numbers
 
 
 @dataclass(frozen=True)

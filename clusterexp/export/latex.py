@@ -138,6 +138,11 @@ TABLE_ROWS_SHOWN = 40
 
 
 def number_latex(text: str) -> str:
+    if " +- " in text:   # a Monte Carlo value: `0.0362 +- 0.0013 (Monte Carlo)`
+        value, rest = text.split(" +- ", 1)
+        sampled = " (Monte Carlo)" in rest
+        error = number_latex(rest.replace(" (Monte Carlo)", ""))
+        return rf"{number_latex(value)} \pm {error}" + (r"\ \text{(Monte Carlo)}" if sampled else "")
     if "/" in text:
         p, q = text.lstrip("-").split("/", 1)
         return ("-" if text.startswith("-") else "") + rf"\tfrac{{{p}}}{{{q}}}"

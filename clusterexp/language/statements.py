@@ -173,7 +173,10 @@ class ProductBuilder:
     # -- statements ---------------------------------------------------------------------------------
     def claim(self, tree) -> Claim:
         from ..expansions import split_truncation
-        ref, value_tree = tree.children
+        ref, value_tree, *tolerance = tree.children
+        if tolerance:   # `within k errors` (products/sampled_use.py)
+            from .sampled_claims import claim_tolerance
+            return claim_tolerance(self, tree, tolerance[0])
         target = self.coefficient(ref)
         names = _ClaimNames({p.name: p.symbol for p in self.b.parameters.values()}, len(self.names))
         value = ExpressionBuilder(names, self.b.span).build(value_tree)

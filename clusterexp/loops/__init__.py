@@ -4,7 +4,8 @@ See docs/loops.md for the derivation and `estimator` for the API.
 """
 from .estimator import (DEFAULT_SLICES, KINDS, Estimate, SecondOrderResult, ThirdOrderResult,
                         estimate_second_order, estimate_third_order, scan_third_order)
-from .runner import LoopsError, TargetNotReachable
+from .runner import BEFORE, LoopsError, Reduction, TargetNotReachable
 
-__all__ = ["DEFAULT_SLICES", "KINDS", "Estimate", "SecondOrderResult", "ThirdOrderResult", "LoopsError",
+__all__ = ["BEFORE", "DEFAULT_SLICES", "KINDS", "Estimate", "Reduction", "SecondOrderResult", "ThirdOrderResult",
+           "LoopsError",
            "TargetNotReachable", "estimate_second_order", "estimate_third_order", "scan_third_order"]

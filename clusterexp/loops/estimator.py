@@ -10,12 +10,17 @@ analysis are in docs/loops.md.
 """
 from __future__ import annotations
 
+import dataclasses
+import functools
 import math
 import sys
 from dataclasses import dataclass, field
 
+import numpy as np
+
 from . import exact
-from .runner import LoopsError, RunPlan, TargetNotReachable, combined_error, execute, rounds_for
+from .distributed import cluster_pool, scheduler_address
+from .runner import LoopsError, Reduction, RunPlan, TargetNotReachable, combined_error, execute, rounds_for
 
 __all__ = ["Estimate", "ThirdOrderResult", "SecondOrderResult", "estimate_third_order", "scan_third_order",
            "estimate_second_order", "LoopsError", "TargetNotReachable", "KINDS", "DEFAULT_SLICES"]
@@ -28,6 +33,7 @@ DEFAULT_SLICES = 16
 ALLOCATION = {
     "identical": {"cycle": 2, "exchange": 3, "triple": 7},
     "pair_plus_one": {"exchange": 2, "triple": 5},
+    "symmetric": {"cycle": 1, "triple": 3},
     "second_identical": {"pair_loop": 2, "pair_swap": 1},
     "second_distinct": {"pair_loop": 1},
 }
@@ -152,8 +158,11 @@ def _check_number(name: str, value) -> float:
     return out
 
 
+SEQUENCES = ("random", "sobol")
+
+
 def _plan(kind_key, kind, params, samples, time_cap, target_error, seed, workers, slices, batch, progress,
-          label, extrapolate=True, allocation=None) -> RunPlan:
+          label, extrapolate=True, allocation=None, scheduler=None, sequence=None, reduction=None) -> RunPlan:
     if samples is None and time_cap is None and target_error is None:
         raise LoopsError("give a budget: samples, time_cap (seconds) and/or target_error")
     if not isinstance(slices, int) or slices < 2:
@@ -178,12 +187,32 @@ def _plan(kind_key, kind, params, samples, time_cap, target_error, seed, workers
         batch = DEFAULT_UNIT
         if samples is not None:
             batch = int(min(DEFAULT_UNIT, max(10, samples // (units * 20))))
+    reduction = Reduction() if reduction is None else reduction
+    if not isinstance(reduction, Reduction):
+        raise LoopsError(f"reduction must be a loops.Reduction, got {reduction!r}")
+    if sequence is not None:
+        reduction = dataclasses.replace(reduction, sequence=sequence)
+    if reduction.sequence not in SEQUENCES:
+        raise LoopsError(f"sequence must be one of {', '.join(SEQUENCES)}, got {reduction.sequence!r}")
     families = {f: k * batch for f, k in alloc.items()}
+    if reduction.sequence == "sobol":
+        # scrambled Sobol points keep their balance only in blocks of a power of two
+        families = {f: 1 << max(1, round(math.log2(n))) for f, n in families.items()}
+    address = scheduler_address(scheduler)
+    pool = functools.partial(cluster_pool, address) if address else None
     max_rounds = None if samples is None else rounds_for(int(samples), sum(families.values()))
     if progress is None:
         progress = bool(getattr(sys.stderr, "isatty", lambda: False)())
     return RunPlan(kind, families, params, slices, seed, workers, max_rounds, time_cap, target_error,
-                   label, progress, bool(extrapolate))
+                   label, progress, bool(extrapolate), pool, reduction)
+
+
+def _with_exact_exchange(out, params):
+    """The exchange family from Sen's symmetry: b_2(alpha)^2 - b_2(1 - alpha)^2, every round."""
+    exact_values = np.array([exact.b2_identical(p[0]) ** 2 - exact.b2_identical(1.0 - p[0]) ** 2 for p in params])
+    column = np.tile(exact_values, (out.rounds, 1))
+    return dataclasses.replace(out, batch_means={**out.batch_means, "exchange": column},
+                               batch_raw={**out.batch_raw, "exchange": column})
 
 
 def _summaries(out, n_params):
@@ -209,7 +238,9 @@ def scan_third_order(kind: str = "identical", alphas=None, *, grid=None, samples
                      workers: int = 2, slices: int = DEFAULT_SLICES, batch: int | None = None,
                      progress: bool | None = None, order: int = 3, dimension: int = 2,
                      species: int | None = None, extrapolate: bool = True,
-                     allocation: dict[str, int] | None = None) -> list[ThirdOrderResult]:
+                     allocation: dict[str, int] | None = None, scheduler: str | None = None,
+                     sequence: str | None = None, reduction: Reduction | None = None,
+                     symmetric: bool = False) -> list[ThirdOrderResult]:
     """Third-order coefficients at many parameter points from one set of loops.
 
     identical: alphas = sequence of exchange parameters.  pair_plus_one: grid = sequence of
@@ -217,7 +248,14 @@ def scan_third_order(kind: str = "identical", alphas=None, *, grid=None, samples
     every point's phase is evaluated on them, so a point's value equals a separate run with the same
     seed, budget and slices.  target_error applies to the worst point.  extrapolate=False switches the
     slice-number extrapolation off (then the O(1/slices) pair-product error remains).  allocation:
-    relative numbers of samples per family in a round (default ALLOCATION[kind]).
+    relative numbers of samples per family in a round (default ALLOCATION[kind]).  scheduler: the
+    address of a dask scheduler to run the batches on (default: the environment variable
+    CLUSTEREXP_SAMPLE_CLUSTER, else worker processes on this machine); the numbers are the same.
+    sequence="sobol": randomized quasi-Monte Carlo (quasi.py), one independent scramble per batch.
+    reduction: the variance-reduction settings (runner.Reduction; default: control variate on, tuned
+    offsets; runner.BEFORE is the estimator as it was before them).  symmetric (identical only): the
+    exchange family is not sampled but taken from Sen's symmetry a_3(alpha) = a_3(1 - alpha), exactly
+    b_2(alpha)^2 - b_2(1 - alpha)^2 (docs/loops.md); the result then rests on that published symmetry.
     """
     if kind == "identical":
         _check_domain(kind, order, dimension, species, 0.0, None)
@@ -232,9 +270,16 @@ def scan_third_order(kind: str = "identical", alphas=None, *, grid=None, samples
     if not params:
         raise LoopsError("empty scan")
     name = "b_3" if kind == "identical" else "b_21"
-    plan = _plan(kind, kind, params, samples, time_cap, target_error, seed, workers, slices, batch,
-                 progress, name, extrapolate, allocation)
+    if symmetric and kind != "identical":
+        raise LoopsError("symmetric=True uses Sen's symmetry of identical anyons (alpha -> 1 - alpha); "
+                         "kind='pair_plus_one' has no such exact exchange part")
+    if symmetric:
+        allocation = {f: k for f, k in (allocation or ALLOCATION[kind]).items() if f != "exchange"}
+    plan = _plan("symmetric" if symmetric else kind, kind, params, samples, time_cap, target_error, seed, workers,
+                 slices, batch, progress, name, extrapolate, allocation, scheduler, sequence, reduction)
     out = execute(plan)
+    if symmetric:
+        out = _with_exact_exchange(out, params)
     per_family = {f: n * out.rounds for f, n in plan.families.items()}
     results = []
     for p, (value, err, parts, shift, round_values) in zip(params, _summaries(out, len(params))):
@@ -261,7 +306,9 @@ def estimate_third_order(kind: str = "identical", alpha: float | None = None, al
                          target_error: float | None = None, seed: int = 0, workers: int = 2,
                          slices: int = DEFAULT_SLICES, batch: int | None = None, progress: bool | None = None,
                          order: int = 3, dimension: int = 2, species: int | None = None,
-                         extrapolate: bool = True, allocation: dict[str, int] | None = None) -> ThirdOrderResult:
+                         extrapolate: bool = True, allocation: dict[str, int] | None = None,
+                         scheduler: str | None = None, sequence: str | None = None,
+                         reduction: Reduction | None = None, symmetric: bool = False) -> ThirdOrderResult:
     """b_3 and a_3 of identical anyons, or b_21 and a_21 of two identical anyons plus one other particle.
 
     Budget: samples (total loop samples), time_cap (seconds) and/or target_error (standard error of the
@@ -274,15 +321,17 @@ def estimate_third_order(kind: str = "identical", alpha: float | None = None, al
     if kind == "identical":
         return scan_third_order(kind, [alpha], samples=samples, time_cap=time_cap, target_error=target_error,
                                 seed=seed, workers=workers, slices=slices, batch=batch, progress=progress,
-                                extrapolate=extrapolate, allocation=allocation)[0]
+                                extrapolate=extrapolate, allocation=allocation, scheduler=scheduler,
+                                sequence=sequence, reduction=reduction, symmetric=symmetric)[0]
     return scan_third_order(kind, grid=[(alpha, alpha_12)], samples=samples, time_cap=time_cap,
                             target_error=target_error, seed=seed, workers=workers, slices=slices, batch=batch,
-                            progress=progress, extrapolate=extrapolate, allocation=allocation)[0]
+                            progress=progress, extrapolate=extrapolate, allocation=allocation,
+                            scheduler=scheduler, sequence=sequence, reduction=reduction, symmetric=symmetric)[0]
 
 
 def estimate_second_order(kind: str = "identical", alpha: float = 0.0, *, samples: int = 100_000,
                           seed: int = 0, workers: int = 1, slices: int = DEFAULT_SLICES,
-                          batch: int | None = None) -> SecondOrderResult:
+                          batch: int | None = None, sequence: str | None = None) -> SecondOrderResult:
     """Sample b_2 (kind='identical', exchange alpha) or b_11 (kind='distinct', mutual alpha) with the
     same loops, slice factors and importance sampling as the third-order families; the exact values
     are known, so this validates normalisations and error bars."""
@@ -291,7 +340,7 @@ def estimate_second_order(kind: str = "identical", alpha: float = 0.0, *, sample
     a = _check_number("alpha", alpha)
     key = "second_" + kind
     plan = _plan(key, kind, [(a,)], samples, None, None, seed, workers, slices, batch, False,
-                 "b_2" if kind == "identical" else "b_11", extrapolate=False)
+                 "b_2" if kind == "identical" else "b_11", extrapolate=False, sequence=sequence)
     out = execute(plan)
     value, err, parts, _, _ = _summaries(out, 1)[0]
     if kind == "identical":

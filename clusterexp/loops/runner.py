@@ -10,6 +10,7 @@ Errors come from the scatter of independent batch means (every batch of a family
 """
 from __future__ import annotations
 
+import functools
 import math
 import sys
 import time
@@ -21,7 +22,7 @@ import numpy as np
 
 from clusterexp.errors import ClusterexpError
 
-from . import sampler
+from . import pairfactor, sampler
 
 FAMILY_IDS = {"cycle": 1, "exchange": 2, "triple": 3, "pair_loop": 4, "pair_swap": 5}
 SAMPLE_CLASSES = {
@@ -32,6 +33,21 @@ SAMPLE_CLASSES = {
     "pair_swap": sampler.PairSwapSamples,
 }
 MIN_ROUNDS_FOR_TARGET = 10
+
+
+@dataclass(frozen=True)
+class Reduction:
+    """Variance-reduction settings of a run (docs/loops.md, "Variance reduction"); part of what a
+    batch's numbers depend on.  control: the triple family's control variate (pair terms with exact
+    mean); triple_width: the main width of its offset density; sequence: "random" or "sobol"."""
+
+    control: bool = True
+    triple_width: float = sampler.WIDTH_TRIPLE
+    sequence: str = "random"
+    closed_half: bool = True      # the slice factor's closed form at half-integer alpha (pairfactor.py)
+
+
+BEFORE = Reduction(control=False, triple_width=sampler.WIDTH_TRIPLE_BEFORE, closed_half=False)
 EARLY_MARGIN = 2.0       # give up early when the projection exceeds the cap by this factor ...
 EARLY_FRACTION = 0.1     # ... and at least this fraction of the cap has been spent
 
@@ -71,31 +87,61 @@ def family_values(kind: str, family: str, samples, params: tuple, stride: int = 
 EXTRAPOLATED_FAMILIES = ("cycle",)
 
 
+def _control(kind: str, samples, params: tuple, stride: int) -> np.ndarray:
+    """The triple family's control (mean zero exactly) at one parameter point."""
+    if kind == "pair_plus_one":
+        return samples.control(params[0], params[1], params[1], stride)
+    return samples.control(params[0], params[0], params[0], stride)
+
+
 def run_batch(kind: str, family: str, index: int, count: int, slices: int, seed: int,
-              params: list[tuple], extrapolate: bool = True) -> tuple[np.ndarray, np.ndarray, float]:
-    """One batch at every parameter point: the mean of the family's per-sample values and the mean
-    at the full slice number without extrapolation.
+              params: list[tuple], extrapolate: bool = True,
+              reduction: Reduction = Reduction()) -> tuple:
+    """One batch at every parameter point: (mean of the family's per-sample values, the mean at the
+    full slice number without extrapolation, seconds, control statistics or None); `reduction` holds
+    the variance-reduction settings (the control statistics are the control's mean, its covariance
+    with the values and its variance, per point, for the triple family with `reduction.control`).
 
     With `extrapolate` (cycle family only), each sample is evaluated on its own path with `slices` slices and with every
     second slice point only (slices/2), and contributes 2 V(slices) - V(slices/2): the pair-product
     error is O(1/slices), so this removes it to O(1/slices^2) at little cost in variance because the
     two values are strongly correlated.
     """
+    pairfactor.SETTINGS.closed_half = reduction.closed_half
+    try:
+        return _batch(kind, family, index, count, slices, seed, params, extrapolate, reduction)
+    finally:
+        pairfactor.SETTINGS.closed_half = True
+
+
+def _batch(kind, family, index, count, slices, seed, params, extrapolate, reduction):
     start = time.perf_counter()
     seq = np.random.SeedSequence(entropy=seed, spawn_key=(FAMILY_IDS[family], index))
     rng = np.random.default_rng(seq)
     extrapolate = extrapolate and family in EXTRAPOLATED_FAMILIES
     strides = (1, 2) if extrapolate else (1,)
-    samples = SAMPLE_CLASSES[family](rng, count, slices, strides)
+    make = SAMPLE_CLASSES[family]
+    if family == "triple":
+        make = functools.partial(make, width=reduction.triple_width)
+    if reduction.sequence == "sobol":
+        from .quasi import scrambled_source
+        rng = scrambled_source(make, rng, count, slices, strides)
+    samples = make(rng, count, slices, strides)
     means = np.empty(len(params))
     raw = np.empty(len(params))
+    controlled = reduction.control and family == "triple"
+    # per point: the control's mean, its covariance with the values and its variance (within the batch)
+    control = np.zeros((3, len(params))) if controlled else None
     for k, p in enumerate(params):
         v = family_values(kind, family, samples, p, 1)
         raw[k] = v.mean()
         if extrapolate:
             v = 2.0 * v - family_values(kind, family, samples, p, 2)
         means[k] = v.mean()
-    return means, raw, time.perf_counter() - start
+        if controlled:
+            c = _control(kind, samples, p, 1)
+            control[:, k] = c.mean(), np.mean((v - means[k]) * (c - c.mean())), c.var()
+    return means, raw, time.perf_counter() - start, control
 
 
 @dataclass
@@ -112,6 +158,9 @@ class RunPlan:
     label: str                        # name of the estimated coefficient, for messages
     progress: bool
     extrapolate: bool = True
+    pool: object = None               # callable -> (context, submit, first finished, slots) on a
+                                      # cluster (distributed.cluster_pool); None: processes here
+    reduction: Reduction = Reduction()
 
 
 @dataclass
@@ -120,6 +169,15 @@ class RunOutcome:
     seconds: float
     batch_means: dict[str, np.ndarray]     # family -> (rounds, params), extrapolated in slices
     batch_raw: dict[str, np.ndarray]       # the same at the full slice number, not extrapolated
+
+
+def controlled(stats: np.ndarray, means: np.ndarray, raw: np.ndarray):
+    """Batch means corrected by the control variate: m - beta c, with beta = pooled within-batch
+    covariance / variance over every round used (one beta per point, the same for all rounds, so the
+    rounds stay independent and equally weighted; its estimation bias is O(1/samples))."""
+    covariance, variance = stats[:, 1, :].sum(axis=0), stats[:, 2, :].sum(axis=0)
+    beta = np.divide(covariance, variance, out=np.zeros_like(covariance), where=variance > 0)
+    return means - beta * stats[:, 0, :], raw - beta * stats[:, 0, :]
 
 
 def combined_error(batch_means: dict[str, np.ndarray]) -> np.ndarray:
@@ -134,8 +192,17 @@ def combined_error(batch_means: dict[str, np.ndarray]) -> np.ndarray:
 
 
 def _round_tasks(plan: RunPlan, r: int):
-    return [(plan.kind, f, r, n, plan.slices, plan.seed, plan.params, plan.extrapolate)
+    return [(plan.kind, f, r, n, plan.slices, plan.seed, plan.params, plan.extrapolate, plan.reduction)
             for f, n in plan.families.items()]
+
+
+def _local_pool(workers: int):
+    """Worker processes on this machine: (context manager, submit, wait for the first finished)."""
+    # fork: workers need no re-import of the caller's script (spawn would require a main guard)
+    ctx = get_context("fork" if "fork" in get_all_start_methods() else "spawn")
+    pool = ProcessPoolExecutor(max_workers=workers, mp_context=ctx)
+    return pool, (lambda task: pool.submit(run_batch, *task)), \
+        (lambda futures: wait(futures, return_when=FIRST_COMPLETED)[0])
 
 
 def execute(plan: RunPlan) -> RunOutcome:
@@ -158,6 +225,9 @@ def execute(plan: RunPlan) -> RunOutcome:
                  for f in plan.families}
         raw = {f: np.array([done[(f, r)][1] for r in range(rounds)]).reshape(rounds, len(plan.params))
                for f in plan.families}
+        for f in plan.families:
+            if done[(f, 0)][3] is not None:
+                means[f], raw[f] = controlled(np.array([done[(f, r)][3] for r in range(rounds)]), means[f], raw[f])
         return RunOutcome(rounds, time.perf_counter() - start, means, raw)
 
     def check_target(rounds: int) -> bool:
@@ -215,7 +285,7 @@ def execute(plan: RunPlan) -> RunOutcome:
         return True
 
     try:
-        if plan.workers <= 1:
+        if plan.workers <= 1 and plan.pool is None:
             while may_submit():
                 for task in _round_tasks(plan, next_round):
                     done[(task[1], task[2])] = run_batch(*task)
@@ -225,19 +295,22 @@ def execute(plan: RunPlan) -> RunOutcome:
                 if check_target(prefix):
                     break
         else:
-            # fork: workers need no re-import of the caller's script (spawn would require a main guard)
-            ctx = get_context("fork" if "fork" in get_all_start_methods() else "spawn")
-            with ProcessPoolExecutor(max_workers=plan.workers, mp_context=ctx) as pool:
+            if plan.pool is not None:
+                context, submit, first_finished, slots = plan.pool()
+            else:
+                (context, submit, first_finished), slots = _local_pool(plan.workers), plan.workers
+            with context:
                 pending = {}
                 while True:
-                    while may_submit() and len(pending) < (plan.workers + 1) * len(plan.families):
+                    while may_submit() and len(pending) < (slots + 1) * len(plan.families):
                         for task in _round_tasks(plan, next_round):
-                            pending[pool.submit(run_batch, *task)] = (task[1], task[2])
+                            pending[submit(task)] = (task[1], task[2])
                         next_round += 1
                     if not pending:
                         break
-                    finished, _ = wait(list(pending), return_when=FIRST_COMPLETED)
-                    for fut in finished:
+                    for fut in first_finished(list(pending)):
+                        # keyed by (family, round): a batch recomputed after a lost worker replaces
+                        # nothing and is never counted twice
                         done[pending.pop(fut)] = fut.result()
                     prefix = complete_prefix()
                     report(prefix)

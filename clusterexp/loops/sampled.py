@@ -61,10 +61,21 @@ class SampledPoint:
 
 
 @dataclass(frozen=True)
+class SampledCluster:
+    """The estimate of one sampled b at one point of a statement (reference species' units)."""
+
+    index: tuple[int, ...]
+    point: tuple[tuple[sympy.Symbol, sympy.Expr], ...]    # every parameter of the statement's point
+    value: float
+    error: float
+
+
+@dataclass(frozen=True)
 class SampledStatement:
     sampling: Sampling
     runs: tuple[SampledRun, ...]
     points: tuple[SampledPoint, ...]
+    clusters: tuple[SampledCluster, ...] = ()    # what claims, values, tables and figures reuse
 
     @property
     def labels(self) -> list[str]:
@@ -116,11 +127,13 @@ def _statement(system: System, sampling: Sampling, exact) -> SampledStatement:
         row = []
         for kind, index, _ in sampling.coefficients:
             expr = exprs[(kind, index)]
-            value, error = _propagate(expr, point, {cluster_symbol(n): estimates[n][k] for n in b_indices})
+            value, error = propagate(expr, point, {cluster_symbol(n): estimates[n][k] for n in b_indices})
             row.append(SampledValue(_label(kind, index), kind, index, value, error))
         shown = tuple((name, point[next(s for s in point if s.name == name)]) for name in names)
         out_points.append(SampledPoint(shown, tuple(row)))
-    return SampledStatement(sampling, tuple(runs), tuple(out_points))
+    clusters = tuple(SampledCluster(n, tuple(point.items()), *estimates[n][k])
+                     for n in b_indices for k, point in enumerate(points))
+    return SampledStatement(sampling, tuple(runs), tuple(out_points), clusters)
 
 
 def _ordered_symbols(sampling: Sampling) -> list[sympy.Symbol]:
@@ -128,7 +141,7 @@ def _ordered_symbols(sampling: Sampling) -> list[sympy.Symbol]:
     return [s for s, _ in sampling.axes] + [s for s, _ in sampling.fixed]
 
 
-def _propagate(expr: sympy.Expr, point: dict, estimates: dict) -> tuple[float, float]:
+def propagate(expr: sympy.Expr, point: dict, estimates: dict) -> tuple[float, float]:
     """Value and first-order error of a derived coefficient at one point."""
     at_point = expr.xreplace(point)
     value = at_point.xreplace({s: sympy.Float(v, 17) for s, (v, _) in estimates.items()})

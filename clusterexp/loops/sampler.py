@@ -25,6 +25,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from .exact import loop_part_b2 as loop_part
 from .pairfactor import SAMPLING, classify_segments, pair_factor
 
 # Importance sampling of sampled offsets: a defensive mixture of two centred complex Gaussians, so that
@@ -33,8 +34,13 @@ from .pairfactor import SAMPLING, classify_segments, pair_factor
 MIX_WIDE_FRACTION = 0.2
 MIX_WIDE_FACTOR = 2.5
 WIDTH_EXCHANGE = 0.35
-WIDTH_TRIPLE = 0.22
+WIDTH_TRIPLE = 0.27          # 0.22 before the variance-reduction study (benchmarks/loops_reduction.py)
+WIDTH_TRIPLE_BEFORE = 0.22
 WIDTH_PAIR = 0.35
+# Control variate of the triple family (docs/loops.md, "Variance reduction"): each pair's Re F_ij times a
+# normalised Gaussian of the Jacobi coordinate orthogonal to that pair's offset, over g(rho, eta).  Its
+# mean is exact: (1/2) int d^2c E[Re F] = (1/2) b_11(a_ij) = -d(1-d)/2 (docs/loops.md, two-body part).
+WIDTH_CONTROL = 0.22
 
 
 @dataclass
@@ -70,6 +76,8 @@ class PhaseData:
 
 def brownian_loops(rng: np.random.Generator, count: int, segments: int, duration: float) -> np.ndarray:
     """`count` planar Brownian bridges from 0 back to 0, `segments` equal slices over `duration`."""
+    if hasattr(rng, "brownian_bridge"):    # randomized quasi-Monte Carlo (quasi.py): Levy construction
+        return rng.brownian_bridge(count, segments, duration)
     scale = np.sqrt(duration / segments / (2.0 * np.pi))
     steps = rng.standard_normal((count, segments, 2)) * scale
     walk = np.zeros((count, segments + 1), dtype=complex)
@@ -147,10 +155,16 @@ class ExchangeSamples:
 class TripleSamples:
     """Three loops of duration 1; offsets from Jacobi coordinates (rho, eta), d^2c2 d^2c3 = 3 d^2rho d^2eta."""
 
-    def __init__(self, rng: np.random.Generator, count: int, slices: int, strides=(1,)):
+    def __init__(self, rng: np.random.Generator, count: int, slices: int, strides=(1,), width: float = WIDTH_TRIPLE):
         y = [brownian_loops(rng, count, slices, 1.0) for _ in range(3)]
-        off, dens = mixture_offsets(rng, count, WIDTH_TRIPLE, 2)
+        off, dens = mixture_offsets(rng, count, width, 2)
         rho, eta = off[:, 0], off[:, 1]
+        # the Jacobi coordinate orthogonal to each pair's offset (rotations by 0, 120 and 240 degrees)
+        half = np.sqrt(3.0) / 2.0
+        across = {"12": eta, "13": -half * rho + 0.5 * eta, "23": -half * rho - 0.5 * eta}
+        norm = 2.0 * np.pi * WIDTH_CONTROL ** 2
+        self.control_weight = {k: np.exp(-np.abs(v) ** 2 / (2.0 * WIDTH_CONTROL ** 2)) / norm / dens
+                               for k, v in across.items()}
         z2 = -np.sqrt(2.0) * rho
         z3 = -rho / np.sqrt(2.0) - np.sqrt(1.5) * eta
         p1, p2, p3 = y[0], z2[:, None] + y[1], z3[:, None] + y[2]
@@ -160,12 +174,25 @@ class TripleSamples:
         self.p13 = phase_levels(p1 - p3, slices, strides)
         self.p23 = phase_levels(p2 - p3, slices, strides)
 
+    def _pair_terms(self, a12: float, a13: float, a23: float, stride: int):
+        """F_12, F_13, F_23 (phase minus one), kept for the last parameters: the control reuses them."""
+        key = (a12, a13, a23, stride)
+        if getattr(self, "_last", (None,))[0] != key:
+            self._last = (key, tuple(getattr(self, "p" + k)[stride].phase(a) - 1.0
+                                     for k, a in (("12", a12), ("13", a13), ("23", a23))))
+        return self._last[1]
+
     def values(self, a12: float, a13: float, a23: float, prefactor: float, stride: int = 1) -> np.ndarray:
-        f12 = self.p12[stride].phase(a12) - 1.0
-        f13 = self.p13[stride].phase(a13) - 1.0
-        f23 = self.p23[stride].phase(a23) - 1.0
+        f12, f13, f23 = self._pair_terms(a12, a13, a23, stride)
         connected = f12 * f13 + f12 * f23 + f13 * f23 + f12 * f13 * f23
         return prefactor * connected.real * self.weight
+
+    def control(self, a12: float, a13: float, a23: float, stride: int = 1) -> np.ndarray:
+        """Per sample: the pair terms with exactly known mean, minus that mean (mean zero)."""
+        out = np.zeros(self.count)
+        for key, a, f in zip(("12", "13", "23"), (a12, a13, a23), self._pair_terms(a12, a13, a23, stride)):
+            out += f.real * self.control_weight[key] - 0.5 * loop_part(a)
+        return out
 
 
 class PairLoopSamples:

@@ -20,7 +20,10 @@ TIE = "rounding tie, undecided"
 # a claim whose difference from the derived value involves named many-body pieces (unknown functions):
 # it holds exactly when the pieces satisfy the stated equations; not a failure
 UNDECIDED = "undecided"
-STATUSES = (PROVEN, CONSISTENT, TIE, UNDECIDED, MISMATCH)
+# a claim on a coefficient with Monte Carlo parts, within the stated number of standard errors at every
+# sampled point (products/sampled_use.py): statistics, never a proof; not a failure
+SAMPLED = "consistent within the sampling errors, not proven"
+STATUSES = (PROVEN, CONSISTENT, TIE, UNDECIDED, MISMATCH, SAMPLED)
 
 
 
@@ -87,6 +90,8 @@ class CheckResult:
         elif self.status == UNDECIDED:
             lines = [f"undecided: {self._subject()} holds if and only if the named many-body pieces satisfy "
                      f"({self.method}):"] + [f"  {_text(e.lhs)} = {_text(e.rhs)}" for e in self.conditions]
+        elif self.status == SAMPLED:
+            lines = [f"{self.status}: {self._subject()}: {self.method}"]
         elif self.status == CONSISTENT and self.rounding:
             lines = [f"numerically consistent, not proven: {self._subject()}: {self.method}"]
         elif self.status == CONSISTENT and not self.intervals:
@@ -140,8 +145,9 @@ class CheckResult:
             body = rf"{name} = {claimed}\ \text{{if and only if }}" + r",\ ".join(
                 f"{tex(e.lhs)} = {tex(e.rhs)}" for e in self.conditions)
         else:
-            relation = r"\approx" if self.status == CONSISTENT else "="
-            body = rf"{name} = {claimed}" if self.rounding is None or self.status == PROVEN else \
+            relation = r"\approx" if self.status in (CONSISTENT, SAMPLED) else "="
+            body = rf"{name} = {claimed}" if (self.rounding is None and self.status != SAMPLED) or \
+                self.status == PROVEN else \
                 rf"{name} {relation} {claimed}"
         return f"{head} {body}"
 

@@ -16,6 +16,8 @@ from .check_result import MISMATCH, UNDECIDED, CheckList
 from .checks import check_claim, check_decimal_claim, check_with_pieces
 from ..errors import InputError
 from .numbers import csv_bytes, evaluate, format_number, grid_table
+from .sampled_use import (check_sampled_claim, plot_sampled_line, sampled_number_text, sampled_table,
+                          uses_sampled)
 
 
 def _coefficient(derivation, name):
@@ -74,8 +76,9 @@ def run_checks(derivation) -> list:
         try:
             # named pieces are unknown functions in this regime (and named Taylor coefficients are unknown
             # numbers in any regime), not free symbols to sample
-            result = check_with_pieces(claimed, derived, system, label=label) \
-                if regime_of(system).named_pieces or unknowns_in([claimed, derived]) else None
+            result = check_sampled_claim(derivation, claim, claimed, derived, label, limits) or (
+                check_with_pieces(claimed, derived, system, label=label)
+                if regime_of(system).named_pieces or unknowns_in([claimed, derived]) else None)
             if result is not None:
                 pass
             elif as_decimal:
@@ -125,6 +128,9 @@ def run_evaluations(derivation) -> list:
             if order is not None:
                 value = value.removeO()
                 label += f" (truncated series, {sympy.sstr(order)} left out)"
+            if uses_sampled(derivation, value):   # Monte Carlo parts: value +- error
+                rows.append((label, sampled_number_text(derivation, value, point, evaluation.span)))
+                continue
             try:
                 number = evaluate(value, point, evaluation.digits, allowed=[s.name for s in point])
             except InputError as error:
@@ -170,6 +176,9 @@ def run_tables(derivation) -> list:
     out = []
     for table in derivation.system.tables:
         items = [_plain(derivation, t, table.span) for t in table.targets]
+        if any(uses_sampled(derivation, i.value) for i in items):   # value and error columns
+            out.append((table, sampled_table(derivation, table, items)))
+            continue
         try:
             rows = grid_table(items, {s.name: values for s, values in table.axes}, table.digits,
                               fixed={s.name: v for s, v in table.fixed})
@@ -230,7 +239,9 @@ def stage_files(derivation, batch, directory=".", overwrite: bool = False) -> No
                  "into": collector(figure.span), "options": system.presentation.figure_options,
                  "caption_tex": figure_caption_latex(derivation, figure)}
         try:
-            if len(figure.axes) == 1:
+            if any(uses_sampled(derivation, i.value) for i in items):   # error bars
+                plot_sampled_line(derivation, figure, items, path, collector(figure.span))
+            elif len(figure.axes) == 1:
                 (symbol, interval), = figure.axes
                 plots.plot_line(items, symbol.name, interval, path, **style)
             else:

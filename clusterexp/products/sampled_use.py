@@ -1,0 +1,239 @@
+"""Monte Carlo numbers in the statements that use results: `claim`, `evaluate`, `tabulate`, `plot`.
+
+A coefficient that contains a sampled b (b_3, b_2_1 of `clusters pairphase`, estimated by a `sample`
+statement of the same input) is evaluated at a point only where some `sample` statement estimated that
+b at the same statistics parameters (exact equality of alpha, and alpha_12 for b_21); the parameters are
+substituted exactly, the b by its estimate, and the error is propagated to first order
+(`loops.sampled.propagate`).  Nothing is sampled here: a point no `sample` statement covers is refused
+with the statement to add.
+
+A claim on such a coefficient is compared at every point of the `sample` statements: it is "consistent
+within k standard errors" (k = 3 unless the claim says `within k errors`) when |claimed - value| < k
+error at every point, never "proven"; otherwise it is a mismatch shown with the numbers.
+"""
+from __future__ import annotations
+
+import math
+
+import sympy
+
+from ..errors import InputError
+from ..naming import bracket_label, cluster_symbol
+from .check_result import MISMATCH, SAMPLED, CheckResult
+
+DEFAULT_ERRORS = 3
+
+
+def sampled_symbols(system) -> dict[sympy.Symbol, tuple]:
+    """{symbol of a b some `sample` statement estimates: its multi-index}."""
+    return {cluster_symbol(n): n for s in system.samplings for _, n, _ in s.coefficients}
+
+
+def uses_sampled(derivation, expr) -> bool:
+    """Whether `expr` contains a b that a `sample` statement of the input estimates."""
+    system = derivation.system
+    if not system.samplings:
+        return False
+    return bool(set(sampled_symbols(system)) & set(sympy.sympify(expr).free_symbols))
+
+
+def _statistics_key(system, index, point: dict):
+    from ..loops.request import statistics_of
+    stats = statistics_of(system.species, system.mutual, index)
+    key = []
+    for name in sorted(stats):
+        value = sympy.sympify(stats[name]).xreplace(point)
+        if value.free_symbols:
+            return None
+        key.append((name, sympy.nsimplify(value)))
+    return tuple(key)
+
+
+def _estimates(derivation) -> dict:
+    """{(index, statistics key): (value, error)}, the smallest error where several statements agree."""
+    cache = derivation.__dict__.get("_sampled_estimates")
+    if cache is not None:
+        return cache
+    table = {}
+    for statement in derivation.sampled:
+        for c in statement.clusters:
+            key = (c.index, _statistics_key(derivation.system, c.index, dict(c.point)))
+            if key not in table or c.error < table[key][1]:
+                table[key] = (c.value, c.error)
+    derivation.__dict__["_sampled_estimates"] = table
+    return table
+
+
+def _point_text(point: dict) -> str:
+    return ", ".join(f"{s.name} = {sympy.sstr(v)}" for s, v in sorted(point.items(), key=lambda kv: kv[0].name))
+
+
+def sampled_value(derivation, expr, point: dict, span) -> tuple[float, float]:
+    """(value, error) of `expr` at `point` ({symbol: exact value}) with the sampled b's estimates."""
+    from ..loops.sampled import propagate
+    system = derivation.system
+    expr = sympy.sympify(expr)
+    table = _estimates(derivation)
+    estimates = {}
+    for symbol, index in sampled_symbols(system).items():
+        if symbol not in expr.free_symbols:
+            continue
+        key = _statistics_key(system, index, point)
+        if key is None or (index, key) not in table:
+            where = _point_text(point) or "this point"
+            raise InputError(f"b{bracket_label(index)} has no closed form and no `sample` statement of this input "
+                             f"estimates it at {where}; add one there, e.g. `sample b{bracket_label(index)} at "
+                             f"{_point_text(point)}` (or put the point into a `sample ... over` list)", span)
+        estimates[symbol] = table[(index, key)]
+    rest = expr.xreplace(point).free_symbols - set(estimates)
+    if rest:
+        raise InputError(f"no value for {', '.join(sorted(s.name for s in rest))} at {_point_text(point)}", span)
+    return propagate(expr, point, estimates)
+
+
+def quoted(value: float, error: float) -> str:
+    from ..loops.quoting import plus_minus
+    return plus_minus(value, error)
+
+
+def sample_points(derivation, expr) -> list[dict]:
+    """The points of the input's `sample` statements at which every sampled b of `expr` is estimated."""
+    table = _estimates(derivation)
+    wanted = {i for s, i in sampled_symbols(derivation.system).items() if s in sympy.sympify(expr).free_symbols}
+    out, seen = [], set()
+    for statement in derivation.sampled:
+        for c in statement.clusters:
+            point = dict(c.point)
+            marker = tuple(sorted((s.name, v) for s, v in point.items()))
+            if marker in seen:
+                continue
+            keys = [(i, _statistics_key(derivation.system, i, point)) for i in wanted]
+            if all(k in table for k in keys):
+                seen.add(marker)
+                out.append(point)
+    return out
+
+
+def check_sampled_claim(derivation, claim, claimed, derived, label, limits) -> CheckResult | None:
+    """The claim against the Monte Carlo numbers, or None when its coefficient holds no sampled b."""
+    errors = getattr(claim, "errors", None)
+    if limits:
+        if errors is not None:
+            raise InputError("a truncated claim (O(...)) is compared term by term, not with Monte Carlo numbers; "
+                             "drop `within ... errors` or the O(...)", claim.span)
+        return None
+    if not uses_sampled(derivation, derived):
+        if errors is not None:
+            raise InputError(f"`within {errors:g} errors` is for claims on coefficients with sampled parts; "
+                             f"{claim.target.label} holds none here", claim.span)
+        return None
+    k = DEFAULT_ERRORS if errors is None else errors
+    points = sample_points(derivation, derived)
+    if not points:
+        return None
+    worst, rows = None, []
+    for point in points:
+        value, error = sampled_value(derivation, derived, point, claim.span)
+        try:
+            mine = complex(sympy.N(sympy.sympify(claimed).xreplace(point), 30))
+        except TypeError:
+            raise InputError(f"the claim needs values for {', '.join(sorted(s.name for s in claimed.free_symbols))}"
+                             f" at {_point_text(point)}", claim.span) from None
+        if abs(mine.imag) > 1e-12 * max(1.0, abs(mine.real)):
+            deviation = math.inf
+        elif error < 1e-12:
+            deviation = 0.0 if abs(mine.real - value) < 1e-12 else math.inf
+        else:
+            deviation = abs(mine.real - value) / error
+        rows.append((point, mine.real, value, error, deviation))
+        if worst is None or deviation > worst[4]:
+            worst = rows[-1]
+    where = "; ".join(_point_text(p) for p, *_ in rows)
+    if worst[4] < k:
+        method = (f"within {k:g} standard errors of the Monte Carlo numbers of the `sample` statements at "
+                  f"{len(rows)} point{'s' if len(rows) != 1 else ''} ({where}); largest deviation "
+                  f"{worst[4]:.2g} standard errors; sampled, not proven")
+        return CheckResult(SAMPLED, claimed, derived, method, label=label, points=len(rows))
+    point, mine, value, error, deviation = worst
+    away = "infinitely many" if math.isinf(deviation) else f"{deviation:.2g}"
+    method = (f"{away} standard errors away from the Monte Carlo number at {_point_text(point)}; a claim "
+              f"{k:g} or more standard errors away is a mismatch")
+    return CheckResult(MISMATCH, claimed, derived, method, label=label, witness=tuple(
+        (s.name, v) for s, v in sorted(point.items(), key=lambda kv: kv[0].name)),
+        claimed_value=f"{mine:.10g}", derived_value=quoted(value, error), points=len(rows))
+
+
+def sampled_number_text(derivation, expr, point: dict, span) -> str:
+    """`evaluate`: the value with its error (two significant digits), marked as a Monte Carlo number."""
+    return quoted(*sampled_value(derivation, expr, point, span)) + " (Monte Carlo)"
+
+
+def sampled_table(derivation, table, items) -> list[list[str]]:
+    """`tabulate` with sampled parts: a value column for each coefficient and an error column after
+    each sampled one (full precision: the CSV is for further work), every grid point covered by a
+    `sample` statement."""
+    import itertools
+
+    from .numbers import evaluate, format_number, grid_text
+    axes = [(s, list(values)) for s, values in table.axes] + [(s, [v]) for s, v in table.fixed]
+    sampled = [uses_sampled(derivation, i.value) for i in items]
+    header = [s.name for s, _ in axes]
+    for item, mc in zip(items, sampled):
+        header += [item.label, f"{item.label} error"] if mc else [item.label]
+    rows = [header]
+    for combination in itertools.product(*(values for _, values in axes)):
+        point = {s: v for (s, _), v in zip(axes, combination)}
+        row = [grid_text(v, table.digits) for v in combination]
+        for item, mc in zip(items, sampled):
+            if mc:
+                value, error = sampled_value(derivation, item.value, point, table.span)
+                row += [repr(value), repr(error)]
+            else:
+                own = {s: point[s] for s in item.value.free_symbols if s in point}
+                row.append(format_number(evaluate(item.value, {s.name: v for s, v in own.items()}, table.digits),
+                                         table.digits))
+        rows.append(row)
+    return rows
+
+
+def plot_sampled_line(derivation, figure, items, path, into) -> None:
+    """`plot` over one axis with sampled parts: the exact coefficients as curves, the sampled ones as
+    points with error bars at every `sample` point on the axis (the other parameters at the figure's
+    values).  A heat map of a sampled coefficient is the `map` clause of `sample`."""
+    from . import plots
+    if len(figure.axes) != 1:
+        raise InputError("a heat map of a coefficient with Monte Carlo parts is drawn by the `map` clause of its "
+                         "`sample` statement; `plot` draws it over one parameter", figure.span)
+    (symbol, interval), = figure.axes
+    system = derivation.system
+    fixed = dict(figure.fixed)
+    span = plots._interval(symbol.name, interval, system, system.parameters)
+    _, Figure, numpy = plots._matplotlib()
+    exact = [i for i in items if not uses_sampled(derivation, i.value)]
+    prepared, other = plots._prepare(exact, [symbol.name], {s.name: v for s, v in fixed.items()}, system,
+                                     system.parameters) if exact else ([], {s.name: v for s, v in fixed.items()})
+    caption = plots._caption_text(None, system, other, {symbol.name: span}) + \
+        "\nPoints: Brownian-loop Monte Carlo (`sample`), error bars one standard error."
+    drawing = plots._figure(Figure, caption.count("\n") + 1)
+    axes = drawing.add_subplot()
+    x = plots._samples(span, 401, numpy)
+    for item, expr in zip(exact, prepared):
+        axes.plot(x, plots._evaluator(expr, [symbol.name], numpy)(x), label=f"${plots.coefficient_latex(item)}$",
+                  linewidth=1.5)
+    for item in items:
+        if item in exact:
+            continue
+        along = sorted({p[symbol] for p in sample_points(derivation, item.value) if symbol in p
+                        and span.contains(p[symbol])}, key=float)
+        if not along:
+            raise InputError(f"no `sample` statement estimates the sampled part of {item.label} on {symbol.name} "
+                             f"in {span}; add one, e.g. `sample {item.label} over {symbol.name} = [...]`", figure.span)
+        numbers = [sampled_value(derivation, item.value, {**fixed, symbol: v}, figure.span) for v in along]
+        axes.errorbar([float(v) for v in along], [n[0] for n in numbers], yerr=[n[1] for n in numbers], fmt="o",
+                      markersize=3, capsize=3, label=f"${plots.coefficient_latex(item)}$ (Monte Carlo)")
+    axes.set_xlim(float(span.lower), float(span.upper))
+    axes.set_xlabel(f"${plots.axis_latex(symbol.name, system)}$")
+    axes.legend(loc="best", fontsize=8)
+    axes.grid(True, linewidth=0.3, alpha=0.5)
+    plots._place_caption(drawing, caption)
+    plots._save(drawing, path, plots._format(path), into)
