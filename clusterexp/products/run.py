@@ -240,7 +240,8 @@ def stage_files(derivation, batch, directory=".", overwrite: bool = False) -> No
                  "caption_tex": figure_caption_latex(derivation, figure)}
         try:
             if any(uses_sampled(derivation, i.value) for i in items):   # error bars
-                plot_sampled_line(derivation, figure, items, path, collector(figure.span))
+                plot_sampled_line(derivation, figure, items, path, collector(figure.span),
+                                  options=style["options"], caption_tex=style["caption_tex"])
             elif len(figure.axes) == 1:
                 (symbol, interval), = figure.axes
                 plots.plot_line(items, symbol.name, interval, path, **style)

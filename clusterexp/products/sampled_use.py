@@ -196,10 +196,19 @@ def sampled_table(derivation, table, items) -> list[list[str]]:
     return rows
 
 
-def plot_sampled_line(derivation, figure, items, path, into) -> None:
+def plot_sampled_line(derivation, figure, items, path, into, options=(), caption_tex=None) -> None:
     """`plot` over one axis with sampled parts: the exact coefficients as curves, the sampled ones as
     points with error bars at every `sample` point on the axis (the other parameters at the figure's
-    values).  A heat map of a sampled coefficient is the `map` clause of `sample`."""
+    values).  A heat map of a sampled coefficient is the `map` clause of `sample`. Drawn in the figure
+    style of `options` and written by `plots.finish` (PDF, PNG, caption beside)."""
+    from . import plots
+    from .figure_style import style
+    plots._matplotlib()
+    with style(options):
+        _plot_sampled_line(derivation, figure, items, path, into, options, caption_tex)
+
+
+def _plot_sampled_line(derivation, figure, items, path, into, options, caption_tex) -> None:
     from . import plots
     if len(figure.axes) != 1:
         raise InputError("a heat map of a coefficient with Monte Carlo parts is drawn by the `map` clause of its "
@@ -235,5 +244,8 @@ def plot_sampled_line(derivation, figure, items, path, into) -> None:
     axes.set_xlabel(f"${plots.axis_latex(symbol.name, system)}$")
     axes.legend(loc="best", fontsize=8)
     axes.grid(True, linewidth=0.3, alpha=0.5)
-    plots._place_caption(drawing, caption)
-    plots._save(drawing, path, plots._format(path), into)
+    plots._format(path)
+    if caption_tex is not None:
+        caption_tex += r" Points: Brownian-loop Monte Carlo (\texttt{sample}), error bars one standard error."
+    plots.finish(drawing, path, caption, into, options, caption_tex=caption_tex,
+                 title=", ".join(i.label for i in items) + f" against {symbol.name}")
