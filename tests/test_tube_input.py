@@ -24,20 +24,6 @@ def test_tube_requests_refused_at_their_line(text, needle, where):
     assert "supported" in str(caught.value)
 
 
-@pytest.mark.parametrize("text, who", [
-    ("dimension 2 parameter n species A exchange 1/2 tubes flux 1/2 coverage n clusters pairphase",
-     "species A is anyonic"),
-    ("dimension 2 parameter n species A bose species B fermi mutual A B = 1/3 tubes flux 1/2 coverage n "
-     "clusters pairphase", "species A and B braid"),
-])
-def test_anyonic_or_braiding_mobile_species_with_tubes_say_where_the_numbers_are(text, who):
-    with pytest.raises(clusterexp.NotSupportedYet) as caught:
-        clusterexp.derive(text)
-    message = str(caught.value)
-    assert "not supported yet" in message and who in message
-    assert "clusterexp.loops.tube_estimates" in message and "bose or fermi mobile species" in message
-
-
 def test_cli_refusal_has_caret_and_exit_code_2(cli):
     result = cli("run", "-e", "dimension 3 parameter n species A bose tubes flux 1/2 coverage n clusters pairphase "
                  "derive virial up to 2")
