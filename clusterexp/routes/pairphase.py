@@ -26,7 +26,7 @@ import sympy
 
 from ..exact.periods import PeriodicPart, braids, coupled_groups, reduced, species_statistics
 from .base import Clusters, Regime
-from .tube_pieces import anyon_tube_symbol, pieces_of, two_tubes_symbol
+from .tube_pieces import anyon_tube_symbol, pieces_of, tube_piece, two_tubes_symbol
 
 
 def exchange_b2(alpha: sympy.Expr, mass_ratio: sympy.Expr, parameters) -> sympy.Expr:
@@ -251,6 +251,10 @@ class PairPhaseRegime(Regime):
                              source.span)
         _real_statistics(builder)
         if builder.tubes is not None:
+            for p in builder.parameters.values():
+                if tube_piece(p.symbol) is not None:   # it would be read as the unknown tube piece
+                    raise InputError(f"the parameter name {p.name} is the name of a tube piece here (T_two_tubes, "
+                                     "B_anyon_tube_<species>); choose another name", p.span)
             braiding = [m for m in builder.mutuals if braids(m.value, builder.by_symbol()) is not False]
             if braiding:
                 m = braiding[0]
