@@ -134,3 +134,28 @@ def test_two_braiding_species_with_tubes_not_supported_yet_at_the_mutual_line(cl
     assert run.returncode == 2 and "Traceback" not in run.stderr
     assert run.stderr.startswith("<command line>:2:8: error: not supported yet")
     assert "species A and B braid" in run.stderr and "clusterexp.loops.tube_estimates" in run.stderr
+
+
+def test_language_coefficients_compose_with_sampled_pieces_like_the_python_composition():
+    """The language's exact a_2 and tube_virial's (written separately for the Python route, checked there
+    against an independent inversion) agree, and `compose` carries a sampled T2 with its error into
+    both alike: error = |d a_2/d T2| sigma = (n^2/4) sigma (first-order propagation, common practice)."""
+    from clusterexp.loops.estimator import Estimate
+    from clusterexp.loops.tube_virial import COVERAGE, TWO_TUBES, compose, tube_coefficients
+    for word in ("bose", "fermi"):
+        a = values(f"dimension 2 parameter n species A {word} tubes flux 1/3 coverage n clusters pairphase "
+                   "derive virial up to 4")
+        python = tube_coefficients(word, sympy.Rational(1, 3), 4).virial
+        for l in (2, 3, 4):
+            mine = a[(l,)].removeO()
+            n = named(mine, "n")
+            assert sympy.expand(mine - python[(l,)].subs(COVERAGE, n)) == 0
+        sampled = Estimate(0.0150, 2e-4)
+        together = compose(a[(2,)].removeO(), {TWO_TUBES: sampled}, {named(a[(2,)], "n"): 0.1})
+        assert abs(together.error - 0.01 / 4 * 2e-4) < 1e-15
+    anyon = values("dimension 2 parameter n species A exchange 1/2 tubes flux 1/4 coverage n clusters pairphase "
+                   "derive virial up to 2")[(2,)].removeO()
+    python = tube_coefficients(sympy.Rational(1, 2), sympy.Rational(1, 4), 2).virial[(2,)]
+    from clusterexp.loops.tube_virial import ANYON_TUBE
+    n = named(anyon, "n")
+    assert sympy.expand(anyon.subs(named(anyon, "B_anyon_tube_A"), ANYON_TUBE) - python.subs(COVERAGE, n)) == 0
