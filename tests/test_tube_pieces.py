@@ -159,3 +159,27 @@ def test_language_coefficients_compose_with_sampled_pieces_like_the_python_compo
     from clusterexp.loops.tube_virial import ANYON_TUBE
     n = named(anyon, "n")
     assert sympy.expand(anyon.subs(named(anyon, "B_anyon_tube_A"), ANYON_TUBE) - python.subs(COVERAGE, n)) == 0
+
+
+@pytest.mark.parametrize("word, sign", [("bose", 1), ("fermi", -1)])
+def test_small_flux_covariance_is_the_uniform_field_gas(word, sign):
+    """Small-flux law of docs/tubes.md: the covariance of two winding areas C2 = T2 - F^2 -> -g^2/12, the
+    mean field of the tubes (flux n g per lambda^2). Independent route: the ideal 2D gas in a uniform
+    magnetic field (Landau levels, textbook: Z_1 lambda^2/A = (x/2)/sinh(x/2), x = beta hbar omega_c = n g
+    flux quanta per lambda^2; an l-cycle has x -> l x), whose virial coefficients through x^2 must be the
+    language's a_l with T_two_tubes = F^2 - g^2/12 (the a_l see only C2). Plain-sympy reversion
+    (conftest.virial_by_iteration, no project code)."""
+    from conftest import virial_by_iteration
+    a = values(f"dimension 2 parameter n, g in [0, 1/2] species A {word} tubes flux g coverage n clusters pairphase "
+               "derive virial up to 3")
+    g, n = named(a[(2,)], "g"), named(a[(2,)], "n")
+    x = sympy.Symbol("x")
+    landau = {(l,): sign ** (l + 1) * sympy.series((l * x / 2) / sympy.sinh(l * x / 2), x, 0, 3).removeO() / l ** 2
+              for l in (1, 2, 3)}
+    reference = virial_by_iteration(landau, 3)
+    F = -g * (1 - g) / 2
+    for l in (2, 3):
+        mine = a[(l,)].removeO()
+        mine = sympy.expand(mine.subs(named(mine, "T_two_tubes"), F ** 2 - g ** 2 / 12))
+        theirs = sympy.expand(sympy.series(reference[(l,)], x, 0, 3).removeO().subs(x, n * g))
+        assert sympy.expand(mine - theirs) == 0, (l, mine, theirs)
