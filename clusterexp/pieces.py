@@ -123,6 +123,12 @@ def _tube_piece(symbol):
     return tube_piece(_root(symbol)[0]) if isinstance(symbol, sympy.Symbol) else None
 
 
+def tube_latex_names(system) -> dict:
+    """The LaTeX names of the tube pieces of a system (routes/tube_pieces), for the printers."""
+    from .routes.tube_pieces import pieces_of
+    return {piece.symbol: piece.latex_name for piece in pieces_of(system)}
+
+
 def pieces_in(value: sympy.Expr, K: int) -> list[sympy.Symbol]:
     return sorted((s for s in sympy.sympify(value).free_symbols
                    if piece_index(s, K) is not None or _tube_piece(s) is not None), key=lambda s: s.name)

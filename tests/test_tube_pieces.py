@@ -125,7 +125,9 @@ def test_every_format_describes_the_tube_pieces():
     record = json.loads(to_json(d))["regime"]
     assert record["tubes"]["known_to"] == "O(n^2)"
     assert any("B_anyon_tube_A" in line for line in record["statement"])
-    assert r"B_{anyon tube A}" in latex_document(d) or "B_anyon_tube_A" in latex_document(d)
+    document = latex_document(d)
+    assert r"$B^{\mathrm{tube}}_{\mathrm{A}}$ is the coefficient of $n$ in $b_2$" in document
+    assert r"T_{\mathrm{2\,tubes}}" in document
 
 
 def test_two_braiding_species_with_tubes_not_supported_yet_at_the_mutual_line(cli):

@@ -81,8 +81,15 @@ class TubePiece:
         return (f"{self.symbol} = the coefficient of {system.tubes.coverage} in b[2] of species {self.species} "
                 "(two anyons and one tube; sampled, docs/tubes.md), +-F/2 at the bose/fermi points")
 
+    @property
+    def latex_name(self) -> str:
+        """The name in the LaTeX output (T with the subscript "2 tubes"; B with "tube" over the species)."""
+        if self.species is None:
+            return r"T_{\mathrm{2\,tubes}}"
+        return rf"B^{{\mathrm{{tube}}}}_{{\mathrm{{{self.species}}}}}"
+
     def latex(self, system) -> str:
-        name = sympy.latex(self.symbol)
+        name = self.latex_name
         if self.species is None:
             return (rf"${name}$ is the connected integral of one loop of duration $\beta$ and two tubes of this "
                     r"flux (sampled); $b_{l e_i}$ of a bose/fermi species gains "
