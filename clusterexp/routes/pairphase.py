@@ -67,7 +67,8 @@ def two_body_clusters(system, order: int) -> dict:
     tubes = system.tubes
     shift = flux_shift(tubes.flux, params) * tubes.coverage if tubes is not None else sympy.Integer(0)
     # the coverage-squared term of every l-cycle (docs/tubes.md): n^2 T2 m_ref / (2 m_i), T2 named
-    second = tubes.coverage ** 2 * two_tubes_symbol() / 2 if tubes is not None else sympy.Integer(0)
+    no_tube = tubes is None or sympy.sympify(tubes.flux).is_integer is True   # integer flux: no phase at all
+    second = sympy.Integer(0) if no_tube else tubes.coverage ** 2 * two_tubes_symbol() / 2
     ideal = [species_statistics(s, params) for s in species]
     coupled = braiding_relation(system)
     out = {}
@@ -83,7 +84,7 @@ def two_body_clusters(system, order: int) -> dict:
                 sign = 1 if ideal[i] == "bose" or l % 2 else -1
                 out[n] = sympy.expand(sign * (ratio / sympy.Integer(l) ** 2 + shift / l + second / ratio))
             elif l == 2:   # identical anyons: the one-tube term of b_2 is the sampled piece B_anyon_tube_<name>
-                tube = tubes.coverage * anyon_tube_symbol(species[i].name) if tubes is not None else 0
+                tube = 0 if no_tube else tubes.coverage * anyon_tube_symbol(species[i].name)
                 out[n] = exchange_b2(species[i].exchange, ratio, params) + tube
             else:
                 out[n] = None
