@@ -195,3 +195,14 @@ def test_integer_flux_has_no_tube_terms(flux):
     assert sympy.expand(b[(2, 0)].removeO()) == sympy.Rational(1, 4) - sympy.Rational(1, 2) + sympy.Rational(1, 8)
     assert b[(0, 2)].removeO() == -sympy.Rational(1, 4) and b[(1, 0)].removeO() == 1
     assert not any(s.name.startswith(("T_two", "B_anyon")) for v in b.values() for s in v.free_symbols)
+
+
+def test_anyon_tube_piece_at_the_fermion_point_is_the_fermi_cycle():
+    """At alpha = 1 (analytic there) the piece is -F/2, the l = 2 cycle of the fermi result, so a_2 about
+    alpha = 1 starts at the free +1/4 with no term in n (docs/tubes.md, derived; 2D fermi a_2 = +1/4,
+    Viefers, Ravndal, Haugset 1995)."""
+    d = clusterexp.derive("dimension 2 parameter n parameter alpha in [0, 2] species A exchange alpha tubes flux 1/3 "
+                          "coverage n clusters pairphase derive virial a[2] expand alpha about 1 to 1")
+    series = d.series_of(d.coefficient("virial", (2,)))[0].polynomial
+    alpha = named(series, "alpha")
+    assert sympy.expand(series.removeO().subs(alpha, 1)) == sympy.Rational(1, 4)
