@@ -117,9 +117,21 @@ def piece_index(symbol: sympy.Symbol, K: int) -> tuple[int, ...] | None:
     return index if len(index) == K else None
 
 
+def _tube_piece(symbol):
+    """The tube piece (routes/tube_pieces: T_two_tubes, B_anyon_tube_A) a symbol is, or descends from."""
+    from .routes.tube_pieces import tube_piece
+    return tube_piece(_root(symbol)[0]) if isinstance(symbol, sympy.Symbol) else None
+
+
+def tube_latex_names(system) -> dict:
+    """The LaTeX names of the tube pieces of a system (routes/tube_pieces), for the printers."""
+    from .routes.tube_pieces import pieces_of
+    return {piece.symbol: piece.latex_name for piece in pieces_of(system)}
+
+
 def pieces_in(value: sympy.Expr, K: int) -> list[sympy.Symbol]:
-    return sorted((s for s in sympy.sympify(value).free_symbols if piece_index(s, K) is not None),
-                  key=lambda s: s.name)
+    return sorted((s for s in sympy.sympify(value).free_symbols
+                   if piece_index(s, K) is not None or _tube_piece(s) is not None), key=lambda s: s.name)
 
 
 def unknowns_in(values: Iterable) -> list[Unknown]:
@@ -130,9 +142,15 @@ def unknowns_in(values: Iterable) -> list[Unknown]:
     return [_NAMED[n] for n in sorted(names)]
 
 
-def _definitions(system, index) -> list[tuple[str, sympy.Expr]]:
-    """(kind, expression) of everything a piece with this multi-index depends on: kind "exchange"
-    (period 2), "mutual" and "flux" (period 1), "smooth" (masses, the tube coverage)."""
+def _definitions(system, index, piece=None) -> list[tuple[str, sympy.Expr]]:
+    """(kind, expression) of everything a piece with this multi-index (or the tube piece `piece`)
+    depends on: kind "exchange" (period 2), "mutual" and "flux" (period 1), "smooth" (masses, the tube
+    coverage)."""
+    tube = _tube_piece(piece) if piece is not None and system.tubes is not None else None
+    if tube is not None:
+        return tube.definitions(system)
+    if index is None:
+        return []
     occupied = [i for i, n in enumerate(index) if n]
     names = system.species_names
     out = []
@@ -153,14 +171,14 @@ def depends_on(system, piece: sympy.Symbol) -> set[sympy.Symbol]:
     """The parameters a piece (or an unknown Taylor coefficient of one) is a function of."""
     index = piece_index(piece, len(system.species))
     _, expanded = _root(piece)
-    return {s for _, e in _definitions(system, index) for s in sympy.sympify(e).free_symbols if s.name not in expanded}
+    return {s for _, e in _definitions(system, index, piece) for s in sympy.sympify(e).free_symbols if s.name not in expanded}
 
 
 def kinked(system, piece: sympy.Symbol, variable: sympy.Symbol, point) -> bool:
     """Whether the piece may have a kink in `variable` at `point` (a pair phase at its boson point;
     a point where that cannot be decided counts as a kink)."""
     index = piece_index(piece, len(system.species))
-    for kind, expr in _definitions(system, index):
+    for kind, expr in _definitions(system, index, piece):
         expr = sympy.sympify(expr)
         if kind == "smooth" or variable not in expr.free_symbols:
             continue
@@ -243,7 +261,12 @@ def value_at(system, piece: sympy.Symbol, point: Mapping) -> sympy.Expr | None:
     import dataclasses
     from .routes import regime_of
     from .routes.pairphase import two_body_clusters
-    if piece.name in _NAMED or not regime_of(system).named_pieces or not piece.name.startswith("b_"):
+    if piece.name in _NAMED or not regime_of(system).named_pieces:
+        return None
+    tube = _tube_piece(piece) if system.tubes is not None else None
+    if tube is not None:
+        return tube.value_at(system, {v: sympy.sympify(p) for v, p in point.items()})
+    if not piece.name.startswith("b_"):
         return None
     index = piece_index(piece, len(system.species))
     point = {v: sympy.sympify(p) for v, p in point.items()}

@@ -12,30 +12,16 @@ from clusterexp import InputError
      "flux tubes thread the plane", "2:1"),
     ("dimension 1 parameter n species A fermi\ntubes flux 1/3 coverage n clusters pairphase",
      "declare `dimension 2`, not 1", "2:1"),
-    # sampling with tubes (three tubes, more mobile particles) in the language
-    ("dimension 2 parameter n species A exchange 1/2 clusters pairphase tubes flux 1/2 coverage n\n"
-     "sample a[3] at n = 1/10", "sampling with flux tubes is not supported in the input language", "2:1"),
+    # a parameter named like a tube piece would be taken for the unknown piece
+    ("dimension 2 parameter n\nparameter T_two_tubes species A bose tubes flux 1/2 coverage n clusters pairphase",
+     "is the name of a tube piece here", "2:11"),
 ])
 def test_tube_requests_refused_at_their_line(text, needle, where):
     with pytest.raises(InputError) as caught:
         clusterexp.derive(text)
     assert needle in str(caught.value)
     assert str(caught.value.span).endswith(where)
-    assert "supported" in str(caught.value)
-
-
-@pytest.mark.parametrize("text, who", [
-    ("dimension 2 parameter n species A exchange 1/2 tubes flux 1/2 coverage n clusters pairphase",
-     "species A is anyonic"),
-    ("dimension 2 parameter n species A bose species B fermi mutual A B = 1/3 tubes flux 1/2 coverage n "
-     "clusters pairphase", "species A and B braid"),
-])
-def test_anyonic_or_braiding_mobile_species_with_tubes_say_where_the_numbers_are(text, who):
-    with pytest.raises(clusterexp.NotSupportedYet) as caught:
-        clusterexp.derive(text)
-    message = str(caught.value)
-    assert "not supported yet" in message and who in message
-    assert "clusterexp.loops.tube_estimates" in message and "bose or fermi mobile species" in message
+    assert "supported" in str(caught.value) or "choose another name" in str(caught.value)
 
 
 def test_cli_refusal_has_caret_and_exit_code_2(cli):
@@ -44,3 +30,16 @@ def test_cli_refusal_has_caret_and_exit_code_2(cli):
     assert result.returncode == 2
     assert "flux tubes thread the plane" in result.stderr and "^" in result.stderr
     assert "Traceback" not in result.stderr
+
+
+@pytest.mark.parametrize("wanted", ["a[3]", "a[2]", "b[1]"])
+def test_sampling_with_tubes_is_not_supported_yet_at_the_sample_line(wanted):
+    """`sample` of the tube pieces is not wired yet: refused at the sample line, naming the pieces and the
+    Python entry points that give their numbers (a[2] and b[1] contain tube pieces here: not "exact")."""
+    with pytest.raises(clusterexp.NotSupportedYet) as caught:
+        clusterexp.derive("dimension 2 parameter n species A exchange 1/2 clusters pairphase tubes flux 1/2 coverage n\n"
+                          f"sample {wanted} at n = 1/10")
+    message = str(caught.value)
+    assert "not supported yet: sampling with flux tubes" in message and "T_two_tubes" in message
+    assert "clusterexp.loops.tube_estimates" in message
+    assert str(caught.value.span).endswith("2:1")

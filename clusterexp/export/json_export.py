@@ -75,6 +75,7 @@ def to_json(derivation: Derivation) -> str:
 
 
 def _regime(system) -> dict:
+    from ..routes import regime_of
     """The regime, the quantities it computes and its statement (closed forms or the implicit
     equation of state), as the text header says them."""
     q = quantities(system)
@@ -86,5 +87,6 @@ def _regime(system) -> dict:
         record["tubes"] = {"flux": sympy.sstr(system.tubes.flux), "coverage": sympy.sstr(system.tubes.coverage),
                            **({"coverage_value": sympy.sstr(system.tubes.value)} if system.tubes.value is not None
                               else {}),
-                           "known_to": "first order in the coverage"}
+                           "known_to": f"O({sympy.sstr(system.tubes.coverage)}^"
+                                       f"{regime_of(system).truncation(system)[system.tubes.coverage]})"}
     return record

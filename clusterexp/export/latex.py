@@ -33,6 +33,8 @@ def _symbol_names(derivation: Derivation) -> dict:
         chosen = system.typesetting.symbol(p.name)
         if chosen:  # a name of several symbols (\hbar\omega, m_B/m_A) stays one factor in products and powers
             names[p.symbol] = chosen if is_single_atom(chosen) else rf"\left({chosen}\right)"
+    from ..pieces import tube_latex_names
+    names.update(tube_latex_names(system))
     for unknown in derivation.unknowns():
         names[unknown.symbol] = unknown.latex(names)
     return names

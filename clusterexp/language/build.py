@@ -312,8 +312,9 @@ class _Builder:
         else:  # a number or an expression: the results are still only first order in it
             self.tubes = Tubes(flux, TUBE_COVERAGE, self.span(tree), value=coverage)
         name = "coverage" if self.tubes.value is None else f"{TUBE_COVERAGE} = {sympy.sstr(coverage)}"
-        self.warnings.append((f"flux tubes enter to first order in their coverage (independent tubes); results "
-                              f"carry O({'coverage' if self.tubes.value is None else TUBE_COVERAGE}^2)"
+        self.warnings.append((f"flux tubes enter to a finite order in their coverage (independent tubes): results "
+                              f"carry O({'coverage' if self.tubes.value is None else TUBE_COVERAGE}^k), k = 3 with "
+                              "bose/fermi mobile species, 2 with anyonic ones"
                               + ("" if self.tubes.value is None else f", {name}"), self.span(tree)))
 
     def _expand(self, tree):

@@ -113,17 +113,19 @@ def _sampling(builder, statement: _Statement, source, names, order) -> Sampling:
     if builder.dimension != 2:
         raise InputError(f"the Brownian-loop estimator works in the plane only (`dimension 2`), not in dimension "
                          f"{builder.dimension}; {SUPPORTED}", span)
+    if builder.tubes is not None:
+        from ..errors import NotSupportedYet
+        raise NotSupportedYet("sampling with flux tubes in the input language: the tube pieces T_two_tubes and "
+                              "B_anyon_tube_<species> stay named in the results; their numbers come from Python "
+                              "(clusterexp.loops.tube_estimates, composed by clusterexp.loops.tube_virial.compose; "
+                              "docs/tubes.md); three tubes or more than two mobile particles with a tube are not "
+                              "sampled at all; " + SUPPORTED, span)
     refs = [c for c in statement.tree.children if c.data == "coef_ref"]
     coefficients = [_coefficient(builder, ref, names) for ref in refs]
     from ..routes import REGIMES
     if not REGIMES[source.kind].sampled_by_loops:
         raise InputError("sampled numbers enter the pair-phase regime: declare `clusters pairphase` "
                          f"(the coefficients come from `clusters {source.kind}` here); {SUPPORTED}", span)
-    if builder.tubes is not None:
-        raise InputError("sampling with flux tubes is not supported in the input language (one mobile particle and "
-                         "two tubes, two mobile particles and one tube are sampled from Python: "
-                         "clusterexp.loops.tube_estimates, docs/tubes.md; three tubes or more than two mobile "
-                         "particles with a tube are not); " + SUPPORTED, span)
     if order < 3:
         raise InputError(f"sampled coefficients are of total order 3, beyond the declared `order {order}`",
                          coefficients[0][2])

@@ -92,7 +92,7 @@ def run_checks(derivation) -> list:
             # the coverage is a number here, so the terms of order coverage^2 left out are numbers too: a
             # difference in them cannot be told from a wrong claim
             result = replace(result, status=UNDECIDED, method=(
-                f"the derived value is known to first order in the tube coverage {tubes.coverage} = {tubes.value} "
+                f"the derived value is known only to a finite order in the tube coverage {tubes.coverage} = {tubes.value} "
                 "only, and the difference may lie in the terms left out; declare the coverage as a parameter "
                 "to decide"))
         if not result.ok and claim.decimals and not as_decimal:

@@ -26,6 +26,7 @@ import sympy
 
 from ..exact.periods import PeriodicPart, braids, coupled_groups, reduced, species_statistics
 from .base import Clusters, Regime
+from .tube_pieces import anyon_tube_symbol, pieces_of, tube_piece, two_tubes_symbol
 
 
 def exchange_b2(alpha: sympy.Expr, mass_ratio: sympy.Expr, parameters) -> sympy.Expr:
@@ -65,6 +66,9 @@ def two_body_clusters(system, order: int) -> dict:
     m_ref = system.reference_mass
     tubes = system.tubes
     shift = flux_shift(tubes.flux, params) * tubes.coverage if tubes is not None else sympy.Integer(0)
+    # the coverage-squared term of every l-cycle (docs/tubes.md): n^2 T2 m_ref / (2 m_i), T2 named
+    no_tube = tubes is None or sympy.sympify(tubes.flux).is_integer is True   # integer flux: no phase at all
+    second = sympy.Integer(0) if no_tube else tubes.coverage ** 2 * two_tubes_symbol() / 2
     ideal = [species_statistics(s, params) for s in species]
     coupled = braiding_relation(system)
     out = {}
@@ -75,12 +79,13 @@ def two_body_clusters(system, order: int) -> dict:
             l = n[i]
             ratio = species[i].mass / m_ref
             if l == 1:
-                out[n] = ratio + shift
+                out[n] = sympy.expand(ratio + shift + second / ratio)
             elif ideal[i] in ("bose", "fermi"):  # ideal within the species: every l-cycle exact
                 sign = 1 if ideal[i] == "bose" or l % 2 else -1
-                out[n] = sympy.expand(sign * (ratio / sympy.Integer(l) ** 2 + shift / l))
-            elif l == 2:
-                out[n] = exchange_b2(species[i].exchange, ratio, params)
+                out[n] = sympy.expand(sign * (ratio / sympy.Integer(l) ** 2 + shift / l + second / ratio))
+            elif l == 2:   # identical anyons: the one-tube term of b_2 is the sampled piece B_anyon_tube_<name>
+                tube = 0 if no_tube else tubes.coverage * anyon_tube_symbol(species[i].name)
+                out[n] = exchange_b2(species[i].exchange, ratio, params) + tube
             else:
                 out[n] = None
         elif len(coupled_groups(occupied, coupled)) > 1:
@@ -92,6 +97,11 @@ def two_body_clusters(system, order: int) -> dict:
         else:
             out[n] = None
     return out
+
+
+def _anyonic(system) -> bool:
+    params = {p.symbol: p for p in system.parameters}
+    return any(species_statistics(s, params) not in ("bose", "fermi") for s in system.species)
 
 
 def braiding_relation(system):
@@ -114,7 +124,9 @@ def separates(system, index) -> bool:
 
 ADJECTIVE = {"bose": "bosonic", "fermi": "fermionic"}
 TUBES_SUPPORTED = ("supported in the input language: `tubes flux gamma coverage n` with `clusters pairphase` in "
-                   "`dimension 2` and bose or fermi mobile species that do not braid, to first order in the coverage")
+                   "`dimension 2` and mobile species that do not braid with each other: bose or fermi species "
+                   "through the coverage squared (the piece T_two_tubes), anyonic species through the first order "
+                   "(the piece B_anyon_tube_<species>)")
 
 
 def known_piece(system, index) -> str | None:
@@ -240,17 +252,17 @@ class PairPhaseRegime(Regime):
                              source.span)
         _real_statistics(builder)
         if builder.tubes is not None:
-            anyonic = [s for s in builder.species.values() if species_statistics(s, builder.by_symbol()) is None]
+            for p in builder.parameters.values():
+                if tube_piece(p.symbol) is not None:   # it would be read as the unknown tube piece
+                    raise InputError(f"the parameter name {p.name} is the name of a tube piece here (T_two_tubes, "
+                                     "B_anyon_tube_<species>); choose another name", p.span)
             braiding = [m for m in builder.mutuals if braids(m.value, builder.by_symbol()) is not False]
-            if anyonic or braiding:
-                who = (f"species {anyonic[0].name} is anyonic" if anyonic
-                       else f"species {braiding[0].first} and {braiding[0].second} braid")
-                raise NotSupportedYet(f"flux tubes with anyonic or braiding mobile species in the input language ({who}); "
-                                      "their first order in the coverage (b_2 of identical anyons, b_11 of two braiding "
-                                      "species: two mobile particles and one tube) and the coverage-squared integral are "
-                                      "sampled from Python (clusterexp.loops.tube_estimates, composed exactly by "
-                                      "clusterexp.loops.tube_virial; docs/tubes.md); " + TUBES_SUPPORTED,
-                                      builder.tubes.span)
+            if braiding:
+                m = braiding[0]
+                raise NotSupportedYet(f"flux tubes with two braiding mobile species (species {m.first} and {m.second} "
+                                      "braid) in the input language: the one-tube term of b_11 (two mobile particles "
+                                      "and one tube) is sampled from Python only (clusterexp.loops.tube_estimates, "
+                                      "docs/tubes.md), not yet a named piece; " + TUBES_SUPPORTED, m.span)
         return source
 
     def check_system(self, system) -> None:
@@ -312,7 +324,10 @@ class PairPhaseRegime(Regime):
 
     def truncation(self, system) -> dict:
         tubes = system.tubes
-        return {tubes.coverage: 2} if tubes is not None else {}   # the tube coverage: first order
+        if tubes is None:
+            return {}
+        # bose/fermi species: every b_l through the coverage squared; anyons: b_2 only through the first order
+        return {tubes.coverage: 3 if not _anyonic(system) else 2}
 
     def known_zero(self, system, index) -> bool:
         return separates(system, index)
@@ -325,12 +340,17 @@ class PairPhaseRegime(Regime):
                  "O(p^k): terms from p^k on are unknown"]
         tubes = system.tubes
         if tubes is not None:
+            k = self.truncation(system)[tubes.coverage]
             if tubes.value is not None:
                 lines.append(f"tube coverage {tubes.coverage} = {tubes.value} (as declared); the values below are "
-                             f"first order in it, O({tubes.coverage}^2) unknown")
-            lines.append(f"flux tubes: flux {tubes.flux} (flux quanta), {tubes.coverage} tubes per lambda^2; b_(l e_i) "
-                         f"gains (+-1)^(l+1) ({tubes.coverage})/l (-s(1 - s)/2), s = ({tubes.flux}) mod 1, first order "
-                         "in the coverage")
+                             f"exact through {tubes.coverage}^{k - 1}, O({tubes.coverage}^{k}) unknown")
+            lines.append(f"flux tubes: flux {tubes.flux} (flux quanta), {tubes.coverage} tubes per lambda^2, Poisson "
+                         f"placed; b_(l e_i) of a bose/fermi species gains (+-1)^(l+1) [({tubes.coverage})/l (-s(1 - s)/2) + "
+                         f"({tubes.coverage})^2 T_two_tubes m_ref/(2 m_i)], s = ({tubes.flux}) mod 1"
+                         + (f"; an anyonic species gains the same terms in b_(e_i), and ({tubes.coverage}) "
+                            "B_anyon_tube_<species> in b_(2 e_i)" if _anyonic(system) else "")
+                         + f"; O({tubes.coverage}^{k})")
+            lines += [piece.text(system) for piece in pieces_of(system)]
         return lines
 
     def latex_paragraphs(self, system, labels) -> list[str]:
@@ -341,10 +361,14 @@ class PairPhaseRegime(Regime):
                 r"unless given; $O(p^k)$ marks the first unknown power of $p$.")
         if system.tubes is not None:
             flux, coverage = sympy.latex(system.tubes.flux), sympy.latex(system.tubes.coverage)
-            text += (rf" Static flux tubes of flux ${flux}$ (flux quanta), ${coverage}$ tubes per $\lambda^2$: "
-                     rf"$b_{{l e_i}}$ gains $(\pm1)^{{l+1}}\frac{{{coverage}}}{{l}}\bigl(-\tfrac{{s(1-s)}}{{2}}\bigr)$, "
-                     rf"$s=({flux})\bmod 1$, to first order in the coverage.")
+            k = self.truncation(system)[system.tubes.coverage]
+            text += (rf" Static flux tubes of flux ${flux}$ (flux quanta), ${coverage}$ tubes per $\lambda^2$ "
+                     r"(Poisson placed): $b_{l e_i}$ of a bose/fermi species gains "
+                     rf"$(\pm1)^{{l+1}}\frac{{{coverage}}}{{l}}\bigl(-\tfrac{{s(1-s)}}{{2}}\bigr)$, "
+                     rf"$s=({flux})\bmod 1$, plus the coverage-squared term below; an anyonic species has these "
+                     rf"terms in $b_{{e_i}}$ and its $b_{{2e_i}}$ gains ${coverage}$ times its anyon-tube piece; "
+                     rf"$O({coverage}^{k})$. " + " ".join(piece.latex(system) for piece in pieces_of(system)))
             if system.tubes.value is not None:
                 text += (rf" The coverage is declared as ${coverage}={sympy.latex(system.tubes.value)}$; the values "
-                         rf"are first order in it, $O({coverage}^2)$ unknown.")
+                         rf"are exact through ${coverage}^{{{k - 1}}}$, $O({coverage}^{k})$ unknown.")
         return [text]

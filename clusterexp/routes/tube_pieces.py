@@ -1,0 +1,119 @@
+"""The named pieces that static flux tubes add to the pair-phase regime (docs/tubes.md), as unknown
+functions of the parameters they depend on, beside the many-body pieces b_n.
+
+Poisson tubes of flux gamma, coverage n (tubes per lambda^2 of the reference species), the mobile
+gas's ln Xi averaged over the tube positions:
+
+  T_two_tubes       T2(gamma) = E[Re X_gamma1 X_gamma2] at gamma1 = gamma2 = gamma: the connected
+                    integral of one loop of duration beta (lambda = 1) and two tubes. Every l-cycle of a
+                    species of mass ratio r = m/m_ref gains (+-1)^(l+1) n^2 T2 / (2 r): a loop of duration
+                    l beta has winding areas l/r in lambda_ref^2, and (n l X / r)^2 / 2 times r / l^2 is
+                    n^2 X^2 / (2 r).  A function of the flux alone (period 1, kink at 0, zero at 0).
+  B_anyon_tube_<A>  the coefficient of n in b_2 of the identical anyons of species A: two mobile
+                    particles and one tube. A function of A's exchange parameter and the flux; it does
+                    not depend on the mass (the one-tube part of Z_2 - Z_1^2/2 is a number, like the
+                    one-tube shift of Z_1).  Exactly +-F/2 at the bose/fermi points, F = -s(1 - s)/2,
+                    and 0 at integer flux.
+
+Their values are sampled (`clusterexp.loops.tube_estimates`), not derived: in the exact results they
+stay symbols, and `pieces` treats them like the b_n pieces (claims undecided with conditions, series
+expanding them with named Taylor coefficients, a kink where a pair phase has one).
+"""
+from __future__ import annotations
+
+import re
+from dataclasses import dataclass
+
+import sympy
+
+TWO_TUBES_NAME = "T_two_tubes"      # the same symbol as loops.tube_virial.TWO_TUBES
+ANYON_TUBE_PREFIX = "B_anyon_tube_"
+_ANYON = re.compile(r"^B_anyon_tube_(.+)$")
+
+
+def two_tubes_symbol() -> sympy.Symbol:
+    return sympy.Symbol(TWO_TUBES_NAME, real=True)
+
+
+def anyon_tube_symbol(species_name: str) -> sympy.Symbol:
+    return sympy.Symbol(ANYON_TUBE_PREFIX + species_name, real=True)
+
+
+@dataclass(frozen=True)
+class TubePiece:
+    """A named tube piece: `species` is the mobile species it belongs to (None for T_two_tubes)."""
+
+    symbol: sympy.Symbol
+    species: str | None
+
+    def definitions(self, system) -> list[tuple[str, sympy.Expr]]:
+        """(kind, expression) of what it depends on, kinds as in `pieces._definitions`."""
+        out = [("flux", system.tubes.flux)]
+        if self.species is not None:
+            out.append(("exchange", system.species[system.species_names.index(self.species)].exchange))
+        return out
+
+    def value_at(self, system, point) -> sympy.Expr | None:
+        """The exact value where it is known: zero at an integer flux (no tube, period 1); for the
+        anyon-tube piece +-F/2 at the bose (fermi) points, the l = 2 cycle of the ideal-gas result."""
+        from ..exact.periods import reduced, species_statistics
+        params = {p.symbol: p for p in system.parameters}
+        flux = sympy.sympify(system.tubes.flux).subs(point)
+        if flux.is_number and (flux % 1) == 0:
+            return sympy.Integer(0)
+        if self.species is None:
+            return None
+        import dataclasses
+        species = system.species[system.species_names.index(self.species)]
+        there = dataclasses.replace(species, exchange=sympy.sympify(species.exchange).subs(point))
+        stats = species_statistics(there, params)
+        if stats not in ("bose", "fermi"):
+            return None
+        s = reduced(flux, 1, params)   # the one-tube shift -s(1 - s)/2 (as routes/pairphase.flux_shift)
+        return sympy.expand((1 if stats == "bose" else -1) * (-s * (1 - s) / 2) / 2)
+
+    def text(self, system) -> str:
+        flux = system.tubes.flux
+        if self.species is None:
+            return (f"{self.symbol} = T2({flux}): the connected integral of one loop of duration beta and two tubes "
+                    "of this flux (sampled, docs/tubes.md); b_l of a bose/fermi species gains "
+                    f"(+-1)^(l+1) {system.tubes.coverage}^2 {self.symbol} m_ref/(2 m)")
+        return (f"{self.symbol} = the coefficient of {system.tubes.coverage} in b[2] of species {self.species} "
+                "(two anyons and one tube; sampled, docs/tubes.md), +-F/2 at the bose/fermi points")
+
+    @property
+    def latex_name(self) -> str:
+        """The name in the LaTeX output (T with the subscript "2 tubes"; B with "tube" over the species)."""
+        if self.species is None:
+            return r"T_{\mathrm{2\,tubes}}"
+        return rf"B^{{\mathrm{{tube}}}}_{{\mathrm{{{self.species}}}}}"
+
+    def latex(self, system) -> str:
+        name = self.latex_name
+        if self.species is None:
+            return (rf"${name}$ is the connected integral of one loop of duration $\beta$ and two tubes of this "
+                    r"flux (sampled); $b_{l e_i}$ of a bose/fermi species gains "
+                    rf"$(\pm1)^{{l+1}}\,{sympy.latex(system.tubes.coverage)}^2\,{name}\,m_{{\mathrm{{ref}}}}/(2m_i)$.")
+        return (rf"${name}$ is the coefficient of ${sympy.latex(system.tubes.coverage)}$ in $b_2$ of species "
+                rf"{self.species} (two anyons and one tube; sampled).")
+
+
+def tube_piece(symbol) -> TubePiece | None:
+    """The tube piece a symbol names, else None."""
+    name = getattr(symbol, "name", "")
+    if name == TWO_TUBES_NAME:
+        return TubePiece(two_tubes_symbol(), None)
+    match = _ANYON.match(name)
+    return TubePiece(anyon_tube_symbol(match.group(1)), match.group(1)) if match else None
+
+
+def pieces_of(system) -> list[TubePiece]:
+    """The tube pieces of a system with tubes: T_two_tubes (in every b_(e_i)) and one anyon-tube piece per
+    anyonic species (for the glossary of every format)."""
+    from ..exact.periods import species_statistics
+    if system.tubes is None:
+        return []
+    params = {p.symbol: p for p in system.parameters}
+    return [TubePiece(two_tubes_symbol(), None)] + [
+        TubePiece(anyon_tube_symbol(s.name), s.name) for s in system.species
+        if species_statistics(s, params) not in ("bose", "fermi")]
