@@ -29,7 +29,8 @@ def test_every_form_equals_the_expanded_value_on_every_worked_example(folder):
         symbols = {p.name: p.symbol for p in d.system.parameters}   # with their assumptions
         for c in d:
             shaped = d.shaped(c)
-            written = sympy.sympify(shaped.text(c), locals=symbols)
+            own = {s.name: s for s in c.value.free_symbols}       # named pieces keep their assumptions too
+            written = sympy.sympify(shaped.text(c), locals={**own, **symbols})
             # independent of the rearranging code: sympy's simplify of the difference
             assert sympy.simplify(written.removeO() - c.value.removeO()) == 0, (folder.name, form, c.label)
 
