@@ -160,6 +160,11 @@ def figures_section(derivation: Derivation) -> list[str]:
         from ..loops.figures import map_caption_latex
         figures += [(statement.sampling.map, lambda statement=statement: map_caption_latex(statement, system))
                     for statement in derivation.sampled if statement.sampling.map]
+    for result in derivation.states:     # equation-of-state figures
+        if result.request.kind == "plot" and result.request.path is not None:
+            from ..products.states import figure_caption
+            figures.append((result.request.path, lambda result=result: escape_text(
+                figure_caption(result.eos, result.request).replace("\n", " ")) + "."))
     if not figures:
         return []
     out = [r"\section{Figures}"]

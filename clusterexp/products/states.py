@@ -166,6 +166,27 @@ def draw_figure(derivation, eos, request: StateRequest, path: Path, into) -> Non
         _draw_figure(derivation, eos, request, path, into, options)
 
 
+def figure_caption(eos, request: StateRequest) -> str:
+    """The caption of an equation-of-state figure (what its footer says when asked, and the text beside it)."""
+    parameters = request.parameter_values()
+    axis = request.axes[0]
+    low, high, boundary = plot_interval(eos, request, parameters)
+    shown_boundary = boundary is not None and boundary <= sympy.Rational(3, 2) * high
+    caption_bits = [f"{eos.regime}; exact equation of state ({eos.plot_samples} points)"]
+    if request.densities:
+        caption_bits.append("fixed: " + ", ".join(f"{density_label(eos, d.species)} = {sympy.sstr(d.value)}"
+                                                  for d in request.densities))
+    if parameters:
+        caption_bits.append(", ".join(f"{s.name} = {sympy.sstr(v)}" for s, v in request.parameters))
+    if request.series:
+        caption_bits.append(f"virial series of order N: {eos.pressure_unit} = sum over |n| <= N of a_n "
+                            "(densities)^n, the tool's own coefficients")
+    if boundary is not None and not shown_boundary:
+        caption_bits.append(f"{eos.boundary.kind} at {axis.word} {axis.species} = {sympy.sstr(boundary)}, beyond "
+                            "the plotted range")
+    return "\n".join(textwrap.wrap("; ".join(caption_bits), 95))
+
+
 def _draw_figure(derivation, eos, request: StateRequest, path: Path, into, options) -> None:
     from ..export.latex import escape_text
     from .plots import PlotError, _figure, _format, _matplotlib, finish
@@ -183,19 +204,7 @@ def _draw_figure(derivation, eos, request: StateRequest, path: Path, into, optio
     labels = _labels(eos, request)
     exact = numpy.array([[float(v) if abs(v) != float("inf") else numpy.nan for v in row] for row in numbers])
     shown_boundary = boundary is not None and boundary <= sympy.Rational(3, 2) * high
-    caption_bits = [f"{eos.regime}; exact equation of state ({count} points)"]
-    if request.densities:
-        caption_bits.append("fixed: " + ", ".join(f"{density_label(eos, d.species)} = {sympy.sstr(d.value)}"
-                                                  for d in request.densities))
-    if parameters:
-        caption_bits.append(", ".join(f"{s.name} = {sympy.sstr(v)}" for s, v in request.parameters))
-    if request.series:
-        caption_bits.append(f"virial series of order N: {eos.pressure_unit} = sum over |n| <= N of a_n "
-                            "(densities)^n, the tool's own coefficients")
-    if boundary is not None and not shown_boundary:
-        caption_bits.append(f"{eos.boundary.kind} at {axis.word} {axis.species} = {sympy.sstr(boundary)}, beyond "
-                            "the plotted range")
-    caption = "\n".join(textwrap.wrap("; ".join(caption_bits), 95))
+    caption = figure_caption(eos, request)
     figure = _figure(Figure, caption.count("\n") + 1)
     axes = figure.add_subplot()
     for k, label in enumerate(labels):
