@@ -18,7 +18,9 @@ exchange, period 1 for mutual. The derivation is docs/perturbative.md; in short:
   product |x||y| of the absolute values of two different parameters (two contact vertices meet only in
   the ring) and of a product d_ij d_ik of two mutual parameters around a shared species (Hartree chains
   only); monomials that connect no cluster are zero. Squares x^2 and e_i d_ij also get two-loop and
-  one-loop clusters, which are not derived: `NotSupportedYet`, or named unknowns with unknown="name".
+  one-loop clusters: derived for two particles of one species with one of another (b_{2,1}: e_i d_ij for
+  any masses, d_ij^2 for equal masses; section 4c), otherwise not derived: `NotSupportedYet`, or named
+  unknowns with unknown="name".
 
 Monomials whose sign changes under the mirror image (every parameter -> minus itself; e.g. x,
 x*Abs(y), x*Abs(x)) vanish by that symmetry and are not listed.
@@ -225,6 +227,26 @@ def chain_part(species: Sequence[Species], mutual: Mapping[tuple[int, int], symp
     return {m: sympy.Rational(v.numerator, v.denominator) for m, v in out.items()}
 
 
+def _pair_with_one(gas: _Gas, link: _Link, n):
+    """For b_n with two particles of species i and one of species j (link = the mutual pair {i, j}): the
+    second-order coefficients of the cluster of the 2-cycle of species i with the one-particle loop of j
+    (section 4c), as (coefficient of d_ij^2 or None where not derived, coefficient of e_i d_ij); None for
+    any other n. The 2-cycle's sign about fermions flips the whole cluster.
+
+    e_i d_ij: -(m_j/m_ref)/4, from E[Theta_S Area(S)] = lambda^2/(2 pi) of the 2-cycle (Gaussian
+    calculus, any masses). d_ij^2: 1/2 - (that) = 3/4 for equal masses (Sen's symmetry applied to the
+    one-species cluster of the same geometry); unequal masses are not derived."""
+    if link.i == link.j:
+        return None
+    pairs = [(a, b) for a, b in ((link.i, link.j), (link.j, link.i)) if n[a] == 2 and n[b] == 1]
+    if sum(n) != 3 or not pairs:
+        return None
+    i, j = pairs[0]
+    sign = gas.sign[i]
+    square = sign * Fraction(3, 4) * gas.mass[i] if gas.mass[i] == gas.mass[j] else None
+    return square, -sign * gas.mass[j] / 4
+
+
 def _acts(link: _Link, n) -> bool:
     """Whether the link's parameter can enter b_n at all: an exchange needs two particles of its species."""
     return n[link.i] >= 2 if link.i == link.j else n[link.i] >= 1 and n[link.j] >= 1
@@ -239,6 +261,10 @@ def _second_order(gas: _Gas, p: _Link, q: _Link, n):
             return {x ** 2: Fraction(0)}
         if sum(n) == 2:
             return {x ** 2: _two_body_square(gas, p, n)}
+        pair = _pair_with_one(gas, p, n)
+        if pair is not None and pair[0] is not None:
+            ring, landau = _chain(gas, p, p, n)
+            return {x ** 2: ring + landau + pair[0]}
         return {x ** 2: None}
     monomials = (sympy.Abs(x) * sympy.Abs(y), x * y)
     if not p.species & q.species or support != p.species | q.species or not (_acts(p, n) and _acts(q, n)):
@@ -246,8 +272,13 @@ def _second_order(gas: _Gas, p: _Link, q: _Link, n):
     ring, landau = _chain(gas, p, q, n)
     if p.i == p.j or q.i == q.j:
         # exchange times mutual: two contact vertices meet only in the ring, but the vector potentials
-        # also meet in exchange (Fock-type) clusters that are not derived
-        return {monomials[0]: ring, monomials[1]: None}
+        # also meet in exchange (Fock-type) clusters, derived for a pair of one species with one particle
+        # of another (section 4c), not beyond
+        mutual = q if p.i == p.j else p
+        pair = _pair_with_one(gas, mutual, n)
+        if pair is None or (p.i == p.j) == (q.i == q.j):
+            return {monomials[0]: ring, monomials[1]: None}
+        return {monomials[0]: ring, monomials[1]: landau + pair[1]}
     # two mutual links around a shared species: Hartree chains only (ring and Landau)
     return {monomials[0]: ring, monomials[1]: landau}
 
@@ -286,7 +317,8 @@ def taylor_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int, i
         raise NotSupportedYet(f"second-order Taylor coefficients of b[{','.join(map(str, n))}] in {listed}: "
                               f"not derived ({_HOW}); derived at "
                               "second order: two-particle b, products |x||y| of two different parameters, products "
-                              "d_ij d_ik of two mutual parameters")
+                              "d_ij d_ik of two mutual parameters, and b with two particles of one species and one "
+                              "of another (e_i d_ij; d_ij^2 for equal masses)")
     label = "_".join(map(str, n))
     return {m: (sympy.Symbol(f"t_b_{label}__{m}") if v is None else sympy.Rational(v.numerator, v.denominator))
             for m, v in out.items()}
