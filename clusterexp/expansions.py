@@ -28,12 +28,7 @@ def one_sided_series(expr: sympy.Expr, symbol: sympy.Symbol, point, order: int, 
     """Taylor polynomial through (symbol - point)^order of expr approached from `side` ("above"/
     "below"): floors are frozen at their one-sided limits, leaving a polynomial branch."""
     eps = sympy.Rational(1, 10 ** 9)
-    probe = point + (eps if side == "above" else -eps)
-    expr = expr.replace(lambda e: isinstance(e, PeriodicPart), lambda e: e.floor_form())
-    frozen = expr.subs({f: sympy.floor(f.args[0].subs(symbol, probe)) for f in expr.atoms(sympy.floor)
-                        if symbol in f.free_symbols})
-    frozen = frozen.subs({m: m.args[0] - m.args[1] * sympy.floor((m.args[0] / m.args[1]).subs(symbol, probe))
-                          for m in frozen.atoms(sympy.Mod) if symbol in m.free_symbols})
+    frozen, _ = frozen_at(expr, {symbol: point + (eps if side == "above" else -eps)})
     u = sympy.Symbol("u_shift")
     shifted = sympy.expand(frozen.subs(symbol, point + u))
     taylor = sympy.series(shifted, u, 0, order + 1).removeO() if not shifted.is_polynomial(u) else shifted
@@ -173,30 +168,26 @@ class JointSeriesPiece(SeriesPiece):
         return text
 
 
-def _freeze(expr: sympy.Expr, probes: dict, label, span) -> sympy.Expr:
-    """expr with every periodic part (floor, Mod) that involves the expansion variables frozen at its
-    value at the probe point (just off the expansion point on each variable's side)."""
-    from .errors import InputError
+def frozen_at(expr: sympy.Expr, probes: dict) -> tuple[sympy.Expr, sympy.Expr | None]:
+    """expr with every periodic part (floor, Mod) that involves the probed variables frozen at its value
+    at the probe point (just off the expansion point on each variable's side), and the first such part
+    whose value there is not a number (it depends on other parameters too), or None."""
     expr = expr.replace(lambda e: isinstance(e, PeriodicPart), lambda e: e.floor_form())
-    frozen = {}
+    undecided = None
+    floors = {}
     for f in expr.atoms(sympy.floor):
         if f.free_symbols & set(probes):
             at = f.args[0].subs(probes)
-            if not at.is_number:
-                raise InputError(f"{label}: its periodic part {sympy.sstr(f)} depends on parameters outside the joint "
-                                 "series, so whether it jumps there is not decided; declare their ranges inside one "
-                                 "period or add them to the series", span)
-            frozen[f] = sympy.floor(at)
-    expr = expr.subs(frozen)
+            undecided = undecided if at.is_number else undecided or f
+            floors[f] = sympy.floor(at)
+    expr = expr.subs(floors)
     mods = {}
     for m in expr.atoms(sympy.Mod):
         if m.free_symbols & set(probes):
             at = (m.args[0] / m.args[1]).subs(probes)
-            if not at.is_number:
-                raise InputError(f"{label}: its periodic part {sympy.sstr(m)} depends on parameters outside the joint "
-                                 "series; declare their ranges inside one period", span)
+            undecided = undecided if at.is_number else undecided or m
             mods[m] = m.args[0] - m.args[1] * sympy.floor(at)
-    return expr.subs(mods)
+    return expr.subs(mods), undecided
 
 
 def _at_point(label, exact, limits, symbol, point, known, system, span):
@@ -277,7 +268,11 @@ def joint_expansion_of(label: str, value: sympy.Expr, expansion, system, index=N
     expanded, unknowns = expand_pieces(system, exact, [(v, p, known, s) for v, p, s in variables], derived)
     sign = {v: -1 if s == "below" else 1 for v, _, s in variables}
     probes = {v: p + sign[v] * sympy.Rational(1, 10 ** 9) for v, p, _ in variables}
-    frozen = _freeze(expanded, probes, label, span)
+    frozen, undecided = frozen_at(expanded, probes)
+    if undecided is not None:
+        raise InputError(f"{label}: its periodic part {sympy.sstr(undecided)} depends on parameters outside the joint "
+                         "series, so whether it jumps there is not decided; declare their ranges inside one period "
+                         "or add them to the series", span)
     polynomial = _polynomial_part(frozen, variables, known)
     if polynomial is None:
         polynomial = _series_part(frozen, variables, sign, known, label, span)

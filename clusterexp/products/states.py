@@ -166,11 +166,12 @@ def draw_figure(derivation, eos, request: StateRequest, path: Path, into) -> Non
         _draw_figure(derivation, eos, request, path, into, options)
 
 
-def figure_caption(eos, request: StateRequest) -> str:
-    """The caption of an equation-of-state figure (what its footer says when asked, and the text beside it)."""
+def figure_caption(eos, request: StateRequest, interval=None) -> str:
+    """The caption of an equation-of-state figure (what its footer says when asked, and the text beside it);
+    `interval`: the figure's (low, high, boundary) when the caller has it."""
     parameters = request.parameter_values()
     axis = request.axes[0]
-    low, high, boundary = plot_interval(eos, request, parameters)
+    low, high, boundary = interval or plot_interval(eos, request, parameters)
     shown_boundary = boundary is not None and boundary <= sympy.Rational(3, 2) * high
     caption_bits = [f"{eos.regime}; exact equation of state ({eos.plot_samples} points)"]
     if request.densities:
@@ -204,7 +205,7 @@ def _draw_figure(derivation, eos, request: StateRequest, path: Path, into, optio
     labels = _labels(eos, request)
     exact = numpy.array([[float(v) if abs(v) != float("inf") else numpy.nan for v in row] for row in numbers])
     shown_boundary = boundary is not None and boundary <= sympy.Rational(3, 2) * high
-    caption = figure_caption(eos, request)
+    caption = figure_caption(eos, request, (low, high, boundary))
     figure = _figure(Figure, caption.count("\n") + 1)
     axes = figure.add_subplot()
     for k, label in enumerate(labels):
