@@ -45,10 +45,13 @@ def test_mixed_third_virial_coefficient_about_bosons():
     assert sympy.expand(_plain(b21.polynomial) - (-nu / 2 + sympy.Rational(29, 24) * nu ** 2 + sympy.Rational(5, 3) * alpha * nu)) == 0
     (b11,) = _series(d, "cluster", (1, 1))     # exact: -nu(1 - nu), route R3
     assert sympy.expand(_plain(b11.polynomial) - (nu ** 2 - nu)) == 0
-    # b_3 of species A: first order derived, the alpha^2 coefficient a named unknown
+    # b_3 of species A through alpha^2 (docs/perturbative.md, 4d): 1/9 - alpha + 59/24 alpha^2, which with the
+    # exact b_2 gives the published a_3 = 1/36 + alpha^2/12 (Myrheim & Olaussen 1993)
     (b3,) = _series(d, "cluster", (3, 0))
-    assert [u.symbol.name for u in b3.unknowns] == ["b_3_0_alpha_2_above"]
-    assert sympy.expand(_plain(b3.polynomial).subs(sympy.Symbol("b_3_0_alpha_2_above", real=True), 0) - (sympy.Rational(1, 9) - alpha)) == 0
+    assert not b3.unknowns
+    assert sympy.expand(_plain(b3.polynomial) - (sympy.Rational(1, 9) - alpha + sympy.Rational(59, 24) * alpha ** 2)) == 0
+    (a3,) = _series(d, "virial", (3, 0))
+    assert sympy.expand(_plain(a3.polynomial) - (sympy.Rational(1, 36) + alpha ** 2 / 12)) == 0
 
 
 def test_mixed_third_virial_coefficient_about_fermions():

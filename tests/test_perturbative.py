@@ -256,8 +256,8 @@ def test_chain_part_of_one_species_and_the_published_third_virial_coefficient():
     """What the chains give for one species: 2 - 1/24 = 47/24 in b_3 about bosons (ring with Hartree and
     Fock, Landau) and -1/24 about fermions, and (2 - 1/24) * [z^n] ln^2(1-z) z/(1-z) in general. The
     published a_3 = 1/36 + alpha^2/12 (Myrheim & Olaussen 1993) needs b_3^(2) = 59/24 (and -13/24 about
-    fermions, from 1/36 + (1-alpha)^2/12): with the chain part as derived, the rest is +-1/2, the open
-    two-loop and one-loop part, so b_3 at second order is refused, and named on request."""
+    fermions, from 1/36 + (1-alpha)^2/12): with the chain part as derived, the rest is +-1/2, the two-loop
+    and one-loop part (derived in sections 4b (iii) and 4d), which the module adds."""
     z = sympy.Symbol("z")
     chains = sympy.series(R(47, 24) * sympy.log(1 - z) ** 2 * z / (1 - z), z, 0, 9).removeO()
     for n in range(3, 9):
@@ -270,10 +270,12 @@ def test_chain_part_of_one_species_and_the_published_third_virial_coefficient():
         b3 = (4 * b2_point ** 2 - published) / 2          # a_3 = 4 b_2^2 - 2 b_3, equal masses
         rest = sympy.expand(b3).coeff(e, 2) - chain_part([Species(e)], {}, (3,), about)[e ** 2]
         assert rest == sign * R(1, 2)
-    with pytest.raises(NotSupportedYet, match=r"b\[3\] in e\*\*2"):
-        taylor_coefficients([Species(e)], {}, (3,), "boson", 2)
-    named = taylor_coefficients([Species(e)], {}, (3,), "boson", 2, unknown="name")
-    assert named[e ** 2] == sympy.Symbol("t_b_3__e**2") and named[sympy.Abs(e)] == -1
+        assert taylor_coefficients([Species(e)], {}, (3,), about, 2)[e ** 2] == rest + chain_part(
+            [Species(e)], {}, (3,), about)[e ** 2]
+    with pytest.raises(NotSupportedYet, match=r"b\[4\] in e\*\*2"):
+        taylor_coefficients([Species(e)], {}, (4,), "boson", 2)
+    named = taylor_coefficients([Species(e)], {}, (4,), "boson", 2, unknown="name")
+    assert named[e ** 2] == sympy.Symbol("t_b_4__e**2") and named[sympy.Abs(e)] == R(-11, 12)
 
 
 # ------------------------------------------------------------------------------------- toward the squares
@@ -349,7 +351,7 @@ def test_b3_loop_clusters_from_sen_symmetry():
     (1, since the one-species ring (1/2)(H + F)^2 with H = F is 2 and its Hartree part H^2 is 1/2), so
     X_L + X_A = 1/2. With the three-loop cluster (Hartree-only chains, 11/24) and the F^2 ring part (1/2)
     of the 3-cycle, the published b_3^(2) = 59/24 (from a_3 = 1/36 + alpha^2/12, Myrheim & Olaussen 1993)
-    leaves X_C = 0 for the rest of the 3-cycle: recorded, not used by the module."""
+    leaves X_C = 0 for the rest of the 3-cycle, which section 4d derives (test below)."""
     b2_bose = expansion([Species(e)], {}, (2,), "boson", 2).subs(sympy.Abs(e), e)           # 0 <= e
     b2_fermi = expansion([Species(e)], {}, (2,), "fermion", 2).subs(e, -e)                  # at 1 - e
     pair_with_swap = sympy.expand(b2_bose ** 2 - b2_fermi ** 2)
@@ -368,8 +370,6 @@ def test_b3_loop_clusters_from_sen_symmetry():
     published_b3 = sympy.expand((4 * b2_bose ** 2 - (R(1, 36) + e ** 2 / 12)) / 2).coeff(e, 2)
     x_c = published_b3 - (hartree_only + pair_with_swap.coeff(e, 2) + ring_h2)
     assert published_b3 == R(59, 24) and x_c == 0
-    with pytest.raises(NotSupportedYet):   # X_C is not derived, so b_3^(2) is not returned
-        taylor_coefficients([Species(e)], {}, (3,), "boson", 2)
 
 
 def test_three_cycle_cluster_against_the_loop_monte_carlo():

@@ -24,75 +24,99 @@ def _named(piece):
 
 
 def _b3_near_bosons():
-    """b_3 = 1/9 - alpha + (59/24) alpha^2 + O(alpha^3) for alpha -> 0+: derived (physics.md, section 5)
-    from a_3 = 1/36 + alpha^2/12 [published: Myrheim & Olaussen, Phys. Lett. B 299 (1993) 267] and the
-    exact b_2 = 1/4 - alpha + alpha^2/2 [published: Arovas, Schrieffer, Wilczek, Zee, Nucl. Phys. B 251
-    (1985) 117] through a_3 = 4 b_2^2 - 2 b_3."""
+    """b_3 = 1/9 - alpha + (59/24) alpha^2 + O(alpha^3) for alpha -> 0+: from a_3 = 1/36 + alpha^2/12
+    [published: Myrheim & Olaussen, Phys. Lett. B 299 (1993) 267] and the exact b_2 = 1/4 - alpha +
+    alpha^2/2 [published: Arovas, Schrieffer, Wilczek, Zee, Nucl. Phys. B 251 (1985) 117] through
+    a_3 = 4 b_2^2 - 2 b_3 (textbook cluster-virial relation, b_1 = 1)."""
     return {1: sympy.Integer(-1), 2: sympy.Rational(59, 24)}
 
 
-def test_third_virial_series_names_the_taylor_coefficients_of_b3():
+def _a4_condition(a4_second_order, side_sign=1):
+    """The alpha^2 coefficient of b_4 that a claimed a_4 = a4_second_order alpha^2 + O(alpha^3) needs, by
+    the textbook relation a_4 = -20 b_2^3 + 18 b_2 b_3 - 3 b_4 (one species, b_1 = 1) with the exact b_2, the
+    published b_3 above and the first order b_4^(1) = -(2/4) H_3 = -11/12 [derived from Dasnieres de Veigy &
+    Ouvry 1992: only a_2 changes at first order]; independent of the tool's virial machinery."""
+    x, B = sympy.symbols("x B")
+    k = _b3_near_bosons()
+    b2 = sympy.Rational(1, 4) - x + x ** 2 / 2
+    b3 = sympy.Rational(1, 9) + k[1] * x + k[2] * x ** 2
+    b4 = sympy.Rational(1, 16) - sympy.Rational(11, 12) * x + B * x ** 2
+    a4 = sympy.expand(-20 * b2 ** 3 + 18 * b2 * b3 - 3 * b4)
+    assert a4.coeff(x, 0) == 0 and a4.coeff(x, 1) == 0
+    (value,) = sympy.solve(a4.coeff(x, 2) - a4_second_order, B)
+    return value
+
+
+def test_third_virial_series_from_the_perturbative_route_and_a4_names_b4():
     """The series of a_3 about the boson point used to treat b_3 as a constant (a spurious linear term
-    -2 alpha); now b_3's value at alpha = 0 is the ideal Bose 1/9, its first order comes from the
-    perturbative route, its second-order coefficient is named per side, and with the published b_3
-    series both sides give a_3 = 1/36 + alpha^2/12 (Myrheim & Olaussen 1993; b_3 is even in alpha)."""
-    d = clusterexp.derive(ANYONS + "expand alpha about 0 to 2 from both")
+    -2 alpha); now b_3 comes from the perturbative route through alpha^2 (docs/perturbative.md, 4d) and
+    both sides give the published a_3 = 1/36 + alpha^2/12 (Myrheim & Olaussen 1993; even in alpha) with
+    nothing named. b_4's alpha^2 coefficient is not derived: a_4's series names it per side, and the
+    value that makes a_4 vanish at second order is the textbook relation's."""
+    d = clusterexp.derive(ANYONS.replace("up to 3", "up to 4") + "expand alpha about 0 to 2 from both")
     above, below = _series(d, "virial", (3,))
     assert (above.side, below.side) == ("above", "below")
-    assert not any(s.name == "b_3" for s in above.polynomial.free_symbols | below.polynomial.free_symbols)
-    a, b = _named(above), _named(below)
-    assert set(a) == {"b_3_alpha_2_above"} and set(b) == {"b_3_alpha_2_below"}
+    assert not above.unknowns and not below.unknowns
     assert any("perturbative route" in note for note in above.notes)
-    k = _b3_near_bosons()
-    ALPHA = above.variable
-    from_above = above.polynomial.subs({a["b_3_alpha_2_above"]: k[2]})
-    from_below = below.polynomial.subs({b["b_3_alpha_2_below"]: k[2]})
-    assert sympy.expand(from_above - (sympy.Rational(1, 36) + ALPHA ** 2 / 12)) == 0
-    assert sympy.expand(from_below - (sympy.Rational(1, 36) + ALPHA ** 2 / 12)) == 0
+    for piece in (above, below):
+        assert sympy.expand(piece.polynomial - (sympy.Rational(1, 36) + piece.variable ** 2 / 12)) == 0
+    above, below = _series(d, "virial", (4,))
+    a, b = _named(above), _named(below)
+    assert set(a) == {"b_4_alpha_2_above"} and set(b) == {"b_4_alpha_2_below"}
+    root = _a4_condition(0)
+    for piece, name in ((above, a["b_4_alpha_2_above"]), (below, b["b_4_alpha_2_below"])):
+        assert sympy.expand(piece.polynomial.subs(name, root)) == 0
 
 
 def test_third_virial_series_near_fermions():
-    """About alpha = 1 (analytic): a_3 = 1/36 + (1 - alpha)^2/12 [published: Myrheim & Olaussen 1993; Sen,
-    Phys. Rev. Lett. 68 (1992) 2977] with b_2 = -1/4 + (alpha - 1)^2/2 means b_3 = 1/9 - (13/24)(alpha - 1)^2
-    [derived]; b_3(1) is the ideal Fermi 1/9 [published: Viefers, Ravndal, Haugset, Am. J. Phys. 63 (1995)
-    369], so only the first and second coefficients are named."""
-    d = clusterexp.derive(ANYONS + "expand alpha about 1 to 2")
+    """About alpha = 1 (analytic): the route gives b_3 = 1/9 - (13/24)(alpha - 1)^2, so a_3 = 1/36 +
+    (1 - alpha)^2/12 [published: Myrheim & Olaussen 1993; Sen, Phys. Rev. Lett. 68 (1992) 2977], with
+    b_2 = -1/4 + (alpha - 1)^2/2 and b_3(1) the ideal Fermi 1/9 [published: Viefers, Ravndal, Haugset,
+    Am. J. Phys. 63 (1995) 369]. a_4 names b_4's second coefficient only (no first order about fermions)."""
+    d = clusterexp.derive(ANYONS.replace("up to 3", "up to 4") + "expand alpha about 1 to 2")
     (piece,) = _series(d, "virial", (3,))
-    assert piece.side is None and not piece.kink
-    ALPHA = piece.variable
-    n = _named(piece)
-    assert set(n) == {"b_3_alpha_2_about_1"}   # b_3(1) ideal Fermi, no first order about fermions
-    value = piece.polynomial.subs({n["b_3_alpha_2_about_1"]: sympy.Rational(-13, 24)})
-    assert sympy.expand(value - (sympy.Rational(1, 36) + (1 - ALPHA) ** 2 / 12)) == 0
+    assert piece.side is None and not piece.kink and not piece.unknowns
+    assert sympy.expand(piece.polynomial - (sympy.Rational(1, 36) + (1 - piece.variable) ** 2 / 12)) == 0
+    (piece,) = _series(d, "virial", (4,))
+    assert set(_named(piece)) == {"b_4_alpha_2_about_1"}
     record = json.loads(to_json(d))
-    (a3,) = [c for c in record["coefficients"] if c["kind"] == "virial" and c["index"] == [3]]
-    assert a3["series"][0]["unknowns"] == ["b_3_alpha_2_about_1"]
-    assert set(record["unknowns"]) == {"b_3_alpha_2_about_1"}
-    assert "b[3]" in record["unknowns"]["b_3_alpha_2_about_1"]
+    (a4,) = [c for c in record["coefficients"] if c["kind"] == "virial" and c["index"] == [4]]
+    assert a4["series"][0]["unknowns"] == ["b_4_alpha_2_about_1"]
+    assert set(record["unknowns"]) == {"b_4_alpha_2_about_1"}
+    assert "b[4]" in record["unknowns"]["b_4_alpha_2_about_1"]
 
 
 def test_a_named_piece_alone_gets_its_series():
-    """b[3] = b_3 has no visible alpha, but it is a function of alpha: its series is printed."""
+    """b[4] = b_4 has no visible alpha, but it is a function of alpha: its series is printed, with the
+    first order b_4^(1) = -(2/4) H_3 = -11/12 [derived from Dasnieres de Veigy & Ouvry 1992, physics.md
+    section 5] and the ideal Bose 1/16, and the alpha^2 coefficient named."""
     d = clusterexp.derive("dimension 2 parameter alpha species A exchange alpha clusters pairphase "
-                          "derive cluster up to 3 expand alpha about 0 to 2 from above")
-    (piece,) = _series(d, "cluster", (3,))
-    b32 = _named(piece)["b_3_alpha_2_above"]
-    # b_3^(1) = -(2/3) H_2 = -1 [derived from Dasnieres de Veigy & Ouvry 1992, physics.md section 5]
-    assert sympy.expand(piece.polynomial - (sympy.Rational(1, 9) - piece.variable + b32 * piece.variable ** 2)) == 0
+                          "derive cluster up to 4 expand alpha about 0 to 2 from above")
+    (piece,) = _series(d, "cluster", (4,))
+    b42 = _named(piece)["b_4_alpha_2_above"]
+    x = piece.variable
+    assert sympy.expand(piece.polynomial - (sympy.Rational(1, 16) - sympy.Rational(11, 12) * x + b42 * x ** 2)) == 0
     text = to_text(d)
-    assert "b_3_alpha_2_above = coefficient of alpha^2 in b[3] about alpha = 0 from above" in text
+    assert "b_4_alpha_2_above = coefficient of alpha^2 in b[4] about alpha = 0 from above" in text
+    (b3,) = _series(d, "cluster", (3,))
+    assert sympy.expand(b3.polynomial - (sympy.Rational(1, 9) - x + sympy.Rational(59, 24) * x ** 2)) == 0
 
 
-def test_truncated_claim_through_a_named_piece_is_undecided_with_the_conditions():
-    """The published a_3 = 1/36 + alpha^2/12 + O(alpha^3) (Myrheim & Olaussen 1993) is not refuted: it
-    holds exactly when b_3 = 1/9 - alpha + (59/24) alpha^2 + O(alpha^3), which the check states."""
+def test_published_third_virial_coefficient_is_proven_and_a4_claim_is_undecided_with_the_condition():
+    """The published a_3 = 1/36 + alpha^2/12 + O(alpha^3) (Myrheim & Olaussen 1993) is proven by the
+    derived b_3; a claimed a_4 = alpha^2/16 + O(alpha^3) holds exactly when b_4's alpha^2 coefficient takes
+    the value the textbook relation gives (35/8), which the check states."""
     d = clusterexp.derive("dimension 2 parameter alpha in [0, 1] species A exchange alpha clusters pairphase "
-                          "derive virial up to 3 claim a[3] = 1/36 + alpha^2/12 + O(alpha^3)")
-    (result,) = d.checks
-    assert result.status == "undecided" and result.ok
-    solved = {e.lhs.name: e.rhs for e in result.conditions}
-    k = _b3_near_bosons()
-    assert solved == {"b_3_alpha_2_above": k[2]}
+                          "derive virial up to 4 claim a[3] = 1/36 + alpha^2/12 + O(alpha^3) "
+                          "claim a[4] = alpha^2/16 + O(alpha^3)")
+    third, fourth = d.checks
+    assert third.status == "proven"
+    assert fourth.status == "undecided" and fourth.ok
+    solved = {e.lhs.name: e.rhs for e in fourth.conditions}
+    assert solved == {"b_4_alpha_2_above": _a4_condition(sympy.Rational(1, 16))}
+    (wrong,) = clusterexp.derive("dimension 2 parameter alpha in [0, 1] species A exchange alpha clusters "
+                                 "pairphase derive virial up to 3 claim a[3] = 1/36 + alpha^2/10 + O(alpha^3)").checks
+    assert wrong.status == "mismatch"
 
 
 def test_exact_claim_through_a_named_piece_is_solved_for_it():
@@ -159,9 +183,10 @@ def test_document_with_named_coefficients_compiles(tmp_path):
     if shutil.which("pdflatex") is None:
         pytest.skip("pdflatex not installed")
     d = clusterexp.derive(ANYONS.replace("alpha species", "alpha in [0, 1] species")
-                          + "expand alpha about 0 to 2 from above claim a[3] = 1/36 + alpha^2/12 + O(alpha^3)")
+                          .replace("up to 3", "up to 4")
+                          + "expand alpha about 0 to 2 from above claim a[4] = alpha^2/16 + O(alpha^3)")
     tex = latex_document(d)
-    assert r"{b_{3}}^{[\alpha^{2}]+}" in tex and "holds if and only if" in tex
+    assert r"{b_{4}}^{[\alpha^{2}]+}" in tex and "holds if and only if" in tex
     (tmp_path / "doc.tex").write_text(tex)
     run = subprocess.run(["pdflatex", "-interaction=nonstopmode", "-halt-on-error", "doc.tex"], cwd=tmp_path,
                          capture_output=True, text=True, timeout=120)
@@ -184,11 +209,11 @@ def test_a_given_exact_piece_free_of_the_variable_is_flagged_in_the_series():
 def test_an_undecided_claim_exits_0_and_says_so_on_stderr(tmp_path):
     path = tmp_path / "a3.gas"
     path.write_text("dimension 2\nparameter alpha in [0, 1]\nspecies A exchange alpha\nclusters pairphase\n"
-                    "derive virial up to 3\nclaim a[3] = 1/36 + alpha^2/12 + O(alpha^3)\n")
+                    "derive virial up to 4\nclaim a[4] = alpha^2/16 + O(alpha^3)\n")
     out = run_cli("run", str(path), "--no-files")
     assert out.returncode == 0
-    assert "a3.gas:6:1: check undecided: a[3] up to O(alpha^3) holds only if" in out.stderr
-    assert "b_3_alpha_2_above = 59/24" in out.stdout
+    assert "a3.gas:6:1: check undecided: a[4] up to O(alpha^3) holds only if" in out.stderr
+    assert f"b_4_alpha_2_above = {_a4_condition(sympy.Rational(1, 16))}" in out.stdout
 
 
 @pytest.mark.parametrize("side", ["above", "below"])

@@ -18,9 +18,10 @@ exchange, period 1 for mutual. The derivation is docs/perturbative.md; in short:
   product |x||y| of the absolute values of two different parameters (two contact vertices meet only in
   the ring) and of a product d_ij d_ik of two mutual parameters around a shared species (Hartree chains
   only); monomials that connect no cluster are zero. Squares x^2 and e_i d_ij also get two-loop and
-  one-loop clusters: derived for two particles of one species with one of another (b_{2,1}: e_i d_ij for
-  any masses, d_ij^2 for equal masses; section 4c), otherwise not derived: `NotSupportedYet`, or named
-  unknowns with unknown="name".
+  one-loop clusters: derived for three particles of one species (b_3: the loop + 2-cycle from Sen's
+  symmetry, the 3-cycle from its pairs; sections 4b, 4d) and for two particles of one species with one
+  of another (b_{2,1}: e_i d_ij for any masses, d_ij^2 for equal masses; section 4c), otherwise not
+  derived: `NotSupportedYet`, or named unknowns with unknown="name".
 
 Monomials whose sign changes under the mirror image (every parameter -> minus itself; e.g. x,
 x*Abs(y), x*Abs(x)) vanish by that symmetry and are not listed.
@@ -247,6 +248,16 @@ def _pair_with_one(gas: _Gas, link: _Link, n):
     return square, -sign * gas.mass[j] / 4
 
 
+def _beyond_the_chains_of_three(gas: _Gas, i: int) -> Fraction:
+    """The e_i^2 coefficient of b_3 (three particles of species i) beyond the chains of three loops:
+    the loop + 2-cycle cluster beyond its ring part, +1/2 (Sen's symmetry with the exact b_2; its sign
+    flips about fermions with the 2-cycle), plus the 3-cycle beyond its ring part, X_C = 0 (the single-pair
+    Aharonov-Bohm integral, the contact-contact integral 3/2 + 2 ln 2 and the angle covariance
+    2 ln 2 - pi^2/24 + Li_2(1/4)/4 of its three pairs; docs/perturbative.md, section 4d). Times m_i/m_ref:
+    b_3 of one species scales with its mass in the plane."""
+    return gas.sign[i] * gas.mass[i] / 2
+
+
 def _acts(link: _Link, n) -> bool:
     """Whether the link's parameter can enter b_n at all: an exchange needs two particles of its species."""
     return n[link.i] >= 2 if link.i == link.j else n[link.i] >= 1 and n[link.j] >= 1
@@ -261,6 +272,9 @@ def _second_order(gas: _Gas, p: _Link, q: _Link, n):
             return {x ** 2: Fraction(0)}
         if sum(n) == 2:
             return {x ** 2: _two_body_square(gas, p, n)}
+        if sum(n) == 3 and p.i == p.j:
+            ring, landau = _chain(gas, p, p, n)
+            return {x ** 2: ring + landau + _beyond_the_chains_of_three(gas, p.i)}
         pair = _pair_with_one(gas, p, n)
         if pair is not None and pair[0] is not None:
             ring, landau = _chain(gas, p, p, n)
@@ -316,9 +330,9 @@ def taylor_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int, i
         listed = ", ".join(str(m) for m in missing)
         raise NotSupportedYet(f"second-order Taylor coefficients of b[{','.join(map(str, n))}] in {listed}: "
                               f"not derived ({_HOW}); derived at "
-                              "second order: two-particle b, products |x||y| of two different parameters, products "
-                              "d_ij d_ik of two mutual parameters, and b with two particles of one species and one "
-                              "of another (e_i d_ij; d_ij^2 for equal masses)")
+                              "second order: two-particle b, b_3 of one species, products |x||y| of two different "
+                              "parameters, products d_ij d_ik of two mutual parameters, and b with two particles of "
+                              "one species and one of another (e_i d_ij; d_ij^2 for equal masses)")
     label = "_".join(map(str, n))
     return {m: (sympy.Symbol(f"t_b_{label}__{m}") if v is None else sympy.Rational(v.numerator, v.denominator))
             for m, v in out.items()}
