@@ -188,9 +188,9 @@ def test_second_order_products_of_mutual_parameters_three_species():
     assert b[sympy.Abs(e) * sympy.Abs(d)] != 0 and b[e * d].is_Symbol and b[d ** 2].is_Symbol
     with pytest.raises(NotSupportedYet, match=r"b\[2,2\] in d\*e, d\*\*2"):
         taylor_coefficients([Species(e), Species(None)], {(0, 1): d}, (2, 2), "boson", 2)
-    # unequal masses: e*d is derived for b[2,1], the square is not
-    b = taylor_coefficients([Species(e, 2), Species(None)], {(0, 1): d}, (2, 1), "boson", 2, unknown="name")
-    assert b[d ** 2].is_Symbol and b[e * d].is_Rational
+    # unequal masses: e*d and the square are derived for b[2,1] (sections 4c, 4e)
+    b = taylor_coefficients([Species(e, 2), Species(None)], {(0, 1): d}, (2, 1), "boson", 2)
+    assert b[d ** 2].is_Rational and b[e * d].is_Rational
 
 
 @pytest.mark.parametrize("about", [("boson", "boson", "boson"), ("boson", "boson", "fermion")])
@@ -566,3 +566,97 @@ def test_pair_with_one_cluster_square_against_the_loop_monte_carlo():
     assert derived == R(3, 4)
     assert abs(family.value + d_ / 2 - float(derived) * d_ ** 2) < (0.08 + 4 * error) * d_ ** 2, (c2, error)
     assert c2 - 4 * error > 0.66, (c2, error)       # rejects 0.64, the second-moment value at this d
+
+
+# ------------------------------------------------------------------------------------- section 4e
+
+
+def _chord_closed_square(m_i, m_j):
+    """d^2 coefficient of the cluster of the 2-cycle of species i (mass m_i) with the loop of species j
+    (mass m_j), e = 0, by the chord-closed pair decomposition of docs/perturbative.md, section 4e (scipy
+    quadratures; units hbar = beta = m_ref = 1, D = 1/m per component and unit time):
+    K_2 = (m_i m_j/(8 pi)) (2 G_2 + Lambda + 2 pi T), with G_k the alpha^k part of one chord-closed pair
+    (the Aharonov-Bohm bridge times the chord's phase: only Schlaefli's remainder survives), Lambda the
+    contact-contact integral and T = E of the double line integral of ln|gamma_1 - gamma_2| (Gaussian
+    calculus, with the equal-time term of the shared loop)."""
+    from scipy import integrate
+    from test_three_cycle import _laplace_x_k0
+
+    d_i, d_j = 1 / m_i, 1 / m_j
+    d_rel, v_gap = d_i + d_j, d_i / 2      # relative diffusion; variance of the 2-cycle's gap S(1) - S(0)
+    a = 1 / (2 * v_gap)
+
+    def single(order):
+        def f(t, p):
+            b = (np.cosh(t) + np.cos(p)) / d_rel - np.cos(p) / v_gap
+            h = -1.0 if order == 1 else -(p * np.sin(p) - t * np.sinh(t)) / (np.cosh(t) + np.cos(p))
+            return _laplace_x_k0(b / a) / a ** 2 * h
+        return 2 * integrate.dblquad(f, 0, np.pi, 0, 50, epsabs=1e-11, epsrel=1e-10)[0] / v_gap
+
+    def gamma(h, period):
+        h = abs(h) % period
+        return h * (period - h) / period
+
+    def cov(x, y):      # per-component covariance of two balanced combinations [(coefficient, time)] of R
+        return sum(cx * cy * -0.5 * (d_i * gamma(tx - ty, 2.0) + d_j * gamma(tx - ty, 1.0)) for cx, tx in x for cy, ty in y)
+
+    def var(s, t):
+        return cov([(1, s), (-1, t)], [(1, s), (-1, t)])
+    step = 1e-6
+
+    def increment(s):
+        return [(1 / (2 * step), s + step), (-1 / (2 * step), s - step)]
+
+    def part(x, y, u):
+        vu = cov(u, u)
+        return math.log(vu) * cov(x, y) + cov(x, u) * cov(y, u) / vu
+
+    def path_path(t, s):
+        kx = (var(s + step, t) - var(s - step, t)) / (4 * step)
+        ky = -(var(s, t + step) - var(s, t - step)) / (4 * step)
+        vu = var(s, t)
+        return math.log(vu) * (-d_i / 2 - d_j) + kx * ky / vu
+    gap = [(1, 1.0), (-1, 0.0)]
+    t_pp = (integrate.dblquad(path_path, 0, 1, 1, 2, epsabs=1e-9)[0]
+            + d_j * integrate.quad(lambda s: math.log(var(s, s + 1)), 0, 1)[0])       # equal-time term
+    t_pc = integrate.dblquad(lambda l, s: part(increment(s), gap, [(1, s), (-1, 0.0), (-l, 1.0), (l, 0.0)]),
+                             0, 1, 0, 1, epsabs=1e-9)[0]
+    t_cp = integrate.dblquad(lambda l, t: part([(-1, 1.0), (1, 0.0)], increment(t), [(1, 1.0), (-l, 1.0), (l, 0.0), (-1, t)]),
+                             1, 2, 0, 1, epsabs=1e-9)[0]
+    v = cov(gap, gap)
+    t_cc = -v * math.log(v) + 2 * v          # the two chords: int int ln|1 - l - l'| = -3/2
+    lam = (math.pi * d_rel) ** 2 * integrate.dblquad(lambda t, s: 1 / (2 * math.pi * var(s, t)), 0, 1, 1, 2,
+                                                       epsabs=1e-10)[0]
+    first = single(1)
+    assert abs(first + math.pi * d_rel) < 1e-8      # the contact: -pi D whatever the gap's law
+    return m_i * m_j / (8 * math.pi) * (2 * single(2) + lam + 2 * math.pi * (t_pp + t_pc + t_cp + t_cc))
+
+
+def test_chord_closed_pairs_reproduce_b11_and_the_sen_value():
+    """Two checks of the machinery of section 4e before it is used: a closed relative loop (gap 0, the
+    b_{1,1} geometry) has G_2/G_1 = -1, i.e. b_{1,1} = -|d|(1 - |d|) (route R3; Arovas et al. 1985 for the
+    one-species analogue), in closed form (int dt/(1 + cosh t) = 1 = int t sinh t/(1 + cosh t)^2 dt,
+    scipy); and for equal masses the whole cluster gives d^2 = 3/4, the value that Sen's symmetry with the
+    exact b_2 fixes (test above)."""
+    from scipy import integrate
+    g1 = -integrate.quad(lambda t: 1 / (1 + math.cosh(t)), 0, 60)[0]
+    g2 = integrate.quad(lambda t: t * math.sinh(t) / (1 + math.cosh(t)) ** 2, 0, 60)[0]
+    assert abs(g2 / g1 + 1) < 1e-10
+    assert abs(_chord_closed_square(1, 1) - 0.75) < 1e-6
+
+
+@pytest.mark.parametrize("masses", [(2, 1), (1, 3)])
+def test_pair_with_one_square_for_unequal_masses(masses):
+    """d_ij^2 of the 2-cycle + loop cluster for unequal masses: the quadratures of section 4e against the
+    module's m_i/2 + m_j/4, whose limits are the static-impurity results: m_i -> inf, the 2-cycle is one
+    flux 2d, (m_i/4)(-2d(1 - 2d)/2) -> d^2 coefficient m_i/2; m_j -> inf, one static flux d seen by the
+    2-cycle, proportional to -d(1 - d) -> m_j/4 (Comtet, Georgelin, Ouvry 1989 for the flux law). b_{2,1}
+    adds the chains; about fermions the cluster changes sign."""
+    m_i, m_j = masses
+    value = _chord_closed_square(m_i, m_j)
+    assert abs(value - (m_i / 2 + m_j / 4)) < 1e-5, value
+    chains_bose, chains_fermi = (chain_part([Species(e, m_i), Species(None, m_j)], {(0, 1): d}, (2, 1), about)[d ** 2]
+                                 for about in ("boson", "fermion"))
+    for about, sign, chains in (("boson", 1, chains_bose), ("fermion", -1, chains_fermi)):
+        b = taylor_coefficients([Species(e, m_i), Species(None, m_j)], {(0, 1): d}, (2, 1), (about, "boson"), 2)
+        assert b[d ** 2] == chains + sign * (R(m_i, 2) + R(m_j, 4))

@@ -20,7 +20,7 @@ exchange, period 1 for mutual. The derivation is docs/perturbative.md; in short:
   only); monomials that connect no cluster are zero. Squares x^2 and e_i d_ij also get two-loop and
   one-loop clusters: derived for three particles of one species (b_3: the loop + 2-cycle from Sen's
   symmetry, the 3-cycle from its pairs; sections 4b, 4d) and for two particles of one species with one
-  of another (b_{2,1}: e_i d_ij for any masses, d_ij^2 for equal masses; section 4c), otherwise not
+  of another (b_{2,1}: e_i d_ij and d_ij^2 for any masses; sections 4c, 4e), otherwise not
   derived: `NotSupportedYet`, or named unknowns with unknown="name".
 
 Monomials whose sign changes under the mirror image (every parameter -> minus itself; e.g. x,
@@ -231,12 +231,13 @@ def chain_part(species: Sequence[Species], mutual: Mapping[tuple[int, int], symp
 def _pair_with_one(gas: _Gas, link: _Link, n):
     """For b_n with two particles of species i and one of species j (link = the mutual pair {i, j}): the
     second-order coefficients of the cluster of the 2-cycle of species i with the one-particle loop of j
-    (section 4c), as (coefficient of d_ij^2 or None where not derived, coefficient of e_i d_ij); None for
+    (sections 4c, 4e), as (coefficient of d_ij^2, coefficient of e_i d_ij); None for
     any other n. The 2-cycle's sign about fermions flips the whole cluster.
 
     e_i d_ij: -(m_j/m_ref)/4, from E[Theta_S Area(S)] = lambda^2/(2 pi) of the 2-cycle (Gaussian
-    calculus, any masses). d_ij^2: 1/2 - (that) = 3/4 for equal masses (Sen's symmetry applied to the
-    one-species cluster of the same geometry); unequal masses are not derived."""
+    calculus, any masses). d_ij^2: (m_i/2 + m_j/4)/m_ref (section 4e: the relative curve cut into its two
+    pairs, each closed by the chord between its ends; 3/4 for equal masses, as Sen's symmetry gives, and
+    the static limits m_i -> inf, one flux 2 d, and m_j -> inf, one static flux d)."""
     if link.i == link.j:
         return None
     pairs = [(a, b) for a, b in ((link.i, link.j), (link.j, link.i)) if n[a] == 2 and n[b] == 1]
@@ -244,8 +245,7 @@ def _pair_with_one(gas: _Gas, link: _Link, n):
         return None
     i, j = pairs[0]
     sign = gas.sign[i]
-    square = sign * Fraction(3, 4) * gas.mass[i] if gas.mass[i] == gas.mass[j] else None
-    return square, -sign * gas.mass[j] / 4
+    return sign * (gas.mass[i] / 2 + gas.mass[j] / 4), -sign * gas.mass[j] / 4
 
 
 def _beyond_the_chains_of_three(gas: _Gas, i: int) -> Fraction:
@@ -276,7 +276,7 @@ def _second_order(gas: _Gas, p: _Link, q: _Link, n):
             ring, landau = _chain(gas, p, p, n)
             return {x ** 2: ring + landau + _beyond_the_chains_of_three(gas, p.i)}
         pair = _pair_with_one(gas, p, n)
-        if pair is not None and pair[0] is not None:
+        if pair is not None:
             ring, landau = _chain(gas, p, p, n)
             return {x ** 2: ring + landau + pair[0]}
         return {x ** 2: None}
@@ -332,7 +332,7 @@ def taylor_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int, i
                               f"not derived ({_HOW}); derived at "
                               "second order: two-particle b, b_3 of one species, products |x||y| of two different "
                               "parameters, products d_ij d_ik of two mutual parameters, and b with two particles of "
-                              "one species and one of another (e_i d_ij; d_ij^2 for equal masses)")
+                              "one species and one of another")
     label = "_".join(map(str, n))
     return {m: (sympy.Symbol(f"t_b_{label}__{m}") if v is None else sympy.Rational(v.numerator, v.denominator))
             for m, v in out.items()}
