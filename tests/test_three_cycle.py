@@ -19,6 +19,8 @@ is the ring part alone (X_C = 0), which with the rest of b_3 gives the published
 (Myrheim & Olaussen, Phys. Lett. B 299 (1993) 267).
 """
 import math
+import warnings
+from itertools import combinations
 
 import mpmath
 import numpy as np
@@ -193,3 +195,99 @@ def test_b3_scales_with_the_mass_in_the_plane(mass):
     unit = taylor_coefficients([Species(e)], {}, (3,), "boson", 2)
     heavy = taylor_coefficients([Species(e, mass)], {}, (3,), "boson", 2)
     assert all(heavy[m] == mass * unit[m] for m in unit)
+
+
+# ------------------------------------------------------------------------------------- every k-cycle
+
+
+def _k_cycle_orders(k, tol=1e-9):
+    """(first, second)-order coefficients of the k-cycle cluster (1/k^2) E[e^{i alpha Theta}] by the pair
+    decomposition of docs/perturbative.md, section 4d, for any k (pairs (a, b) of the k strands; their
+    relative vectors X(s + a) - X(s + b), s in [0, 1], on a loop of duration k):
+    single pairs exactly (the Aharonov-Bohm kernel with the Gaussian law of the pair's end points, in the
+    Schlaefli form), pairs of pairs by Lambda_pq - C_pq with the Gaussian-calculus angle covariance and its
+    equal-time terms (strands shared at the same physical time)."""
+    def gam(h):                       # the loop's variogram, |h| < k
+        return abs(h) - h * h / k
+
+    def dgam(h):
+        return math.copysign(1.0, h) - 2 * h / k
+
+    def cov(p, s, q, t):
+        (a, b), (c, d) = p, q
+        return -0.5 * (gam(s + a - t - c) - gam(s + a - t - d) - gam(s + b - t - c) + gam(s + b - t - d))
+
+    def cov_s(p, s, q, t):            # d/ds; every term depends on s - t, so d/dt = -d/ds
+        (a, b), (c, d) = p, q
+        return -0.5 * (dgam(s + a - t - c) - dgam(s + a - t - d) - dgam(s + b - t - c) + dgam(s + b - t - d))
+
+    def single(p):
+        v, c = cov(p, 0, p, 0), cov(p, 0, p, 1)
+        det = v * v - c * c
+        a = v / (2 * det)
+        weight = 1 / (math.pi * det)          # 2 (half range in phi) / (2 pi det)
+
+        def laplace(t, phi):
+            return _laplace_x_k0(((np.cosh(t) + np.cos(phi)) / 2 - (c / det) * np.cos(phi)) / a) / a ** 2
+        first = -weight * integrate.dblquad(laplace, 0, np.pi, 0, 50, epsabs=tol, epsrel=tol)[0]
+        tail = weight * integrate.dblquad(lambda t, phi: laplace(t, phi) * t * np.sinh(t) / (np.cosh(t) + np.cos(phi)),
+                                          0, np.pi, 0, 50, epsabs=tol, epsrel=tol)[0]
+        angle_law = lambda phi: weight * _laplace_x_k0(-(c / det) * np.cos(phi) / a) / a ** 2   # noqa: E731
+        assert abs(integrate.quad(angle_law, 0, np.pi)[0] - 1) < 1e-8
+        assert abs(first + 1 / v) < 1e-6          # the contact: -2 pi times the density of the pair at 0
+        return first, tail - 0.5 * integrate.quad(lambda phi: phi * phi * angle_law(phi), 0, np.pi, epsabs=tol)[0]
+
+    def expectation_ab(c, v_a, v_b):           # E[A.B/(|A|^2 |B|^2)]
+        rho2 = c * c / (v_a * v_b)
+        return c / (2 * v_a * v_b) if rho2 < 1e-14 else -math.log1p(-rho2) * c / (2 * rho2 * v_a * v_b)
+
+    def two_pairs(p, q):
+        v_a, v_b = cov(p, 0, p, 0), cov(q, 0, q, 0)
+        lam = integrate.dblquad(lambda t, s: 1 / (v_a * v_b - cov(p, s, q, t) ** 2), 0, 1, 0, 1, epsabs=tol)[0]
+
+        def g(t, s):
+            c, c_s = cov(p, s, q, t), cov_s(p, s, q, t)
+            c_t = -c_s
+            det = v_a * v_b - c * c
+            rho2 = c * c / (v_a * v_b)
+            sin2 = 0.5 if rho2 < 1e-14 else -(1 - rho2) * math.log1p(-rho2) / (2 * rho2)
+            return -(v_a * v_b * c_s * c_t / det ** 2) * sin2 + (c * c_s * c_t / det) * expectation_ab(c, v_a, v_b)
+        angle = integrate.dblquad(g, 0, 1, 0, 1, epsabs=tol)[0]
+        (a, b), (c, d) = p, q
+        shared = (a == c) - (a == d) - (b == c) + (b == d)
+        if shared:
+            angle += shared * integrate.quad(lambda s: expectation_ab(cov(p, s, q, s), v_a, v_b), 0, 1, epsabs=tol)[0]
+        return lam - angle
+
+    pairs = list(combinations(range(k), 2))
+    with warnings.catch_warnings():
+        # the corners where two pairs become the same vector are integrable log singularities: quad
+        # reports its subdivision limit there; the tests bound the error by comparing with exact values
+        warnings.simplefilter("ignore", integrate.IntegrationWarning)
+        singles = [single(p) for p in pairs]
+        first = sum(f for f, _ in singles)
+        second = sum(s for _, s in singles) + sum(two_pairs(p, q) for p, q in combinations(pairs, 2))
+    return first / k ** 2, second / k ** 2
+
+
+def _fock_squared_ring(k):
+    """The F^2 part of the one-species ring (1/2) (H + F)^2 k (docs/perturbative.md (4.1), H = F = |alpha| r,
+    r = -ln(1 - z), k = z/(1 - z)) in b_k: two Fock tadpoles merge their loops with the central one into one
+    k-cycle. Computed here with sympy series, independently of the module."""
+    z = sympy.Symbol("z")
+    return sympy.Rational(1, 2) * sympy.series(sympy.log(1 - z) ** 2 * z / (1 - z), z, 0, k + 1).removeO().coeff(z, k)
+
+
+@pytest.mark.parametrize("k", [3, 4])
+def test_every_k_cycle_carries_only_its_fock_ring_part(k):
+    """The k-cycle alone at second order is its F^2 ring part, (1/2)[z^k] ln^2(1 - z) z/(1 - z): 1/2 for
+    k = 3 (and the engine agrees with the closed forms above), 1 for k = 4; the quadratures of section 4d
+    give 1.4583333 = 35/24 and 1.875 = 15/8 for k = 5, 6 as well (docs; too slow for the suite). First
+    order: the k-cycle's share of b_k^(1), the Fock half (1/2)[z^k] ln^2(1 - z) of the contact (section 3)."""
+    first, second = _k_cycle_orders(k, tol=1e-8)
+    z = sympy.Symbol("z")
+    fock_half = sympy.Rational(1, 2) * sympy.series(sympy.log(1 - z) ** 2, z, 0, k + 1).removeO().coeff(z, k)
+    assert abs(first + float(fock_half)) < 1e-7
+    assert abs(second - float(_fock_squared_ring(k))) < 2e-5, second
+    if k == 3:
+        assert abs(second - (CLOSED_S + CLOSED_LAMBDA - CLOSED_C) / 3) < 2e-5
