@@ -30,16 +30,3 @@ def test_cli_refusal_has_caret_and_exit_code_2(cli):
     assert result.returncode == 2
     assert "flux tubes thread the plane" in result.stderr and "^" in result.stderr
     assert "Traceback" not in result.stderr
-
-
-@pytest.mark.parametrize("wanted", ["a[3]", "a[2]", "b[1]"])
-def test_sampling_with_tubes_is_not_supported_yet_at_the_sample_line(wanted):
-    """`sample` of the tube pieces is not wired yet: refused at the sample line, naming the pieces and the
-    Python entry points that give their numbers (a[2] and b[1] contain tube pieces here: not "exact")."""
-    with pytest.raises(clusterexp.NotSupportedYet) as caught:
-        clusterexp.derive("dimension 2 parameter n species A exchange 1/2 clusters pairphase tubes flux 1/2 coverage n\n"
-                          f"sample {wanted} at n = 1/10")
-    message = str(caught.value)
-    assert "not supported yet: sampling with flux tubes" in message and "T_two_tubes" in message
-    assert "clusterexp.loops.tube_estimates" in message
-    assert str(caught.value.span).endswith("2:1")

@@ -39,12 +39,14 @@ def text_lines(numbers: SampledNumbers) -> list[str]:
         lines += ["", f"sampled values ({METHOD}), `sample` at line {s.span.line}, seed {s.seed}, "
                       f"{_budget_text(statement)}:"]
         for run in statement.runs:
+            again = (f"alone `sample {run.label} ... with {run.samples} loops seed {run.seed}` repeats it" if run.index
+                     else f"this statement with `with {s.loops or run.samples} loops seed {run.seed}` repeats it")
             lines.append(f"  {run.label}: {run.samples} loops in {run.rounds} rounds{_rounding_text(s, run)}, "
-                         f"{run.slices} slices; alone `sample {run.label} ... with {run.samples} loops seed "
-                         f"{run.seed}` repeats it")
+                         f"{run.slices} slices; {again}")
         for point in statement.points:
             where = f"at {_point_text(point.point)}: " if point.point else ""
-            lines.append("  " + where + "; ".join(f"{v.label} = {plus_minus(v.value, v.error)}" for v in point.values))
+            lines.append("  " + where + "; ".join(f"{v.label} = {plus_minus(v.value, v.error)}"
+                                                  + (f" + {v.remainder}" if v.remainder else "") for v in point.values))
     return lines
 
 
@@ -66,8 +68,11 @@ def latex_block(numbers: SampledNumbers, system) -> str:
                               for name, value in point.point)
             for v in point.values:
                 letter = "b" if v.kind == "cluster" else "a"
-                lhs = f"{letter}_{{{latex_subscript(v.index, labels)}}}" + (rf"\big|_{{{where}}}" if where else "")
-                rows.append(f"  {lhs} &= " + plus_minus(v.value, v.error, PLUS_MINUS_LATEX))
+                lhs = (f"{letter}_{{{latex_subscript(v.index, labels)}}}" if v.index and "[" not in v.label[2:]
+                       else rf"\mathrm{{{v.label.replace('_', chr(92) + '_')}}}")   # tube pieces, terms in the coverage
+                lhs += rf"\big|_{{{where}}}" if where else ""
+                rows.append(f"  {lhs} &= " + plus_minus(v.value, v.error, PLUS_MINUS_LATEX)
+                            + (f" + {v.remainder}" if v.remainder else ""))
     body = " \\\\\n".join(rows)
     return f"% sampled values: {METHOD}\n\\begin{{align*}}\n{body}\n\\end{{align*}}\n"
 
@@ -91,7 +96,8 @@ def json_items(numbers: SampledNumbers) -> list[dict]:
                      for r in statement.runs],
             "points": [{"at": {name: sympy.sstr(value) for name, value in p.point},
                         "values": [{"coefficient": v.label, "kind": v.kind, "index": list(v.index),
-                                    **dict(zip(("value", "error"), settled(v.value, v.error)))} for v in p.values]}
+                                    **dict(zip(("value", "error"), settled(v.value, v.error))),
+                                    **({"remainder": v.remainder} if v.remainder else {})} for v in p.values]}
                        for p in statement.points],
         })
     return out

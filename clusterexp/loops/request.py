@@ -113,13 +113,11 @@ def _sampling(builder, statement: _Statement, source, names, order) -> Sampling:
     if builder.dimension != 2:
         raise InputError(f"the Brownian-loop estimator works in the plane only (`dimension 2`), not in dimension "
                          f"{builder.dimension}; {SUPPORTED}", span)
-    if builder.tubes is not None:
-        from ..errors import NotSupportedYet
-        raise NotSupportedYet("sampling with flux tubes in the input language: the tube pieces T_two_tubes and "
-                              "B_anyon_tube_<species> stay named in the results; their numbers come from Python "
-                              "(clusterexp.loops.tube_estimates, composed by clusterexp.loops.tube_virial.compose; "
-                              "docs/tubes.md); three tubes or more than two mobile particles with a tube are not "
-                              "sampled at all; " + SUPPORTED, span)
+    if builder.tubes is not None:   # the named tube pieces (loops/tube_sampling.py)
+        from .tube_sampling import tube_request
+        coefficients, needed, least, runs = tube_request(builder, statement, names)
+        return _budgeted(builder, statement, coefficients, *_parameter_values(builder, statement, coefficients, needed),
+                         least, runs)
     refs = [c for c in statement.tree.children if c.data == "coef_ref"]
     coefficients = [_coefficient(builder, ref, names) for ref in refs]
     from ..routes import REGIMES
@@ -145,6 +143,14 @@ def _sampling(builder, statement: _Statement, source, names, order) -> Sampling:
                     raise InputError(f"b{bracket_label(index)} is both given in the pairphase block and sampled "
                                      "here; keep one", ref_span)
     fixed, axes = _parameter_values(builder, statement, coefficients)
+    least = max(2 * round_samples(index) for _, index, _ in coefficients)
+    return _budgeted(builder, statement, coefficients, fixed, axes, least, len({index for _, index, _ in coefficients}))
+
+
+def _budgeted(builder, statement: _Statement, coefficients, fixed, axes, least: int, runs: int) -> Sampling:
+    """The statement's seed, budget (`within`, `target`, `with N loops`: at least `least` loops, `runs`
+    estimator runs) and files, checked, with the validated coefficients and points."""
+    span = statement.span
     seed = int(str(statement.clauses["seed"].children[0])) if "seed" in statement.clauses else 0
     if seed >= 2 ** 63:
         raise InputError("the seed must be below 2^63", statement.clause_span("seed"))
@@ -153,14 +159,12 @@ def _sampling(builder, statement: _Statement, source, names, order) -> Sampling:
     loops = None
     if "loops" in statement.clauses:
         loops = int(str(statement.clauses["loops"].children[0]))
-        least = max(2 * round_samples(index) for _, index, _ in coefficients)
         if loops < least:
             raise InputError(f"{loops} loops is less than two rounds of the estimator (an error bar needs two); "
                              f"ask for at least {least}", statement.clause_span("loops"))
     if time_cap is None and loops is None:
         time_cap = DEFAULT_TIME_CAP
     if loops is not None and time_cap is None:
-        runs = len({index for _, index, _ in coefficients})
         points = math.prod(len(values) for _, values in axes) if axes else 1
         seconds = loop_seconds(runs, loops, points)
         if seconds > MAX_UNTIMED_SECONDS:
@@ -229,9 +233,10 @@ def _check_species(builder, index, names, ref_span):
                          f"{species[other].name}); nothing to sample", ref_span)
 
 
-def _parameter_values(builder, statement, coefficients):
+def _parameter_values(builder, statement, coefficients, needed=None):
     """(fixed, axes) of `at` and `over`, checked against the declared parameters and what the
-    sampled coefficients depend on."""
+    sampled coefficients depend on (`needed`: {name: (message, span) if a value is required, None if
+    allowed}; by default the statistics parameters of third-order b's)."""
     values: dict[str, tuple] = {}
     fixed, axes = [], []
     for clause_name in ("at", "over"):
@@ -259,8 +264,12 @@ def _parameter_values(builder, statement, coefficients):
     if points > MAX_POINTS:
         raise InputError(f"the grid has {points} points; at most {MAX_POINTS} in one statement",
                          statement.clause_span("over"))
-    needed: dict[str, str] = {}
-    for _, index, ref_span in coefficients:
+    given = needed is not None
+    for name, missing in (needed or {}).items():
+        if missing is not None and name not in values:
+            raise InputError(*missing)
+    needed = needed if given else {}
+    for _, index, ref_span in (() if given else coefficients):
         for role, expr in _builder_statistics(builder, index).items():
             for symbol in sorted(expr.free_symbols, key=lambda s: s.name):
                 needed.setdefault(symbol.name, role)

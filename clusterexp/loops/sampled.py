@@ -14,7 +14,6 @@ and `sample b[..] ... with N loops seed S` alone reproduces a run exactly.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 from typing import Callable
 
 import numpy as np
@@ -26,74 +25,10 @@ from ..naming import bracket_label, cluster_symbol
 from .estimator import DEFAULT_UNIT, scan_third_order
 from .request import estimator_kind, grid_points, statistics_of
 from .runner import LoopsError, TargetNotReachable
+from .sampled_records import (SampledCluster, SampledNumbers, SampledPoint, SampledRun,  # noqa: F401 (re-exported)
+                              SampledStatement, SampledValue, label as _label)
 
 WORKERS = 2
-
-
-@dataclass(frozen=True)
-class SampledRun:
-    """One estimator run: the b it estimates, its budget as used, and where to reproduce it."""
-
-    index: tuple[int, ...]
-    label: str            # "b[2,1]"
-    kind: str             # estimator kind: "identical" or "pair_plus_one"
-    seed: int             # the statement's seed
-    run_seed: int         # the estimator seed derived from (seed, index)
-    samples: int
-    rounds: int
-    seconds: float
-    slices: int
-
-
-@dataclass(frozen=True)
-class SampledValue:
-    label: str            # "a[3]"
-    kind: str
-    index: tuple[int, ...]
-    value: float
-    error: float
-
-
-@dataclass(frozen=True)
-class SampledPoint:
-    point: tuple[tuple[str, sympy.Expr], ...]     # parameter name -> exact value
-    values: tuple[SampledValue, ...]
-
-
-@dataclass(frozen=True)
-class SampledCluster:
-    """The estimate of one sampled b at one point of a statement (reference species' units)."""
-
-    index: tuple[int, ...]
-    point: tuple[tuple[sympy.Symbol, sympy.Expr], ...]    # every parameter of the statement's point
-    value: float
-    error: float
-
-
-@dataclass(frozen=True)
-class SampledStatement:
-    sampling: Sampling
-    runs: tuple[SampledRun, ...]
-    points: tuple[SampledPoint, ...]
-    clusters: tuple[SampledCluster, ...] = ()    # what claims, values, tables and figures reuse
-
-    @property
-    def labels(self) -> list[str]:
-        return _labels(self.sampling)
-
-    @property
-    def parameter_names(self) -> list[str]:
-        return [name for name, _ in self.points[0].point] if self.points else []
-
-
-@dataclass(frozen=True)
-class SampledNumbers:
-    """The numbers of every `sample` statement of a derivation, in statement order."""
-
-    statements: tuple[SampledStatement, ...]
-
-    def __iter__(self):
-        return iter(self.statements)
 
 
 def run_seed(seed: int, index: tuple[int, ...]) -> int:
@@ -112,6 +47,9 @@ def _mass_ratio(system: System, index) -> float:
 
 
 def _statement(system: System, sampling: Sampling, exact) -> SampledStatement:
+    if system.tubes is not None:   # the named tube pieces (loops/tube_sampling.py)
+        from .tube_sampling import tube_statement
+        return tube_statement(system, sampling, exact, grid_points(sampling))
     points = grid_points(sampling)
     names = [s.name for s in _ordered_symbols(sampling)]
     b_indices = list(dict.fromkeys(index for _, index, _ in sampling.coefficients))
@@ -193,14 +131,6 @@ def _run(system: System, sampling: Sampling, index, points, exprs, runs: int):
     record = SampledRun(index, label, kind, sampling.seed, seed, first.samples, first.rounds, first.seconds,
                         first.slices)
     return [by_params[p] for p in params], record
-
-
-def _label(kind: str, index) -> str:
-    return f"{'b' if kind == 'cluster' else 'a'}{bracket_label(index)}"
-
-
-def _labels(sampling: Sampling) -> list[str]:
-    return [_label(k, n) for k, n, _ in sampling.coefficients]
 
 
 def _cluster_target(sampling: Sampling, index, points, exprs, ratio: float) -> float | None:

@@ -25,7 +25,10 @@ DEFAULT_ERRORS = 3
 
 
 def sampled_symbols(system) -> dict[sympy.Symbol, tuple]:
-    """{symbol of a b some `sample` statement estimates: its multi-index}."""
+    """{symbol of a b some `sample` statement estimates: its multi-index} (among tubes: {piece: piece})."""
+    if system.tubes is not None:   # the named tube pieces (loops/tube_sampling.py)
+        from ..loops.tube_sampling import sampled_pieces
+        return sampled_pieces(system)
     return {cluster_symbol(n): n for s in system.samplings for _, n, _ in s.coefficients}
 
 
@@ -39,7 +42,8 @@ def uses_sampled(derivation, expr) -> bool:
 
 def _statistics_key(system, index, point: dict):
     from ..loops.request import statistics_of
-    stats = statistics_of(system.species, system.mutual, index)
+    from ..loops.tube_sampling import piece_statistics
+    stats = piece_statistics(system, index) or statistics_of(system.species, system.mutual, index)
     key = []
     for name in sorted(stats):
         value = sympy.sympify(stats[name]).xreplace(point)
@@ -57,7 +61,8 @@ def _estimates(derivation) -> dict:
     table = {}
     for statement in derivation.sampled:
         for c in statement.clusters:
-            key = (c.index, _statistics_key(derivation.system, c.index, dict(c.point)))
+            which = c.index if c.piece is None else c.piece
+            key = (which, _statistics_key(derivation.system, which, dict(c.point)))
             if key not in table or c.error < table[key][1]:
                 table[key] = (c.value, c.error)
     derivation.__dict__["_sampled_estimates"] = table
@@ -81,6 +86,9 @@ def sampled_value(derivation, expr, point: dict, span) -> tuple[float, float]:
         key = _statistics_key(system, index, point)
         if key is None or (index, key) not in table:
             where = _point_text(point) or "this point"
+            if isinstance(index, sympy.Symbol):   # a tube piece
+                from ..loops.tube_sampling import missing_text
+                raise InputError(missing_text(index, where), span)
             raise InputError(f"b{bracket_label(index)} has no closed form and no `sample` statement of this input "
                              f"estimates it at {where}; add one there, e.g. `sample b{bracket_label(index)} at "
                              f"{_point_text(point)}` (or put the point into a `sample ... over` list)", span)
@@ -117,6 +125,9 @@ def sample_points(derivation, expr) -> list[dict]:
 def check_sampled_claim(derivation, claim, claimed, derived, label, limits) -> CheckResult | None:
     """The claim against the Monte Carlo numbers, or None when its coefficient holds no sampled b."""
     errors = getattr(claim, "errors", None)
+    if errors is not None and derivation.system.tubes is not None and uses_sampled(derivation, derived):
+        from ..loops.tube_sampling import refuse_claim_within_errors
+        refuse_claim_within_errors(claim)
     if limits:
         if errors is not None:
             raise InputError("a truncated claim (O(...)) is compared term by term, not with Monte Carlo numbers; "
