@@ -127,8 +127,6 @@ def test_kinked_expansion_needs_a_side(cli):
 @pytest.mark.parametrize("text, message", [
     ("dimension 3 species A clusters pairphase", "pair phases are a property of the plane"),
     ("dimension 2 species A clusters pairphase { b[2] = 1 }", "the two-body coefficients of pair phases are exact"),
-    ("dimension 2 species A bose species B fermi mutual A B = 1/3 tubes flux 1/3 coverage 1/10 clusters pairphase",
-     "not supported yet"),
     ("dimension 2 species A tubes flux 1/3 coverage 1/10 clusters ideal", "flux tubes are used with"),
     ("dimension 2 species A exchange sqrt(-1) clusters pairphase", "the exchange parameter must be real"),
     ("dimension 2 species A species B mutual A A = 1/2 clusters pairphase", "a mutual parameter needs two distinct"),

@@ -130,14 +130,6 @@ def test_every_format_describes_the_tube_pieces():
     assert r"T_{\mathrm{2\,tubes}}" in document
 
 
-def test_two_braiding_species_with_tubes_not_supported_yet_at_the_mutual_line(cli):
-    run = cli("run", "--no-files", "-e", "dimension 2 parameter n species A bose species B fermi\n"
-              "mutual A B = 1/3\ntubes flux 1/2 coverage n clusters pairphase")
-    assert run.returncode == 2 and "Traceback" not in run.stderr
-    assert run.stderr.startswith("<command line>:2:8: error: not supported yet")
-    assert "species A and B braid" in run.stderr and "clusterexp.loops.tube_estimates" in run.stderr
-
-
 def test_language_coefficients_compose_with_sampled_pieces_like_the_python_composition():
     """The language's exact a_2 and tube_virial's (written separately for the Python route, checked there
     against an independent inversion) agree, and `compose` carries a sampled T2 with its error into

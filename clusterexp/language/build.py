@@ -314,7 +314,7 @@ class _Builder:
         name = "coverage" if self.tubes.value is None else f"{TUBE_COVERAGE} = {sympy.sstr(coverage)}"
         self.warnings.append((f"flux tubes enter to a finite order in their coverage (independent tubes): results "
                               f"carry O({'coverage' if self.tubes.value is None else TUBE_COVERAGE}^k), k = 3 with "
-                              "bose/fermi mobile species, 2 with anyonic ones"
+                              "bose/fermi mobile species that do not braid, 2 with anyonic or braiding ones"
                               + ("" if self.tubes.value is None else f", {name}"), self.span(tree)))
 
     def _expand(self, tree):

@@ -3,20 +3,24 @@
     tubes flux 1/2 coverage n
     sample a[2] at n = 1/10 seed 7 with 20000 loops        # bose/fermi: T_two_tubes
     sample b[2], a[2] over alpha = [0, 1/2] seed 7          # anyons: B_anyon_tube_A
+    sample a[1,1] over nu = [1/4, 1/2] seed 7               # braiding species A, B: B_braid_tube_A_B
 
 Among tubes the exact coefficients of `clusters pairphase` hold two named pieces (routes/tube_pieces.py,
 docs/tubes.md): T_two_tubes (one mobile loop and two tubes; in every b_l of a bose/fermi species at
-n^2) and B_anyon_tube_<species> (two identical anyons and one tube; in b_2 at n^1).  A `sample`
+n^2), B_anyon_tube_<species> (two identical anyons and one tube; in b_2 at n^1) and
+B_braid_tube_<A>_<B> (two braiding particles of equal masses and one tube; in b_11 at n^1).  A `sample`
 statement estimates the pieces its coefficients contain with `tube_estimates` (T2 at the point (gamma,
-gamma), B at (alpha, gamma)) and composes them into the coefficients with the first-order error
-propagation of `tube_virial.compose` (exact: the coefficients are linear in each piece).  The truncation
+gamma), B at (alpha, gamma), the braid piece with kind="distinct" at (alpha_AB, gamma, gamma)) and
+composes them into the coefficients with the first-order error propagation of `tube_virial.compose`
+(exact: the coefficients are linear in each piece).  The truncation
 in the coverage stays: with the coverage given a value (`at n = ...`, or declared as a number) a
 coefficient prints as one number + O(n^k); with the coverage left free, as its terms n^0 ... n^(k-1),
 each a number with its error.
 
 Seeds: piece P of a statement with seed S runs with the estimator seed SeedSequence([S, 2, P's number])
-(T_two_tubes 1, B_anyon_tube of the species with index i: 2 + i), so every piece has its own random
-numbers and the statement alone repeats them.
+(T_two_tubes 1, B_anyon_tube of the species with index i: 2 + i), and the braid piece of the species
+with indices i < j SeedSequence([S, 3, i, j]), so every piece has its own random numbers and the
+statement alone repeats them.
 
 Build-time validation (`tube_request`) is called by `request._sampling`; the run (`tube_statement`) by
 `sampled._statement`.  This module imports neither of them (no import cycle).
@@ -28,7 +32,7 @@ import sympy
 
 from ..errors import InputError, NotSupportedYet
 from ..naming import bracket_label
-from ..routes.tube_pieces import anyon_tube_symbol, tube_piece, two_tubes_symbol
+from ..routes.tube_pieces import anyon_tube_symbol, braid_tube_symbol, tube_piece, two_tubes_symbol
 from .estimator import Estimate
 from .runner import LoopsError, TargetNotReachable
 from .sampled_records import SampledCluster, SampledPoint, SampledRun, SampledStatement, SampledValue, label
@@ -38,8 +42,9 @@ from .tube_virial import compose
 WORKERS = 2
 SUPPORTED = ("supported with flux tubes: `sample` of b[l], a[l] (l >= 1 for b, l >= 2 for a) of a bose or fermi "
              "species (the piece T_two_tubes: one mobile particle and two tubes) and of b[2], a[2] of an anyonic "
-             "species (the piece B_anyon_tube_<species>: two anyons and one tube), one species per coefficient")
-_FAMILIES = {"two_tubes": 1, "anyons_tube": 2}     # estimator families per round: loops in one round / DEFAULT_BATCH
+             "species (the piece B_anyon_tube_<species>: two anyons and one tube), and of b[1,1], a[1,1] of two "
+             "braiding species of equal masses (the piece B_braid_tube_<A>_<B>: two braiding particles and one tube)")
+_FAMILIES = {"two_tubes": 1, "anyons_tube": 2, "braid_tube": 1}   # families per round: loops per round / DEFAULT_BATCH
 
 
 def _refuse(message: str, span, unsupported: bool = False):
@@ -49,7 +54,7 @@ def _refuse(message: str, span, unsupported: bool = False):
 def tube_request(builder, statement, names: list[str]):
     """The coefficients of a `sample` statement among tubes, checked at their lines: (coefficients,
     needed parameters {name: (message, span) or None when optional}, least loops, estimator runs)."""
-    from ..exact.periods import braids, species_statistics
+    from ..exact.periods import species_statistics
     for clause in ("table", "map"):
         if clause in statement.clauses:
             raise NotSupportedYet(f"`{clause}` files of sampled tube pieces: the numbers are printed (text, LaTeX, "
@@ -66,19 +71,19 @@ def tube_request(builder, statement, names: list[str]):
         index = builder.multi_index(ref, names)
         name = f"{letter}{bracket_label(index)}"
         occupied = [i for i, n in enumerate(index) if n]
-        if len(occupied) > 1:
-            first, second = species[occupied[0]].name, species[occupied[1]].name
-            mutual = next((m.value for m in builder.mutuals if {m.first, m.second} == {first, second}), 0)
-            if braids(mutual, params) is not False:
-                _refuse(f"{name}: two braiding mobile species among tubes (b_11 with one tube) are not a named piece "
-                        "of the input language", ref_span, unsupported=True)
-            _refuse(f"{name} contains no tube piece: species that do not braid have no mixed coefficients (exactly 0)",
-                    ref_span)
-        i = occupied[0]
-        l, mobile = index[i], species[i]
-        if flux.is_integer is True:
+        if flux.is_integer is True and (len(occupied) == 1 or len(occupied) == sum(index) == 2):
             _refuse(f"{name} contains no tube piece: the flux {flux} is an integer, the tubes have no effect "
                     "(period 1)", ref_span)
+        if len(occupied) > 1:
+            piece = _braid_request(builder, index, name, ref_span)
+            pieces[piece] = None
+            first, second = (species[k].name for k in occupied)
+            mutual = next(m.value for m in builder.mutuals if {m.first, m.second} == {first, second})
+            _needed(needed, name, piece, [("flux", flux), ("mutual", mutual)], ref_span)
+            coefficients.append(("cluster" if letter == "b" else "virial", index, ref_span))
+            continue
+        i = occupied[0]
+        l, mobile = index[i], species[i]
         ideal = species_statistics(mobile, params) in ("bose", "fermi")
         if ideal and letter == "a" and l == 1:
             _refuse(f"{name} = 1 contains no tube piece", ref_span)
@@ -91,29 +96,63 @@ def tube_request(builder, statement, names: list[str]):
                     "is a many-body piece the loop estimator does not sample", ref_span, unsupported=True)
         piece = two_tubes_symbol() if ideal else anyon_tube_symbol(mobile.name)
         pieces[piece] = None
-        roles = [("flux", flux)] + ([] if ideal else [("exchange", mobile.exchange)])
-        for role, expr in roles:
-            for symbol in sorted(sympy.sympify(expr).free_symbols, key=lambda s: s.name):
-                needed.setdefault(symbol.name, (
-                    f"{name} contains {piece}, a function of the {role} {expr}: give {symbol.name} a value with "
-                    f"`at {symbol.name} = ...` or scan it with `over {symbol.name} = [...]`", ref_span))
+        _needed(needed, name, piece, [("flux", flux)] + ([] if ideal else [("exchange", mobile.exchange)]), ref_span)
         coefficients.append(("cluster" if letter == "b" else "virial", index, ref_span))
-    gas = [s.mass for s in species] + [builder.tubes.coverage] + [m.exchange for m in species]
+    gas = [s.mass for s in species] + [builder.tubes.coverage] + [m.exchange for m in species] \
+        + [m.value for m in builder.mutuals]
     for symbol in set().union(*(sympy.sympify(x).free_symbols for x in gas)):
         needed.setdefault(symbol.name, None)     # allowed: the coverage, masses, other exchange parameters
     per_round = max(DEFAULT_BATCH * _FAMILIES[_family(p)] for p in pieces)
     return coefficients, needed, 2 * per_round, len(pieces)
 
 
+def _needed(needed: dict, name: str, piece, roles, span) -> None:
+    """Every parameter of what the piece depends on needs a value (`at`) or a scan (`over`)."""
+    for role, expr in roles:
+        for symbol in sorted(sympy.sympify(expr).free_symbols, key=lambda s: s.name):
+            needed.setdefault(symbol.name, (
+                f"{name} contains {piece}, a function of the {role} {expr}: give {symbol.name} a value with "
+                f"`at {symbol.name} = ...` or scan it with `over {symbol.name} = [...]`", span))
+
+
+def _braid_request(builder, index, name: str, span) -> sympy.Symbol:
+    """The braid-tube piece a mixed coefficient holds, or its refusal at the coefficient."""
+    from ..exact.periods import braids
+    species = list(builder.species.values())
+    occupied = [k for k, n in enumerate(index) if n]
+    first, second = species[occupied[0]], species[occupied[1]]
+    mutual = next((m.value for m in builder.mutuals if {m.first, m.second} == {first.name, second.name}), 0)
+    if len(occupied) > 2:
+        _refuse(f"{name}: more than two mobile particles with a tube ({len(occupied)} species) is not sampled by the "
+                "loop estimator (a named many-body piece, or exactly 0 where the species do not all braid)", span,
+                unsupported=True)
+    if braids(mutual, builder.by_symbol()) is False:
+        _refuse(f"{name} contains no tube piece: species that do not braid have no mixed coefficients (exactly 0)",
+                span)
+    if sum(index) > 2:
+        _refuse(f"{name}: more than two mobile particles with a tube ({sum(index)} particles of braiding species "
+                f"{first.name}, {second.name} and one tube) is a many-body piece the loop estimator does not sample",
+                span, unsupported=True)
+    if sympy.simplify(first.mass - second.mass) != 0:
+        _refuse(f"{name}: the braid-tube piece of species of different masses ({first.mass} and {second.mass}; it "
+                "depends on their ratio) is not sampled yet: the loop estimator draws two loops of one mass",
+                span, unsupported=True)
+    return braid_tube_symbol(first.name, second.name)
+
+
 def _family(piece: sympy.Symbol) -> str:
-    return "two_tubes" if tube_piece(piece).species is None else "anyons_tube"
+    found = tube_piece(piece)
+    return "braid_tube" if found.pair is not None else "two_tubes" if found.species is None else "anyons_tube"
 
 
 def piece_seed(seed: int, system, piece: sympy.Symbol) -> int:
     """The estimator seed of one piece of a statement (module docstring)."""
-    species = tube_piece(piece).species
-    number = 1 if species is None else 2 + system.species_names.index(species)
-    return int(np.random.SeedSequence([seed, 2, number]).generate_state(1, dtype=np.uint64)[0] >> 1)
+    found = tube_piece(piece)
+    if found.pair is not None:
+        key = [seed, 3, *sorted(system.species_names.index(name) for name in found.pair_of(system))]
+    else:
+        key = [seed, 2, 1 if found.species is None else 2 + system.species_names.index(found.species)]
+    return int(np.random.SeedSequence(key).generate_state(1, dtype=np.uint64)[0] >> 1)
 
 
 def piece_statistics(system, piece: sympy.Symbol) -> dict[str, sympy.Expr] | None:
@@ -131,9 +170,12 @@ def sampled_pieces(system) -> dict[sympy.Symbol, sympy.Symbol]:
     out = {}
     for sampling in system.samplings:
         for _, index, _ in sampling.coefficients:
-            mobile = system.species[next(k for k, n in enumerate(index) if n)]
+            occupied = [k for k, n in enumerate(index) if n]
+            mobile = system.species[occupied[0]]
             ideal = species_statistics(mobile, params) in ("bose", "fermi")
             piece = two_tubes_symbol() if ideal else anyon_tube_symbol(mobile.name)
+            if len(occupied) == 2:
+                piece = braid_tube_symbol(*(system.species_names[k] for k in occupied))
             out[piece] = piece
     return out
 
@@ -215,13 +257,17 @@ def _run(system, sampling, piece, points, exprs, runs: int):
     params = []
     for point in points:
         gamma = float(sympy.sympify(definitions["flux"]).xreplace(point))
-        params.append((gamma, gamma) if family == "two_tubes" else
-                      (float(sympy.sympify(definitions["exchange"]).xreplace(point)), gamma))
+        if family == "braid_tube":   # both particles feel the tubes' flux
+            params.append((float(sympy.sympify(definitions["mutual"]).xreplace(point)), gamma, gamma))
+        else:
+            params.append((gamma, gamma) if family == "two_tubes" else
+                          (float(sympy.sympify(definitions["exchange"]).xreplace(point)), gamma))
     distinct = list(dict.fromkeys(params))
     seed = piece_seed(sampling.seed, system, piece)
     cap = None if sampling.time_cap is None else sampling.time_cap / runs
     target = _piece_target(sampling, piece, points, exprs, system.tubes.coverage)
-    estimate = estimate_two_tubes if family == "two_tubes" else estimate_anyons_tube
+    estimate = {"two_tubes": estimate_two_tubes, "anyons_tube": estimate_anyons_tube,
+                "braid_tube": lambda *args, **kw: estimate_anyons_tube(*args, kind="distinct", **kw)}[family]
     try:
         result = estimate(distinct, samples=sampling.loops, time_cap=cap, target_error=target, seed=seed,
                           workers=WORKERS)
@@ -233,7 +279,7 @@ def _run(system, sampling, piece, points, exprs, runs: int):
                          sampling.clause_span("target")) from None
     except LoopsError as error:
         raise InputError(f"{piece}: {error}", sampling.clause_span("within" if cap else "loops")) from None
-    name = "connected" if family == "two_tubes" else "b2_coverage1"
+    name = {"two_tubes": "connected", "anyons_tube": "b2_coverage1", "braid_tube": "b11_coverage1"}[family]
     by_params = {p: _pair(point.values[name]) for p, point in zip(distinct, result.points)}
     record = SampledRun((), piece.name, family, sampling.seed, seed, result.samples, result.rounds, result.seconds,
                         result.slices)

@@ -26,7 +26,8 @@ import sympy
 
 from ..exact.periods import PeriodicPart, braids, coupled_groups, reduced, species_statistics
 from .base import Clusters, Regime
-from .tube_pieces import anyon_tube_symbol, pieces_of, tube_piece, two_tubes_symbol
+from .tube_pieces import (anyon_tube_symbol, braid_tube_symbol, braiding_pairs, pieces_of, tube_piece,
+                          two_tubes_symbol)
 
 
 def exchange_b2(alpha: sympy.Expr, mass_ratio: sympy.Expr, parameters) -> sympy.Expr:
@@ -92,8 +93,11 @@ def two_body_clusters(system, order: int) -> dict:
             out[n] = sympy.Integer(0)  # species that do not braid with each other: no mixed b
         elif len(occupied) == 2 and sum(n) == 2:
             i, j = occupied
-            out[n] = mutual_b11(system.mutual(system.species_names[i], system.species_names[j]),
-                                (species[i].mass + species[j].mass) / m_ref, params)
+            name_i, name_j = system.species_names[i], system.species_names[j]
+            # two braiding particles and one tube: the sampled piece B_braid_tube_<i>_<j> (docs/tubes.md)
+            tube = 0 if no_tube else tubes.coverage * braid_tube_symbol(name_i, name_j)
+            total = (species[i].mass + species[j].mass) / m_ref
+            out[n] = mutual_b11(system.mutual(name_i, name_j), total, params) + tube
         else:
             out[n] = None
     return out
@@ -102,6 +106,13 @@ def two_body_clusters(system, order: int) -> dict:
 def _anyonic(system) -> bool:
     params = {p.symbol: p for p in system.parameters}
     return any(species_statistics(s, params) not in ("bose", "fermi") for s in system.species)
+
+
+def _first_order_only(system) -> bool:
+    """Among tubes, results stop at the first order in the coverage when a two-body coefficient has a
+    sampled one-tube piece (anyons: b_2; braiding species: b_11), whose coverage-squared term is a
+    four-body piece (two mobile particles and two tubes)."""
+    return _anyonic(system) or bool(braiding_pairs(system))
 
 
 def braiding_relation(system):
@@ -124,9 +135,10 @@ def separates(system, index) -> bool:
 
 ADJECTIVE = {"bose": "bosonic", "fermi": "fermionic"}
 TUBES_SUPPORTED = ("supported in the input language: `tubes flux gamma coverage n` with `clusters pairphase` in "
-                   "`dimension 2` and mobile species that do not braid with each other: bose or fermi species "
-                   "through the coverage squared (the piece T_two_tubes), anyonic species through the first order "
-                   "(the piece B_anyon_tube_<species>)")
+                   "`dimension 2`: bose or fermi species that do not braid through the coverage squared (the piece "
+                   "T_two_tubes), anyonic species through the first order (the piece B_anyon_tube_<species>), two "
+                   "braiding species through the first order (the piece B_braid_tube_<A>_<B> in b_11); more than two "
+                   "mobile particles with a tube stay named many-body pieces")
 
 
 def known_piece(system, index) -> str | None:
@@ -207,6 +219,24 @@ def _real_statistics(builder) -> None:
                              "(a phase e^(i pi alpha) needs real alpha)", span)
 
 
+def _refuse_colliding_pieces(builder) -> None:
+    """Among tubes each braiding pair has the piece B_braid_tube_<first>_<second>; species names with
+    underscores could give two pairs one name (A_B with C, A with B_C): refused at the mutual line."""
+    from ..errors import InputError
+    from .tube_pieces import pair_splits
+    names = list(builder.species)
+    for m in builder.mutuals:
+        if braids(m.value, builder.by_symbol()) is False:
+            continue
+        first, second = sorted((m.first, m.second), key=names.index)
+        splits = pair_splits(names, f"{first}_{second}")
+        if len(splits) > 1:
+            raise InputError(f"species {first} and {second} braid among tubes, and their piece name "
+                             f"{braid_tube_symbol(first, second)} would also name the pair "
+                             f"{' and '.join(next(p for p in splits if p != (first, second)))}: rename a species "
+                             "(fewer underscores)", m.span)
+
+
 class PairPhaseRegime(Regime):
     """`clusters pairphase [{ given pieces }]` with optional `tubes`: exact two-body coefficients on the
     whole real line; many-body pieces named (unknown functions of the statistics parameters) or given,
@@ -243,7 +273,7 @@ class PairPhaseRegime(Regime):
             raise InputError(problem, span)
 
     def check(self, builder, source, names):
-        from ..errors import InputError, NotSupportedYet
+        from ..errors import InputError
         if builder.dimension != 2 and builder.tubes is not None:
             raise InputError(f"flux tubes thread the plane (their Aharonov-Bohm phases are windings): declare "
                              f"`dimension 2`, not {builder.dimension}; {TUBES_SUPPORTED}", builder.tubes.span)
@@ -255,14 +285,8 @@ class PairPhaseRegime(Regime):
             for p in builder.parameters.values():
                 if tube_piece(p.symbol) is not None:   # it would be read as the unknown tube piece
                     raise InputError(f"the parameter name {p.name} is the name of a tube piece here (T_two_tubes, "
-                                     "B_anyon_tube_<species>); choose another name", p.span)
-            braiding = [m for m in builder.mutuals if braids(m.value, builder.by_symbol()) is not False]
-            if braiding:
-                m = braiding[0]
-                raise NotSupportedYet(f"flux tubes with two braiding mobile species (species {m.first} and {m.second} "
-                                      "braid) in the input language: the one-tube term of b_11 (two mobile particles "
-                                      "and one tube) is sampled from Python only (clusterexp.loops.tube_estimates, "
-                                      "docs/tubes.md), not yet a named piece; " + TUBES_SUPPORTED, m.span)
+                                     "B_anyon_tube_<species>, B_braid_tube_<A>_<B>); choose another name", p.span)
+            _refuse_colliding_pieces(builder)
         return source
 
     def check_system(self, system) -> None:
@@ -326,8 +350,9 @@ class PairPhaseRegime(Regime):
         tubes = system.tubes
         if tubes is None:
             return {}
-        # bose/fermi species: every b_l through the coverage squared; anyons: b_2 only through the first order
-        return {tubes.coverage: 3 if not _anyonic(system) else 2}
+        # bose/fermi species: every b_l through the coverage squared; anyons (b_2) and braiding pairs (b_11)
+        # only through the first order
+        return {tubes.coverage: 3 if not _first_order_only(system) else 2}
 
     def known_zero(self, system, index) -> bool:
         return separates(system, index)
@@ -349,6 +374,8 @@ class PairPhaseRegime(Regime):
                          f"({tubes.coverage})^2 T_two_tubes m_ref/(2 m_i)], s = ({tubes.flux}) mod 1"
                          + (f"; an anyonic species gains the same terms in b_(e_i), and ({tubes.coverage}) "
                             "B_anyon_tube_<species> in b_(2 e_i)" if _anyonic(system) else "")
+                         + (f"; two braiding species gain ({tubes.coverage}) B_braid_tube_<A>_<B> in b_(e_A + e_B)"
+                            if braiding_pairs(system) else "")
                          + f"; O({tubes.coverage}^{k})")
             lines += [piece.text(system) for piece in pieces_of(system)]
         return lines
@@ -367,6 +394,7 @@ class PairPhaseRegime(Regime):
                      rf"$(\pm1)^{{l+1}}\frac{{{coverage}}}{{l}}\bigl(-\tfrac{{s(1-s)}}{{2}}\bigr)$, "
                      rf"$s=({flux})\bmod 1$, plus the coverage-squared term below; an anyonic species has these "
                      rf"terms in $b_{{e_i}}$ and its $b_{{2e_i}}$ gains ${coverage}$ times its anyon-tube piece; "
+                     rf"the $b_{{e_i+e_j}}$ of two braiding species gains ${coverage}$ times their braid-tube piece; "
                      rf"$O({coverage}^{k})$. " + " ".join(piece.latex(system) for piece in pieces_of(system)))
             if system.tubes.value is not None:
                 text += (rf" The coverage is declared as ${coverage}={sympy.latex(system.tubes.value)}$; the values "

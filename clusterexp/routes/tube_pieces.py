@@ -14,6 +14,13 @@ gas's ln Xi averaged over the tube positions:
                     not depend on the mass (the one-tube part of Z_2 - Z_1^2/2 is a number, like the
                     one-tube shift of Z_1).  Exactly +-F/2 at the bose/fermi points, F = -s(1 - s)/2,
                     and 0 at integer flux.
+  B_braid_tube_<A>_<B>  the coefficient of n in b_11 of two distinct species A, B with a mutual
+                    parameter: two mobile particles and one tube, both feeling the tubes' flux
+                    (docs/tubes.md, D of part (ii)).  A function of the mutual parameter, the flux and
+                    the mass ratio m_A/m_B (not of m_ref: like the anyon-tube piece, one tube area
+                    integral cancels one thermal area).  Exactly 0 where A and B do not braid (mutual
+                    parameter an integer, period 1: the relative phase is 1 on every pair of loops, and
+                    the one-tube shifts stay in b_10 and b_01 alone) and at integer flux.
 
 Their values are sampled (`clusterexp.loops.tube_estimates`), not derived: in the exact results they
 stay symbols, and `pieces` treats them like the b_n pieces (claims undecided with conditions, series
@@ -28,7 +35,9 @@ import sympy
 
 TWO_TUBES_NAME = "T_two_tubes"      # the same symbol as loops.tube_virial.TWO_TUBES
 ANYON_TUBE_PREFIX = "B_anyon_tube_"
+BRAID_TUBE_PREFIX = "B_braid_tube_"
 _ANYON = re.compile(r"^B_anyon_tube_(.+)$")
+_BRAID = re.compile(r"^B_braid_tube_(.+_.+)$")
 
 
 def two_tubes_symbol() -> sympy.Symbol:
@@ -39,18 +48,42 @@ def anyon_tube_symbol(species_name: str) -> sympy.Symbol:
     return sympy.Symbol(ANYON_TUBE_PREFIX + species_name, real=True)
 
 
+def braid_tube_symbol(first: str, second: str) -> sympy.Symbol:
+    """The piece of two distinct species, named in their order of declaration."""
+    return sympy.Symbol(f"{BRAID_TUBE_PREFIX}{first}_{second}", real=True)
+
+
+def pair_splits(names, text: str) -> list[tuple[str, str]]:
+    """Every (first, second) of declared species, first declared before second, whose braid-piece name
+    ends in `text` (species names may hold underscores: more than one split is a collision)."""
+    order = {name: k for k, name in enumerate(names)}
+    return [(text[:k], text[k + 1:]) for k in range(len(text)) if text[k] == "_"
+            and text[:k] in order and text[k + 1:] in order and order[text[:k]] < order[text[k + 1:]]]
+
+
 @dataclass(frozen=True)
 class TubePiece:
-    """A named tube piece: `species` is the mobile species it belongs to (None for T_two_tubes)."""
+    """A named tube piece: `species` is the mobile species it belongs to (None for T_two_tubes); for the
+    piece of two braiding species `pair` is the text after the prefix (`pair_of` resolves it)."""
 
     symbol: sympy.Symbol
     species: str | None
+    pair: str | None = None
+
+    def pair_of(self, system) -> tuple[str, str]:
+        """The two species of a braid piece in this system (the first split: a collision is refused at
+        the species' lines by `routes/pairphase`)."""
+        return pair_splits(system.species_names, self.pair)[0]
 
     def definitions(self, system) -> list[tuple[str, sympy.Expr]]:
         """(kind, expression) of what it depends on, kinds as in `pieces._definitions`."""
         out = [("flux", system.tubes.flux)]
         if self.species is not None:
             out.append(("exchange", system.species[system.species_names.index(self.species)].exchange))
+        if self.pair is not None:
+            first, second = self.pair_of(system)
+            masses = [system.species[system.species_names.index(name)].mass for name in (first, second)]
+            out += [("mutual", system.mutual(first, second)), ("smooth", masses[0] / masses[1])]
         return out
 
     def value_at(self, system, point) -> sympy.Expr | None:
@@ -61,6 +94,10 @@ class TubePiece:
         flux = sympy.sympify(system.tubes.flux).subs(point)
         if flux.is_number and (flux % 1) == 0:
             return sympy.Integer(0)
+        if self.pair is not None:   # no braiding at the point: the relative phase is 1, D = 0 loop by loop
+            from ..exact.periods import braids
+            mutual = sympy.sympify(system.mutual(*self.pair_of(system))).subs(point)
+            return sympy.Integer(0) if braids(mutual, params) is False else None
         if self.species is None:
             return None
         import dataclasses
@@ -74,6 +111,10 @@ class TubePiece:
 
     def text(self, system) -> str:
         flux = system.tubes.flux
+        if self.pair is not None:
+            first, second = self.pair_of(system)
+            return (f"{self.symbol} = the coefficient of {system.tubes.coverage} in b_(e_{first} + e_{second}) (two "
+                    "braiding particles and one tube; sampled, docs/tubes.md), 0 where they do not braid")
         if self.species is None:
             return (f"{self.symbol} = T2({flux}): the connected integral of one loop of duration beta and two tubes "
                     "of this flux (sampled, docs/tubes.md); b_l of a bose/fermi species gains "
@@ -83,13 +124,21 @@ class TubePiece:
 
     @property
     def latex_name(self) -> str:
-        """The name in the LaTeX output (T with the subscript "2 tubes"; B with "tube" over the species)."""
+        """The name in the LaTeX output (T with the subscript "2 tubes"; B with "tube" over the species,
+        "braid" over the pair)."""
+        if self.pair is not None:
+            pair = self.pair.replace("_", "\\_")
+            return rf"B^{{\mathrm{{braid}}}}_{{\mathrm{{{pair}}}}}"
         if self.species is None:
             return r"T_{\mathrm{2\,tubes}}"
         return rf"B^{{\mathrm{{tube}}}}_{{\mathrm{{{self.species}}}}}"
 
     def latex(self, system) -> str:
         name = self.latex_name
+        if self.pair is not None:
+            first, second = self.pair_of(system)
+            return (rf"${name}$ is the coefficient of ${sympy.latex(system.tubes.coverage)}$ in $b_{{11}}$ of species "
+                    rf"{first} and {second} (two braiding particles and one tube; sampled).")
         if self.species is None:
             return (rf"${name}$ is the connected integral of one loop of duration $\beta$ and two tubes of this "
                     r"flux (sampled); $b_{l e_i}$ of a bose/fermi species gains "
@@ -103,17 +152,31 @@ def tube_piece(symbol) -> TubePiece | None:
     name = getattr(symbol, "name", "")
     if name == TWO_TUBES_NAME:
         return TubePiece(two_tubes_symbol(), None)
+    match = _BRAID.match(name)
+    if match:
+        return TubePiece(sympy.Symbol(name, real=True), None, match.group(1))
     match = _ANYON.match(name)
     return TubePiece(anyon_tube_symbol(match.group(1)), match.group(1)) if match else None
 
 
 def pieces_of(system) -> list[TubePiece]:
-    """The tube pieces of a system with tubes: T_two_tubes (in every b_(e_i)) and one anyon-tube piece per
-    anyonic species (for the glossary of every format)."""
+    """The tube pieces of a system with tubes: T_two_tubes (in every b_(e_i)), one anyon-tube piece per
+    anyonic species and one braid-tube piece per braiding pair (for the glossary of every format)."""
     from ..exact.periods import species_statistics
     if system.tubes is None:
         return []
     params = {p.symbol: p for p in system.parameters}
     return [TubePiece(two_tubes_symbol(), None)] + [
         TubePiece(anyon_tube_symbol(s.name), s.name) for s in system.species
-        if species_statistics(s, params) not in ("bose", "fermi")]
+        if species_statistics(s, params) not in ("bose", "fermi")] + [
+        TubePiece(braid_tube_symbol(a, b), None, f"{a}_{b}") for a, b in braiding_pairs(system)]
+
+
+def braiding_pairs(system) -> list[tuple[str, str]]:
+    """(first, second) in declaration order for every pair of species that may braid (a mutual parameter
+    that is not surely an integer): their b_11 holds a braid-tube piece among tubes."""
+    from ..exact.periods import braids
+    params = {p.symbol: p for p in system.parameters}
+    names = system.species_names
+    return [(a, b) for k, a in enumerate(names) for b in names[k + 1:]
+            if braids(system.mutual(a, b), params) is not False]
