@@ -198,6 +198,17 @@ def test_requests_beyond_the_braid_piece_are_refused_at_their_line(text, error, 
     assert str(caught.value.span).endswith(where)
 
 
+def test_a_coverage_squared_piece_beyond_the_truncation_is_refused_at_its_line():
+    # A braiding pair caps every result at O(n^2): the T_two_tubes term of the bose species' a[2,0] (at n^2) is
+    # cut, so there is nothing to sample in it, and the refusal says why.
+    d = clusterexp.derive("dimension 2 parameter n species A bose species B fermi mutual A B = 1/4 tubes flux 1/3 "
+                          "coverage n clusters pairphase derive virial up to 2\nsample a[2,0] with 4000 loops")
+    with pytest.raises(InputError) as caught:
+        d.sampled
+    assert "beyond this input's O(n^2), set by its anyonic or braiding species" in str(caught.value)
+    assert str(caught.value.span).endswith("2:8")
+
+
 def test_cli_refusals_name_the_line_and_exit_with_code_2(cli):
     # beyond the supported problems: not supported yet, at the coefficient's line and column
     result = cli("run", "--no-files", "-e", BRAIDING + "sample b[2,1] at nu = 1/2, g = 1/2")

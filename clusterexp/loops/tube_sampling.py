@@ -191,7 +191,10 @@ def tube_statement(system, sampling, exact, points: list[dict]) -> SampledStatem
         value = value.removeO() if order is not None else value
         held = sorted((s for s in value.free_symbols if tube_piece(s) is not None), key=lambda s: s.name)
         if not held:
-            raise InputError(f"{label(kind, index)} = {value} contains no tube piece here: nothing to sample; "
+            first_order = order is not None and sympy.Poly(order.expr, coverage).total_degree() == 2
+            raise InputError(f"{label(kind, index)} = {value} contains no tube piece here"
+                             + (f" (its coverage-squared term is beyond this input's O({coverage}^2), set by its "
+                                "anyonic or braiding species)" if first_order else "") + ": nothing to sample; "
                              + SUPPORTED, span)
         exprs[(kind, index)] = value
         orders[(kind, index)] = None if order is None else sympy.Poly(order.expr, coverage).total_degree()
