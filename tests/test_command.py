@@ -51,8 +51,7 @@ def test_semantic_error_points_at_the_line(cli, tmp_path):
 
 
 def test_not_supported_regime_is_an_input_error(cli):
-    result = cli("run", "-e", "dimension 2 species A bose species B mutual A B = 1/2 tubes flux 1/3 coverage 1/10 "
-                 "clusters pairphase derive virial up to 2")
+    result = cli("run", "-e", "dimension 2 species A boltzmann species B clusters pairphase derive virial up to 2")
     assert result.returncode == 2
     assert "not supported yet" in result.stderr
     assert "Traceback" not in result.stderr
