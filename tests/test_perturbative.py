@@ -580,18 +580,13 @@ def _chord_closed_square(m_i, m_j):
     contact-contact integral and T = E of the double line integral of ln|gamma_1 - gamma_2| (Gaussian
     calculus, with the equal-time term of the shared loop)."""
     from scipy import integrate
-    from test_three_cycle import _laplace_x_k0
+    from two_loop_clusters import chord_closed_single
 
     d_i, d_j = 1 / m_i, 1 / m_j
     d_rel, v_gap = d_i + d_j, d_i / 2      # relative diffusion; variance of the 2-cycle's gap S(1) - S(0)
-    a = 1 / (2 * v_gap)
 
     def single(order):
-        def f(t, p):
-            b = (np.cosh(t) + np.cos(p)) / d_rel - np.cos(p) / v_gap
-            h = -1.0 if order == 1 else -(p * np.sin(p) - t * np.sinh(t)) / (np.cosh(t) + np.cos(p))
-            return _laplace_x_k0(b / a) / a ** 2 * h
-        return 2 * integrate.dblquad(f, 0, np.pi, 0, 50, epsabs=1e-11, epsrel=1e-10)[0] / v_gap
+        return chord_closed_single(order, d_rel, v_gap)
 
     def gamma(h, period):
         h = abs(h) % period

@@ -291,3 +291,18 @@ def test_every_k_cycle_carries_only_its_fock_ring_part(k):
     assert abs(second - float(_fock_squared_ring(k))) < 2e-5, second
     if k == 3:
         assert abs(second - (CLOSED_S + CLOSED_LAMBDA - CLOSED_C) / 3) < 2e-5
+
+
+def test_two_loop_engine_reproduces_the_loop_with_a_two_cycle():
+    """The engine of section 4f (tests/two_loop_clusters.py) on the cluster that Sen's symmetry fixes: the
+    one-species loop + 2-cycle of b_3 is 3/2 at second order (test_b3_loop_clusters_from_sen_symmetry),
+    split into the link^2 part 3/4 (section 4e, with the static limits), the Hartree-Fock ring 1 and the
+    angle-area part -1/4 (section 4c: E[Theta_S Area(S)] = lambda^2/(2 pi)); normalisation P from the
+    cluster's first order, -1/2 (the Fock half of b_3^(1) = -1 that is not in the 3-cycle)."""
+    from two_loop_clusters import two_loop_parts
+    segments, first, link2, contact, angle_area = two_loop_parts(2, 1, TOL=1e-6)
+    norm = -0.5 / (segments * first)
+    assert abs(first + 2 * math.pi) < 1e-7
+    assert abs(norm * link2 - 0.75) < 1e-4
+    assert abs(norm * contact - 1.0) < 1e-6
+    assert abs(-2 * math.pi * norm * angle_area + 0.25) < 1e-4
