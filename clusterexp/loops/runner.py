@@ -12,9 +12,11 @@ from __future__ import annotations
 
 import functools
 import math
+import signal
 import sys
 import time
 from concurrent.futures import FIRST_COMPLETED, ProcessPoolExecutor, wait
+from contextlib import contextmanager
 from dataclasses import dataclass
 from multiprocessing import get_all_start_methods, get_context
 
@@ -196,12 +198,36 @@ def _round_tasks(plan: RunPlan, r: int):
             for f, n in plan.families.items()]
 
 
+def _quiet_worker() -> None:
+    """Workers leave Ctrl-C and SIGTERM to the process that owns them. A terminal (or `kill` of the
+    process group) signals every process; a worker interrupted while it waits on the pool's queues can
+    leave the pool unable to shut down, and the run would hang instead of ending with one line."""
+    signal.signal(signal.SIGINT, signal.SIG_IGN)
+    if hasattr(signal, "SIGTERM"):
+        signal.signal(signal.SIGTERM, signal.SIG_IGN)
+
+
+def worker_pool(workers: int) -> ProcessPoolExecutor:
+    """A local process pool of quiet workers (fork where available: workers need no re-import of the
+    caller's script, spawn would require a main guard)."""
+    ctx = get_context("fork" if "fork" in get_all_start_methods() else "spawn")
+    return ProcessPoolExecutor(max_workers=workers, mp_context=ctx, initializer=_quiet_worker)
+
+
+@contextmanager
+def _closing(pool: ProcessPoolExecutor):
+    """Shut the pool down on the way out; an interrupted run drops its queued batches instead of
+    computing them (the batches in flight are short)."""
+    try:
+        yield pool
+    finally:
+        pool.shutdown(wait=True, cancel_futures=True)
+
+
 def _local_pool(workers: int):
     """Worker processes on this machine: (context manager, submit, wait for the first finished)."""
-    # fork: workers need no re-import of the caller's script (spawn would require a main guard)
-    ctx = get_context("fork" if "fork" in get_all_start_methods() else "spawn")
-    pool = ProcessPoolExecutor(max_workers=workers, mp_context=ctx)
-    return pool, (lambda task: pool.submit(run_batch, *task)), \
+    pool = worker_pool(workers)
+    return _closing(pool), (lambda task: pool.submit(run_batch, *task)), \
         (lambda futures: wait(futures, return_when=FIRST_COMPLETED)[0])
 
 

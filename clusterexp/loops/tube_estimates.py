@@ -21,16 +21,20 @@ from __future__ import annotations
 
 import math
 import time
-from concurrent.futures import ProcessPoolExecutor
 from dataclasses import dataclass
-from multiprocessing import get_all_start_methods, get_context
 
 import numpy as np
 
 from . import exact
 from .estimator import Estimate
-from .runner import LoopsError, TargetNotReachable, rounds_for
-from .tubes import DEPTH, PairTubeSamples, SeparationSamples, SwapTubeSamples, TwoTubeSamples
+from .runner import LoopsError, TargetNotReachable, rounds_for, worker_pool
+from .tubes import (
+    DEPTH,
+    PairTubeSamples,
+    SeparationSamples,
+    SwapTubeSamples,
+    TwoTubeSamples,
+)
 
 DEFAULT_SLICES = 16
 DEFAULT_BATCH = 1000
@@ -128,8 +132,7 @@ def _execute(families: list[str], count: int, slices: int, seed: int, points, de
     # checked between steps, so a step never outlives the time cap by more than its own length.
     pool = None
     if workers > 1:
-        ctx = get_context("fork" if "fork" in get_all_start_methods() else "spawn")
-        pool = ProcessPoolExecutor(max_workers=workers, mp_context=ctx)
+        pool = worker_pool(workers)
     try:
         next_round = 0
         while may_submit(next_round):
