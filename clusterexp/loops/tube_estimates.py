@@ -28,13 +28,7 @@ import numpy as np
 from . import exact
 from .estimator import Estimate
 from .runner import LoopsError, TargetNotReachable, rounds_for, worker_pool
-from .tubes import (
-    DEPTH,
-    PairTubeSamples,
-    SeparationSamples,
-    SwapTubeSamples,
-    TwoTubeSamples,
-)
+from .tubes import DEPTH, PairTubeSamples, SeparationSamples, SwapTubeSamples, TwoTubeSamples
 
 DEFAULT_SLICES = 16
 DEFAULT_BATCH = 1000
