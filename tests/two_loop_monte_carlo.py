@@ -1,0 +1,97 @@
+"""Brownian-loop Monte Carlo of the two-loop clusters of one species (docs/perturbative.md, section 4f):
+a p-cycle (loop X of duration p) and a q-cycle (loop Y of duration q) at offset c, with every pair's
+Aharonov-Bohm factor exact per time slice (clusterexp.loops.pairfactor). A route independent of the
+quadrature engine in two_loop_clusters.py: no decomposition into closed segments, no Gaussian calculus,
+only sampled loops and the exact two-body slice factor.
+
+The cluster's term of b_{p+q} is K int d^2c E[Phi_self(X) Phi_self(Y) (Phi_link - 1)], where Phi_link is
+the product of the phases of the p q pairs with one particle in each cycle (the link curves X(s + a) -
+Y(s + b) - c, one per orbit of (a, b) -> (a + 1, b + 1)), Phi_self the phases of the pairs inside a
+cycle, and K = 1/(p q)^2 (halved when p = q): (1/n!) times the number of permutations of that cycle type
+times the free weight 1/k of each k-cycle (lambda = beta = 1, as in clusterexp.loops.sampler). The even
+part (f(a) + f(-a))/2 about bosons is c1 |a| + c2 a^2 + c3 |a|^3 + ...; a fit over several small a gives
+the first-order coefficient (checked against -1/2, -1/3, -1/8 of section 3) and the second (section 4f).
+"""
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from clusterexp.loops.sampler import PhaseData, brownian_loops, mixture_offsets, phase_levels
+
+WIDTH = 0.4
+
+
+def _self_curves(x: np.ndarray, p: int, n: int) -> list[np.ndarray]:
+    """Relative paths of the pairs inside a p-cycle (loop x of p n slices), as sampled curves."""
+    if p == 1:
+        return []
+    if p == 2:                                       # X(t) - X(t + 1), t in [0, 1]: the exchanged pair
+        return [x[:, : n + 1] - x[:, n:]]
+    if p == 3:                                       # X(t) - X(t + 1), t in [0, 3]: one closed curve
+        idx = (np.arange(3 * n + 1) + n) % (3 * n)
+        return [x - x[:, idx]]
+    raise ValueError("p-cycles with p > 3 are not needed for b_4")
+
+
+def _orbits(p: int, q: int) -> list[tuple[int, int]]:
+    period = p * q // math.gcd(p, q)
+    seen, out = set(), []
+    for a in range(p):
+        for b in range(q):
+            if (a, b) not in seen:
+                out.append((a, b))
+                seen.update(((a + j) % p, (b + j) % q) for j in range(period))
+    return out
+
+
+class TwoLoopSamples:
+    """`count` samples of the {p-cycle, q-cycle} cluster at `n` slices per unit time, seen at strides."""
+
+    def __init__(self, rng: np.random.Generator, count: int, p: int, q: int, n: int, strides=(1,)):
+        x = brownian_loops(rng, count, p * n, float(p))
+        y = brownian_loops(rng, count, q * n, float(q))
+        centre = x[:, :: n][:, :p].mean(axis=1) - y[:, :: n][:, :q].mean(axis=1)
+        off, dens = mixture_offsets(rng, count, WIDTH, 1)
+        c = centre + off[:, 0]
+        self.weight = 1.0 / dens / ((p * q) ** 2 * (2 if p == q else 1))
+        period = p * q // math.gcd(p, q)
+        steps = np.arange(period * n + 1)
+        links = [x[:, (steps + a * n) % (p * n)] - y[:, (steps + b * n) % (q * n)] - c[:, None]
+                 for a, b in _orbits(p, q)]
+        selfs = _self_curves(x, p, n) + _self_curves(y, q, n)
+        self.link = _joined(links, n, strides)
+        self.self = _joined(selfs, n, strides) if selfs else None
+
+    def values(self, alpha: float, stride: int = 1) -> np.ndarray:
+        ph = self.link[stride].phase(alpha) - 1.0
+        if self.self is not None:
+            ph = ph * self.self[stride].phase(alpha)
+        return ph.real * self.weight
+
+
+def _joined(curves, n, strides) -> dict[int, PhaseData]:
+    levels = [phase_levels(u, n, strides) for u in curves]
+    return {s: PhaseData.join([lv[s] for lv in levels]) for s in strides}
+
+
+def even_parts(p: int, q: int, amplitudes, n: int, strides, count: int, batches: int, seed: int):
+    """Per batch and stride, the even part (f(a) + f(-a))/2 at each amplitude a (a -> 2 - a is -a for
+    one species: the exchange parameter has period 2). Returns an array [batch, stride, amplitude]."""
+    rng = np.random.default_rng(seed)
+    out = np.empty((batches, len(strides), len(amplitudes)))
+    for b in range(batches):
+        s = TwoLoopSamples(rng, count, p, q, n, strides)
+        for i, st in enumerate(strides):
+            for j, a in enumerate(amplitudes):
+                out[b, i, j] = 0.5 * (s.values(a, st).mean() + s.values(2.0 - a, st).mean())
+    return out
+
+
+def fit_coefficients(amplitudes, evens: np.ndarray, degree: int = 3) -> np.ndarray:
+    """Least-squares c1 a + c2 a^2 + ... + c_degree a^degree through the even parts (last axis)."""
+    a = np.asarray(amplitudes, dtype=float)
+    design = np.stack([a ** k for k in range(1, degree + 1)], axis=1)
+    solve = np.linalg.pinv(design)
+    return np.einsum("kj,...j->...k", solve, evens)
