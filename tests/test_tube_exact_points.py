@@ -116,10 +116,11 @@ def _bose_route_value(cli, tmp_path, statistics, coefficient, flux, coverage):
     return first.subs({f: sympy.Rational(flux), n: sympy.Rational(coverage)})
 
 
-@pytest.mark.parametrize("alpha, statistics, sign", [("0", "bose", 1), ("1", "fermi", -1)])
+@pytest.mark.parametrize("alpha, statistics, sign", [("0", "bose", 1), ("1", "fermi", -1), ("2", "bose", 1)])
 @pytest.mark.parametrize("flux", ["1/2", "1/3"])
 def test_anyon_tube_piece_at_the_bose_and_fermi_points(cli, tmp_path, alpha, statistics, sign, flux):
-    text = (f"dimension 2\nparameter f in [0, 1]\nparameter n nonnegative\nparameter e in [0, 1]\nspecies R bose\n"
+    # the exchange over two periods' worth of points: 2 is a boson point too (period 2)
+    text = (f"dimension 2\nparameter f in [0, 1]\nparameter n nonnegative\nparameter e in [0, 2]\nspecies R bose\n"
             f"species A exchange e mass 3\ntubes flux f coverage n\nclusters pairphase\n"
             f"derive cluster up to 2\nderive virial up to 2\n"
             f"evaluate b[0,2], a[0,2] at e = {alpha}, f = {flux}, n = 1/10 digits {DIGITS}\n")
@@ -149,7 +150,7 @@ def test_generic_point_refused_as_before(cli, tmp_path):
     assert "exactly" not in stderr
 
 
-@pytest.mark.parametrize("flux", ["99999999999999999999/100000000000000000000", "1/2"])
+@pytest.mark.parametrize("flux", ["99999999999999999999/100000000000000000000", "0.99999999999999999999", "1/2"])
 def test_near_integer_flux_is_not_integer(cli, tmp_path, flux):
     # integrality is decided exactly: a flux a float would round to 1 keeps the piece unknown
     _, stderr = _refused(cli, tmp_path, "dimension 2\nparameter f in [0, 1]\nparameter n nonnegative\nspecies A exchange "
@@ -184,3 +185,13 @@ def test_braid_piece_unknown_where_the_pair_braids(cli, tmp_path):
                             "tubes flux g coverage n\nclusters pairphase\nderive cluster up to 2\n"
                             "evaluate b[1,1] at nu = 1/2, g = 1/2, n = 1/10\n")
     assert "no value for B_braid_tube_A_B" in stderr and f"{path}:11:1: error:" in stderr
+
+
+def test_latex_document_says_which_pieces_were_put_in(cli, tmp_path):
+    path = tmp_path / "gas.in"
+    path.write_text("dimension 2\nparameter f in [0, 1]\nparameter n nonnegative\nspecies A exchange 1/3\n"
+                    "tubes flux f coverage n\nclusters pairphase\nderive virial up to 2\nevaluate a[2] at f = 1, n = 1/10\n")
+    result = cli("run", str(path), "--format", "latex", "--document", "--no-files")
+    assert result.returncode == 0, result.stderr
+    assert r"$0.0277777777777778$" in result.stdout   # 1/36 = -b_2(1/3) (Arovas et al. 1985)
+    assert r"B\_anyon\_tube\_A = 0 exactly: integer flux" in result.stdout
