@@ -129,6 +129,9 @@ def values_section(derivation: Derivation, names: dict) -> list[str]:
         out += [rf"${claim_latex_name(derivation, t)}$ & ${_breakable(number_latex(number))}$ \\"
                 for t, (_, number) in zip(evaluation.targets, rows)]
         out += [r"\bottomrule", r"\end{tabular}", r"\end{center}"]
+        # what the text label adds (a truncation, pieces put in exactly at this point), as a remark below
+        out += [rf"\noindent ${claim_latex_name(derivation, t)}$: {escape_text(label[len(t.label):].strip())}\par"
+                for t, (label, _) in zip(evaluation.targets, rows) if label.startswith(t.label) and label != t.label]
     for table, rows in derivation.tables:
         header = [rf"${sympy.latex(s, symbol_names=names)}$" for s, _ in table.axes] + \
                  [rf"${sympy.latex(s, symbol_names=names)}$" for s, _ in table.fixed] + \

@@ -14,6 +14,7 @@ import sympy
 
 from .check_result import MISMATCH, UNDECIDED, CheckList
 from .checks import check_claim, check_decimal_claim, check_with_pieces
+from .exact_pieces import filled, noted
 from ..errors import InputError
 from .numbers import csv_bytes, evaluate, format_number, grid_table
 from .sampled_use import (check_sampled_claim, plot_sampled_line, sampled_number_text, sampled_table,
@@ -128,6 +129,8 @@ def run_evaluations(derivation) -> list:
             if order is not None:
                 value = value.removeO()
                 label += f" (truncated series, {sympy.sstr(order)} left out)"
+            value, notes = filled(derivation.system, value, point)   # tube pieces exact at this point
+            label = noted(label, notes)
             if uses_sampled(derivation, value):   # Monte Carlo parts: value +- error
                 rows.append((label, sampled_number_text(derivation, value, point, evaluation.span)))
                 continue

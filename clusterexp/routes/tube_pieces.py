@@ -87,17 +87,29 @@ class TubePiece:
         return out
 
     def value_at(self, system, point) -> sympy.Expr | None:
-        """The exact value where it is known: zero at an integer flux (no tube, period 1); for the
-        anyon-tube piece +-F/2 at the bose (fermi) points, the l = 2 cycle of the ideal-gas result."""
-        from ..exact.periods import reduced, species_statistics
+        """The exact value where it is known (`exactly`), else None."""
+        known = self.exactly(system, point)
+        return None if known is None else known[0]
+
+    def exactly(self, system, point) -> tuple[sympy.Expr, str] | None:
+        """(exact value, why) where the piece is known for every value of the parameters `point`
+        ({symbol: exact number}) leaves free, else None: zero at an integer flux (no Aharonov-Bohm phase,
+        period 1); the braid piece zero where the mutual parameter is an integer (period 1: the relative
+        phase is 1 on every pair of loops, D = 0 loop by loop); the anyon-tube piece +-F/2 at the bose
+        (fermi) points, F = -s(1 - s)/2, s = flux mod 1: the l = 2 cycle of the ideal-gas b_2, whose n
+        term is (+-1) F/2 (docs/tubes.md (ii): alpha = 0 gives (1/4) E[X of duration 2] = F/2). Integrality
+        is decided exactly (sympy), never with floats; undecided means unknown."""
+        from ..exact.periods import braids, reduced, species_statistics
         params = {p.symbol: p for p in system.parameters}
         flux = sympy.sympify(system.tubes.flux).subs(point)
-        if flux.is_number and (flux % 1) == 0:
-            return sympy.Integer(0)
-        if self.pair is not None:   # no braiding at the point: the relative phase is 1, D = 0 loop by loop
-            from ..exact.periods import braids
-            mutual = sympy.sympify(system.mutual(*self.pair_of(system))).subs(point)
-            return sympy.Integer(0) if braids(mutual, params) is False else None
+        if _exactly_integer(flux):
+            return sympy.Integer(0), "integer flux"
+        if self.pair is not None:
+            first, second = self.pair_of(system)
+            mutual = sympy.sympify(system.mutual(first, second)).subs(point)
+            if braids(mutual, params) is False:
+                return sympy.Integer(0), f"{first} and {second} do not braid here"
+            return None
         if self.species is None:
             return None
         import dataclasses
@@ -107,7 +119,9 @@ class TubePiece:
         if stats not in ("bose", "fermi"):
             return None
         s = reduced(flux, 1, params)   # the one-tube shift -s(1 - s)/2 (as routes/pairphase.flux_shift)
-        return sympy.expand((1 if stats == "bose" else -1) * (-s * (1 - s) / 2) / 2)
+        sign, word, half = (1, "boson", "F/2") if stats == "bose" else (-1, "fermion", "-F/2")
+        return (sympy.expand(sign * (-s * (1 - s) / 2) / 2),
+                f"{self.species} is a {word} here, {half} with F = -s(1 - s)/2, s = flux mod 1")
 
     def text(self, system) -> str:
         flux = system.tubes.flux
@@ -145,6 +159,28 @@ class TubePiece:
                     rf"$(\pm1)^{{l+1}}\,{sympy.latex(system.tubes.coverage)}^2\,{name}\,m_{{\mathrm{{ref}}}}/(2m_i)$.")
         return (rf"${name}$ is the coefficient of ${sympy.latex(system.tubes.coverage)}$ in $b_2$ of species "
                 rf"{self.species} (two anyons and one tube; sampled).")
+
+
+def _exactly_integer(value) -> bool:
+    """Whether a value is an integer, decided exactly by sympy (False when undecided)."""
+    value = sympy.sympify(value)
+    if not value.is_number:
+        return value.is_integer is True
+    return sympy.simplify(value).is_integer is True
+
+
+def exact_tube_values(system, symbols, point) -> dict[sympy.Symbol, tuple[sympy.Expr, str]]:
+    """{piece: (exact value, why)} for the tube pieces among `symbols` that are exactly known at `point`
+    ({parameter symbol: exact number}; `TubePiece.exactly`), the others left out."""
+    if system.tubes is None:
+        return {}
+    out = {}
+    for symbol in sorted(symbols, key=lambda s: s.name):
+        piece = tube_piece(symbol)
+        known = None if piece is None else piece.exactly(system, point)
+        if known is not None:
+            out[symbol] = known
+    return out
 
 
 def tube_piece(symbol) -> TubePiece | None:
