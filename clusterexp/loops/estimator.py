@@ -61,7 +61,8 @@ class ThirdOrderResult:
     `three_body` is cluster minus its ideal-Bose value (1/9 for b_3, 0 for b_21), i.e. what the
     statistical phases add.  parts: the sampled families (cycle, exchange, triple).
     extrapolation_shift: value at the full slice number without the slice extrapolation minus the
-    extrapolated value (the size of the discretisation correction).  round_values: the cluster
+    extrapolated value (the size of the discretisation correction; for any power law 1/slices^p, p >= 1,
+    the error left after the extrapolation is at most twice this shift).  round_values: the cluster
     coefficient of each round (independent, equal-size), for correlated comparisons between points
     of one scan.
     virial: a_3 (identical) or a_21 (pair_plus_one) with the propagated error; the two-body inputs are
