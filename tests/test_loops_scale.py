@@ -204,3 +204,49 @@ def test_half_integer_closed_form_equals_the_bessel_sum(alpha):
     finally:
         pairfactor.SETTINGS.closed_half = True
     assert np.max(np.abs(closed - quadrature)) < 1e-10
+
+
+def test_workers_do_not_outlive_a_killed_owner(tmp_path):
+    """Workers ignore SIGINT/SIGTERM (their owner handles them); an owner killed without cleaning up
+    (SIGKILL here, or SIGTERM without a handler) must not leave them behind, idle for good."""
+    import os
+    import signal
+    import subprocess
+    import sys
+    import time
+    from pathlib import Path
+    script = ("import os, sys, time\n"
+              "from clusterexp.loops.runner import worker_pool\n"
+              "def pid(_):\n"
+              "    time.sleep(0.2)\n"
+              "    return os.getpid()\n"
+              "if __name__ == '__main__':\n"
+              "    pool = worker_pool(2)\n"
+              "    print(' '.join(str(p) for p in set(pool.map(pid, range(8)))), flush=True)\n"
+              "    time.sleep(60)\n")
+    (tmp_path / "owner.py").write_text(script)
+    root = Path(__file__).resolve().parent.parent
+    env = dict(os.environ, PYTHONPATH=str(root) + os.pathsep + os.environ.get("PYTHONPATH", ""))
+    owner = subprocess.Popen([sys.executable, "owner.py"], cwd=tmp_path, env=env, stdout=subprocess.PIPE, text=True)
+    workers = [int(p) for p in owner.stdout.readline().split()]
+    assert workers, "the owner started no workers"
+
+    def alive(pid):
+        try:
+            os.kill(pid, 0)
+        except ProcessLookupError:
+            return False
+        with open(f"/proc/{pid}/stat") as f:         # a zombie is gone for our purpose
+            return f.read().split(") ")[1][0] != "Z"
+
+    assert all(alive(p) for p in workers)
+    owner.send_signal(signal.SIGKILL)
+    owner.wait(timeout=10)
+    owner.stdout.close()
+    deadline = time.time() + 10
+    while time.time() < deadline and any(alive(p) for p in workers):
+        time.sleep(0.2)
+    left = [p for p in workers if alive(p)]
+    for p in left:
+        os.kill(p, signal.SIGKILL)
+    assert not left, f"workers {left} outlived their owner"

@@ -12,8 +12,10 @@ from __future__ import annotations
 
 import functools
 import math
+import os
 import signal
 import sys
+import threading
 import time
 from concurrent.futures import FIRST_COMPLETED, ProcessPoolExecutor, wait
 from contextlib import contextmanager
@@ -209,6 +211,15 @@ def _quiet_worker() -> None:
     signal.signal(signal.SIGINT, signal.SIG_IGN)
     if hasattr(signal, "SIGTERM"):
         signal.signal(signal.SIGTERM, signal.SIG_IGN)
+    # A worker that ignores SIGTERM must not outlive its owner: if the owner is killed by a signal it
+    # cannot clean up after (SIGTERM to it alone, SIGKILL), the idle workers would stay behind for good.
+    threading.Thread(target=_exit_with_owner, args=(os.getppid(),), daemon=True).start()
+
+
+def _exit_with_owner(owner: int, every: float = 0.5) -> None:
+    while os.getppid() == owner:
+        time.sleep(every)
+    os._exit(0)
 
 
 def worker_pool(workers: int) -> ProcessPoolExecutor:
