@@ -39,3 +39,15 @@ def test_two_cycles_against_the_quadrature_engine_and_not_the_closure():
     assert abs(c[0] + 0.125) < SIGMAS * err[0]
     assert abs(c[1] - 0.672522) < SIGMAS * err[1]
     assert c[1] - 0.625 > 3 * err[1], (c[1], err[1])
+
+
+def test_four_cycle_alone_is_its_ring_part():
+    """The 4-cycle alone (one loop of duration 4, its six pairs): second order its F^2 ring part 1
+    (section 4d, by quadrature there; here by sampled loops). First order -11/24, half of b_4's
+    -(2/4) H_3 (first-order law of Dasnieres de Veigy & Ouvry 1992), as the 2-cycle carries half of
+    b_2's (section 4b (i)) and the 3-cycle half of b_3's (section 6): a pattern, not derived; the test
+    checks that it holds at n = 4."""
+    c, err = _coefficients(4, 0, 16, 5)
+    assert abs(c[0] + 11 / 24) < SIGMAS * err[0], (c[0], err[0])
+    assert abs(c[1] - 1.0) < SIGMAS * err[1], (c[1], err[1])
+    assert err[1] < 0.03

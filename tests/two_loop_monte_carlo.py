@@ -29,10 +29,13 @@ def _self_curves(x: np.ndarray, p: int, n: int) -> list[np.ndarray]:
         return []
     if p == 2:                                       # X(t) - X(t + 1), t in [0, 1]: the exchanged pair
         return [x[:, : n + 1] - x[:, n:]]
-    if p == 3:                                       # X(t) - X(t + 1), t in [0, 3]: one closed curve
-        idx = (np.arange(3 * n + 1) + n) % (3 * n)
-        return [x - x[:, idx]]
-    raise ValueError("p-cycles with p > 3 are not needed for b_4")
+    if p in (3, 4):                                  # X(t) - X(t + 1), t in [0, p]: one closed curve
+        idx = (np.arange(p * n + 1) + n) % (p * n)
+        curves = [x - x[:, idx]]
+        if p == 4:                                   # X(t) - X(t + 2), t in [0, 2]: pairs (0, 2), (1, 3)
+            curves.append(x[:, : 2 * n + 1] - x[:, 2 * n:])
+        return curves
+    raise ValueError("p-cycles with p > 4 are not needed for b_4")
 
 
 def _orbits(p: int, q: int) -> list[tuple[int, int]]:
@@ -71,6 +74,19 @@ class TwoLoopSamples:
         return ph.real * self.weight
 
 
+class CycleAloneSamples:
+    """A p-cycle alone (one loop of duration p, every pair inside it): its term of b_p is
+    Re Phi_self / p^2 ((1/p!) (p - 1)! free weight 1/p); minus the ideal-Bose 1/p^2 it is the phase part."""
+
+    def __init__(self, rng: np.random.Generator, count: int, p: int, q: int, n: int, strides=(1,)):
+        x = brownian_loops(rng, count, p * n, float(p))
+        self.self = _joined(_self_curves(x, p, n), n, strides)
+        self.weight = 1.0 / p ** 2
+
+    def values(self, alpha: float, stride: int = 1) -> np.ndarray:
+        return (self.self[stride].phase(alpha).real - 1.0) * self.weight
+
+
 def _joined(curves, n, strides) -> dict[int, PhaseData]:
     levels = [phase_levels(u, n, strides) for u in curves]
     return {s: PhaseData.join([lv[s] for lv in levels]) for s in strides}
@@ -78,11 +94,13 @@ def _joined(curves, n, strides) -> dict[int, PhaseData]:
 
 def even_parts(p: int, q: int, amplitudes, n: int, strides, count: int, batches: int, seed: int):
     """Per batch and stride, the even part (f(a) + f(-a))/2 at each amplitude a (a -> 2 - a is -a for
-    one species: the exchange parameter has period 2). Returns an array [batch, stride, amplitude]."""
+    one species: the exchange parameter has period 2). Returns an array [batch, stride, amplitude].
+    q = 0: the p-cycle alone (CycleAloneSamples), its ideal-Bose value taken off."""
     rng = np.random.default_rng(seed)
     out = np.empty((batches, len(strides), len(amplitudes)))
+    make = CycleAloneSamples if q == 0 else TwoLoopSamples
     for b in range(batches):
-        s = TwoLoopSamples(rng, count, p, q, n, strides)
+        s = make(rng, count, p, q, n, strides)
         for i, st in enumerate(strides):
             for j, a in enumerate(amplitudes):
                 out[b, i, j] = 0.5 * (s.values(a, st).mean() + s.values(2.0 - a, st).mean())
