@@ -6,11 +6,14 @@ error of a_3 is at most the target or the wall-time budget is spent.
 Run:  python benchmarks/loops_target.py --budget 3600 --chunk 300 --slices 32   (figures in loops_target-last-run.txt)
 
 Slices: 32 by default here (the library's default is 16). The correlated slice study of docs/loops.md
-puts the discretisation error of a_3 at 16 slices near 1e-5 at alpha = 1/4 (triple family, not
-extrapolated), at the size of this target; at 32 slices it is below it. The pooled extrapolation shift
-is printed: the error left after the extrapolation is at most twice it.
+(benchmarks/loops_slices.py) puts the discretisation error of the families at 16 slices at 1-2e-5 in
+b_3 before extrapolation, the size of this target; at 32 slices every family's V(64) - V(32) is
+consistent with zero at alpha = 1/2 (cycle -0.09e-5 +- 0.40e-5, triple +0.36e-5 +- 0.92e-5), so --raw
+(no extrapolation, a third less work per sample and no extrapolation noise) rests on that study; without
+--raw the pooled extrapolation shift is printed, and the error left after the extrapolation is at most
+twice it.
 
-Each chunk is an ordinary estimate_third_order run (unbiased, with its own slice extrapolation), so the
+Each chunk is an ordinary estimate_third_order run (with its own slice extrapolation unless --raw), so the
 pooled value is an honest estimate with an honest error; the check is the published a_3(1/2) = 1/36 +
 1/(12 pi^2) + c_2, c_2 = -1.65e-5 (Myrheim & Olaussen, Phys. Lett. B 299 (1993) 267; Mashkevich, Myrheim &
 Olaussen, Phys. Lett. B 382 (1996) 124), which must lie within the pooled error bar (two standard errors).
@@ -40,9 +43,11 @@ def main() -> None:
     parser.add_argument("--workers", type=int, default=2)
     parser.add_argument("--seed", type=int, default=20261203)
     parser.add_argument("--slices", type=int, default=32)
+    parser.add_argument("--raw", action="store_true",
+                        help="no slice extrapolation (at 32 slices its residual is below 1e-5 by the slice study)")
     args = parser.parse_args()
     print(f"# loops_target: a_3(1/2) to +-{args.target:g}, chunks of {args.chunk:g} s, budget {args.budget:g} s, "
-          f"slices={args.slices}, workers={args.workers}, cpus={os.cpu_count()}, load average {os.getloadavg()[0]:.2f}", flush=True)
+          f"slices={args.slices}{' raw' if args.raw else ''}, workers={args.workers}, cpus={os.cpu_count()}, load average {os.getloadavg()[0]:.2f}", flush=True)
     start = time.perf_counter()
     weights, weighted, k = 0.0, 0.0, 0
     shift_w, shift_sum = 0.0, 0.0
@@ -52,6 +57,7 @@ def main() -> None:
             break
         r = estimate_third_order("identical", 0.5, time_cap=min(args.chunk, left), seed=args.seed + k,
                                  workers=args.workers, reduction=Reduction(), symmetric=True, slices=args.slices,
+                                 extrapolate=not args.raw,
                                  allocation=ALLOCATION, progress=False)
         k += 1
         w = 1.0 / r.a3.error ** 2
@@ -59,9 +65,10 @@ def main() -> None:
         weighted += w * r.a3.value
         value, error = weighted / weights, 1.0 / math.sqrt(weights)
         # the shift is in b_3; a_3 = 4 b_2^2 - 2 b_3 moves by -2 times it
-        sw = 1.0 / max(r.extrapolation_shift.error, 1e-12) ** 2
-        shift_w += sw
-        shift_sum += sw * (-2.0 * r.extrapolation_shift.value)
+        if not args.raw:
+            sw = 1.0 / max(r.extrapolation_shift.error, 1e-12) ** 2
+            shift_w += sw
+            shift_sum += sw * (-2.0 * r.extrapolation_shift.value)
         elapsed = time.perf_counter() - start
         print(f"chunk {k}: a_3 = {r.a3.value:.6f} +- {r.a3.error:.2e} ({r.samples} samples, {r.seconds:.0f} s); "
               f"pooled {value:.7f} +- {error:.2e} after {elapsed / 60:.1f} min, load {os.getloadavg()[0]:.2f}",

@@ -158,7 +158,10 @@ def test_interrupt_and_termination_end_with_one_line_and_no_file(tmp_path):
     for sig, code, word in ((signal.SIGINT, 130, "interrupted"), (signal.SIGTERM, 143, "terminated")):
         process = subprocess.Popen([sys.executable, "-m", "clusterexp", "run", "-e", text, "-o", "out.txt",
                                     "--files-into", "tables"], cwd=tmp_path, env=env, stdout=subprocess.PIPE,
-                                   stderr=subprocess.PIPE, text=True, start_new_session=True)
+                                   stderr=subprocess.PIPE, text=True, start_new_session=True,
+                                   # a suite started in the background (`cmd &` in a script) runs with
+                                   # SIGINT ignored, which the child would inherit: give it a terminal's
+                                   preexec_fn=lambda: signal.signal(signal.SIGINT, signal.SIG_DFL))
         time.sleep(4)
         os.killpg(process.pid, sig)
         out, err = process.communicate(timeout=60)
