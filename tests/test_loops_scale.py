@@ -214,7 +214,8 @@ def test_workers_do_not_outlive_a_killed_owner(tmp_path):
     import subprocess
     import sys
     import time
-    from pathlib import Path
+
+    from conftest import ROOT
     script = ("import os, sys, time\n"
               "from clusterexp.loops.runner import worker_pool\n"
               "def pid(_):\n"
@@ -225,8 +226,7 @@ def test_workers_do_not_outlive_a_killed_owner(tmp_path):
               "    print(' '.join(str(p) for p in set(pool.map(pid, range(8)))), flush=True)\n"
               "    time.sleep(60)\n")
     (tmp_path / "owner.py").write_text(script)
-    root = Path(__file__).resolve().parent.parent
-    env = dict(os.environ, PYTHONPATH=str(root) + os.pathsep + os.environ.get("PYTHONPATH", ""))
+    env = dict(os.environ, PYTHONPATH=str(ROOT) + os.pathsep + os.environ.get("PYTHONPATH", ""))
     owner = subprocess.Popen([sys.executable, "owner.py"], cwd=tmp_path, env=env, stdout=subprocess.PIPE, text=True)
     workers = [int(p) for p in owner.stdout.readline().split()]
     assert workers, "the owner started no workers"

@@ -74,7 +74,7 @@ def test_every_tube_piece_is_zero_at_an_integer_flux(cli, tmp_path, flux, alpha,
             f"derive cluster up to 2\nderive virial up to 2\n"
             f"evaluate b[0,2], a[0,2], b[2,0] at f = {flux}, n = 1/10 digits {DIGITS}\n")
     _, values = _values(cli, tmp_path, text)
-    r, n = sympy.Rational(mass), sympy.Rational(1, 10)
+    r = sympy.Rational(mass)
     b2 = r * _aswz_b2(alpha)
     label, number = _one(values, "b[0,2]")
     _close(number, b2)

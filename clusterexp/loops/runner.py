@@ -110,10 +110,11 @@ def run_batch(kind: str, family: str, index: int, count: int, slices: int, seed:
     the variance-reduction settings (the control statistics are the control's mean, its covariance
     with the values and its variance, per point, for the triple family with `reduction.control`).
 
-    With `extrapolate` (the three-particle families), each sample is evaluated on its own path with `slices`
-    slices and with every second slice point only (slices/2), and contributes V(slices) + (V(slices) - V(slices/2))/3: the
-    pair-product error falls like 1/slices^2 or faster where it was measured (EXTRAPOLATION_WEIGHT), and
-    the two values are strongly correlated, so this costs little variance.
+    With `extrapolate` (the three-particle families), each sample is evaluated on its own path with
+    `slices` slices and with every second slice point only (slices/2), and contributes
+    V(slices) + (V(slices) - V(slices/2))/3: the pair-product error falls like 1/slices^2 or faster where
+    it was measured (EXTRAPOLATION_WEIGHT), and the two values are strongly correlated, so this costs
+    little variance.
     """
     pairfactor.SETTINGS.closed_half = reduction.closed_half
     try:
