@@ -39,6 +39,15 @@ class Unknown:
     symbol: sympy.Symbol
     piece: sympy.Symbol
     monomial: tuple[tuple[sympy.Symbol, sympy.Expr, int, str | None], ...]  # (variable, point, power, side)
+    estimate: tuple[float, float] | None = None  # (value, error bound) where computed numerically, not closed
+
+    @property
+    def estimate_text(self) -> str | None:
+        """E.g. `computed: 4.359161 +- 3e-6 (quadrature of ..., not a closed form)`, or None."""
+        if self.estimate is None:
+            return None
+        from .routes.two_loop_table import SOURCE
+        return f"computed: {format_estimate(*self.estimate)} ({SOURCE})"
 
     @property
     def description(self) -> str:
@@ -76,6 +85,13 @@ class Unknown:
         if not powers:
             return f"the value of {what} at {where}"
         return f"the coefficient of ${' '.join(powers)}$ in {what} about {where}"
+
+
+def format_estimate(value: float, error: float) -> str:
+    """`4.359161 +- 0.000003`: the value and its error bound to the error's leading digit."""
+    import math
+    places = max(0, -math.floor(math.log10(error))) if error > 0 else 12
+    return f"{value:.{places}f} +- {error:.{places}f}"
 
 
 def _power_text(v, p, k) -> str:
@@ -242,7 +258,8 @@ def expand_pieces(system, value: sympy.Expr, variables: Sequence[tuple[sympy.Sym
             if derived is not None and sum(powers) <= derived[1] and powers not in derived[2]:
                 coefficient = derived[0].get(powers, sympy.Integer(0))
             if coefficient is None:
-                unknown = Unknown(sympy.Symbol(_name(piece, monomial)), piece, monomial)
+                estimate = derived[3].get(powers) if derived is not None else None
+                unknown = Unknown(sympy.Symbol(_name(piece, monomial)), piece, monomial, estimate)
                 _NAMED.setdefault(unknown.symbol.name, unknown)
                 unknowns.append(unknown)
                 coefficient = unknown.symbol
@@ -285,12 +302,13 @@ def value_at(system, piece: sympy.Symbol, point: Mapping) -> sympy.Expr | None:
 def derived_taylor(system, piece: sympy.Symbol, used) -> tuple[dict, int] | None:
     """The Taylor coefficients of a cluster piece that the perturbative route derives
     (`routes.perturbative`, docs/perturbative.md), as ({powers of (v - v0) per used variable: value},
-    the total order through which the route was asked, the powers it could not derive there), or None
+    the total order through which the route was asked, the powers it could not derive there, and
+    {power: (value, error bound)} for those of them computed numerically), or None
     where it does not apply: every pair
     phase of the piece's species must sit at a boson or fermion point (mutual: an integer) at the
     expansion point, each deviation linear in one expansion variable, masses rational, no tubes."""
     from .routes import regime_of
-    from .routes.perturbative import Species as Perturbed, taylor_coefficients
+    from .routes.perturbative import Species as Perturbed, numerical_coefficients, taylor_coefficients
     if piece.name in _NAMED or not piece.name.startswith("b_") or system.tubes is not None \
             or not regime_of(system).named_pieces:
         return None
@@ -351,7 +369,9 @@ def derived_taylor(system, piece: sympy.Symbol, used) -> tuple[dict, int] | None
             deviations[mutual[(i, j)]] = found[1]
     order = min(max(k for _, _, k, _ in used), 2)
     terms = taylor_coefficients(species, mutual, index, tuple(about), order, unknown="name")
+    numbers = numerical_coefficients(species, mutual, index, tuple(about)) if order >= 2 else {}
     shifts = [shift[v] for v, _, _, _ in used]
+    estimates, unestimated = {}, set()
     polynomial, missing = sympy.Integer(0), set()
     for monomial, value in terms.items():
         if value == 0:
@@ -361,12 +381,23 @@ def derived_taylor(system, piece: sympy.Symbol, used) -> tuple[dict, int] | None
         term = monomial.replace(sympy.Abs, lambda x: deviations[x][1] * x)
         term = sympy.expand(term.xreplace({x: dev for x, (dev, _) in deviations.items()}))
         if isinstance(value, sympy.Symbol):   # not derived: every power it reaches stays unknown
-            missing.update(sympy.Poly(term, *shifts).monoms())
+            reached = sympy.Poly(term, *shifts)
+            missing.update(reached.monoms())
+            if monomial not in numbers:
+                unestimated.update(reached.monoms())
+                continue
+            number, error = numbers[monomial]   # computed numerically: shown beside the name, never in its place
+            for powers, c in zip(reached.monoms(), reached.coeffs()):
+                before = estimates.get(powers, (0.0, 0.0))
+                estimates[powers] = (before[0] + float(c) * number, before[1] + abs(float(c)) * error)
             continue
         polynomial += value * term
     polynomial = sympy.Poly(sympy.expand(polynomial), *shifts)
     known = {powers: c for powers, c in zip(polynomial.monoms(), polynomial.coeffs()) if powers not in missing}
-    return known, order, frozenset(missing)
+    # a power is estimated only when every coefficient that reaches it is; the known part adds exactly
+    estimates = {powers: (value + float(polynomial.coeff_monomial(powers)), error)
+                 for powers, (value, error) in estimates.items() if powers not in unestimated}
+    return known, order, frozenset(missing), estimates
 
 
 def side_in_range(parameters: Iterable, symbol: sympy.Symbol, point) -> str | None:

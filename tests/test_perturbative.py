@@ -580,7 +580,7 @@ def _chord_closed_square(m_i, m_j):
     contact-contact integral and T = E of the double line integral of ln|gamma_1 - gamma_2| (Gaussian
     calculus, with the equal-time term of the shared loop)."""
     from scipy import integrate
-    from two_loop_clusters import chord_closed_single
+    from clusterexp.routes.two_loop_quadrature import chord_closed_single
 
     d_i, d_j = 1 / m_i, 1 / m_j
     d_rel, v_gap = d_i + d_j, d_i / 2      # relative diffusion; variance of the 2-cycle's gap S(1) - S(0)

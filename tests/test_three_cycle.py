@@ -29,6 +29,7 @@ import sympy
 from scipy import integrate, special
 
 from clusterexp.routes.perturbative import Species, chain_part, taylor_coefficients
+from clusterexp.routes.two_loop_quadrature import laplace_x_k0 as _laplace_x_k0
 
 PERIOD = 3.0
 VARIANCE = 2.0 / 3.0          # per-component variance of D(s) = X(s) - X(s + 1) on a loop of duration 3
@@ -45,18 +46,6 @@ def _loop_covariance(a, b, c, d):
 def _lag_covariance(u):
     """Cov(D_x(s), D_x(s + u)) from the loop's variogram (not the piecewise-linear closed form)."""
     return _loop_covariance(0.0, 1.0, u, u + 1.0)
-
-
-_SERIES_NEAR_TWO = [1 / 12, -1 / 15, 3 / 70, -8 / 315, 10 / 693, -8 / 1001, 7 / 1287]
-
-
-def _laplace_x_k0(b):
-    """int_0^inf x K_0(2x) e^{-b x} dx for b > -2, in closed form (series in y - 1, y = b/2, near y = 1)."""
-    y = b / 2
-    if abs(y - 1) < 2e-3:
-        return sum(c * (y - 1) ** k for k, c in enumerate(_SERIES_NEAR_TWO))
-    ratio = np.arccos(y) / np.sqrt(1 - y * y) if y < 1 else np.arccosh(y) / np.sqrt(y * y - 1)
-    return (1 - y * ratio) / (4 * (1 - y * y))
 
 
 def _single_pair_schlaefli(order):
@@ -294,15 +283,15 @@ def test_every_k_cycle_carries_only_its_fock_ring_part(k):
 
 
 def test_two_loop_engine_reproduces_the_loop_with_a_two_cycle():
-    """The engine of section 4f (tests/two_loop_clusters.py) on the cluster that Sen's symmetry fixes: the
+    """The engine of section 4f (clusterexp/routes/two_loop_quadrature.py) on the cluster that Sen's symmetry fixes: the
     one-species loop + 2-cycle of b_3 is 3/2 at second order (test_b3_loop_clusters_from_sen_symmetry),
     split into the link^2 part 3/4 (section 4e, with the static limits), the Hartree-Fock ring 1 and the
     angle-area part -1/4 (section 4c: E[Theta_S Area(S)] = lambda^2/(2 pi)); normalisation P from the
     cluster's first order, -1/2 (the Fock half of b_3^(1) = -1 that is not in the 3-cycle)."""
-    from two_loop_clusters import two_loop_parts
+    from clusterexp.routes.two_loop_quadrature import two_loop_parts
     segments, first, link2, contact, angle_area = two_loop_parts(2, 1, TOL=1e-6)
     norm = -0.5 / (segments * first)
     assert abs(first + 2 * math.pi) < 1e-7
     assert abs(norm * link2 - 0.75) < 1e-4
     assert abs(norm * contact - 1.0) < 1e-6
-    assert abs(-2 * math.pi * norm * angle_area + 0.25) < 1e-4
+    assert abs(-2 * math.pi * norm * sum(angle_area.values()) + 0.25) < 1e-4

@@ -1,7 +1,7 @@
 """Brownian-loop Monte Carlo of the two-loop clusters of one species (docs/perturbative.md, section 4f):
 a p-cycle (loop X of duration p) and a q-cycle (loop Y of duration q) at offset c, with every pair's
 Aharonov-Bohm factor exact per time slice (clusterexp.loops.pairfactor). A route independent of the
-quadrature engine in two_loop_clusters.py: no decomposition into closed segments, no Gaussian calculus,
+quadrature engine (clusterexp/routes/two_loop_quadrature.py): no closed segments, no Gaussian calculus,
 only sampled loops and the exact two-body slice factor.
 
 The cluster's term of b_{p+q} is K int d^2c E[Phi_self(X) Phi_self(Y) (Phi_link - 1)], where Phi_link is

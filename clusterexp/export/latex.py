@@ -15,6 +15,7 @@ from .latex_lines import aligned_rows, top_level_terms
 from ..naming import generated_latex_names, is_single_atom, latex_subscript, species_latex
 from ..exact.series import indices_up_to
 from .series_lines import series_latex_rows
+from ..pieces import format_estimate
 
 LETTERS = {"cluster": "b", "virial": "a"}
 
@@ -122,7 +123,19 @@ def unknowns_latex(derivation: Derivation, names) -> list[str]:
         return []
     return [r"Unknown Taylor coefficients of the named many-body pieces (the pieces are continuous; at a kink "
             r"each side has its own coefficients):", r"\begin{itemize}"] + \
-        [rf"\item ${names[u.symbol]}$: {u.latex_description(names)}." for u in unknowns] + [r"\end{itemize}"]
+        [rf"\item ${names[u.symbol]}$: {u.latex_description(names)}" + _estimate_latex(u) + "."
+         for u in unknowns] + [r"\end{itemize}"]
+
+
+def _estimate_latex(unknown) -> str:
+    """`; computed: $value pm error$ (quadrature ..., not a closed form)` where the value is known
+    numerically, else nothing."""
+    if unknown.estimate is None:
+        return ""
+    from ..routes.two_loop_table import SOURCE
+    value, error = unknown.estimate
+    text = format_estimate(value, error).replace("+-", r"\pm")
+    return rf"; computed: ${text}$ ({SOURCE})"
 
 
 def claim_latex_name(derivation: Derivation, target) -> str:

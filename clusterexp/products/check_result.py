@@ -23,7 +23,10 @@ UNDECIDED = "undecided"
 # a claim on a coefficient with Monte Carlo parts, within the stated number of standard errors at every
 # sampled point (products/sampled_use.py): statistics, never a proof; not a failure
 SAMPLED = "consistent within the sampling errors, not proven"
-STATUSES = (PROVEN, CONSISTENT, TIE, UNDECIDED, MISMATCH, SAMPLED)
+# a claim whose difference involves named Taylor coefficients that are known only numerically (computed by
+# quadrature with an error bound, routes/two_loop_table.py), within those bounds: never a proof; not a failure
+COMPUTED = "consistent with the computed coefficients, not proven"
+STATUSES = (PROVEN, CONSISTENT, TIE, UNDECIDED, MISMATCH, SAMPLED, COMPUTED)
 
 
 
@@ -90,7 +93,7 @@ class CheckResult:
         elif self.status == UNDECIDED:
             lines = [f"undecided: {self._subject()} holds if and only if the named many-body pieces satisfy "
                      f"({self.method}):"] + [f"  {_text(e.lhs)} = {_text(e.rhs)}" for e in self.conditions]
-        elif self.status == SAMPLED:
+        elif self.status in (SAMPLED, COMPUTED):
             lines = [f"{self.status}: {self._subject()}: {self.method}"]
         elif self.status == CONSISTENT and self.rounding:
             lines = [f"numerically consistent, not proven: {self._subject()}: {self.method}"]
@@ -145,8 +148,8 @@ class CheckResult:
             body = rf"{name} = {claimed}\ \text{{if and only if }}" + r",\ ".join(
                 f"{tex(e.lhs)} = {tex(e.rhs)}" for e in self.conditions)
         else:
-            relation = r"\approx" if self.status in (CONSISTENT, SAMPLED) else "="
-            body = rf"{name} = {claimed}" if (self.rounding is None and self.status != SAMPLED) or \
+            relation = r"\approx" if self.status in (CONSISTENT, SAMPLED, COMPUTED) else "="
+            body = rf"{name} = {claimed}" if (self.rounding is None and self.status not in (SAMPLED, COMPUTED)) or \
                 self.status == PROVEN else \
                 rf"{name} {relation} {claimed}"
         return f"{head} {body}"

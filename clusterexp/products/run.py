@@ -134,6 +134,10 @@ def run_evaluations(derivation) -> list:
             if uses_sampled(derivation, value):   # Monte Carlo parts: value +- error
                 rows.append((label, sampled_number_text(derivation, value, point, evaluation.span)))
                 continue
+            through = _through_series(derivation, _coefficient(derivation, target), value, point, evaluation.digits)
+            if through is not None:   # named pieces: the `expand` series of the input, if it reaches the point
+                rows.append((f"{label} ({through[0]})", through[1]))
+                continue
             try:
                 number = evaluate(value, point, evaluation.digits, allowed=[s.name for s in point])
             except InputError as error:
@@ -141,6 +145,38 @@ def run_evaluations(derivation) -> list:
             rows.append((label, format_number(number, evaluation.digits)))
         out.append((evaluation, rows))
     return out
+
+
+def _through_series(derivation, coefficient, value, point: dict, digits: int):
+    """For a value with named many-body pieces: (how, number text) from an `expand` series of the input
+    that covers the point (one variable, the point on the series' side, every other parameter given,
+    every named Taylor coefficient in it computed numerically or absent), else None. The number is the
+    truncated series at the point, its remainder left out (said in `how`), with the error bound of the
+    computed coefficients."""
+    from ..pieces import format_estimate, pieces_in
+    if not pieces_in(value, len(derivation.system.species)):
+        return None
+    for piece in derivation.series_of(coefficient):
+        if getattr(piece, "variables", ()) or piece.variable not in point:
+            continue
+        shift = point[piece.variable] - piece.point
+        if (piece.side == "above" and shift < 0) or (piece.side == "below" and shift > 0):
+            continue
+        estimates = {u.symbol: u.estimate for u in piece.unknowns}
+        polynomial = sympy.expand(piece.polynomial)
+        if any(e is None for e in estimates.values()) or polynomial.free_symbols - set(point) - set(estimates):
+            continue
+        at = sympy.expand(polynomial.subs(point))
+        number = float(at.subs({s: v for s, (v, _) in estimates.items()}))
+        bound = sum(abs(float(at.coeff(s))) * e for s, (_, e) in estimates.items())
+        remainder = " + ".join(sympy.sstr(o) for o in piece.remainder)
+        how = (f"series about {piece.variable} = {piece.point}" + (f" from {piece.side}" if piece.side else "")
+               + f" through order {piece.known}, {remainder} left out")
+        if not estimates:
+            return how, format_number(evaluate(at, {}, digits), digits)
+        how += "; +- from the computed coefficients"
+        return how, format_estimate(number, max(bound, 10.0 ** -digits))
+    return None
 
 
 def _gas_symbols(system) -> set:

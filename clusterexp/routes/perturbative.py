@@ -338,6 +338,70 @@ def taylor_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int, i
             for m, v in out.items()}
 
 
+def _computed_square(gas: _Gas, link: _Link, n) -> tuple[float, float] | None:
+    """(value, error bound) of e_i^2 in b_n of one species i with n >= 4 particles: the chains of three
+    loops (exact) plus the two-loop clusters beyond them, computed by quadrature (`two_loop_table`; their
+    sign about fermions is (-1)^n), times m_i/m_ref; None where the table does not reach."""
+    from .two_loop_table import beyond_the_chains
+    i = link.i
+    if link.i != link.j or sum(n) != n[i] or n[i] < 4:
+        return None
+    found = beyond_the_chains(n[i])
+    if found is None:
+        return None
+    ring, landau = _chain(gas, link, link, n)
+    value, error = found
+    return float(ring + landau) + gas.sign[i] ** n[i] * float(gas.mass[i]) * value, float(gas.mass[i]) * error
+
+
+def _computed_two_species(gas: _Gas, links: Sequence[_Link], link: _Link, n) -> dict:
+    """For b_n of two species i, j of equal masses and the mutual link d = d_ij (n_i + n_j >= 3): the
+    coefficients of d^2, e_i d and e_j d, each the chains of three loops (exact) plus the cluster of the
+    n_i-cycle of i with the n_j-cycle of j (`two_loop_table.two_species_cluster`: its link squared and the
+    angle-area part of each cycle's self pairs), scaled from one species' units by the ratio of the
+    clusters' first orders (2 when n_i = n_j, else 1) and signed by the cycles' transpositions about
+    fermions. {monomial: (value, error)}; empty where the table does not reach."""
+    from .two_loop_table import two_species_cluster
+    i, j = link.i, link.j
+    a, b = n[i], n[j]
+    if link.i == link.j or sum(n) != a + b or a < 1 or b < 1 or gas.mass[i] != gas.mass[j]:
+        return {}
+    cluster = two_species_cluster(a, b)
+    if cluster is None:
+        return {}
+    (square, square_error), (angle_i, error_i), (angle_j, error_j) = cluster
+    scale = float(gas.mass[i]) * (2 if a == b else 1) * gas.sign[i] ** (a - 1) * gas.sign[j] ** (b - 1)
+    ring, landau = _chain(gas, link, link, n)
+    out = {link.symbol ** 2: (float(ring + landau) + scale * square, abs(scale) * square_error)}
+    for other in links:
+        if other.i == other.j and other.i in (i, j):
+            _, landau = _chain(gas, other, link, n)
+            angle, error = (angle_i, error_i) if other.i == i else (angle_j, error_j)
+            out[other.symbol * link.symbol] = (float(landau) + scale * angle, abs(scale) * error)
+    return out
+
+
+def numerical_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int, int], sympy.Symbol],
+                           multi_index: Sequence[int], about="boson") -> dict:
+    """{monomial: (value, error bound)} for the second-order Taylor coefficients of b_n that are not
+    derived in closed form but computed numerically: the square of the exchange parameter in b_n of
+    one species (n = 4..two_loop_table.SINGLE_CYCLES_CHECKED), and d_ij^2, e_i d_ij, e_j d_ij in b_n of
+    two species of equal masses, |n| >= 4, where the table has the cluster; empty where none is. The
+    values are floats with their quadrature error bounds: the tool keeps the coefficient's name and
+    shows the number beside it, never in place of it."""
+    K = len(species)
+    gas = _Gas(species, _points(about, K))
+    n = _index(multi_index, K)
+    links = _links(species, mutual)
+    out = {}
+    for link in links:
+        computed = _computed_square(gas, link, n)
+        if computed is not None:
+            out[link.symbol ** 2] = computed
+        out.update(_computed_two_species(gas, links, link, n))
+    return out
+
+
 def expansion(species, mutual, multi_index, about="boson", order: int = 2, unknown: str = "raise") -> sympy.Expr:
     """The Taylor polynomial sum(value * monomial) of b_n through `order` (without the O-term)."""
     terms = taylor_coefficients(species, mutual, multi_index, about, order, unknown)
