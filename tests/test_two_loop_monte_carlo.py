@@ -9,12 +9,12 @@ AMPLITUDES = (0.03, 0.06, 0.09, 0.12)
 SIGMAS = 4.0
 
 
-def _coefficients(p, q, batches, seed):
+def _coefficients(p, q, batches, seed, link_only=False):
     """c1 .. c4 of the even part about bosons (the polynomial through the four amplitudes: a cubic fit
     leaves a bias of about 0.01 in c2 from the quartic term, docs/perturbative.md section 4g), with
     errors from the spread over batches; 16 slices per unit time (c2 moves by about 0.005 from 16 to 32
     slices, section 4g)."""
-    evens = even_parts(p, q, AMPLITUDES, 16, (1,), 2000, batches, seed)[:, 0, :]
+    evens = even_parts(p, q, AMPLITUDES, 16, (1,), 2000, batches, seed, link_only)[:, 0, :]
     fits = fit_coefficients(AMPLITUDES, evens, degree=4)
     return fits.mean(axis=0), fits.std(axis=0, ddof=1) / np.sqrt(len(fits))
 
@@ -54,3 +54,30 @@ def test_four_cycle_alone_is_its_ring_part():
     assert abs(c[0] + 11 / 24) < SIGMAS * err[0], (c[0], err[0])
     assert abs(c[1] - 1.0) < SIGMAS * err[1], (c[1], err[1])
     assert err[1] < 0.03
+
+
+@pytest.mark.parametrize("p, q, batches", [(2, 2, 16), (3, 1, 12), (4, 1, 12)])
+def test_link_squared_of_two_species_against_the_quadrature_table(p, q, batches):
+    """Two species at their boson points with a mutual parameter d: only the pairs between the cycles
+    carry a phase, and the cluster's d^2 coefficient (one species' units) is the table's link squared
+    (clusterexp/routes/two_loop_table.py LINK: 0.2975 for {2, 2}, 0.6033 for {3, 1}, 0.5080 for {4, 1}),
+    which the package uses for d^2 in b_{2,2}, b_{3,1}, b_{4,1} of two species of equal masses
+    (docs/perturbative.md section 4h); first order -1/8, -1/3, -1/4 (section 3)."""
+    from clusterexp.routes.two_loop_table import LINK
+    c, err = _coefficients(p, q, batches, 47, link_only=True)
+    first = -1 / (2 * p * p) if p == q else -1 / (p * q)
+    assert abs(c[0] - first) < SIGMAS * err[0], (c[0], err[0])
+    assert abs(c[1] - LINK[(p, q)][0]) < SIGMAS * err[1], (c[1], err[1])
+    assert err[1] < 0.05
+
+
+def test_four_cycle_with_a_loop_against_the_quadrature_table():
+    """{4-cycle, loop} of b_5, one species: first order -1/4 (section 3), second order the H F ring part
+    11/6 (the chains' formula, section 4) plus the table's part beyond the chains (0.1330, section 4h):
+    an independent check of an n = 5 entry (16 slices; the {3, 1} and {2, 2} runs of section 4g move by
+    about -0.005 from 16 to 32 slices)."""
+    from clusterexp.routes.two_loop_table import BEYOND
+    c, err = _coefficients(4, 1, 24, 53)
+    assert err[1] < 0.04
+    assert abs(c[0] + 0.25) < SIGMAS * err[0]
+    assert abs(c[1] - (11 / 6 + BEYOND[(4, 1)][0])) < SIGMAS * err[1], (c[1], err[1])

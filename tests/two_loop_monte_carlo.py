@@ -67,9 +67,11 @@ class TwoLoopSamples:
         self.link = _joined(links, n, strides)
         self.self = _joined(selfs, n, strides) if selfs else None
 
-    def values(self, alpha: float, stride: int = 1) -> np.ndarray:
+    def values(self, alpha: float, stride: int = 1, own: bool = True) -> np.ndarray:
+        """own=False: the pairs inside each cycle carry no phase (two species, each at its boson point,
+        with the mutual parameter alpha between them; one species' weight)."""
         ph = self.link[stride].phase(alpha) - 1.0
-        if self.self is not None:
+        if own and self.self is not None:
             ph = ph * self.self[stride].phase(alpha)
         return ph.real * self.weight
 
@@ -92,18 +94,22 @@ def _joined(curves, n, strides) -> dict[int, PhaseData]:
     return {s: PhaseData.join([lv[s] for lv in levels]) for s in strides}
 
 
-def even_parts(p: int, q: int, amplitudes, n: int, strides, count: int, batches: int, seed: int):
+def even_parts(p: int, q: int, amplitudes, n: int, strides, count: int, batches: int, seed: int,
+               link_only: bool = False):
     """Per batch and stride, the even part (f(a) + f(-a))/2 at each amplitude a (a -> 2 - a is -a for
     one species: the exchange parameter has period 2). Returns an array [batch, stride, amplitude].
-    q = 0: the p-cycle alone (CycleAloneSamples), its ideal-Bose value taken off."""
+    q = 0: the p-cycle alone (CycleAloneSamples), its ideal-Bose value taken off. link_only: only the
+    pairs between the cycles carry the phase (a mutual parameter, period 1: -a is 1 - a)."""
     rng = np.random.default_rng(seed)
     out = np.empty((batches, len(strides), len(amplitudes)))
     make = CycleAloneSamples if q == 0 else TwoLoopSamples
+    period = 1.0 if link_only else 2.0
     for b in range(batches):
         s = make(rng, count, p, q, n, strides)
+        values = (lambda a, st: s.values(a, st, own=False)) if link_only else s.values
         for i, st in enumerate(strides):
             for j, a in enumerate(amplitudes):
-                out[b, i, j] = 0.5 * (s.values(a, st).mean() + s.values(2.0 - a, st).mean())
+                out[b, i, j] = 0.5 * (values(a, st).mean() + values(period - a, st).mean())
     return out
 
 
