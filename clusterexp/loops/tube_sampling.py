@@ -305,12 +305,6 @@ def _piece_target(sampling, piece, points, exprs, coverage) -> float | None:
     return sampling.target / max(steepest, 1e-300)
 
 
-def missing_text(piece, point_text: str) -> str:
-    """Why a value with this piece cannot be given at a point no `sample` statement covers."""
-    return (f"{piece} has no closed form and no `sample` statement of this input estimates it at {point_text}; "
-            f"add one there, e.g. `sample` of a coefficient that contains it `at {point_text}`")
-
-
 def refuse_claim_within_errors(claim) -> None:
     """`claim ... within k errors` on a coefficient with sampled tube pieces is not decided yet: the
     coefficient is a truncated series in the coverage, and a claimed number cannot be told apart from

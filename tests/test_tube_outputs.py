@@ -1,0 +1,137 @@
+"""`tabulate`, `plot`, `evaluate` and `claim ... within k errors` of coefficients among static flux tubes
+(products/tube_use.py, products/sampled_use.py; docs/tubes.md "In the input language").
+
+At each point a tube piece is exact where known (integer flux, bose/fermi points), the `sample` estimate
+where a statement estimated it, else the statement is refused.  Every expected number is composed here
+from outside formulas: the anyon b_2 = 1/4 - s + s^2/2, s = alpha mod 2 (Arovas, Schrieffer, Wilczek,
+Zee, Nucl. Phys. B 251 (1985) 117); the one-tube shift F = -s(1 - s)/2, s = flux mod 1 (Comtet,
+Georgelin, Ouvry, J. Phys. A 22 (1989) 3917, attributed from memory in physics.md); the virial relation
+a_2 = -b_2/b_1^2 (physics.md section 1) expanded by hand in the coverage; the sampled piece itself is
+read from the `sample` statement's own printed numbers, never from the code under test's composition.
+"""
+from __future__ import annotations
+
+import csv
+
+import pytest
+
+import clusterexp
+
+from conftest import run_cli
+
+ANYONS = ("dimension 2\nparameter g\nspecies A exchange 1/2\ntubes flux g coverage 1/10\nclusters pairphase\n"
+          "derive virial up to 2\n")
+BOSONS = "dimension 2\nparameter n nonnegative\nspecies A bose\ntubes flux 1/2 coverage n\nclusters pairphase\n" \
+         "derive virial up to 2\n"
+B2_HALF = 1 / 4 - 1 / 2 + 1 / 8          # b_2(1/2) = -1/8 (Arovas et al. 1985)
+F_HALF = -(1 / 2) * (1 / 2) / 2           # F(1/2) = -1/8 (Comtet, Georgelin, Ouvry 1989)
+
+
+def _piece(derivation, name, statement=0):
+    """(value, error) of a tube piece as the `sample` statement printed it (its only point)."""
+    (point,) = derivation.sampled.statements[statement].points
+    (value,) = [(v.value, v.error) for v in point.values if v.label == name]
+    return value
+
+
+def _anyon_a2(piece, n=0.1):
+    """a_2 = -b_2/b_1^2 with b_1 = 1 + n F, b_2 = b_2(alpha) + n B, to first order in n, by hand."""
+    return -B2_HALF - n * (piece - 2 * F_HALF * B2_HALF)
+
+
+def test_table_takes_exact_points_and_the_sampled_point():
+    d = clusterexp.derive(ANYONS + "sample b[2] at g = 1/2 seed 5 with 8000 loops\n"
+                          "tabulate a[2] over g in [0, 1/2, 1, 3/2] into \"t.csv\"\n")
+    (_, rows), = d.tables
+    assert rows[0] == ["g", "a[2] (truncated series, O(rho_tubes**2) left out, rho_tubes = 1/10)", "a[2] error"]
+    piece, error = _piece(d, "B_anyon_tube_A")
+    by_g = {row[0]: (float(row[1]), float(row[2])) for row in rows[1:]}
+    # integer flux: no Aharonov-Bohm phase, so a_2 is the free anyons' -b_2(1/2) = 1/8, with no error
+    assert by_g["0"] == (0.125, 0.0) and by_g["1"] == (0.125, 0.0)
+    # flux 1/2 and 3/2 (period 1): the sampled piece, its error times the coverage
+    for g in ("0.5", "1.5"):
+        assert by_g[g][0] == pytest.approx(_anyon_a2(piece), rel=1e-12)
+        assert by_g[g][1] == pytest.approx(0.1 * error, rel=1e-9)
+
+
+def test_table_of_exact_points_only_needs_no_sample_and_has_no_error_column():
+    d = clusterexp.derive(ANYONS + "tabulate a[2] over g in [0, 1, 2] into \"t.csv\"\n")
+    (_, rows), = d.tables
+    assert rows[0] == ["g", "a[2] (truncated series, O(rho_tubes**2) left out, rho_tubes = 1/10)"]
+    assert [row[1] for row in rows[1:]] == ["0.125"] * 3
+
+
+def test_a_point_neither_exact_nor_sampled_is_refused_at_the_statement(tmp_path):
+    path = tmp_path / "t.gas"
+    path.write_text(ANYONS + "sample b[2] at g = 1/2 seed 5 with 4000 loops\n"
+                    "tabulate a[2] over g in [0, 1/2, 1/3] into \"t.csv\"\n")
+    done = run_cli("run", str(path), "--files-into", str(tmp_path / "out"))
+    assert done.returncode == 2 and "Traceback" not in done.stderr
+    assert f"{path}:8:1: error: no value for B_anyon_tube_A at g = 1/3" in done.stderr
+    assert "add `sample b[2] at g = 1/3`" in done.stderr
+    assert "\n    tabulate a[2] over g in [0, 1/2, 1/3] into \"t.csv\"\n    ^^^" in done.stderr
+    assert not (tmp_path / "out" / "t.csv").exists()
+
+
+def test_evaluate_names_the_sample_statement_to_add():
+    with pytest.raises(clusterexp.InputError) as caught:
+        clusterexp.derive(ANYONS + "evaluate a[2] at g = 1/4\n").evaluations
+    assert "no value for B_anyon_tube_A at g = 1/4" in str(caught.value)
+    assert "`sample b[2] at g = 1/4`" in str(caught.value) and str(caught.value.span).endswith("7:1")
+
+
+def test_bose_table_over_the_coverage_states_its_order():
+    # a_2 of a bose gas among tubes: -1/4 - (n^2/4)(T2 - F^2) + O(n^3) (docs/tubes.md); by hand from the
+    # sampled T2 and F(1/2) = -1/8
+    d = clusterexp.derive(BOSONS + "sample b[1] seed 6 with 4000 loops\n"
+                          "tabulate a[2], b[1] over n in [0, 1/10, 1/5] into \"t.csv\"\n")
+    (_, rows), = d.tables
+    assert rows[0] == ["n", "a[2] (truncated series, O(n**3) left out)", "a[2] error",
+                       "b[1] (truncated series, O(n**3) left out)", "b[1] error"]
+    t2, error = _piece(d, "T_two_tubes")
+    for row in rows[1:]:
+        n = float(row[0])
+        assert float(row[1]) == pytest.approx(-1 / 4 - n ** 2 / 4 * (t2 - F_HALF ** 2), rel=1e-12)
+        assert float(row[2]) == pytest.approx(n ** 2 / 4 * error, rel=1e-9, abs=1e-300)
+        # b_1 = 1 + n F + (n^2/2) T2 (docs/tubes.md): the one-tube shift of Comtet, Georgelin, Ouvry
+        assert float(row[3]) == pytest.approx(1 + n * F_HALF + n ** 2 / 2 * t2, rel=1e-12)
+
+
+def test_other_truncated_series_stay_refused():
+    # a given series in a statistics parameter would be a polynomial in disguise in a table
+    with pytest.raises(clusterexp.InputError) as caught:
+        clusterexp.derive("dimension 2\nparameter alpha in [0, 1/2]\nspecies A exchange alpha\nclusters pairphase "
+                          "{ a[3] = 1/36 + alpha^2/12 + O(alpha^3) }\nderive virial up to 3\n"
+                          "tabulate a[3] over alpha in [0, 1/4] into \"t.csv\"\n").tables
+    assert "known only as a series" in str(caught.value)
+
+
+def test_plots_draw_points_and_curves_and_state_the_order(tmp_path):
+    pytest.importorskip("matplotlib")
+    path = tmp_path / "p.gas"
+    path.write_text(ANYONS + "sample b[2] at g = 1/2 seed 5 with 4000 loops\n"
+                    "plot a[2] over g from 0 to 1 into \"g.png\"\n")
+    done = run_cli("run", str(path), "--files-into", str(tmp_path))
+    assert done.returncode == 0, done.stderr
+    assert (tmp_path / "g.png").read_bytes()[:4] == b"\x89PNG"
+    caption = (tmp_path / "g.caption.tex").read_text()
+    assert r"a[2]: truncated series, O(rho\_tubes**2) left out, rho\_tubes = 1/10" in caption
+    assert "carry no error" in caption
+    # over the coverage the pieces are constant: a curve with a band
+    path.write_text(BOSONS + "sample b[1] seed 6 with 4000 loops\nplot a[2], b[1] over n from 0 to 1/2 into \"n.png\"\n"
+                    "tabulate b[1] over n in [1/2] into \"n.csv\"\n")
+    done = run_cli("run", str(path), "--files-into", str(tmp_path), "--overwrite")
+    assert done.returncode == 0, done.stderr
+    assert (tmp_path / "n.png").read_bytes()[:4] == b"\x89PNG"
+    assert "O(n**3) left out" in (tmp_path / "n.caption.tex").read_text()
+    header, row = list(csv.reader((tmp_path / "n.csv").read_text().splitlines()))
+    assert header[1] == "b[1] (truncated series, O(n**3) left out)"
+
+
+def test_a_plot_with_no_known_point_is_refused_with_the_statement_to_add(tmp_path):
+    path = tmp_path / "p.gas"
+    path.write_text(ANYONS + "plot a[2] over g from 1/4 to 3/4 into \"g.png\"\n")
+    done = run_cli("run", str(path), "--files-into", str(tmp_path))
+    assert done.returncode == 2 and "Traceback" not in done.stderr
+    assert f"{path}:7:1: error: a[2] has no point on g in [1/4, 3/4] where its tube pieces are known" in done.stderr
+    assert "add `sample b[2] at g = 1/2`" in done.stderr and "^" in done.stderr
