@@ -14,6 +14,7 @@ from __future__ import annotations
 import csv
 
 import pytest
+import sympy
 
 import clusterexp
 
@@ -135,3 +136,39 @@ def test_a_plot_with_no_known_point_is_refused_with_the_statement_to_add(tmp_pat
     assert done.returncode == 2 and "Traceback" not in done.stderr
     assert f"{path}:7:1: error: a[2] has no point on g in [1/4, 3/4] where its tube pieces are known" in done.stderr
     assert "add `sample b[2] at g = 1/2`" in done.stderr and "^" in done.stderr
+
+
+MIXED = ("dimension 2\nparameter n\nparameter e in [0, 1]\nparameter nu in [0, 1]\nspecies A exchange e\nspecies B bose\n"
+         "mutual A B = nu\ntubes flux 1/2 coverage n\nclusters pairphase { b[2,1] = 1/100 }\nderive virial up to 3\n"
+         "sample b[1,1] at nu = 1/2 seed 8 with 4000 loops\nsample b[2,0] at e = 0 seed 9 with 4000 loops\n")
+
+
+def test_a_mixed_point_puts_the_exact_piece_in_and_propagates_the_sampled_error_only():
+    # a[2,1] holds both B_anyon_tube_A and B_braid_tube_A_B. At e = 0 (A a boson) the anyon piece is exactly F/2
+    # (the l = 2 cycle of the ideal gas, F = -1/8 at flux 1/2: Comtet, Georgelin, Ouvry 1989), even though a
+    # `sample` statement estimated it there too; the braid piece at nu = 1/2 is only sampled.
+    d = clusterexp.derive(MIXED + "evaluate a[2,1] at e = 0, nu = 1/2, n = 1/10\n"
+                          "tabulate a[2,1] over nu in [1/2, 1] at e = 0, n = 1/10 into \"t.csv\"\n")
+    braid, braid_error = _piece(d, "B_braid_tube_A_B", 0)
+    anyon, anyon_error = _piece(d, "B_anyon_tube_A", 1)
+    assert anyon_error > 0 and braid_error > 0
+    derived = d.value("virial", (2, 1)).removeO()
+    symbols = {s.name: s for s in derived.free_symbols}
+    at = {symbols["e"]: 0, symbols["nu"]: sympy.Rational(1, 2), symbols["n"]: sympy.Rational(1, 10)}
+    expr = derived.xreplace(at)
+    pieces = {symbols["B_anyon_tube_A"]: sympy.Rational(F_HALF) / 2, symbols["B_braid_tube_A_B"]: braid}
+    value = float(expr.xreplace(pieces))
+    slope_braid = float(sympy.diff(expr, symbols["B_braid_tube_A_B"]))
+    slope_anyon = float(sympy.diff(expr, symbols["B_anyon_tube_A"]))
+    assert slope_anyon != 0 and slope_braid != 0   # both pieces matter at this point
+    ((label, text),) = d.evaluations[0][1]
+    shown, shown_error = (float(x) for x in text.split(" (")[0].split(" +- "))
+    assert shown == pytest.approx(value, abs=abs(slope_braid) * braid_error / 10)
+    assert shown_error == pytest.approx(abs(slope_braid) * braid_error, rel=0.05)
+    (_, rows), = d.tables
+    assert rows[0][-1] == "a[2,1] error"
+    half, one = rows[1:]
+    assert float(half[-2]) == pytest.approx(value, rel=1e-12)
+    assert float(half[-1]) == pytest.approx(abs(slope_braid) * braid_error, rel=1e-12)   # not the anyon's error
+    # nu = 1: A and B do not braid, so the braid piece is 0 exactly too, and no error is left
+    assert float(one[-1]) == 0.0

@@ -5,7 +5,9 @@ statement of the same input) is evaluated at a point only where some `sample` st
 b at the same statistics parameters (exact equality of alpha, and alpha_12 for b_21); the parameters are
 substituted exactly, the b by its estimate, and the error is propagated to first order
 (`loops.sampled.propagate`).  Nothing is sampled here: a point no `sample` statement covers is refused
-with the statement to add.
+with the statement to add.  Among flux tubes the sampled b's are the tube pieces, and each is first put
+in exactly where `TubePiece.exactly` knows it (`tube_use.resolved`): a point where every piece is exact
+needs no `sample`, and a mixed point carries the error of its sampled pieces only.
 
 A claim on such a coefficient is compared at every point of the `sample` statements: it is "consistent
 within k standard errors" (k = 3 unless the claim says `within k errors`) when |claimed - value| < k
