@@ -172,3 +172,67 @@ def test_a_mixed_point_puts_the_exact_piece_in_and_propagates_the_sampled_error_
     assert float(half[-1]) == pytest.approx(abs(slope_braid) * braid_error, rel=1e-12)   # not the anyon's error
     # nu = 1: A and B do not braid, so the braid piece is 0 exactly too, and no error is left
     assert float(one[-1]) == 0.0
+
+
+ANYONS_FREE = ("dimension 2\nparameter n\nparameter alpha in [0, 1]\nspecies A exchange alpha\ntubes flux 1/2 coverage n\n"
+               "clusters pairphase\nderive virial up to 2\nsample b[2] at alpha = 1/2 seed 7 with 8000 loops\n")
+
+
+def _hand_slope(piece):
+    """The n term of a_2 at alpha = 1/2, flux 1/2: -(B - 2 F b_2) by hand (docs/tubes.md, the virial relation)."""
+    return -(piece - 2 * F_HALF * B2_HALF)
+
+
+def test_claim_within_errors_compares_each_power_of_the_coverage():
+    probe = clusterexp.derive(ANYONS_FREE)
+    piece, error = _piece(probe, "B_anyon_tube_A")
+    slope, slope_error = _hand_slope(piece), error       # d(n term)/dB = -1
+    near = f"{slope + 0.5 * slope_error:.8f}"             # half a standard error off: consistent
+    far = f"{slope + 8 * slope_error:.8f}"                # eight standard errors off: a mismatch
+    d = clusterexp.derive(ANYONS_FREE + f"claim a[2] = 1/8 + {near}*n within 3 errors\n"
+                          f"claim a[2] = 1/8 + {far}*n within 3 errors\n"
+                          f"claim a[2] = 1/4 + {near}*n + O(n^2) within 3 errors\n")
+    consistent, mismatch, wrong_free_term = d.checks
+    # -b_2(1/2) = 1/8 is the free term (Arovas et al. 1985); the n term is the sampled one
+    assert consistent.status == "consistent within the sampling errors, not proven" and consistent.ok
+    assert "not proven" in consistent.method and "O(n^2) are unknown and left out" in consistent.method
+    assert mismatch.status == "mismatch" and not mismatch.ok
+    assert "in the n^1 term" in mismatch.method and f"claimed {float(far):.10g}" in mismatch.method
+    assert float(mismatch.derived_value.split(" +- ")[0]) == pytest.approx(slope, abs=slope_error / 2)   # quoted
+    assert dict(mismatch.witness) == {"alpha": sympy.Rational(1, 2)}
+    assert wrong_free_term.status == "mismatch" and "from the exact value" in wrong_free_term.method
+    assert "in the n^0 term: claimed 0.25, derived 0.125" in wrong_free_term.method
+
+
+def test_claim_within_errors_with_a_numeric_coverage_is_never_a_mismatch():
+    # with the coverage a number the terms left out (O(rho_tubes^2)) are numbers too: far is undecided
+    d = clusterexp.derive(ANYONS + "sample b[2] at g = 1/2 seed 5 with 8000 loops\n")
+    piece, error = _piece(d, "B_anyon_tube_A")
+    value = _anyon_a2(piece)
+    d = clusterexp.derive(ANYONS + "sample b[2] at g = 1/2 seed 5 with 8000 loops\n"
+                          f"claim a[2] = {value:.10f} within 2 errors\nclaim a[2] = {value + 20 * 0.1 * error:.10f} "
+                          "within 2 errors\n")
+    near, far = d.checks
+    assert near.status == "consistent within the sampling errors, not proven"
+    assert far.status == "undecided" and far.ok
+    assert "the coverage is a number here and the difference may lie in the terms left out" in far.method
+    assert "+-" in far.method and "O(rho_tubes^2) at rho_tubes = 1/10" in far.method
+
+
+def test_cli_mismatch_exit_code_and_refusals(tmp_path):
+    path = tmp_path / "c.gas"
+    path.write_text(ANYONS_FREE + "claim a[2] = 1/8 + n within 3 errors\n")
+    done = run_cli("run", str(path), "--no-files")
+    assert done.returncode == 1, done.stderr
+    assert "standard errors away from the Monte Carlo number at alpha = 1/2 in the n^1 term" in done.stdout
+    # no `sample` statement: refused at the claim with the statement to add
+    path.write_text(ANYONS_FREE.replace("sample b[2] at alpha = 1/2 seed 7 with 8000 loops\n", "")
+                    + "claim a[2] = 1/8 within 3 errors\n")
+    done = run_cli("run", str(path), "--no-files")
+    assert done.returncode == 2 and "Traceback" not in done.stderr
+    assert f"{path}:8:1: error: `within 3 errors` compares the claim with the numbers" in done.stderr
+    assert "none estimates B_anyon_tube_A of a[2]; add one, e.g. `sample b[2] at ...`" in done.stderr
+    # a claim truncated in another parameter stays term by term
+    path.write_text(ANYONS_FREE + "claim a[2] = 1/8 + O(alpha^2) within 3 errors\n")
+    done = run_cli("run", str(path), "--no-files")
+    assert done.returncode == 2 and "a claim truncated in alpha is compared term by term" in done.stderr

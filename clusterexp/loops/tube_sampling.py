@@ -303,12 +303,3 @@ def _piece_target(sampling, piece, points, exprs, coverage) -> float | None:
             terms = sympy.Poly(slope, coverage).coeffs() if coverage in slope.free_symbols else [slope]
             steepest = max([steepest] + [abs(float(t)) for t in terms])
     return sampling.target / max(steepest, 1e-300)
-
-
-def refuse_claim_within_errors(claim) -> None:
-    """`claim ... within k errors` on a coefficient with sampled tube pieces is not decided yet: the
-    coefficient is a truncated series in the coverage, and a claimed number cannot be told apart from
-    the terms left out."""
-    raise NotSupportedYet(f"`claim {claim.target.label} = ... within k errors` with sampled tube pieces: the coefficient "
-                          "is known only to a finite order in the tube coverage; compare with the numbers the `sample` "
-                          "statement prints, or use `evaluate` (value +- error with the O term)", claim.span)

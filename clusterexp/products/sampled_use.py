@@ -149,9 +149,10 @@ def sample_points(derivation, expr) -> list[dict]:
 def check_sampled_claim(derivation, claim, claimed, derived, label, limits) -> CheckResult | None:
     """The claim against the Monte Carlo numbers, or None when its coefficient holds no sampled b."""
     errors = getattr(claim, "errors", None)
-    if errors is not None and derivation.system.tubes is not None and uses_sampled(derivation, derived):
-        from ..loops.tube_sampling import refuse_claim_within_errors
-        refuse_claim_within_errors(claim)
+    if errors is not None and derivation.system.tubes is not None:
+        from .tube_use import tube_claim, tube_pieces_in
+        if tube_pieces_in(derived):   # a series in the coverage, compared term by term (tube_use)
+            return tube_claim(derivation, claim, claimed, derived, label, limits)
     if limits:
         if errors is not None:
             raise InputError("a truncated claim (O(...)) is compared term by term, not with Monte Carlo numbers; "
@@ -166,36 +167,49 @@ def check_sampled_claim(derivation, claim, claimed, derived, label, limits) -> C
     points = sample_points(derivation, derived)
     if not points:
         return None
+    return compared_at_points(derivation, claim, (claimed, derived), [("", claimed, derived)], points, k, label)
+
+
+def compared_at_points(derivation, claim, sides, parts, points, k, label, note: str = "") -> CheckResult:
+    """The claim's verdict at every point: `parts` are (name, claimed, derived) compared apart (the
+    coefficient, or each power of the tube coverage in it), each number from `sampled_value`; `sides`
+    (claimed, derived) are the whole values the result shows; `note` ends the method."""
     worst, rows = None, []
     for point in points:
-        value, error = sampled_value(derivation, derived, point, claim.span)
-        try:
-            mine = complex(sympy.N(sympy.sympify(claimed).xreplace(point), 30))
-        except TypeError:
-            raise InputError(f"the claim needs values for {', '.join(sorted(s.name for s in claimed.free_symbols))}"
-                             f" at {_point_text(point)}", claim.span) from None
-        if abs(mine.imag) > 1e-12 * max(1.0, abs(mine.real)):
-            deviation = math.inf
-        elif error < 1e-12:
-            deviation = 0.0 if abs(mine.real - value) < 1e-12 else math.inf
-        else:
-            deviation = abs(mine.real - value) / error
-        rows.append((point, mine.real, value, error, deviation))
-        if worst is None or deviation > worst[4]:
-            worst = rows[-1]
-    where = "; ".join(_point_text(p) for p, *_ in rows)
-    if worst[4] < k:
+        for part, claimed, derived in parts:
+            value, error = sampled_value(derivation, derived, point, claim.span)
+            try:
+                mine = complex(sympy.N(sympy.sympify(claimed).xreplace(point), 30))
+            except TypeError:
+                left = sympy.sympify(claimed).xreplace(point).free_symbols
+                raise InputError(f"the claim needs values for {', '.join(sorted(s.name for s in left))}"
+                                 f" at {_point_text(point)}", claim.span) from None
+            if abs(mine.imag) > 1e-12 * max(1.0, abs(mine.real)):
+                deviation = math.inf
+            elif error < 1e-12:
+                deviation = 0.0 if abs(mine.real - value) < 1e-12 else math.inf
+            else:
+                deviation = abs(mine.real - value) / error
+            rows.append((point, part, mine.real, value, error, deviation))
+            if worst is None or deviation > worst[5]:
+                worst = rows[-1]
+    where = "; ".join(dict.fromkeys(_point_text(p) for p, *_ in rows))
+    count = len(points)
+    claimed, derived = sides
+    if worst[5] < k:
         method = (f"within {k:g} standard errors of the Monte Carlo numbers of the `sample` statements at "
-                  f"{len(rows)} point{'s' if len(rows) != 1 else ''} ({where}); largest deviation "
-                  f"{worst[4]:.2g} standard errors; sampled, not proven")
-        return CheckResult(SAMPLED, claimed, derived, method, label=label, points=len(rows))
-    point, mine, value, error, deviation = worst
+                  f"{count} point{'s' if count != 1 else ''} ({where}); largest deviation "
+                  f"{worst[5]:.2g} standard errors; sampled, not proven{note}")
+        return CheckResult(SAMPLED, claimed, derived, method, label=label, points=count)
+    point, part, mine, value, error, deviation = worst
     away = "infinitely many" if math.isinf(deviation) else f"{deviation:.2g}"
-    method = (f"{away} standard errors away from the Monte Carlo number at {_point_text(point)}; a claim "
-              f"{k:g} or more standard errors away is a mismatch")
+    what = "the exact value" if error == 0 else "the Monte Carlo number"
+    method = (f"{away} standard errors away from {what} at {_point_text(point)}"
+              f"{' in ' + part if part else ''}: claimed {mine:.10g}, derived {quoted(value, error)}; a claim "
+              f"{k:g} or more standard errors away is a mismatch{note}")
     return CheckResult(MISMATCH, claimed, derived, method, label=label, witness=tuple(
         (s.name, v) for s, v in sorted(point.items(), key=lambda kv: kv[0].name)),
-        claimed_value=f"{mine:.10g}", derived_value=quoted(value, error), points=len(rows))
+        claimed_value=f"{mine:.10g}", derived_value=quoted(value, error), points=count)
 
 
 def sampled_number_text(derivation, expr, point: dict, span) -> str:

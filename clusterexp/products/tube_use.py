@@ -166,3 +166,48 @@ def tube_points(derivation, item, axis, interval, fixed: dict, span) -> list:
             raise InputError(f"{item.label} has no point on {axis.name} in {interval} where its tube pieces are known "
                              f"(a figure over {axis.name} draws it where they are); {error.message}", span) from None
     return along
+
+
+def tube_claim(derivation, claim, claimed, derived, label, limits):
+    """`claim ... within k errors` on a coefficient with tube pieces, at every point of the input's
+    `sample` statements where each piece is exact or sampled: with the coverage a parameter, each
+    power of it below the truncation is compared on its own (the terms left out are unknown, not
+    zero); with the coverage a number, the value through that order, and a claim k or more standard
+    errors away is undecided (the difference may lie in the terms left out), never a mismatch.
+    `claimed` and `derived` come truncated to `limits` (`run.run_checks`)."""
+    from dataclasses import replace
+
+    from .check_result import MISMATCH, UNDECIDED
+    from .sampled_use import compared_at_points, sample_points
+    system = derivation.system
+    coverage = system.tubes.coverage
+    other = sorted(s.name for s in limits if s != coverage)
+    if other:
+        raise InputError(f"a claim truncated in {', '.join(other)} is compared term by term, not with Monte Carlo "
+                         "numbers; drop `within ... errors` or that O(...) (an O term in the tube coverage is "
+                         "fine)", claim.span)
+    order = limits.get(coverage)
+    left_out = f"O({coverage}^{order})" + (f" at {coverage} = {sympy.sstr(system.tubes.value)}"
+                                          if system.tubes.value is not None else "")
+    claimed, derived = sympy.expand(sympy.sympify(claimed)), sympy.expand(derived)
+    if coverage in derived.free_symbols | claimed.free_symbols:
+        powers = range(order if order is not None else 1 + max(sympy.degree(derived, coverage),
+                                                                sympy.degree(claimed, coverage)))
+        parts = [(f"the {coverage}^{p} term", claimed.coeff(coverage, p), derived.coeff(coverage, p)) for p in powers]
+    else:
+        parts = [("", claimed, derived)]
+    points = [{s: v for s, v in p.items() if s != coverage} for p in sample_points(derivation, derived)]
+    points = list({tuple(sorted(p.items(), key=lambda kv: kv[0].name)): p for p in points}.values())
+    if not points:
+        pieces = ", ".join(s.name for s in tube_pieces_in(derived))
+        raise InputError(f"`within {claim.errors:g} errors` compares the claim with the numbers of the input's `sample` "
+                         f"statements, and none estimates {pieces} of {claim.target.label}; add one, e.g. "
+                         f"`sample {_sampled_in(system, tube_pieces_in(derived)[0])} at ...` with the parameters of "
+                         "the point", claim.span)
+    note = f"; the terms of {left_out} are unknown and left out of the comparison"
+    result = compared_at_points(derivation, claim, (claimed, derived), parts, points, claim.errors, label, note)
+    if result.status == MISMATCH and system.tubes.value is not None:
+        result = replace(result, status=UNDECIDED, method=result.method.replace(
+            "is a mismatch", "would be a mismatch, but the coverage is a number here and the difference may lie in "
+            "the terms left out (declare the coverage as a parameter to compare term by term)"))
+    return result
