@@ -236,3 +236,17 @@ def test_cli_mismatch_exit_code_and_refusals(tmp_path):
     path.write_text(ANYONS_FREE + "claim a[2] = 1/8 + O(alpha^2) within 3 errors\n")
     done = run_cli("run", str(path), "--no-files")
     assert done.returncode == 2 and "a claim truncated in alpha is compared term by term" in done.stderr
+
+
+def test_document_table_has_a_head_for_every_column_and_states_the_order(cli, tmp_path):
+    # the LaTeX document's table: one column head per CSV column (the error column included, which it
+    # lacked), and the truncation said under the heading
+    path = tmp_path / "d.gas"
+    path.write_text(ANYONS + "sample b[2] at g = 1/2 seed 5 with 4000 loops\n"
+                    "tabulate a[2] over g in [0, 1/2] into \"t.csv\"\n")
+    done = cli("run", str(path), "--format", "latex", "--document", "--no-files")
+    assert done.returncode == 0, done.stderr
+    table = done.stdout.split(r"\subsection*{Table (t.csv)}")[1].split(r"\end{tabular}")[0]
+    assert r"\begin{tabular}{rrr}" in table and r"$g$ & $a_{2}$ & error of $a_{2}$ \\" in table
+    assert r"$a_{2}$: truncated series, O(rho\_tubes**2) left out, rho\_tubes = 1/10" in table
+    assert all(line.count("&") == 2 for line in table.splitlines() if line.startswith("$"))
