@@ -250,3 +250,13 @@ def test_document_table_has_a_head_for_every_column_and_states_the_order(cli, tm
     assert r"\begin{tabular}{rrr}" in table and r"$g$ & $a_{2}$ & error of $a_{2}$ \\" in table
     assert r"$a_{2}$: truncated series, O(rho\_tubes**2) left out, rho\_tubes = 1/10" in table
     assert all(line.count("&") == 2 for line in table.splitlines() if line.startswith("$"))
+
+
+def test_a_heat_map_of_a_tube_coefficient_is_not_supported_yet_at_its_line(tmp_path):
+    path = tmp_path / "m.gas"
+    path.write_text("dimension 2\nparameter g\nparameter n nonnegative\nspecies A exchange 1/2\ntubes flux g coverage n\n"
+                    "clusters pairphase\nderive virial up to 2\nplot a[2] over g, n into \"m.png\"\n")
+    done = run_cli("run", str(path), "--files-into", str(tmp_path))
+    assert done.returncode == 2 and "Traceback" not in done.stderr
+    assert f"{path}:8:1: error: not supported yet: a heat map of a coefficient with tube pieces" in done.stderr
+    assert "\n    plot a[2] over g, n into \"m.png\"\n    ^^^" in done.stderr

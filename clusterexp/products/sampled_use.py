@@ -275,6 +275,10 @@ def plot_sampled_line(derivation, figure, items, path, into, options=(), caption
 
 def _plot_sampled_line(derivation, figure, items, path, into, options, caption_tex, conventions) -> None:
     from . import plots
+    if len(figure.axes) != 1 and derivation.system.tubes is not None:
+        from ..errors import NotSupportedYet
+        raise NotSupportedYet("a heat map of a coefficient with tube pieces (`plot` over two parameters, or the `map` "
+                              "clause of `sample`); `plot` draws it over one parameter", figure.span)
     if len(figure.axes) != 1:
         raise InputError("a heat map of a coefficient with Monte Carlo parts is drawn by the `map` clause of its "
                          "`sample` statement; `plot` draws it over one parameter", figure.span)
