@@ -260,3 +260,11 @@ def test_a_heat_map_of_a_tube_coefficient_is_not_supported_yet_at_its_line(tmp_p
     assert done.returncode == 2 and "Traceback" not in done.stderr
     assert f"{path}:8:1: error: not supported yet: a heat map of a coefficient with tube pieces" in done.stderr
     assert "\n    plot a[2] over g, n into \"m.png\"\n    ^^^" in done.stderr
+
+
+def test_within_errors_on_a_tube_coefficient_without_pieces_says_so():
+    # b_1 of anyons among tubes is 1 + n F + O(n^2), exact through its order: nothing sampled to compare with
+    with pytest.raises(clusterexp.InputError) as caught:
+        clusterexp.derive(ANYONS_FREE.replace("derive virial up to 2", "derive cluster up to 2")
+                          + "claim b[1] = 1 - n/8 within 3 errors\n").checks
+    assert "b[1] holds no tube piece here" in str(caught.value) and str(caught.value.span).endswith("9:1")

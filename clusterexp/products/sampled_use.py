@@ -153,6 +153,8 @@ def check_sampled_claim(derivation, claim, claimed, derived, label, limits) -> C
         from .tube_use import tube_claim, tube_pieces_in
         if tube_pieces_in(derived):   # a series in the coverage, compared term by term (tube_use)
             return tube_claim(derivation, claim, claimed, derived, label, limits)
+        raise InputError(f"`within {errors:g} errors` is for claims on coefficients with sampled parts; "
+                         f"{claim.target.label} holds no tube piece here", claim.span)
     if limits:
         if errors is not None:
             raise InputError("a truncated claim (O(...)) is compared term by term, not with Monte Carlo numbers; "
