@@ -268,3 +268,20 @@ def test_within_errors_on_a_tube_coefficient_without_pieces_says_so():
         clusterexp.derive(ANYONS_FREE.replace("derive virial up to 2", "derive cluster up to 2")
                           + "claim b[1] = 1 - n/8 within 3 errors\n").checks
     assert "b[1] holds no tube piece here" in str(caught.value) and str(caught.value.span).endswith("9:1")
+
+
+def test_a_truncated_coefficient_without_pieces_is_a_curve_whose_caption_states_the_order(tmp_path):
+    # b_1 of anyons among tubes is 1 + n F + O(n^2) (the one-tube shift, Comtet, Georgelin, Ouvry 1989): a
+    # closed form through its order, drawn as a curve with the order under it
+    pytest.importorskip("matplotlib")
+    path = tmp_path / "b.gas"
+    path.write_text("dimension 2\nparameter g in [0, 1]\nparameter n nonnegative\nspecies A exchange 1/2\n"
+                    "tubes flux g coverage n\nclusters pairphase\nderive cluster up to 2\n"
+                    "plot b[1] over g from 0 to 1 at n = 1/10 into \"b.png\"\n"
+                    "tabulate b[1] over g in [1/2] at n = 1/10 into \"b.csv\"\n")
+    done = run_cli("run", str(path), "--files-into", str(tmp_path))
+    assert done.returncode == 0, done.stderr
+    assert "b[1]: truncated series, O(n**2) left out." in (tmp_path / "b.caption.tex").read_text()
+    header, row = list(csv.reader((tmp_path / "b.csv").read_text().splitlines()))
+    assert header == ["g", "n", "b[1] (truncated series, O(n**2) left out)"]
+    assert float(row[2]) == pytest.approx(1 + 0.1 * F_HALF, rel=1e-14)
