@@ -92,8 +92,8 @@ class NotSupportedYet(ClusterexpError):
         self.span = span
 
     def render(self) -> str:
-        where = f"{self.span}: " if self.span else ""
-        return visible(f"{where}error: not supported yet: {self.what}")
+        """As `InputError.render`: the place, the message, the line with a caret under the column."""
+        return InputError(f"not supported yet: {self.what}", self.span).render()
 
 
 class SeriesError(ClusterexpError):

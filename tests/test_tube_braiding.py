@@ -12,6 +12,8 @@ tolerances are in standard errors (4) of the run.
 """
 from __future__ import annotations
 
+import math
+
 import mpmath
 import pytest
 import sympy
@@ -178,9 +180,10 @@ def test_the_same_seed_gives_the_same_numbers_and_each_piece_its_own():
     ("dimension 2 parameter n species A bose species B bose species C bose mutual A B = 1/2 mutual B C = 1/3 "
      "tubes flux 1/2 coverage n clusters pairphase\nsample a[1,1,1]", NotSupportedYet,
      "more than two mobile particles with a tube", "2:8"),
-    # unequal masses: the piece depends on their ratio, the estimator draws loops of one mass
-    ("dimension 2 parameter n species A bose species B fermi mass 2 mutual A B = 1/2 tubes flux 1/2 coverage n "
-     "clusters pairphase\nsample b[1,1]", NotSupportedYet, "of different masses", "2:8"),
+    # a mass given by a parameter: the piece depends on the mass ratio, which needs a value
+    ("dimension 2 parameter n parameter m positive species A bose species B fermi mass m mutual A B = 1/2 "
+     "tubes flux 1/2 coverage n clusters pairphase\nsample b[1,1]", InputError, "a function of the mass ratio 1/m: "
+     "give m a value", "2:8"),
     # the mutual parameter and the flux need values
     (BRAIDING + "sample a[1,1] at g = 1/2", InputError, "give nu a value with `at nu = ...`", "12:8"),
     # an integer flux: nothing to sample
@@ -219,3 +222,69 @@ def test_cli_refusals_name_the_line_and_exit_with_code_2(cli):
     assert result.returncode == 2 and "Traceback" not in result.stderr
     assert result.stderr.startswith("<command line>:12:8: error: a[1,1] contains B_braid_tube_A_B")
     assert "    sample a[1,1] at g = 1/2\n           ^^^^^^" in result.stderr
+
+
+UNEQUAL = ("dimension 2\nparameter n\nparameter nu in [0, 1]\nspecies A bose mass {}\nspecies B fermi mass {}\n"
+           "mutual A B = nu\ntubes flux 1/2 coverage n\nclusters pairphase\nderive cluster up to 2\nderive virial up to 2\n")
+
+
+def _s(nu):
+    return nu - math.floor(nu)
+
+
+@pytest.mark.parametrize("ratio", [2.0, 1 / 3])
+def test_unequal_masses_two_body_and_one_tube_parts_are_exact(ratio):
+    # Outside checks of the loops of two masses (m_1/m_2 = ratio, lambda of particle 2): their tube-free pair
+    # part is b_11 = -((m_1 + m_2)/(2 m_2)) s(1 - s) (physics.md R3, the harmonic regulator on the relative
+    # motion), and particle 1's one-tube integral is its own thermal area m_2/m_1 times -s(1 - s)/2 (Comtet,
+    # Georgelin, Ouvry 1989, from memory).
+    from clusterexp.loops.tube_estimates import estimate_anyons_tube
+    run = estimate_anyons_tube([(0.5, 0.5, 0.5), (0.25, 1 / 3, 1 / 3)], kind="distinct", samples=16000, seed=5,
+                               mass_ratio=ratio, workers=2)
+    for point in run.points:
+        nu, gamma, _ = point.params
+        pair = -(ratio + 1) / 2 * _s(nu) * (1 - _s(nu))
+        single = -_s(gamma) * (1 - _s(gamma)) / 2 / ratio
+        for name, exact in (("b11_no_tube", pair), ("single", single)):
+            value = point.values[name]
+            assert value.error > 0 and abs(value.value - exact) < SIGMAS * value.error, (name, ratio, value, exact)
+
+
+def test_unequal_masses_contact_law_with_the_perturbative_route():
+    # Outside check: with Re X -> -|gamma|/(2 r) on a loop of mass ratio r (its areas scale as 1/r) the piece's
+    # part even in the flux tends to -|gamma| ((1/r_A + 1/r_B)/2) b_11 (docs/tubes.md, unequal masses), whose
+    # |gamma||nu| coefficient (m_A + m_B)(1/m_A + 1/m_B)/4 the perturbative route gives independently for a third
+    # species of mass M -> infinity (b_{1,1,1}/b_{0,0,1}); masses 2 and 1: 9/8.
+    from clusterexp.routes.perturbative import Species, taylor_coefficients
+    d_a, d_b, nu = sympy.symbols("d_a d_b nu", real=True)
+    mass = 10 ** 6
+    c = taylor_coefficients([Species(None, mass=2), Species(None, mass=1), Species(None, mass=mass)],
+                            {(0, 1): nu, (0, 2): d_a, (1, 2): d_b}, (1, 1, 1), "boson", 2, unknown="name")
+    contact = (c[sympy.Abs(d_a) * sympy.Abs(nu)] + c[sympy.Abs(d_b) * sympy.Abs(nu)]) / mass
+    assert abs(contact - sympy.Rational(9, 8)) < sympy.Rational(4, mass)
+    d = clusterexp.derive(UNEQUAL.format(2, 1).replace("flux 1/2", "flux g").replace("parameter n\n",
+                          "parameter n\nparameter g in [-1, 1]\n")
+                          + "sample b[1,1] over g = [1/50, -1/50] at nu = 1/4 seed 35 with 40000 loops\n")
+    plus, minus = (p[PIECE] for p in _values(d))
+    even = (plus[0] + minus[0]) / 2
+    # the law at nu = 1/4, in the reference species A's units (m_ref = 2): b_11 = -(3/4)(3/16), (1/r_A + 1/r_B)/2 = 3/2
+    law = (1 / 50) * 1.5 * (3 / 4) * (3 / 16)
+    assert abs(even - law) < SIGMAS * max(plus[1], minus[1]) + 0.1 * law
+    assert law == pytest.approx(float(contact) * (1 / 50) * (1 / 4) * (3 / 4), rel=1e-5)   # |gamma| s(1 - s) times it
+
+
+def test_unequal_masses_swapped_give_the_same_piece_and_a11_composes_by_hand():
+    # b_11 is symmetric in the two species, the estimator is not (loop 1 has the other mass): declaring the masses
+    # the other way round must give the same piece within the errors.  And a_11 = -b_11/(b_10 b_01) (physics.md
+    # section 1) with b_10 = r_A + n F, b_01 = r_B + n F (F = -1/8 at flux 1/2, Comtet, Georgelin, Ouvry 1989) by hand.
+    heavy_first, heavy_second = (clusterexp.derive(UNEQUAL.format(*masses) + "sample b[1,1], a[1,1] at nu = 1/2 "
+                                                   "seed 36 with 16000 loops\n") for masses in ((3, 1), (1, 3)))
+    (one,), (other,) = _values(heavy_first), _values(heavy_second)
+    assert abs(one[PIECE][0] - other[PIECE][0]) < SIGMAS * math.hypot(one[PIECE][1], other[PIECE][1])
+    piece, error = one[PIECE][:2]
+    r_a, r_b, f = 1.0, 1 / 3, -1 / 8       # m_ref = m_A = 3
+    b11 = -(r_a + r_b) / 2 * 0.25
+    assert one["b[1,1] [n^0]"][0] == pytest.approx(b11)
+    term, term_error, remainder = one["a[1,1] [n^1]"]
+    assert term == pytest.approx(-piece / (r_a * r_b) + b11 * f * (1 / r_a + 1 / r_b) / (r_a * r_b), rel=1e-9)
+    assert term_error == pytest.approx(error / (r_a * r_b), rel=1e-9) and remainder == "O(n^2)"

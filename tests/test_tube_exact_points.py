@@ -1,7 +1,8 @@
 """`evaluate` at points where the sampled flux-tube pieces are exactly known (routes/tube_pieces.py,
 `TubePiece.exactly`; products/exact_pieces.py): every piece is 0 at an integer flux, the braid piece 0 at
-an integer mutual parameter, the anyon-tube piece +-F/2 at the bose/fermi points. Elsewhere the refusal
-is unchanged. Every expected number is computed here from outside formulas, never from the tool alone.
+an integer mutual parameter, the anyon-tube piece +-F/2 at the bose/fermi points. Elsewhere the statement
+is refused with the `sample` statement to add. Every expected number is computed here from outside
+formulas, never from the tool alone.
 
 Outside references: the exact anyon b_2 = 1/4 - s + s^2/2, s = alpha mod 2 (Arovas, Schrieffer, Wilczek,
 Zee, Nucl. Phys. B 251 (1985) 117; times m/m_ref, physics.md R2); the one-tube shift Z(gamma) - Z(0) =
@@ -140,14 +141,14 @@ def test_anyon_tube_piece_at_the_bose_and_fermi_points(cli, tmp_path, alpha, sta
     _close(_one(values, "a[0,2]")[1], exact)
 
 
-def test_generic_point_refused_as_before(cli, tmp_path):
+def test_generic_point_refused_with_the_sample_statement_to_add(cli, tmp_path):
     path, stderr = _refused(cli, tmp_path, "dimension 2\nparameter f in [0, 1]\nparameter n nonnegative\n"
                             "parameter e in [0, 1]\nspecies A exchange e\ntubes flux f coverage n\nclusters pairphase\n"
                             "derive virial up to 2\nevaluate a[2] at e = 1/3, f = 1/2, n = 1/10\n")
-    assert f"{path}:9:1: error: a[2]: the expression " in stderr
-    assert "no value for B_anyon_tube_A; it depends on B_anyon_tube_A, e, f, n" in stderr
+    assert f"{path}:9:1: error: no value for B_anyon_tube_A at e = 1/3, f = 1/2, n = 1/10" in stderr
+    assert "add `sample b[2] at e = 1/3, f = 1/2`" in stderr
     assert "\n    evaluate a[2] at e = 1/3, f = 1/2, n = 1/10\n    ^^^^" in stderr
-    assert "exactly" not in stderr
+    assert "exactly:" not in stderr   # no piece was put in
 
 
 @pytest.mark.parametrize("flux", ["99999999999999999999/100000000000000000000", "0.99999999999999999999", "1/2"])

@@ -169,14 +169,6 @@ def test_three_tubes_are_refused_at_the_second_tubes_line():
     assert "`tubes` is declared twice" in str(caught.value) and str(caught.value.span).endswith("3:1")
 
 
-def test_claim_within_errors_on_a_tube_coefficient_is_not_supported_yet():
-    with pytest.raises(NotSupportedYet) as caught:
-        clusterexp.derive(ANYONS_AMONG_TUBES + "derive virial up to 2\nsample a[2] at alpha = 1/2 with 4000 loops\n"
-                          "claim a[2] = 1/8 within 2 errors").checks
-    assert "within k errors` with sampled tube pieces" in str(caught.value)
-    assert str(caught.value.span).endswith("9:1")
-
-
 def test_cli_refusal_has_caret_and_exit_code_2(cli):
     result = cli("run", "--no-files", "-e", BOSE_AMONG_TUBES + "sample a[1] at g = 1/2")
     assert result.returncode == 2

@@ -134,9 +134,11 @@ def values_section(derivation: Derivation, names: dict) -> list[str]:
                 for t, (label, _) in zip(evaluation.targets, rows) if label.startswith(t.label) and label != t.label]
     for table, rows in derivation.tables:
         header = [rf"${sympy.latex(s, symbol_names=names)}$" for s, _ in table.axes] + \
-                 [rf"${sympy.latex(s, symbol_names=names)}$" for s, _ in table.fixed] + \
-                 [rf"${claim_latex_name(derivation, t)}$" for t in table.targets]
+                 [rf"${sympy.latex(s, symbol_names=names)}$" for s, _ in table.fixed]
+        coefficients, remarks = _table_columns(derivation, table, rows[0][len(header):])
+        header += coefficients
         out.append(rf"\subsection*{{Table ({escape_text(table.path)})}}")
+        out += remarks
         if len(rows) > TABLE_ROWS_SHOWN + 1:
             where = "written to" if derivation.files_written else "for"
             out.append(f"{len(rows) - 1} rows, {where} the file {escape_text(table.path)}.")
@@ -146,6 +148,25 @@ def values_section(derivation: Derivation, names: dict) -> list[str]:
         out += [" & ".join(f"${number_latex(cell)}$" for cell in row) + r" \\" for row in rows[1:]]
         out += [r"\bottomrule", r"\end{tabular}", r"\end{center}"]
     return out
+
+
+def _table_columns(derivation, table, cells) -> tuple[list[str], list[str]]:
+    """The LaTeX heads of a table's coefficient columns from its CSV header (a coefficient, possibly with a
+    note such as its truncation; the error column a sampled one adds after it), and one remark per note."""
+    names = {t.label: claim_latex_name(derivation, t) for t in table.targets}
+    heads, remarks = [], []
+    for cell in cells:
+        label = next((t for t in names if cell == t or cell.startswith(t + " (")), None)
+        if label is None and cell.endswith(" error") and cell[:-len(" error")] in names:
+            heads.append(rf"error of ${names[cell[:-len(' error')]]}$")
+            continue
+        if label is None:   # not expected: keep the CSV's own text
+            heads.append(escape_text(cell))
+            continue
+        heads.append(rf"${names[label]}$")
+        if cell != label:
+            remarks.append(rf"\noindent ${names[label]}$: {escape_text(cell[len(label):].strip()[1:-1])}\par")
+    return heads, remarks
 
 
 def _breakable(number: str, group: int = 10) -> str:

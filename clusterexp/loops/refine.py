@@ -66,11 +66,13 @@ def _near(u0: np.ndarray, u1: np.ndarray, v: float, cut: float) -> np.ndarray:
     return 2.0 * (p.real * p.real + p.imag * p.imag) / v < cut
 
 
-def refine(rng: np.random.Generator, rows, starts, ends, mobile: tuple[bool, ...], variance: float,
+def refine(rng: np.random.Generator, rows, starts, ends, mobile: tuple[float, ...], variance: float,
            pairs: list[tuple[int, int]], depth: int, cut: float = NEAR_CUT) -> list[Level]:
     """Halve every slice on which two or more of `pairs` are near, `depth` times at most.
 
-    variance: per-component variance of one mobile body's increment over an unrefined slice.
+    variance: per-component variance of one mobile body's increment over an unrefined slice; `mobile`
+    weighs it per body (1 or True for a particle of the unit mass, m_unit/m for another mass, 0 or False
+    for a static tube).
     Returns the final slices grouped by depth (a slice's variance is variance / 2^depth).
     """
     levels = []
@@ -88,8 +90,8 @@ def refine(rng: np.random.Generator, rows, starts, ends, mobile: tuple[bool, ...
         new_starts, new_ends = [], []
         for s, e, moves in zip(starts, ends, mobile):
             s, e = s[split], e[split]
-            if moves:
-                z = rng.standard_normal((s.size, 2)) * np.sqrt(v / 4.0)
+            if moves:   # a body's weight: its increment variance relative to `variance` (1/mass ratio)
+                z = rng.standard_normal((s.size, 2)) * np.sqrt(v * moves / 4.0)
                 mid = 0.5 * (s + e) + (z[:, 0] + 1j * z[:, 1])
             else:
                 mid = s
@@ -99,7 +101,7 @@ def refine(rng: np.random.Generator, rows, starts, ends, mobile: tuple[bool, ...
     return levels
 
 
-def pair_data(levels: list[Level], b: int, c: int, mobile: tuple[bool, ...], variance: float,
+def pair_data(levels: list[Level], b: int, c: int, mobile: tuple[float, ...], variance: float,
               count: int) -> PhaseData:
     """Slice data (far angle sums per sample, near slices) of the pair (b, c) over refined slices."""
     far = np.zeros(count)

@@ -66,13 +66,15 @@ class TubeRun:
     seed: int
 
 
-def _make(family: str, rng, count: int, slices: int, depth: int, separation):
+def _make(family: str, rng, count: int, slices: int, depth: int, setting):
+    """One batch of a family; `setting` is the family's fixed setting: the tube separation of
+    `separation`, the mass ratio m_1/m_2 of `pair_tube` (None: equal masses)."""
     if family == "two_tubes":
         return TwoTubeSamples(rng, count, slices, depth)
     if family == "separation":
-        return SeparationSamples(rng, count, slices, separation, depth)
+        return SeparationSamples(rng, count, slices, setting, depth)
     if family == "pair_tube":
-        return PairTubeSamples(rng, count, slices, depth)
+        return PairTubeSamples(rng, count, slices, depth, 1.0 if setting is None else setting)
     return SwapTubeSamples(rng, count, slices, depth)
 
 
@@ -85,10 +87,10 @@ def _family_values(family: str, samples, point: tuple) -> dict[str, np.ndarray]:
 
 
 def run_batch(family: str, index: int, count: int, slices: int, seed: int, points: list[tuple], depth: int,
-              separation) -> dict[str, np.ndarray]:
+              setting) -> dict[str, np.ndarray]:
     """Means of every quantity of one family's batch at every point: name -> array over points."""
     seq = np.random.SeedSequence(entropy=seed, spawn_key=(FAMILY_IDS[family], index))
-    samples = _make(family, np.random.default_rng(seq), count, slices, depth, separation)
+    samples = _make(family, np.random.default_rng(seq), count, slices, depth, setting)
     rows = [_family_values(family, samples, p) for p in points]
     return {name: np.array([r[name].mean() for r in rows]) for name in rows[0]}
 
@@ -97,7 +99,7 @@ def _run_task(task: tuple) -> dict[str, np.ndarray]:
     return run_batch(*task)
 
 
-def _execute(families: list[str], count: int, slices: int, seed: int, points, depth, separation,
+def _execute(families: list[str], count: int, slices: int, seed: int, points, depth, setting,
              max_rounds, time_cap, workers) -> tuple[dict, int, float]:
     """Rounds of batches (in a process pool when workers > 1) until the round or time cap.
     Returns (family -> name -> (rounds, points) array, rounds, seconds)."""
@@ -105,7 +107,7 @@ def _execute(families: list[str], count: int, slices: int, seed: int, points, de
     done: dict = {}
 
     def task(f, r):
-        return (f, r, count, slices, seed, points, depth, separation)
+        return (f, r, count, slices, seed, points, depth, setting)
 
     def prefix() -> int:
         r = 0
@@ -243,23 +245,31 @@ def estimate_separation(points, separation: complex, *, samples: int, seed: int 
 def estimate_anyons_tube(points, kind: str = "identical", *, samples: int | None = None,
                          time_cap: float | None = None, target_error: float | None = None, seed: int = 0,
                          slices: int = DEFAULT_SLICES, depth: int = DEPTH, batch: int = DEFAULT_BATCH,
-                         workers: int = 1) -> TubeRun:
+                         workers: int = 1, mass_ratio: float = 1.0) -> TubeRun:
     """First order in the tube coverage n of the two-particle coefficients, one set of loops for all points.
 
     kind="identical", points (alpha, gamma): values `b2_coverage1` (also `target`), `a2_coverage1`
     (= -b2_coverage1 - 2 f b_2(alpha), f = -flux_shift), the tube-free `b2_no_tube` and the one-tube
     `single` (checks); exact: b_2(alpha) (Arovas, Schrieffer, Wilczek, Zee 1985), -s(1-s)/2, and the
     bose/fermi first order -+s(1-s)/4 where alpha is 0 or 1 mod 2.
-    kind="distinct", points (alpha_12, gamma_1, gamma_2): `b11_coverage1`, `a11_coverage1`, `b11_no_tube`.
+    kind="distinct", points (alpha_12, gamma_1, gamma_2): `b11_coverage1`, `a11_coverage1`, `b11_no_tube`;
+    `mass_ratio` = m_1/m_2 (lambda and the coverage per lambda^2 of particle 2): b11_coverage1 is then the
+    piece B_braid_tube, which depends on the ratio alone; exact: b_11 = -((m_1 + m_2)/(2 m_2)) s(1 - s)
+    (physics.md R3) and loop 1's one-tube integral (m_2/m_1)(-s(1 - s)/2); a11_coverage1 with m_ref = m_2.
     """
     if kind not in ("identical", "distinct"):
         raise LoopsError(f"unknown kind {kind!r}: 'identical' (b_2 of one species) or 'distinct' (b_11); " + SUPPORTED)
+    if not (isinstance(mass_ratio, (int, float)) and math.isfinite(mass_ratio) and mass_ratio > 0):
+        raise LoopsError(f"mass_ratio must be a positive number, got {mass_ratio!r}")
+    if kind == "identical" and mass_ratio != 1.0:
+        raise LoopsError("identical particles have one mass: mass_ratio is for kind='distinct'")
     width = 2 if kind == "identical" else 3
     pts = _check_settings(points, samples, time_cap, seed, slices, depth, workers, width)
     families = ["pair_tube", "swap_tube"] if kind == "identical" else ["pair_tube"]
     max_rounds = None if samples is None else max(2, rounds_for(int(samples), batch * len(families)))
-    table, rounds, seconds = _execute(families, batch, slices, seed, pts, depth, None, max_rounds, time_cap,
-                                      workers)
+    ratio = float(mass_ratio)
+    table, rounds, seconds = _execute(families, batch, slices, seed, pts, depth, None if ratio == 1.0 else ratio,
+                                      max_rounds, time_cap, workers)
     rows = []
     for k, p in enumerate(pts):
         single = _combine(table, rounds, k, {("pair_tube", "single"): 1.0})
@@ -279,10 +289,11 @@ def estimate_anyons_tube(points, kind: str = "identical", *, samples: int | None
             a12, g1, g2 = p
             b1 = _combine(table, rounds, k, {("pair_tube", "pair_tube"): 1.0})
             b0 = _combine(table, rounds, k, {("pair_tube", "pair"): 1.0})
-            b11 = exact.b11_mutual(a12)
-            a1 = Estimate(-b1.value + (flux_shift(g1) + flux_shift(g2)) * b11, b1.error)
+            b11 = exact.b11_mutual(a12) * (1.0 + ratio) / 2.0
+            # a_11 = -b_11/(b_10 b_01), b_10 = ratio + n F_1, b_01 = 1 + n F_2: its n term
+            a1 = Estimate((-b1.value + (flux_shift(g1) / ratio + flux_shift(g2)) * b11) / ratio, b1.error / ratio)
             values = {"b11_coverage1": b1, "target": b1, "a11_coverage1": a1, "b11_no_tube": b0, "single": single}
-            ref = {"b11_no_tube": b11, "single": flux_shift(g1)}
+            ref = {"b11_no_tube": b11, "single": flux_shift(g1) / ratio}
             if a12 == math.floor(a12):
                 ref["b11_coverage1"] = 0.0
         rows.append((values, ref))

@@ -8,7 +8,7 @@
 Among tubes the exact coefficients of `clusters pairphase` hold two named pieces (routes/tube_pieces.py,
 docs/tubes.md): T_two_tubes (one mobile loop and two tubes; in every b_l of a bose/fermi species at
 n^2), B_anyon_tube_<species> (two identical anyons and one tube; in b_2 at n^1) and
-B_braid_tube_<A>_<B> (two braiding particles of equal masses and one tube; in b_11 at n^1).  A `sample`
+B_braid_tube_<A>_<B> (two braiding particles of any masses and one tube; in b_11 at n^1).  A `sample`
 statement estimates the pieces its coefficients contain with `tube_estimates` (T2 at the point (gamma,
 gamma), B at (alpha, gamma), the braid piece with kind="distinct" at (alpha_AB, gamma, gamma)) and
 composes them into the coefficients with the first-order error propagation of `tube_virial.compose`
@@ -43,7 +43,7 @@ WORKERS = 2
 SUPPORTED = ("supported with flux tubes: `sample` of b[l], a[l] (l >= 1 for b, l >= 2 for a) of a bose or fermi "
              "species (the piece T_two_tubes: one mobile particle and two tubes) and of b[2], a[2] of an anyonic "
              "species (the piece B_anyon_tube_<species>: two anyons and one tube), and of b[1,1], a[1,1] of two "
-             "braiding species of equal masses (the piece B_braid_tube_<A>_<B>: two braiding particles and one tube)")
+             "braiding species (the piece B_braid_tube_<A>_<B>: two braiding particles and one tube)")
 _FAMILIES = {"two_tubes": 1, "anyons_tube": 2, "braid_tube": 1}   # families per round: loops per round / DEFAULT_BATCH
 
 
@@ -77,9 +77,10 @@ def tube_request(builder, statement, names: list[str]):
         if len(occupied) > 1:
             piece = _braid_request(builder, index, name, ref_span)
             pieces[piece] = None
-            first, second = (species[k].name for k in occupied)
-            mutual = next(m.value for m in builder.mutuals if {m.first, m.second} == {first, second})
-            _needed(needed, name, piece, [("flux", flux), ("mutual", mutual)], ref_span)
+            first, second = (species[k] for k in occupied)
+            mutual = next(m.value for m in builder.mutuals if {m.first, m.second} == {first.name, second.name})
+            _needed(needed, name, piece, [("flux", flux), ("mutual", mutual),
+                                          ("mass ratio", sympy.sympify(first.mass) / second.mass)], ref_span)
             coefficients.append(("cluster" if letter == "b" else "virial", index, ref_span))
             continue
         i = occupied[0]
@@ -132,10 +133,6 @@ def _braid_request(builder, index, name: str, span) -> sympy.Symbol:
     if sum(index) > 2:
         _refuse(f"{name}: more than two mobile particles with a tube ({sum(index)} particles of braiding species "
                 f"{first.name}, {second.name} and one tube) is a many-body piece the loop estimator does not sample",
-                span, unsupported=True)
-    if sympy.simplify(first.mass - second.mass) != 0:
-        _refuse(f"{name}: the braid-tube piece of species of different masses ({first.mass} and {second.mass}; it "
-                "depends on their ratio) is not sampled yet: the loop estimator draws two loops of one mass",
                 span, unsupported=True)
     return braid_tube_symbol(first.name, second.name)
 
@@ -202,9 +199,9 @@ def tube_statement(system, sampling, exact, points: list[dict]) -> SampledStatem
                     key=lambda s: s.name)
     estimates, runs = {}, []
     for piece in pieces:
-        values, run = _run(system, sampling, piece, points, exprs, len(pieces))
+        values, records = _run(system, sampling, piece, points, exprs, len(pieces))
         estimates[piece] = values
-        runs.append(run)
+        runs += records
     names = [s.name for s, _ in sampling.axes] + [s.name for s, _ in sampling.fixed]
     out_points = []
     for k, point in enumerate(points):
@@ -254,26 +251,43 @@ def _pair(estimate: Estimate) -> tuple[float, float]:
 
 
 def _run(system, sampling, piece, points, exprs, runs: int):
-    """One estimator scan for one piece over every point: [(value, error)] per point, and its record."""
+    """One estimator scan for one piece over every point: [(value, error)] per point, and its records (one
+    per mass ratio of the pair: loops of other masses are other loops)."""
     definitions = piece_statistics(system, piece)
     family = _family(piece)
-    params = []
+    params, ratios = [], []
     for point in points:
         gamma = float(sympy.sympify(definitions["flux"]).xreplace(point))
-        if family == "braid_tube":   # both particles feel the tubes' flux
+        if family == "braid_tube":   # both particles feel the tubes' flux; the first one's mass over the second's
             params.append((float(sympy.sympify(definitions["mutual"]).xreplace(point)), gamma, gamma))
+            ratios.append(float(sympy.sympify(definitions["smooth"]).xreplace(point)))
         else:
             params.append((gamma, gamma) if family == "two_tubes" else
                           (float(sympy.sympify(definitions["exchange"]).xreplace(point)), gamma))
-    distinct = list(dict.fromkeys(params))
+            ratios.append(1.0)
     seed = piece_seed(sampling.seed, system, piece)
-    cap = None if sampling.time_cap is None else sampling.time_cap / runs
+    by_ratio = list(dict.fromkeys(ratios))   # loops of other masses: one estimator run per mass ratio
+    cap = None if sampling.time_cap is None else sampling.time_cap / runs / len(by_ratio)
     target = _piece_target(sampling, piece, points, exprs, system.tubes.coverage)
     estimate = {"two_tubes": estimate_two_tubes, "anyons_tube": estimate_anyons_tube,
                 "braid_tube": lambda *args, **kw: estimate_anyons_tube(*args, kind="distinct", **kw)}[family]
+    name = {"two_tubes": "connected", "anyons_tube": "b2_coverage1", "braid_tube": "b11_coverage1"}[family]
+    values, records = {}, []
+    for ratio in by_ratio:
+        distinct = list(dict.fromkeys(p for p, r in zip(params, ratios) if r == ratio))
+        result = _estimated(estimate, distinct, sampling, cap, target, seed, piece,
+                            {} if family != "braid_tube" or ratio == 1.0 else {"mass_ratio": ratio})
+        values.update({(p, ratio): _pair(point.values[name]) for p, point in zip(distinct, result.points)})
+        records.append(SampledRun((), piece.name, family, sampling.seed, seed, result.samples, result.rounds,
+                                  result.seconds, result.slices))
+    return [values[(p, r)] for p, r in zip(params, ratios)], records
+
+
+def _estimated(estimate, distinct, sampling, cap, target, seed, piece, options):
+    """One estimator run over the distinct points, its failures as errors at the statement's clauses."""
     try:
-        result = estimate(distinct, samples=sampling.loops, time_cap=cap, target_error=target, seed=seed,
-                          workers=WORKERS)
+        return estimate(distinct, samples=sampling.loops, time_cap=cap, target_error=target, seed=seed,
+                        workers=WORKERS, **options)
     except TargetNotReachable as error:
         raise InputError(f"target {sampling.target:g} is out of reach for {piece} with "
                          + (f"{cap:g} s" if cap else f"{sampling.loops} loops")
@@ -282,11 +296,6 @@ def _run(system, sampling, piece, points, exprs, runs: int):
                          sampling.clause_span("target")) from None
     except LoopsError as error:
         raise InputError(f"{piece}: {error}", sampling.clause_span("within" if cap else "loops")) from None
-    name = {"two_tubes": "connected", "anyons_tube": "b2_coverage1", "braid_tube": "b11_coverage1"}[family]
-    by_params = {p: _pair(point.values[name]) for p, point in zip(distinct, result.points)}
-    record = SampledRun((), piece.name, family, sampling.seed, seed, result.samples, result.rounds, result.seconds,
-                        result.slices)
-    return [by_params[p] for p in params], record
 
 
 def _piece_target(sampling, piece, points, exprs, coverage) -> float | None:
@@ -303,18 +312,3 @@ def _piece_target(sampling, piece, points, exprs, coverage) -> float | None:
             terms = sympy.Poly(slope, coverage).coeffs() if coverage in slope.free_symbols else [slope]
             steepest = max([steepest] + [abs(float(t)) for t in terms])
     return sampling.target / max(steepest, 1e-300)
-
-
-def missing_text(piece, point_text: str) -> str:
-    """Why a value with this piece cannot be given at a point no `sample` statement covers."""
-    return (f"{piece} has no closed form and no `sample` statement of this input estimates it at {point_text}; "
-            f"add one there, e.g. `sample` of a coefficient that contains it `at {point_text}`")
-
-
-def refuse_claim_within_errors(claim) -> None:
-    """`claim ... within k errors` on a coefficient with sampled tube pieces is not decided yet: the
-    coefficient is a truncated series in the coverage, and a claimed number cannot be told apart from
-    the terms left out."""
-    raise NotSupportedYet(f"`claim {claim.target.label} = ... within k errors` with sampled tube pieces: the coefficient "
-                          "is known only to a finite order in the tube coverage; compare with the numbers the `sample` "
-                          "statement prints, or use `evaluate` (value +- error with the O term)", claim.span)

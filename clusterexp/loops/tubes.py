@@ -116,10 +116,14 @@ class SeparationSamples:
 
 class PairTubeSamples:
     """Two loops of duration 1 (the second at offset c from the first's centroid) and one tube R
-    about the midpoint of their centroids."""
+    about the midpoint of their centroids.  `ratio` = m_1/m_2: particle 1's loop has the per-component
+    variance of a loop of duration 1/ratio (lambda of particle 2 = 1), and the integrals pair_tube and
+    pair are weighed by r_1 r_2 = ratio, the product of the two thermal densities K_r(x, x) = r
+    (docs/tubes.md, unequal masses); `single` is loop 1's own one-tube integral, (1/ratio)(-s(1 - s)/2)."""
 
-    def __init__(self, rng: np.random.Generator, count: int, slices: int, depth: int = DEPTH):
-        y1 = brownian_loops(rng, count, slices, 1.0)
+    def __init__(self, rng: np.random.Generator, count: int, slices: int, depth: int = DEPTH,
+                 ratio: float = 1.0):
+        y1 = brownian_loops(rng, count, slices, 1.0 / ratio)
         y2 = brownian_loops(rng, count, slices, 1.0)
         oc, gc = mixture_offsets(rng, count, WIDTH_LOOP_PAIR, 1)
         orr, gr = mixture_offsets(rng, count, WIDTH_TUBE, 1)
@@ -127,14 +131,15 @@ class PairTubeSamples:
         second = y2 + (c1 - _centroid(y2) + oc[:, 0])[:, None]
         tube = 0.5 * (c1 + _centroid(second)) + orr[:, 0]
         self.weights = (1.0 / gc, 1.0 / gr)
-        self.phases = _pair_phases(rng, [y1, second, tube], (True, True, False), 1.0 / slices / (2 * np.pi),
+        self.ratio = float(ratio)
+        self.phases = _pair_phases(rng, [y1, second, tube], (1.0 / ratio, 1.0, 0.0), 1.0 / slices / (2 * np.pi),
                                    {"pair": (0, 1), "t1": (0, 2), "t2": (1, 2)}, depth)
 
     def values(self, alpha: float, gamma1: float, gamma2: float) -> dict[str, np.ndarray]:
         f = self.phases("pair", alpha) - 1.0
         p1, p2 = self.phases("t1", gamma1), self.phases("t2", gamma2)
         wc, wr = self.weights
-        return {"pair_tube": (f * (p1 * p2 - 1.0)).real * wc * wr, "pair": f.real * wc,
+        return {"pair_tube": (f * (p1 * p2 - 1.0)).real * wc * wr * self.ratio, "pair": f.real * wc * self.ratio,
                 "single": (p1 - 1.0).real * wr}
 
 

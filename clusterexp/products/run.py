@@ -19,6 +19,7 @@ from ..errors import InputError
 from .numbers import csv_bytes, evaluate, format_number, grid_table
 from .sampled_use import (check_sampled_claim, plot_sampled_line, sampled_number_text, sampled_table,
                           uses_sampled)
+from .tube_use import coverage_truncation, tube_pieces_in
 
 
 def _coefficient(derivation, name):
@@ -131,7 +132,7 @@ def run_evaluations(derivation) -> list:
                 label += f" (truncated series, {sympy.sstr(order)} left out)"
             value, notes = filled(derivation.system, value, point)   # tube pieces exact at this point
             label = noted(label, notes)
-            if uses_sampled(derivation, value):   # Monte Carlo parts: value +- error
+            if _with_numbers(derivation, value):   # Monte Carlo parts: value +- error
                 rows.append((label, sampled_number_text(derivation, value, point, evaluation.span)))
                 continue
             through = _through_series(derivation, _coefficient(derivation, target), value, point, evaluation.digits)
@@ -192,22 +193,33 @@ def _gas_symbols(system) -> set:
 
 
 class _Named:
-    """A coefficient under the label the user wrote (rho_A[1,1]), as `numbers`/`plots` expect."""
+    """A coefficient under the label the user wrote (rho_A[1,1]), as `numbers`/`plots` expect;
+    `truncation` says what a series in the tube coverage leaves out (None for a closed form)."""
 
-    def __init__(self, name, coefficient, value=None):
+    def __init__(self, name, coefficient, value=None, truncation=None):
         self.kind, self.index, self.label = coefficient.kind, coefficient.index, name.label
         self.component, self.species = coefficient.component, coefficient.species
         self.value = coefficient.value if value is None else value
+        self.truncation = truncation
 
 
 def _plain(derivation, name, span):
-    """The coefficient, refusing a truncated series (a table or figure of it would hide the O(...))."""
+    """The coefficient for a table or figure: a closed form, or a series truncated in the tube coverage
+    (its O term stated beside it, `tube_use.coverage_truncation`); any other truncated series is
+    refused (a table or figure of it would hide the O(...))."""
     coefficient = _coefficient(derivation, name)
-    order = coefficient.value.getO() if hasattr(coefficient.value, "getO") else None
-    if order is not None:
-        raise InputError(f"{name.label} is known only as a series ({sympy.sstr(order)} left out); tables and "
-                         "figures need a closed form", span)
-    return _Named(name, coefficient)
+    cut = coverage_truncation(derivation.system, coefficient.value)
+    if cut is None:
+        raise InputError(f"{name.label} is known only as a series ({sympy.sstr(coefficient.value.getO())} left out); "
+                         "tables and figures need a closed form", span)
+    value, truncation = cut
+    return _Named(name, coefficient, value, truncation)
+
+
+def _with_numbers(derivation, value) -> bool:
+    """Whether a value needs the Monte Carlo numbers of `sample` statements (or, among tubes, holds a
+    tube piece that is exact or sampled point by point)."""
+    return uses_sampled(derivation, value) or bool(tube_pieces_in(value))
 
 
 def run_tables(derivation) -> list:
@@ -215,12 +227,14 @@ def run_tables(derivation) -> list:
     out = []
     for table in derivation.system.tables:
         items = [_plain(derivation, t, table.span) for t in table.targets]
-        if any(uses_sampled(derivation, i.value) for i in items):   # value and error columns
-            out.append((table, sampled_table(derivation, table, items)))
-            continue
         try:
+            if any(_with_numbers(derivation, i.value) for i in items):   # value and error columns
+                out.append((table, sampled_table(derivation, table, items)))
+                continue
             rows = grid_table(items, {s.name: values for s, values in table.axes}, table.digits,
                               fixed={s.name: v for s, v in table.fixed})
+            rows[0] = rows[0][:len(rows[0]) - len(items)] + [
+                i.label + (f" ({i.truncation})" if i.truncation else "") for i in items]
         except InputError as error:
             raise _at(error, table.span) from None
         out.append((table, rows))
@@ -271,16 +285,21 @@ def stage_files(derivation, batch, directory=".", overwrite: bool = False) -> No
         except InputError as error:
             raise _at(error, table.span) from None
     from ..export.captions import figure_caption_latex
+    from ..export.latex import escape_text
     for figure in system.figures:
         items = [_plain(derivation, t, figure.span) for t in figure.targets]
         path = directory / figure.path
         style = {"other_values": {s.name: v for s, v in figure.fixed}, "system": system, "parameters": system.parameters,
                  "into": collector(figure.span), "options": system.presentation.figure_options,
                  "caption_tex": figure_caption_latex(derivation, figure)}
+        truncations = "; ".join(f"{i.label}: {i.truncation}" for i in items if i.truncation)
+        if truncations:   # a series in the tube coverage: what it leaves out goes under the figure
+            style["caption"] = f"{plots.conventions_caption(system)}; {truncations}"
+            style["caption_tex"] += f" {escape_text(truncations)}."
         try:
-            if any(uses_sampled(derivation, i.value) for i in items):   # error bars
-                plot_sampled_line(derivation, figure, items, path, collector(figure.span),
-                                  options=style["options"], caption_tex=style["caption_tex"])
+            if any(_with_numbers(derivation, i.value) for i in items):   # error bars
+                plot_sampled_line(derivation, figure, items, path, collector(figure.span), options=style["options"],
+                                  caption_tex=style["caption_tex"], caption=style.get("caption"))
             elif len(figure.axes) == 1:
                 (symbol, interval), = figure.axes
                 plots.plot_line(items, symbol.name, interval, path, **style)

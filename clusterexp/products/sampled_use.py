@@ -5,7 +5,9 @@ statement of the same input) is evaluated at a point only where some `sample` st
 b at the same statistics parameters (exact equality of alpha, and alpha_12 for b_21); the parameters are
 substituted exactly, the b by its estimate, and the error is propagated to first order
 (`loops.sampled.propagate`).  Nothing is sampled here: a point no `sample` statement covers is refused
-with the statement to add.
+with the statement to add.  Among flux tubes the sampled b's are the tube pieces, and each is first put
+in exactly where `TubePiece.exactly` knows it (`tube_use.resolved`): a point where every piece is exact
+needs no `sample`, and a mixed point carries the error of its sampled pieces only.
 
 A claim on such a coefficient is compared at every point of the `sample` statements: it is "consistent
 within k standard errors" (k = 3 unless the claim says `within k errors`) when |claimed - value| < k
@@ -40,16 +42,23 @@ def uses_sampled(derivation, expr) -> bool:
     return bool(set(sampled_symbols(system)) & set(sympy.sympify(expr).free_symbols))
 
 
+_TUBE_PERIODS = {"flux": 1, "exchange": 2, "mutual": 1}   # the periods of the phases a tube piece depends on
+
+
 def _statistics_key(system, index, point: dict):
     from ..loops.request import statistics_of
     from ..loops.tube_sampling import piece_statistics
-    stats = piece_statistics(system, index) or statistics_of(system.species, system.mutual, index)
+    pieces = piece_statistics(system, index)
+    stats = pieces or statistics_of(system.species, system.mutual, index)
     key = []
     for name in sorted(stats):
         value = sympy.sympify(stats[name]).xreplace(point)
         if value.free_symbols:
             return None
-        key.append((name, sympy.nsimplify(value)))
+        value = sympy.nsimplify(value)
+        if pieces and name in _TUBE_PERIODS:   # a tube piece at flux 3/2 is the one at 1/2 (period 1)
+            value = sympy.Mod(value, _TUBE_PERIODS[name])
+        key.append((name, value))
     return tuple(key)
 
 
@@ -59,7 +68,7 @@ def _estimates(derivation) -> dict:
     if cache is not None:
         return cache
     table = {}
-    for statement in derivation.sampled:
+    for statement in derivation.sampled or ():
         for c in statement.clusters:
             which = c.index if c.piece is None else c.piece
             key = (which, _statistics_key(derivation.system, which, dict(c.point)))
@@ -74,10 +83,15 @@ def _point_text(point: dict) -> str:
 
 
 def sampled_value(derivation, expr, point: dict, span) -> tuple[float, float]:
-    """(value, error) of `expr` at `point` ({symbol: exact value}) with the sampled b's estimates."""
-    from ..loops.sampled import propagate
+    """(value, error) of `expr` at `point` ({symbol: exact value}) with the sampled b's estimates; among
+    tubes the pieces exactly known at the point are put in first (`tube_use.resolved`), so only the
+    sampled ones carry an error."""
     system = derivation.system
     expr = sympy.sympify(expr)
+    if system.tubes is not None:   # the pieces exact at the point first, then the sampled ones
+        from .tube_use import resolved
+        expr, estimates = resolved(derivation, expr, point, span)
+        return _propagated(expr, point, estimates, span)
     table = _estimates(derivation)
     estimates = {}
     for symbol, index in sampled_symbols(system).items():
@@ -86,13 +100,15 @@ def sampled_value(derivation, expr, point: dict, span) -> tuple[float, float]:
         key = _statistics_key(system, index, point)
         if key is None or (index, key) not in table:
             where = _point_text(point) or "this point"
-            if isinstance(index, sympy.Symbol):   # a tube piece
-                from ..loops.tube_sampling import missing_text
-                raise InputError(missing_text(index, where), span)
             raise InputError(f"b{bracket_label(index)} has no closed form and no `sample` statement of this input "
                              f"estimates it at {where}; add one there, e.g. `sample b{bracket_label(index)} at "
                              f"{_point_text(point)}` (or put the point into a `sample ... over` list)", span)
         estimates[symbol] = table[(index, key)]
+    return _propagated(expr, point, estimates, span)
+
+
+def _propagated(expr, point: dict, estimates: dict, span) -> tuple[float, float]:
+    from ..loops.sampled import propagate
     rest = expr.xreplace(point).free_symbols - set(estimates)
     if rest:
         raise InputError(f"no value for {', '.join(sorted(s.name for s in rest))} at {_point_text(point)}", span)
@@ -105,15 +121,23 @@ def quoted(value: float, error: float) -> str:
 
 
 def sample_points(derivation, expr) -> list[dict]:
-    """The points of the input's `sample` statements at which every sampled b of `expr` is estimated."""
+    """The points of the input's `sample` statements at which every sampled b of `expr` is estimated
+    (among tubes: each tube piece exactly known or estimated)."""
     table = _estimates(derivation)
     wanted = {i for s, i in sampled_symbols(derivation.system).items() if s in sympy.sympify(expr).free_symbols}
+    tubes = derivation.system.tubes is not None
     out, seen = [], set()
-    for statement in derivation.sampled:
+    for statement in derivation.sampled or ():
         for c in statement.clusters:
             point = dict(c.point)
             marker = tuple(sorted((s.name, v) for s, v in point.items()))
             if marker in seen:
+                continue
+            if tubes:   # each piece exact there or sampled there
+                from .tube_use import known_at
+                if known_at(derivation, expr, point):
+                    seen.add(marker)
+                    out.append(point)
                 continue
             keys = [(i, _statistics_key(derivation.system, i, point)) for i in wanted]
             if all(k in table for k in keys):
@@ -125,9 +149,12 @@ def sample_points(derivation, expr) -> list[dict]:
 def check_sampled_claim(derivation, claim, claimed, derived, label, limits) -> CheckResult | None:
     """The claim against the Monte Carlo numbers, or None when its coefficient holds no sampled b."""
     errors = getattr(claim, "errors", None)
-    if errors is not None and derivation.system.tubes is not None and uses_sampled(derivation, derived):
-        from ..loops.tube_sampling import refuse_claim_within_errors
-        refuse_claim_within_errors(claim)
+    if errors is not None and derivation.system.tubes is not None:
+        from .tube_use import tube_claim, tube_pieces_in
+        if tube_pieces_in(derived):   # a series in the coverage, compared term by term (tube_use)
+            return tube_claim(derivation, claim, claimed, derived, label, limits)
+        raise InputError(f"`within {errors:g} errors` is for claims on coefficients with sampled parts; "
+                         f"{claim.target.label} holds no tube piece here", claim.span)
     if limits:
         if errors is not None:
             raise InputError("a truncated claim (O(...)) is compared term by term, not with Monte Carlo numbers; "
@@ -142,36 +169,49 @@ def check_sampled_claim(derivation, claim, claimed, derived, label, limits) -> C
     points = sample_points(derivation, derived)
     if not points:
         return None
+    return compared_at_points(derivation, claim, (claimed, derived), [("", claimed, derived)], points, k, label)
+
+
+def compared_at_points(derivation, claim, sides, parts, points, k, label, note: str = "") -> CheckResult:
+    """The claim's verdict at every point: `parts` are (name, claimed, derived) compared apart (the
+    coefficient, or each power of the tube coverage in it), each number from `sampled_value`; `sides`
+    (claimed, derived) are the whole values the result shows; `note` ends the method."""
     worst, rows = None, []
     for point in points:
-        value, error = sampled_value(derivation, derived, point, claim.span)
-        try:
-            mine = complex(sympy.N(sympy.sympify(claimed).xreplace(point), 30))
-        except TypeError:
-            raise InputError(f"the claim needs values for {', '.join(sorted(s.name for s in claimed.free_symbols))}"
-                             f" at {_point_text(point)}", claim.span) from None
-        if abs(mine.imag) > 1e-12 * max(1.0, abs(mine.real)):
-            deviation = math.inf
-        elif error < 1e-12:
-            deviation = 0.0 if abs(mine.real - value) < 1e-12 else math.inf
-        else:
-            deviation = abs(mine.real - value) / error
-        rows.append((point, mine.real, value, error, deviation))
-        if worst is None or deviation > worst[4]:
-            worst = rows[-1]
-    where = "; ".join(_point_text(p) for p, *_ in rows)
-    if worst[4] < k:
+        for part, claimed, derived in parts:
+            value, error = sampled_value(derivation, derived, point, claim.span)
+            try:
+                mine = complex(sympy.N(sympy.sympify(claimed).xreplace(point), 30))
+            except TypeError:
+                left = sympy.sympify(claimed).xreplace(point).free_symbols
+                raise InputError(f"the claim needs values for {', '.join(sorted(s.name for s in left))}"
+                                 f" at {_point_text(point)}", claim.span) from None
+            if abs(mine.imag) > 1e-12 * max(1.0, abs(mine.real)):
+                deviation = math.inf
+            elif error < 1e-12:
+                deviation = 0.0 if abs(mine.real - value) < 1e-12 else math.inf
+            else:
+                deviation = abs(mine.real - value) / error
+            rows.append((point, part, mine.real, value, error, deviation))
+            if worst is None or deviation > worst[5]:
+                worst = rows[-1]
+    where = "; ".join(dict.fromkeys(_point_text(p) for p, *_ in rows))
+    count = len(points)
+    claimed, derived = sides
+    if worst[5] < k:
         method = (f"within {k:g} standard errors of the Monte Carlo numbers of the `sample` statements at "
-                  f"{len(rows)} point{'s' if len(rows) != 1 else ''} ({where}); largest deviation "
-                  f"{worst[4]:.2g} standard errors; sampled, not proven")
-        return CheckResult(SAMPLED, claimed, derived, method, label=label, points=len(rows))
-    point, mine, value, error, deviation = worst
+                  f"{count} point{'s' if count != 1 else ''} ({where}); largest deviation "
+                  f"{worst[5]:.2g} standard errors; sampled, not proven{note}")
+        return CheckResult(SAMPLED, claimed, derived, method, label=label, points=count)
+    point, part, mine, value, error, deviation = worst
     away = "infinitely many" if math.isinf(deviation) else f"{deviation:.2g}"
-    method = (f"{away} standard errors away from the Monte Carlo number at {_point_text(point)}; a claim "
-              f"{k:g} or more standard errors away is a mismatch")
+    what = "the exact value" if error == 0 else "the Monte Carlo number"
+    method = (f"{away} standard errors away from {what} at {_point_text(point)}"
+              f"{' in ' + part if part else ''}: claimed {mine:.10g}, derived {quoted(value, error)}; a claim "
+              f"{k:g} or more standard errors away is a mismatch{note}")
     return CheckResult(MISMATCH, claimed, derived, method, label=label, witness=tuple(
         (s.name, v) for s, v in sorted(point.items(), key=lambda kv: kv[0].name)),
-        claimed_value=f"{mine:.10g}", derived_value=quoted(value, error), points=len(rows))
+        claimed_value=f"{mine:.10g}", derived_value=quoted(value, error), points=count)
 
 
 def sampled_number_text(derivation, expr, point: dict, span) -> str:
@@ -181,46 +221,66 @@ def sampled_number_text(derivation, expr, point: dict, span) -> str:
 
 def sampled_table(derivation, table, items) -> list[list[str]]:
     """`tabulate` with sampled parts: a value column for each coefficient and an error column after
-    each sampled one (full precision: the CSV is for further work), every grid point covered by a
-    `sample` statement."""
+    each one that used a sampled number (full precision: the CSV is for further work; 0.0 where the
+    point needed none), every grid point covered by a `sample` statement or exactly known (tube
+    pieces, `tube_use`). A coefficient known only to some order in the tube coverage says so in its
+    header (`truncation` of the item)."""
     import itertools
 
-    from .numbers import evaluate, format_number, grid_text
+    from .numbers import grid_text
     axes = [(s, list(values)) for s, values in table.axes] + [(s, [v]) for s, v in table.fixed]
-    sampled = [uses_sampled(derivation, i.value) for i in items]
+    points = [{s: v for (s, _), v in zip(axes, combination)}
+              for combination in itertools.product(*(values for _, values in axes))]
+    columns = [[_table_cell(derivation, item.value, point, table) for point in points] for item in items]
+    errors = [any(error is not None for _, error in cells) for cells in columns]
     header = [s.name for s, _ in axes]
-    for item, mc in zip(items, sampled):
-        header += [item.label, f"{item.label} error"] if mc else [item.label]
+    for item, with_error in zip(items, errors):
+        label = item.label + (f" ({item.truncation})" if getattr(item, "truncation", None) else "")
+        header += [label, f"{item.label} error"] if with_error else [label]
     rows = [header]
-    for combination in itertools.product(*(values for _, values in axes)):
-        point = {s: v for (s, _), v in zip(axes, combination)}
-        row = [grid_text(v, table.digits) for v in combination]
-        for item, mc in zip(items, sampled):
-            if mc:
-                value, error = sampled_value(derivation, item.value, point, table.span)
-                row += [repr(value), repr(error)]
-            else:
-                own = {s: point[s] for s in item.value.free_symbols if s in point}
-                row.append(format_number(evaluate(item.value, {s.name: v for s, v in own.items()}, table.digits),
-                                         table.digits))
+    for k, point in enumerate(points):
+        row = [grid_text(point[s], table.digits) for s, _ in axes]
+        for cells, with_error in zip(columns, errors):
+            text, error = cells[k]
+            row += [text, repr(0.0 if error is None else error)] if with_error else [text]
         rows.append(row)
     return rows
 
 
-def plot_sampled_line(derivation, figure, items, path, into, options=(), caption_tex=None) -> None:
+def _table_cell(derivation, expr, point: dict, table) -> tuple[str, float | None]:
+    """(text of the value, its error or None when exact) of one coefficient at one grid point."""
+    from .exact_pieces import filled
+    from .numbers import evaluate, format_number
+    from .tube_use import tube_pieces_in
+    expr, _ = filled(derivation.system, expr, point)
+    if uses_sampled(derivation, expr) or tube_pieces_in(expr):
+        value, error = sampled_value(derivation, expr, point, table.span)
+        return repr(value), error
+    own = {s.name: point[s] for s in expr.free_symbols if s in point}
+    return format_number(evaluate(expr, own, table.digits), table.digits), None
+
+
+def plot_sampled_line(derivation, figure, items, path, into, options=(), caption_tex=None, caption=None) -> None:
     """`plot` over one axis with sampled parts: the exact coefficients as curves, the sampled ones as
     points with error bars at every `sample` point on the axis (the other parameters at the figure's
-    values).  A heat map of a sampled coefficient is the `map` clause of `sample`. Drawn in the figure
-    style of `options` and written by `plots.finish` (PDF, PNG, caption beside)."""
+    values).  Among tubes (`tube_use`) a coefficient whose pieces do not change along the axis (the
+    coverage, a mass) is a curve, with a one-standard-error band where a piece is sampled; otherwise
+    it is drawn as points where each piece is exact or sampled.  A heat map of a sampled coefficient
+    is the `map` clause of `sample`. Drawn in the figure style of `options` and written by
+    `plots.finish` (PDF, PNG, caption beside; `caption` replaces the conventions line)."""
     from . import plots
     from .figure_style import style
     plots._matplotlib()
     with style(options):
-        _plot_sampled_line(derivation, figure, items, path, into, options, caption_tex)
+        _plot_sampled_line(derivation, figure, items, path, into, options, caption_tex, caption)
 
 
-def _plot_sampled_line(derivation, figure, items, path, into, options, caption_tex) -> None:
+def _plot_sampled_line(derivation, figure, items, path, into, options, caption_tex, conventions) -> None:
     from . import plots
+    if len(figure.axes) != 1 and derivation.system.tubes is not None:
+        from ..errors import NotSupportedYet
+        raise NotSupportedYet("a heat map of a coefficient with tube pieces (`plot` over two parameters, or the `map` "
+                              "clause of `sample`); `plot` draws it over one parameter", figure.span)
     if len(figure.axes) != 1:
         raise InputError("a heat map of a coefficient with Monte Carlo parts is drawn by the `map` clause of its "
                          "`sample` statement; `plot` draws it over one parameter", figure.span)
@@ -229,11 +289,14 @@ def _plot_sampled_line(derivation, figure, items, path, into, options, caption_t
     fixed = dict(figure.fixed)
     span = plots._interval(symbol.name, interval, system, system.parameters)
     _, Figure, numpy = plots._matplotlib()
-    exact = [i for i in items if not uses_sampled(derivation, i.value)]
+    from .tube_use import tube_pieces_in
+    exact = [i for i in items if not uses_sampled(derivation, i.value) and not tube_pieces_in(i.value)]
     prepared, other = plots._prepare(exact, [symbol.name], {s.name: v for s, v in fixed.items()}, system,
                                      system.parameters) if exact else ([], {s.name: v for s, v in fixed.items()})
-    caption = plots._caption_text(None, system, other, {symbol.name: span}) + \
+    caption = plots._caption_text(conventions, system, other, {symbol.name: span}) + \
         "\nPoints: Brownian-loop Monte Carlo (`sample`), error bars one standard error."
+    tubes = "" if system.tubes is None else " Tube pieces exactly known at a point carry no error."
+    caption += tubes
     drawing = plots._figure(Figure, caption.count("\n") + 1)
     axes = drawing.add_subplot()
     x = plots._samples(span, 401, numpy)
@@ -243,8 +306,14 @@ def _plot_sampled_line(derivation, figure, items, path, into, options, caption_t
     for item in items:
         if item in exact:
             continue
-        along = sorted({p[symbol] for p in sample_points(derivation, item.value) if symbol in p
-                        and span.contains(p[symbol])}, key=float)
+        if system.tubes is not None:
+            from .tube_use import tube_curve, tube_points
+            if tube_curve(derivation, item, symbol, fixed, axes, x, figure.span):
+                continue
+            along = tube_points(derivation, item, symbol, span, fixed, figure.span)
+        else:
+            along = sorted({p[symbol] for p in sample_points(derivation, item.value) if symbol in p
+                            and span.contains(p[symbol])}, key=float)
         if not along:
             raise InputError(f"no `sample` statement estimates the sampled part of {item.label} on {symbol.name} "
                              f"in {span}; add one, e.g. `sample {item.label} over {symbol.name} = [...]`", figure.span)
@@ -257,6 +326,6 @@ def _plot_sampled_line(derivation, figure, items, path, into, options, caption_t
     axes.grid(True, linewidth=0.3, alpha=0.5)
     plots._format(path)
     if caption_tex is not None:
-        caption_tex += r" Points: Brownian-loop Monte Carlo (\texttt{sample}), error bars one standard error."
+        caption_tex += r" Points: Brownian-loop Monte Carlo (\texttt{sample}), error bars one standard error." + tubes
     plots.finish(drawing, path, caption, into, options, caption_tex=caption_tex,
                  title=", ".join(i.label for i in items) + f" against {symbol.name}")
