@@ -18,6 +18,7 @@ of the exact two-body coefficients; physics.md, route R3). Elsewhere it is taken
 """
 from __future__ import annotations
 
+import dataclasses
 import itertools
 import re
 from dataclasses import dataclass
@@ -87,11 +88,26 @@ class Unknown:
         return f"the coefficient of ${' '.join(powers)}$ in {what} about {where}"
 
 
+def with_estimates(expr, estimates: Mapping) -> tuple[float, float] | None:
+    """(value, error bound) of `expr` with each symbol of `estimates` ({symbol: (value, bound)}) at its
+    value, bounds added linearly; None unless `expr` is free of every other symbol and of degree at most
+    1 in those (a product of two computed numbers would need more than a linear bound)."""
+    expr = sympy.expand(sympy.sympify(expr))
+    if expr.free_symbols - set(estimates):
+        return None
+    used = [s for s in estimates if expr.has(s)]
+    if used and sympy.Poly(expr, *used).total_degree() > 1:
+        return None
+    value = float(expr.subs({s: estimates[s][0] for s in used}))
+    return value, sum(abs(float(expr.coeff(s))) * estimates[s][1] for s in used)
+
+
 def format_estimate(value: float, error: float) -> str:
     """`4.359161 +- 0.000003`: the value and its error bound to the error's leading digit."""
     import math
     places = max(0, -math.floor(math.log10(error))) if error > 0 else 12
-    return f"{value:.{places}f} +- {error:.{places}f}"
+    bound = math.ceil(error * 10 ** places - 1e-9) / 10 ** places   # never printed smaller than it is
+    return f"{value:.{places}f} +- {bound:.{places}f}"
 
 
 def _power_text(v, p, k) -> str:
@@ -100,8 +116,10 @@ def _power_text(v, p, k) -> str:
 
 
 # Every unknown ever named, by its symbol's name. A name is a function of what it means (piece,
-# variables, points, powers, sides), so one table serves every derivation.
+# variables, points, powers, sides), so one table serves every derivation; the computed values depend
+# on the gas as well and are kept per gas (system, name).
 _NAMED: dict[str, Unknown] = {}
+_ESTIMATES: dict[tuple, tuple[float, float]] = {}
 
 
 def piece_label(piece: sympy.Symbol) -> str:
@@ -150,12 +168,15 @@ def pieces_in(value: sympy.Expr, K: int) -> list[sympy.Symbol]:
                    if piece_index(s, K) is not None or _tube_piece(s) is not None), key=lambda s: s.name)
 
 
-def unknowns_in(values: Iterable) -> list[Unknown]:
-    """The named Taylor coefficients that occur in the given values, sorted by name."""
+def unknowns_in(values: Iterable, system=None) -> list[Unknown]:
+    """The named Taylor coefficients that occur in the given values, sorted by name; with `system`, each
+    with the value computed for that gas where there is one (`Unknown.estimate`: a name says what the
+    coefficient is of, the number also depends on the gas's masses and parameters)."""
     names = set()
     for value in values:
         names |= {s.name for s in sympy.sympify(value).free_symbols if s.name in _NAMED}
-    return [_NAMED[n] for n in sorted(names)]
+    return [dataclasses.replace(_NAMED[n], estimate=_ESTIMATES.get((system, n))) if system is not None
+            else _NAMED[n] for n in sorted(names)]
 
 
 def _definitions(system, index, piece=None) -> list[tuple[str, sympy.Expr]]:
@@ -260,7 +281,9 @@ def expand_pieces(system, value: sympy.Expr, variables: Sequence[tuple[sympy.Sym
             if coefficient is None:
                 estimate = derived[3].get(powers) if derived is not None else None
                 unknown = Unknown(sympy.Symbol(_name(piece, monomial)), piece, monomial, estimate)
-                _NAMED.setdefault(unknown.symbol.name, unknown)
+                _NAMED.setdefault(unknown.symbol.name, dataclasses.replace(unknown, estimate=None))
+                if estimate is not None:
+                    _ESTIMATES[(system, unknown.symbol.name)] = estimate
                 unknowns.append(unknown)
                 coefficient = unknown.symbol
             polynomial += coefficient * sympy.Mul(*((v - p) ** e for v, p, e, _ in monomial))
@@ -299,7 +322,7 @@ def value_at(system, piece: sympy.Symbol, point: Mapping) -> sympy.Expr | None:
     return None if value is None else sympy.expand(value)
 
 
-def derived_taylor(system, piece: sympy.Symbol, used) -> tuple[dict, int] | None:
+def derived_taylor(system, piece: sympy.Symbol, used) -> tuple[dict, int, frozenset, dict] | None:
     """The Taylor coefficients of a cluster piece that the perturbative route derives
     (`routes.perturbative`, docs/perturbative.md), as ({powers of (v - v0) per used variable: value},
     the total order through which the route was asked, the powers it could not derive there, and
@@ -343,6 +366,8 @@ def derived_taylor(system, piece: sympy.Symbol, used) -> tuple[dict, int] | None
     species, about = [], []
     names = system.species_names
     for i, s in enumerate(system.species):
+        if sympy.sympify(s.mass / m_ref).free_symbols & set(point):
+            return None   # a mass that moves with the expansion variable: not the route's expansion
         mass = sympy.sympify(s.mass / m_ref).subs(point)
         if not (mass.is_Rational and mass > 0):
             return None

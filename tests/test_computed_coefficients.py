@@ -73,6 +73,21 @@ def test_the_two_species_bookkeeping_gives_the_derived_pair_with_one(monkeypatch
             assert abs(value - float(derived[monomial])) < 1e-12 and error == 0, (monomial, value)
 
 
+def test_two_equal_cycles_count_twice_and_carry_their_bounds():
+    """n_i = n_j: the two-species cluster of two 2-cycles has twice the first order of the one-species
+    {2-cycle, 2-cycle} (-|d|/4 against -1/8), so twice its link squared and angle parts, bounds too; the
+    chains add exactly."""
+    e1, e2, d = sympy.symbols("e1 e2 d", real=True)
+    species = [Species(e1), Species(e2)]
+    computed = numerical_coefficients(species, {(0, 1): d}, (2, 2), "boson")
+    link, (angle, angle_error), _ = two_loop_table.two_species_cluster(2, 2)
+    chains = chain_part(species, {(0, 1): d}, (2, 2), "boson")
+    assert abs(computed[d ** 2][0] - (float(chains[d ** 2]) + 2 * link[0])) < 1e-12
+    assert computed[d ** 2][1] == 2 * link[1] > 0
+    assert abs(computed[d * e1][0] - (float(chains[d * e1]) + 2 * angle)) < 1e-12
+    assert computed[d * e1][1] == 2 * angle_error > 0
+
+
 def test_nothing_computed_where_the_table_does_not_reach():
     """b_3 is exact (no number), b_7 needs the 7-cycle and the clusters of n = 7 (not computed), a
     mixture of unequal masses is not covered: no estimate is offered there."""
@@ -155,11 +170,59 @@ def test_evaluate_near_the_point_goes_through_the_series():
     is refused as before."""
     out = _run(ONE_SPECIES + "expand alpha about 0 to 2 evaluate a[3], a[4] at alpha = 1/100")
     assert out.returncode == 0, out.stderr
-    lines = {x.split(" (series")[0].strip(): x for x in out.stdout.splitlines() if "(series about alpha = 0" in x}
+    lines = {x.split(" (truncated")[0].strip(): x for x in out.stdout.splitlines()
+             if "(truncated series about alpha = 0" in x}
     a3 = float(lines["a[3]"].split("= ")[-1])
     assert abs(a3 - (1 / 36 + 1e-4 / 12)) < 1e-13
-    assert "O(alpha**3) left out" in lines["a[3]"]
+    assert "O(alpha^3) left out, alpha^3 = 1.0e-6 here" in lines["a[3]"]
     value, bound = (float(x) for x in lines["a[4]"].split("= ")[-1].split("+-"))
     assert abs(value - 1e-4 * (211 / 16 - 3 * 4.359161)) < 1e-8 and 0 < bound < 1e-8
     out = _run(ONE_SPECIES + "evaluate a[3] at alpha = 1/100")
     assert out.returncode == 2 and "no value for b_3" in out.stderr
+
+
+def test_evaluate_takes_the_nearest_series_and_not_a_far_one():
+    """Two series (about bosons and about fermions): at alpha = 19/20 the one about 1 is used, 1/36 +
+    (1 - alpha)^2/12 there (Myrheim & Olaussen 1993 with Sen's symmetry); at alpha = 1/2 neither is
+    near enough (1/4 at most) and the value is refused as without a series."""
+    both = ONE_SPECIES + "expand alpha about 0 to 2 expand alpha about 1 to 2 "
+    out = _run(both + "evaluate a[3] at alpha = 19/20")
+    assert out.returncode == 0, out.stderr
+    line = next(x for x in out.stdout.splitlines() if "a[3] (truncated series about alpha = 1 from below" in x)
+    assert abs(float(line.split("= ")[-1]) - (1 / 36 + 0.05 ** 2 / 12)) < 1e-13
+    out = _run(both + "evaluate a[3] at alpha = 1/2")
+    assert out.returncode == 2 and "no value for b_3" in out.stderr
+
+
+def test_each_gas_keeps_its_own_computed_values():
+    """The same coefficient name in two gases of one session: exchange 1 + alpha and 1 + 2 alpha (about
+    fermions, slope 1 and 2) give b_4's coefficient of alpha^2 as 0.525828 and 4 x 0.525828 (section 4f);
+    each derivation lists, prints and decides claims with its own."""
+    import clusterexp
+    values = []
+    for slope in (1, 2):
+        d = clusterexp.derive(f"dimension 2 parameter alpha in [0, 1/8] species A exchange 1 + {slope}*alpha "
+                              "clusters pairphase derive virial up to 4 expand alpha about 0 to 2 "
+                              f"claim a[4] = {(25 / 16 - 3 * 0.525828) * slope ** 2:.6f}*alpha^2 + O(alpha^3)")
+        values.append(d)
+    for slope, d in zip((1, 2), values):
+        (unknown,) = [u for u in d.unknowns() if u.symbol.name.startswith("b_4")]
+        assert abs(unknown.estimate[0] - slope ** 2 * 0.525828) < 1e-4, (slope, unknown.estimate)
+        (check,) = d.checks
+        assert check.status == "consistent with the computed coefficients, not proven", check.render()
+
+
+def test_a_mass_that_moves_with_the_variable_gets_no_number():
+    """b_4 of a species B whose mass is 1 + alpha (in units of the reference species A) is (1 + alpha)
+    times b_4 of unit mass: the route's expansion at fixed mass does not apply, so no coefficient of it
+    is derived or computed there; with B of mass 2 the number is twice that of unit mass (b of one
+    species scales with its mass in the plane)."""
+    import clusterexp
+    from clusterexp.pieces import format_estimate
+    text = ("dimension 2 parameter alpha in [0, 1] species A bose species B exchange alpha mass MASS "
+            "clusters pairphase derive cluster b[0,4] expand alpha about 0 to 2")
+    d = clusterexp.derive(text.replace("MASS", "1 + alpha"))
+    assert not any(u.estimate for u in d.unknowns())
+    (unknown,) = clusterexp.derive(text.replace("MASS", "2")).unknowns()
+    assert abs(unknown.estimate[0] - 2 * 4.359161) < 4e-5
+    assert format_estimate(0.1, 1.4e-5) == "0.10000 +- 0.00002"     # a bound is never shown smaller

@@ -9,6 +9,8 @@ if TYPE_CHECKING:  # the results import the printers for their notebook display,
 
 import sympy
 
+from ..pieces import format_estimate, with_estimates
+
 
 
 def _remainder_text(piece) -> str:
@@ -106,17 +108,15 @@ def _computed_terms(piece) -> list | None:
         if not c.has(*values):
             terms.append((c, factors))
             continue
-        if any(sympy.degree(c, s) > 1 for s in values) or not sympy.expand(c).is_polynomial(*values):
+        number = with_estimates(c, values)
+        if number is None:
             return None
-        value = float(c.subs({s: v for s, (v, _) in values.items()}))
-        error = sum(abs(float(sympy.diff(c, s))) * e for s, (_, e) in values.items() if c.has(s))
-        terms.append(((value, error), factors))
+        terms.append((number, factors))
     return terms
 
 
 def computed_series_text(piece) -> str | None:
     """The series with the computed coefficients in place (`_computed_terms`), each as `(value +- bound)`."""
-    from ..pieces import format_estimate
     terms = _computed_terms(piece)
     if terms is None:
         return None
@@ -131,7 +131,6 @@ def computed_series_text(piece) -> str | None:
 
 def computed_series_latex(piece, symbol_names=None) -> str | None:
     """The same in LaTeX, each computed coefficient as `(value \\pm bound)`."""
-    from ..pieces import format_estimate
     terms = _computed_terms(piece)
     if terms is None:
         return None

@@ -148,36 +148,43 @@ def run_evaluations(derivation) -> list:
     return out
 
 
+NEAR = sympy.Rational(1, 4)   # how far from its point `evaluate` takes an `expand` series for the value
+
+
 def _through_series(derivation, coefficient, value, point: dict, digits: int):
-    """For a value with named many-body pieces: (how, number text) from an `expand` series of the input
-    that covers the point (one variable, the point on the series' side, every other parameter given,
-    every named Taylor coefficient in it computed numerically or absent), else None. The number is the
-    truncated series at the point, its remainder left out (said in `how`), with the error bound of the
-    computed coefficients."""
-    from ..pieces import format_estimate, pieces_in
+    """For a value with named many-body pieces: (how, number text) from the `expand` series of the input
+    nearest to the point among those that reach it (one variable, the point on the series' side and
+    within NEAR of it, every other parameter given, every named Taylor coefficient in it computed or
+    absent), else None. The number is the truncated series at the point; `how` says which series, the
+    O term left out and its size there; a +- is the computed coefficients' bound only."""
+    from ..pieces import format_estimate, pieces_in, with_estimates
     if not pieces_in(value, len(derivation.system.species)):
         return None
+    candidates = []
     for piece in derivation.series_of(coefficient):
         if getattr(piece, "variables", ()) or piece.variable not in point:
             continue
-        shift = point[piece.variable] - piece.point
-        if (piece.side == "above" and shift < 0) or (piece.side == "below" and shift > 0):
+        shift = sympy.sympify(point[piece.variable] - piece.point)
+        if abs(shift) > NEAR or (piece.side == "above" and shift < 0) or (piece.side == "below" and shift > 0):
             continue
         estimates = {u.symbol: u.estimate for u in piece.unknowns}
-        polynomial = sympy.expand(piece.polynomial)
-        if any(e is None for e in estimates.values()) or polynomial.free_symbols - set(point) - set(estimates):
+        if any(e is None for e in estimates.values()):
             continue
-        at = sympy.expand(polynomial.subs(point))
-        number = float(at.subs({s: v for s, (v, _) in estimates.items()}))
-        bound = sum(abs(float(at.coeff(s))) * e for s, (_, e) in estimates.items())
-        remainder = " + ".join(sympy.sstr(o) for o in piece.remainder)
-        how = (f"series about {piece.variable} = {piece.point}" + (f" from {piece.side}" if piece.side else "")
-               + f" through order {piece.known}, {remainder} left out")
-        if not estimates:
-            return how, format_number(evaluate(at, {}, digits), digits)
-        how += "; +- from the computed coefficients"
-        return how, format_estimate(number, max(bound, 10.0 ** -digits))
-    return None
+        number = with_estimates(sympy.expand(piece.polynomial).subs(point), estimates)
+        if number is not None:
+            candidates.append((abs(shift), piece, shift, estimates, number))
+    if not candidates:
+        return None
+    _, piece, shift, estimates, (number, bound) = min(candidates, key=lambda c: c[0])
+    size = format_number(evaluate(abs(shift) ** (piece.known + 1), {}, 3), 3)
+    base = f"{piece.variable}" if piece.point == 0 else f"({piece.variable} - {piece.point})"
+    others = [sympy.sstr(o.expr) for o in piece.remainder if piece.variable not in o.expr.free_symbols]
+    how = (f"truncated series about {piece.variable} = {piece.point}" + (f" from {piece.side}" if piece.side else "")
+           + f" through order {piece.known}; O({base}^{piece.known + 1}) left out, {base}^{piece.known + 1} = {size} here"
+           + (f"; also O({'), O('.join(others)})" if others else ""))
+    if not estimates:
+        return how, format_number(evaluate(sympy.expand(piece.polynomial).subs(point), {}, digits), digits)
+    return how + "; +- from the computed coefficients only", format_estimate(number, max(bound, 10.0 ** -digits))
 
 
 def _gas_symbols(system) -> set:
