@@ -42,7 +42,9 @@ def test_the_bookkeeping_gives_the_published_third_virial_coefficient():
 def test_b4_square_is_the_chains_plus_the_table(about):
     """numerical_coefficients for one species: the exact chains plus the table's {3-cycle, loop} and
     {2-cycle, 2-cycle} (sign (-1)^4 = + about fermions), times the mass; the n = 4 values of section 4f
-    (4.359161 about bosons, 0.525828 about fermions, docs/perturbative.md)."""
+    (4.359161 about bosons, 0.525828 about fermions, docs/perturbative.md). Bookkeeping only (the code
+    against its own table and chains); the outside checks are the n = 3 test above and the sampled
+    loops of tests/test_two_loop_monte_carlo.py."""
     beyond = two_loop_table.BEYOND[(3, 1)][0] + two_loop_table.BEYOND[(2, 2)][0]
     expected = _b_square(4, about, beyond)
     for mass in (1, 3):

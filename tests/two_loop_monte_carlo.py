@@ -52,7 +52,7 @@ def _orbits(p: int, q: int) -> list[tuple[int, int]]:
 class TwoLoopSamples:
     """`count` samples of the {p-cycle, q-cycle} cluster at `n` slices per unit time, seen at strides."""
 
-    def __init__(self, rng: np.random.Generator, count: int, p: int, q: int, n: int, strides=(1,)):
+    def __init__(self, rng: np.random.Generator, count: int, p: int, q: int, n: int, strides=(1,), own=True):
         x = brownian_loops(rng, count, p * n, float(p))
         y = brownian_loops(rng, count, q * n, float(q))
         centre = x[:, :: n][:, :p].mean(axis=1) - y[:, :: n][:, :q].mean(axis=1)
@@ -63,7 +63,7 @@ class TwoLoopSamples:
         steps = np.arange(period * n + 1)
         links = [x[:, (steps + a * n) % (p * n)] - y[:, (steps + b * n) % (q * n)] - c[:, None]
                  for a, b in _orbits(p, q)]
-        selfs = _self_curves(x, p, n) + _self_curves(y, q, n)
+        selfs = _self_curves(x, p, n) + _self_curves(y, q, n) if own else []   # own=False: any p, q
         self.link = _joined(links, n, strides)
         self.self = _joined(selfs, n, strides) if selfs else None
 
@@ -105,7 +105,7 @@ def even_parts(p: int, q: int, amplitudes, n: int, strides, count: int, batches:
     make = CycleAloneSamples if q == 0 else TwoLoopSamples
     period = 1.0 if link_only else 2.0
     for b in range(batches):
-        s = make(rng, count, p, q, n, strides)
+        s = make(rng, count, p, q, n, strides, own=False) if link_only else make(rng, count, p, q, n, strides)
         values = (lambda a, st: s.values(a, st, own=False)) if link_only else s.values
         for i, st in enumerate(strides):
             for j, a in enumerate(amplitudes):
