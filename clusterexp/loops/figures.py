@@ -102,7 +102,8 @@ def _draw(statement, system, path: Path, into, options) -> Path:
     caption = "\n".join(textwrap.wrap(caption, 95))
     labels = (f"${axis_latex(first.name, system)}$", f"${axis_latex(second.name, system)}$")
     _format(path)
-    figure = value_and_error_maps(rows, x, y, labels, caption.count("\n") + 1 if "footer" in options else 0)
+    # no zero line: between a few Monte Carlo cells it would be drawn through the noise
+    figure = value_and_error_maps(rows, x, y, labels, caption.count("\n") + 1 if "footer" in options else 0, False)
     try:
         return finish(figure, path, caption, into, options, map_caption_latex(statement, system),
                       f"{', '.join(c.label for c in drawn)} sampled over {first.name}, {second.name}")

@@ -420,9 +420,10 @@ def plot_map(coefficient, first, second, path="coefficient_map.png", *, other_va
     return finish(figure, path, caption_text, into, options, caption_tex, _title(items, [name1, name2]))
 
 
-def heat_map(figure, axes, x, y, z, label: str, shading: str = "auto", error: bool = False):
+def heat_map(figure, axes, x, y, z, label: str, shading: str = "auto", error: bool = False, zero_line: bool = True):
     """One heat map of `z` (a row per y) on `axes` with its colour bar named `label`: a value, in colours
-    centred on 0 with its zero line where it changes sign (on a smooth grid), or (`error`) a standard error, from 0 up."""
+    centred on 0 where it changes sign (with the line where it vanishes, `zero_line`), or (`error`) a
+    standard error, from 0 up."""
     numpy = _matplotlib()[2]
     masked = numpy.ma.masked_invalid(z)
     if error:
@@ -433,7 +434,7 @@ def heat_map(figure, axes, x, y, z, label: str, shading: str = "auto", error: bo
         if low < -noise and high > noise:
             bound = max(-low, high)
             mesh = axes.pcolormesh(x, y, masked, shading=shading, cmap="RdBu_r", vmin=-bound, vmax=bound)
-            if shading != "nearest":   # one cell per point (Monte Carlo grids): a zero line there is noise
+            if zero_line:
                 axes.contour(x, y, masked, levels=[0.0], colors="k", linewidths=0.8)
         else:
             mesh = axes.pcolormesh(x, y, masked, shading=shading, cmap="viridis")
@@ -441,10 +442,11 @@ def heat_map(figure, axes, x, y, z, label: str, shading: str = "auto", error: bo
     return mesh
 
 
-def value_and_error_maps(rows, x, y, labels: tuple[str, str], caption_lines: int = 0):
+def value_and_error_maps(rows, x, y, labels: tuple[str, str], caption_lines: int = 0, zero_line: bool = True):
     """A figure of one row of panels per quantity in `rows` ((colour-bar label, values, errors or None),
-    arrays with a row per y): the values' heat map and, where there are errors, the one-standard-error
-    map beside it (numbers with Monte Carlo parts: `sample ... map`, `plot` over two parameters)."""
+    arrays with a row per y), one cell per point: the values' heat map and, where there are errors, the
+    one-standard-error map beside it (numbers with Monte Carlo parts: `sample ... map`, `plot` over two
+    parameters); `zero_line` as in `heat_map`."""
     _, Figure, _ = _matplotlib()
     columns = 2 if any(errors is not None for _, _, errors in rows) else 1
     figure = Figure(figsize=(6.4 * columns, 4.8 * len(rows) + 0.18 * caption_lines))
@@ -452,7 +454,7 @@ def value_and_error_maps(rows, x, y, labels: tuple[str, str], caption_lines: int
         panels = [(values, label, False)] + ([] if errors is None else [(errors, f"error of {label}", True)])
         for c, (z, name, error) in enumerate(panels):
             axes = figure.add_subplot(len(rows), columns, r * columns + c + 1)
-            heat_map(figure, axes, x, y, z, name, "nearest", error)
+            heat_map(figure, axes, x, y, z, name, "nearest", error, zero_line)
             axes.set_xlabel(labels[0])
             axes.set_ylabel(labels[1])
     return figure
