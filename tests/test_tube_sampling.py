@@ -159,6 +159,8 @@ def test_the_same_seed_gives_the_same_numbers():
     (BOSE_AMONG_TUBES + "sample a[2] seed 1", InputError, "give g a value with `at g = ...`", "7:8"),
     # a map needs two scanned parameters, among tubes as elsewhere
     (BOSE_AMONG_TUBES + 'sample a[2] over g = [1/4, 1/2] map "m.png"', InputError, "a map needs two scanned", "7:33"),
+    (BOSE_AMONG_TUBES + 'sample b[1], b[2], a[2], a[3], b[3] over g = [1/4, 1/2], n = [0, 1] map "m.png"', InputError,
+     "a map draws at most 4 coefficients", "7:69"),
 ])
 def test_requests_outside_the_tube_problems_are_refused_at_their_line(text, error, needle, where):
     with pytest.raises(error) as caught:

@@ -9,7 +9,6 @@ caption instead, and the caption states the O(coverage^k) each series leaves out
 """
 from __future__ import annotations
 
-import re
 import textwrap
 from pathlib import Path
 from types import SimpleNamespace
@@ -20,6 +19,7 @@ from ..errors import InputError
 from ..products.figure_style import style
 from ..products.plots import _format, axis_latex, coefficient_latex, conventions_caption, finish, symbol_latex, value_and_error_maps
 from .quoting import METHOD, PLUS_MINUS_LATEX, plus_minus, settled
+from .sampled_records import coverage_term, label
 
 
 def sampled_map(statement, system, path: Path, into=None) -> Path:
@@ -34,15 +34,15 @@ def mapped(statement) -> tuple[list, list]:
     drawn, exact = [], []
     for column in statement.columns:
         errors = [error for _, error in drawn_cells(statement, column)]
-        (drawn if any(errors) or "[" not in column.label[2:] else exact).append(column)
+        (drawn if any(errors) or coverage_term(column.label) is None else exact).append(column)
     return drawn, exact
 
 
 def _column_latex(column, system) -> str:
     """mathtext of a column: the coefficient, and the power of the coverage of a term ([n^1])."""
     item = SimpleNamespace(kind=column.kind, index=column.index, species=system.species_names, component=None)
-    term = re.search(r" \[(\w+)\^(\d+)\]$", column.label)
-    return coefficient_latex(item, system) + (rf"\,[{symbol_latex(term.group(1))}^{{{term.group(2)}}}]" if term else "")
+    term = coverage_term(column.label)
+    return coefficient_latex(item, system) + (rf"\,[{symbol_latex(term[0])}^{{{term[1]}}}]" if term else "")
 
 
 def _largest(statement, columns):
@@ -57,7 +57,7 @@ def drawn_cells(statement, column) -> list[tuple[float, float]]:
 
 def _notes(statement, drawn, exact) -> list[str]:
     """What the caption adds among tubes: each series' truncation, the exact terms not drawn."""
-    notes = list(dict.fromkeys(f"{c.label.split(' [')[0]}: {statement.note(c)}" for c in drawn if statement.note(c)))
+    notes = list(dict.fromkeys(f"{label(c.kind, c.index)}: {statement.note(c)}" for c in drawn if statement.note(c)))
     if exact:
         notes.append("exact at every point, not drawn: " + ", ".join(c.label for c in exact))
     return notes

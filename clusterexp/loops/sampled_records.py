@@ -77,7 +77,8 @@ class SampledStatement:
             for v in point.values:
                 if v.kind != "piece":
                     found.setdefault(v.label, v)
-        return sorted(found.values(), key=lambda v: (order.get(label(v.kind, v.index), len(order)), _power(v.label)))
+        return sorted(found.values(), key=lambda v: (order.get(label(v.kind, v.index), len(order)),
+                                                     (coverage_term(v.label) or ("", -1))[1]))
 
     def cell(self, k: int, column: str) -> tuple[float, float]:
         """(value, error) of one column at point k; (0.0, 0.0) where the term is exactly 0 there."""
@@ -105,10 +106,10 @@ def label(kind: str, index) -> str:
     return f"{'b' if kind == 'cluster' else 'a'}{bracket_label(index)}"
 
 
-def _power(term: str) -> int:
-    """The power of the coverage in a term's label ("a[2] [n^1]" -> 1); -1 for a whole coefficient."""
-    match = re.search(r"\^(\d+)\]$", term)
-    return int(match.group(1)) if match else -1
+def coverage_term(column: str) -> tuple[str, int] | None:
+    """(coverage, power) of a term's label ("a[2] [n^1]" -> ("n", 1)); None for a whole coefficient."""
+    match = re.search(r" \[(\w+)\^(\d+)\]$", column)
+    return (match.group(1), int(match.group(2))) if match else None
 
 
 def _labels(sampling: Sampling) -> list[str]:
