@@ -252,14 +252,83 @@ def test_document_table_has_a_head_for_every_column_and_states_the_order(cli, tm
     assert all(line.count("&") == 2 for line in table.splitlines() if line.startswith("$"))
 
 
-def test_a_heat_map_of_a_tube_coefficient_is_not_supported_yet_at_its_line(tmp_path):
+MAPPED = ("dimension 2\nparameter n nonnegative\nparameter alpha in [0, 1]\nparameter g\nspecies A exchange alpha\n"
+          "tubes flux g coverage n\nclusters pairphase\nderive virial up to 2\n")
+OVER_ALPHA_AND_G = "plot a[2] over alpha from 0 to 1, g from 0 to 1 at n = 1/10 into \"m.png\"\n"
+
+
+def _b2(alpha):
+    """b_2 of anyons, 1/4 - alpha + alpha^2/2 on [0, 1] (Arovas, Schrieffer, Wilczek, Zee 1985)."""
+    return 1 / 4 - alpha + alpha ** 2 / 2
+
+
+def test_a_heat_map_takes_the_exact_and_the_sampled_points_with_their_errors():
+    from types import SimpleNamespace
+
+    from clusterexp.products.tube_use import tube_grid
+    d = clusterexp.derive(MAPPED + "sample b[2] over alpha = [1/4, 1/2] at g = 1/2 seed 5 with 4000 loops\n"
+                          + OVER_ALPHA_AND_G + "plot a[2] over alpha from 0 to 1, g from 3/4 to 2 at n = 1/10 into "
+                          "\"exact.png\"\n")
+    item = SimpleNamespace(label="a[2]", value=d.value("virial", (2,)).removeO())
+    x, y, z, errors = tube_grid(d, item, d.system.figures[0])
+    # alpha: the bose and fermi points and the sampled values; g: the integers (no effect) and the sampled flux
+    assert list(x) == [0, 0.25, 0.5, 1] and list(y) == [0, 0.5, 1]
+    pieces = {}
+    for k, alpha in enumerate((0.25, 0.5)):
+        point = d.sampled.statements[0].points[k]
+        (pieces[alpha],) = [(v.value, v.error) for v in point.values if v.label == "B_anyon_tube_A"]
+    n = 0.1
+    for i, alpha in enumerate(x):
+        for j, g in enumerate(y):
+            if g != 0.5:            # an integer flux has no effect (period 1): the free anyons' a_2 = -b_2
+                expected, error = -_b2(alpha), 0.0
+            elif alpha in (0, 1):   # bose, fermi: a_2 = -+1/4 through the first order in n (the one-tube F cancels)
+                expected, error = (-0.25 if alpha == 0 else 0.25), 0.0
+            else:                   # a_2 = -b_2 - n (B - 2 F b_2) by hand, B as the sample statement printed it
+                piece, piece_error = pieces[alpha]
+                expected, error = -_b2(alpha) - n * (piece - 2 * F_HALF * _b2(alpha)), n * piece_error
+            assert z[j, i] == pytest.approx(expected, rel=1e-12, abs=1e-15)
+            assert errors[j, i] == pytest.approx(error, rel=1e-9, abs=1e-300)
+    # a grid of exact points only (integer fluxes) has no error panel
+    _, y, z, none = tube_grid(d, item, d.system.figures[1])
+    assert list(y) == [1, 2] and none is None and z[1] == pytest.approx([-_b2(a) for a in x], rel=1e-12)
+
+
+def test_a_heat_map_is_written_as_pdf_and_png_with_its_caption(tmp_path):
+    pytest.importorskip("matplotlib")
+    import matplotlib.image
     path = tmp_path / "m.gas"
-    path.write_text("dimension 2\nparameter g\nparameter n nonnegative\nspecies A exchange 1/2\ntubes flux g coverage n\n"
-                    "clusters pairphase\nderive virial up to 2\nplot a[2] over g, n into \"m.png\"\n")
+    path.write_text(MAPPED + "sample b[2] over alpha = [1/4, 1/2] at g = 1/2 seed 5 with 4000 loops\n" + OVER_ALPHA_AND_G
+                    + "plot a[2] over n from 0 to 1/2, g from 0 to 1 at alpha = 1/2 into \"n.png\"\n")
+    done = run_cli("run", str(path), "--files-into", str(tmp_path))
+    assert done.returncode == 0, done.stderr
+    for name in ("m", "n"):
+        assert (tmp_path / f"{name}.pdf").read_bytes()[:4] == b"%PDF"
+        height, width = matplotlib.image.imread(str(tmp_path / f"{name}.png")).shape[:2]
+        assert width > 2 * height * 0.9        # the value panel and the error panel side by side
+        caption = (tmp_path / f"{name}.caption.tex").read_text()
+        assert "a[2]: truncated series, O(n**2) left out." in caption
+        assert r"else Brownian-loop Monte Carlo (\texttt{sample}); right: one standard error." in caption
+
+
+def test_a_heat_map_with_a_grid_point_unknown_is_refused_with_the_statement_to_add(tmp_path):
+    path = tmp_path / "m.gas"
+    path.write_text(MAPPED + "sample b[2] at alpha = 1/4, g = 1/2 seed 5 with 4000 loops\n"
+                    "sample b[2] at alpha = 1/2, g = 1/4 seed 5 with 4000 loops\n" + OVER_ALPHA_AND_G)
     done = run_cli("run", str(path), "--files-into", str(tmp_path))
     assert done.returncode == 2 and "Traceback" not in done.stderr
-    assert f"{path}:8:1: error: not supported yet: a heat map of a coefficient with tube pieces" in done.stderr
-    assert "\n    plot a[2] over g, n into \"m.png\"\n    ^^^" in done.stderr
+    assert (f"{path}:11:1: error: a heat map of a[2] needs its tube pieces at every point of its grid (alpha in "
+            "{0, 1/4, 1/2, 1}; g in {0, 1/4, 1/2, 1}); no value for B_anyon_tube_A at alpha = 1/4, g = 1/4") in done.stderr
+    assert "add `sample b[2] at alpha = 1/4, g = 1/4`" in done.stderr
+    assert "\n    plot a[2] over alpha from 0 to 1, g from 0 to 1" in done.stderr and "    ^^^" in done.stderr
+    assert not (tmp_path / "m.png").exists()
+    # an axis with one known value cannot be a map's axis
+    path.write_text(MAPPED + "sample b[2] at alpha = 1/4, g = 1/2 seed 5 with 4000 loops\n"
+                    "plot a[2] over alpha from 1/8 to 3/8, g from 0 to 1 at n = 1/10 into \"m.png\"\n")
+    done = run_cli("run", str(path), "--files-into", str(tmp_path))
+    assert done.returncode == 2 and "Traceback" not in done.stderr
+    assert (f"{path}:10:1: error: a heat map of a[2] takes alpha where its tube pieces may be known (the `sample` "
+            "points and the integers), and [1/8, 3/8] holds 1: add a `sample b[2] over alpha = [...]`") in done.stderr
 
 
 def test_within_errors_on_a_tube_coefficient_without_pieces_says_so():

@@ -8,6 +8,9 @@ Loop counts are small (each test a few seconds); tolerances are in standard erro
 """
 from __future__ import annotations
 
+import csv
+import importlib.util
+import json
 import math
 
 import pytest
@@ -15,6 +18,9 @@ import sympy
 
 import clusterexp
 from clusterexp import InputError, NotSupportedYet
+from clusterexp.export import FORMATTERS
+
+from conftest import run_cli
 
 SIGMAS = 4.0
 BOSE_AMONG_TUBES = "dimension 2\nparameter n\nparameter g\nspecies A bose\ntubes flux g coverage n\nclusters pairphase\n"
@@ -151,8 +157,10 @@ def test_the_same_seed_gives_the_same_numbers():
      "the flux 2 is an integer", "2:8"),
     # the flux is a parameter: it needs a value
     (BOSE_AMONG_TUBES + "sample a[2] seed 1", InputError, "give g a value with `at g = ...`", "7:8"),
-    # files of tube pieces are not written yet
-    (BOSE_AMONG_TUBES + 'sample a[2] at g = 1/2 table "t.csv"', NotSupportedYet, "`table` files", "7:24"),
+    # a map needs two scanned parameters, among tubes as elsewhere
+    (BOSE_AMONG_TUBES + 'sample a[2] over g = [1/4, 1/2] map "m.png"', InputError, "a map needs two scanned", "7:33"),
+    (BOSE_AMONG_TUBES + 'sample b[1], b[2], a[2], a[3], b[3] over g = [1/4, 1/2], n = [0, 1] map "m.png"', InputError,
+     "a map draws at most 4 coefficients", "7:69"),
 ])
 def test_requests_outside_the_tube_problems_are_refused_at_their_line(text, error, needle, where):
     with pytest.raises(error) as caught:
@@ -173,3 +181,86 @@ def test_cli_refusal_has_caret_and_exit_code_2(cli):
     result = cli("run", "--no-files", "-e", BOSE_AMONG_TUBES + "sample a[1] at g = 1/2")
     assert result.returncode == 2
     assert "contains no tube piece" in result.stderr and "^" in result.stderr and "Traceback" not in result.stderr
+
+
+# ---------------------------------------------------------------------------- `table` and `map` files
+
+FILES = ANYONS_AMONG_TUBES.replace("tubes flux 1/2", "parameter g\ntubes flux g") + "derive virial up to 2\n"
+
+
+def _printed(derivation) -> list[dict]:
+    """{coefficient or term: [value, error]} per point, as the JSON printer gives the statement's numbers."""
+    (statement,) = json.loads(FORMATTERS["json"](derivation))["sampled"]
+    return [{v["coefficient"]: [v["value"], v["error"]] for v in p["values"]} for p in statement["points"]]
+
+
+def test_table_file_rows_are_the_printed_numbers_with_the_truncation_in_the_head(tmp_path):
+    sample = "sample b[2], a[2] over alpha = [0, 1/2], g = [1/2, 1] seed 17 with 4000 loops"
+    path = tmp_path / "t.gas"
+    path.write_text(FILES + sample + ' table "t.csv"\n')
+    done = run_cli("run", str(path), "--files-into", str(tmp_path))
+    assert done.returncode == 0, done.stderr
+    header, *rows = list(csv.reader((tmp_path / "t.csv").read_text().splitlines()))
+    # the O(n^2) the numbers leave out, in the words of `tabulate` and `evaluate`
+    left_out = "(truncated series, O(n**2) left out)"
+    assert header == ["alpha", "g"] + [x for c in ("b[2]", "a[2]") for p in (0, 1)
+                                       for x in (f"{c} [n^{p}] {left_out}", f"{c} [n^{p}] error")]
+    assert [r[:2] for r in rows] == [["0", "0.5"], ["0", "1"], ["0.5", "0.5"], ["0.5", "1"]]
+    # each row holds the numbers the statement prints (JSON printer, same seed and budget)
+    printed = _printed(clusterexp.derive(FILES + sample + "\n"))
+    for row, numbers in zip(rows, printed):
+        columns = [c.split(" (")[0] for c in header[2::2]]
+        assert [float(x) for x in row[2:]] == [x for c in columns for x in numbers[c]]
+    by_point = {tuple(r[:2]): [float(x) for x in r[2:]] for r in rows}
+    # b_2 of bosons is 1/4 (physics.md R1) and of anyons at 1/2 it is -1/8 (Arovas, Schrieffer, Wilczek, Zee
+    # 1985), exact, no error; at an integer flux the tubes have no effect (period 1): the n terms vanish exactly
+    assert by_point[("0", "1")] == [0.25, 0.0, 0.0, 0.0, -0.25, 0.0, 0.0, 0.0]
+    assert by_point[("0.5", "0.5")][:2] == [-0.125, 0.0] and by_point[("0.5", "0.5")][3] > 0
+
+
+def test_a_term_exactly_zero_at_a_point_is_a_zero_in_the_table(tmp_path):
+    # At nu = 0 the species do not braid, so b_11 has no tube-free term there (a fact of the trade, physics.md
+    # section 2): the statement prints no a[1,1] [n^0] at that point, and the table's cell is an exact 0.
+    text = ("dimension 2\nparameter n\nparameter nu in [0, 1]\nspecies A bose\nspecies B bose\nmutual A B = nu\n"
+            "tubes flux 1/2 coverage n\nclusters pairphase\nderive virial up to 2\n"
+            "sample a[1,1] over nu = [0, 1/2] seed 18 with 4000 loops")
+    path = tmp_path / "t.gas"
+    path.write_text(text + ' table "t.csv"\n')
+    done = run_cli("run", str(path), "--files-into", str(tmp_path))
+    assert done.returncode == 0, done.stderr
+    header, zero, half = list(csv.reader((tmp_path / "t.csv").read_text().splitlines()))
+    assert header[1:] == ["a[1,1] [n^0] (truncated series, O(n**2) left out)", "a[1,1] [n^0] error",
+                          "a[1,1] [n^1] (truncated series, O(n**2) left out)", "a[1,1] [n^1] error"]
+    at_zero, at_half = _printed(clusterexp.derive(text + "\n"))
+    assert "a[1,1] [n^0]" not in at_zero and zero[1:3] == ["0.0", "0.0"]
+    # a_11 = -b_11 = s(1 - s) = 1/4 at nu = 1/2 for equal masses (physics.md section 4, derived with R3)
+    assert float(half[1]) == pytest.approx(0.25, rel=1e-12) and at_half["a[1,1] [n^0]"] == [0.25, 0.0]
+    assert [float(x) for x in half[3:]] == at_half["a[1,1] [n^1]"]
+
+
+def test_map_file_draws_each_sampled_term_with_its_error_and_states_the_truncation(tmp_path):
+    pytest.importorskip("matplotlib")
+    import matplotlib.image
+    from clusterexp.loops.figures import drawn_cells, mapped
+    sample = "sample b[2], a[2] over alpha = [0, 1/2], g = [1/2, 1] seed 17 with 4000 loops"
+    path = tmp_path / "m.gas"
+    path.write_text(FILES + sample + ' map "m.png"\n')
+    done = run_cli("run", str(path), "--files-into", str(tmp_path))
+    assert done.returncode == 0, done.stderr
+    assert sorted(p.name for p in tmp_path.glob("m.*")) == ["m.caption.tex", "m.gas", "m.pdf", "m.png"]
+    assert (tmp_path / "m.pdf").read_bytes()[:4] == b"%PDF"
+    height, width = matplotlib.image.imread(str(tmp_path / "m.png")).shape[:2]
+    assert width > height                  # a value panel and an error panel side by side, per row
+    caption = (tmp_path / "m.caption.tex").read_text()
+    assert caption.startswith(r"Sampled $b_{2}\,[n^{1}]$, $a_{2}\,[n^{1}]$ over $\alpha$ and $g$")
+    assert "right their one-standard-error maps" in caption
+    assert "b[2]: truncated series, O(n**2) left out; a[2]: truncated series, O(n**2) left out" in caption
+    assert r"exact at every point, not drawn: b[2] [n\^{}0], a[2] [n\^{}0]" in caption
+    # the drawn cells are the printed numbers: the n^1 terms, with their errors
+    derivation = clusterexp.derive(FILES + sample + "\n")
+    (statement,) = derivation.sampled.statements
+    drawn, exact = mapped(statement)
+    assert [c.label for c in drawn] == ["b[2] [n^1]", "a[2] [n^1]"]
+    printed = _printed(derivation)
+    for column in drawn:
+        assert [list(cell) for cell in drawn_cells(statement, column)] == [p[column.label] for p in printed]

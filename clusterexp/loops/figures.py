@@ -1,8 +1,11 @@
-"""Heat map of a sampled coefficient over two scanned parameters (e.g. alpha_1 and alpha_12).
+"""Heat maps of sampled coefficients over two scanned parameters (e.g. alpha_1 and alpha_12).
 
 Built like `clusterexp.products.plots.plot_map` (a `Figure` without pyplot, the same style, files
 and metadata, byte-stable files; the caption in the metadata, a footer only with `figures footer`), but from Monte Carlo values on the statement's grid instead of an
-expression: each grid point is one cell, and the caption gives the largest error bar.
+expression: each grid point is one cell.  Every listed coefficient is a row of two panels, its values
+and their one-standard-error map (`plots.value_and_error_maps`); among tubes with a free coverage each
+term in the coverage with a sampled part is a row, the terms exact at every point are named in the
+caption instead, and the caption states the O(coverage^k) each series leaves out.
 """
 from __future__ import annotations
 
@@ -14,8 +17,9 @@ import sympy
 
 from ..errors import InputError
 from ..products.figure_style import style
-from ..products.plots import _figure, _format, _matplotlib, axis_latex, coefficient_latex, conventions_caption, finish
-from .quoting import METHOD, PLUS_MINUS_LATEX, plus_minus
+from ..products.plots import _format, axis_latex, coefficient_latex, conventions_caption, finish, symbol_latex, value_and_error_maps
+from .quoting import METHOD, PLUS_MINUS_LATEX, plus_minus, settled
+from .sampled_records import coverage_term, label
 
 
 def sampled_map(statement, system, path: Path, into=None) -> Path:
@@ -24,49 +28,84 @@ def sampled_map(statement, system, path: Path, into=None) -> Path:
         return _draw(statement, system, path, into, options)
 
 
+def mapped(statement) -> tuple[list, list]:
+    """(columns drawn, terms left out): a column of the statement's table is drawn unless it is a term in
+    the tube coverage with no error at any point (no sampled piece: exact, for `tabulate` and `plot`)."""
+    drawn, exact = [], []
+    for column in statement.columns:
+        errors = [error for _, error in drawn_cells(statement, column)]
+        (drawn if any(errors) or coverage_term(column.label) is None else exact).append(column)
+    return drawn, exact
+
+
+def _column_latex(column, system) -> str:
+    """mathtext of a column: the coefficient, and the power of the coverage of a term ([n^1])."""
+    item = SimpleNamespace(kind=column.kind, index=column.index, species=system.species_names, component=None)
+    term = coverage_term(column.label)
+    return coefficient_latex(item, system) + (rf"\,[{symbol_latex(term[0])}^{{{term[1]}}}]" if term else "")
+
+
+def _largest(statement, columns):
+    """(value, error) with the largest error bar among the drawn columns."""
+    return max((cell for c in columns for cell in drawn_cells(statement, c)), key=lambda cell: cell[1])
+
+
+def drawn_cells(statement, column) -> list[tuple[float, float]]:
+    """(value, error) of a column at every point as the printers and the table show them (`settled`)."""
+    return [settled(*statement.cell(k, column.label)) for k in range(len(statement.points))]
+
+
+def _notes(statement, drawn, exact) -> list[str]:
+    """What the caption adds among tubes: each series' truncation, the exact terms not drawn."""
+    notes = list(dict.fromkeys(f"{label(c.kind, c.index)}: {statement.note(c)}" for c in drawn if statement.note(c)))
+    if exact:
+        notes.append("exact at every point, not drawn: " + ", ".join(c.label for c in exact))
+    return notes
+
+
 def map_caption_latex(statement, system) -> str:
     """The LaTeX caption of a sampled map (written beside it and used by the document)."""
+    from ..export.latex import escape_text
     from ..export.quantities import conventions_latex
     sampling = statement.sampling
     (first, _), (second, _) = sampling.axes
-    v = max((p.values[0] for p in statement.points), key=lambda value: value.error)
-    item = SimpleNamespace(kind=v.kind, index=v.index, species=system.species_names, component=None)
-    fixed = ", ".join(f"${axis_latex(s.name, system)}={sympy.latex(value)}$" for s, value in sampling.fixed)
-    return (f"Sampled ${coefficient_latex(item, system)}$ over ${axis_latex(first.name, system)}$ and "
+    drawn, exact = mapped(statement)
+    value, error = _largest(statement, drawn)
+    fixed = ", ".join(f"${axis_latex(s.name, system)}={sympy.latex(v)}$" for s, v in sampling.fixed)
+    names = ", ".join(f"${_column_latex(c, system)}$" for c in drawn)
+    notes = "; ".join(_notes(statement, drawn, exact))
+    return (f"Sampled {names} over ${axis_latex(first.name, system)}$ and "
             f"${axis_latex(second.name, system)}$, one cell per grid point ({METHOD}, seed "
-            f"{sampling.seed}); largest error bar ${plus_minus(v.value, v.error, PLUS_MINUS_LATEX)}$."
-            + (f" Fixed: {fixed}." if fixed else "") + " " + conventions_latex(system, system.typesetting.wavelength))
+            f"{sampling.seed}); left the values, right their one-standard-error maps; largest error bar "
+            f"${plus_minus(value, error, PLUS_MINUS_LATEX)}$." + (f" Fixed: {fixed}." if fixed else "")
+            + (f" {escape_text(notes)}." if notes else "") + " "
+            + conventions_latex(system, system.typesetting.wavelength))
 
 
 def _draw(statement, system, path: Path, into, options) -> Path:
-    _, Figure, numpy = _matplotlib()
     sampling = statement.sampling
     (first, xs), (second, ys) = sampling.axes
-    x = numpy.array([float(v) for v in xs])
-    y = numpy.array([float(v) for v in ys])
-    values = numpy.array([p.values[0].value for p in statement.points]).reshape(len(x), len(y)).T
-    errors = [p.values[0].error for p in statement.points]
-    worst = max(range(len(errors)), key=errors.__getitem__)
-    v = statement.points[worst].values[0]
-    fixed = ", ".join(f"{s.name} = {value}" for s, value in sampling.fixed)
-    caption = (f"{conventions_caption(system)}; {METHOD}, seed {sampling.seed}; largest error bar "
-               f"{plus_minus(v.value, v.error)}" + (f"; fixed: {fixed}" if fixed else ""))
+    x = [float(v) for v in xs]
+    y = [float(v) for v in ys]
+    drawn, exact = mapped(statement)
+    rows = []
+    for column in drawn:
+        cells = drawn_cells(statement, column)
+        values = [[cells[i * len(y) + j][0] for i in range(len(x))] for j in range(len(y))]
+        errors = [[cells[i * len(y) + j][1] for i in range(len(x))] for j in range(len(y))]
+        rows.append((f"${_column_latex(column, system)}$ (sampled)", values, errors))
+    value, error = _largest(statement, drawn)
+    fixed = ", ".join(f"{s.name} = {v}" for s, v in sampling.fixed)
+    caption = (f"{conventions_caption(system)}; {METHOD}, seed {sampling.seed}; left the values, right their "
+               f"one-standard-error maps; largest error bar {plus_minus(value, error)}"
+               + (f"; fixed: {fixed}" if fixed else "") + "".join(f"; {n}" for n in _notes(statement, drawn, exact)))
     caption = "\n".join(textwrap.wrap(caption, 95))
-    figure = _figure(Figure, caption.count("\n") + 1 if "footer" in options else 0)
-    axes = figure.add_subplot()
-    low, high = float(values.min()), float(values.max())
-    if low < 0 < high:
-        bound = max(-low, high)
-        mesh = axes.pcolormesh(x, y, values, shading="nearest", cmap="RdBu_r", vmin=-bound, vmax=bound)
-    else:
-        mesh = axes.pcolormesh(x, y, values, shading="nearest", cmap="viridis")
-    item = SimpleNamespace(kind=v.kind, index=v.index, species=system.species_names, component=None)
-    figure.colorbar(mesh, ax=axes).set_label(f"${coefficient_latex(item, system)}$ (sampled)")
-    axes.set_xlabel(f"${axis_latex(first.name, system)}$")
-    axes.set_ylabel(f"${axis_latex(second.name, system)}$")
+    labels = (f"${axis_latex(first.name, system)}$", f"${axis_latex(second.name, system)}$")
     _format(path)
+    # no zero line: between a few Monte Carlo cells it would be drawn through the noise
+    figure = value_and_error_maps(rows, x, y, labels, caption.count("\n") + 1 if "footer" in options else 0, False)
     try:
         return finish(figure, path, caption, into, options, map_caption_latex(statement, system),
-                      f"{v.label} sampled over {first.name}, {second.name}")
+                      f"{', '.join(c.label for c in drawn)} sampled over {first.name}, {second.name}")
     except OSError as error:
         raise InputError(f"cannot write {path}: {error.strerror}", sampling.clause_span("map")) from None

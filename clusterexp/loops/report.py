@@ -104,12 +104,18 @@ def json_items(numbers: SampledNumbers) -> list[dict]:
 
 
 def table_rows(statement: SampledStatement) -> list[list[str]]:
-    """Header (parameters, then each coefficient and its error), then one row per point."""
-    header = statement.parameter_names + [x for label in statement.labels for x in (label, f"{label} error")]
+    """Header (parameters, then each coefficient and its error), then one row per point.  Among tubes the
+    columns are the coefficients (coverage given) or their terms in the coverage (`SampledStatement.columns`),
+    each value column's head stating what the series leaves out, as `tabulate` does."""
+    columns = statement.columns
+    header = list(statement.parameter_names)
+    for column in columns:
+        note = statement.note(column)
+        header += [column.label + (f" ({note})" if note else ""), f"{column.label} error"]
     rows = [header]
-    for point in statement.points:
+    for k, point in enumerate(statement.points):
         rows.append([grid_text(sympy.sympify(value), 15) for _, value in point.point]
-                    + [repr(x) for v in point.values for x in settled(v.value, v.error)])
+                    + [repr(x) for c in columns for x in settled(*statement.cell(k, c.label))])
     return rows
 
 

@@ -29,6 +29,7 @@ MAX_TIME_CAP = 7 * 24 * 3600.0
 MAX_AXIS_VALUES = 50
 MAX_POINTS = 400
 MAP_SUFFIXES = (".png", ".pdf", ".svg")
+MAP_ROWS = 4                     # coefficients in one `map` figure, a row of (value, error) panels each
 INSTALL_HINT = "maps need matplotlib: pip install 'clusterexp[plot]'"
 # Loop samples per second assumed when a budget is given as a number of loops (both cores, measured
 # 25-35 thousand on the development machine; the lower figure, so that estimates are not optimistic).
@@ -323,8 +324,9 @@ def _check_map(statement, figure, coefficients, axes):
     span = statement.clause_span("map")
     if not figure.lower().endswith(MAP_SUFFIXES):
         raise InputError(f"a map file name ends in {', '.join(MAP_SUFFIXES)}", span)
-    if len(coefficients) != 1:
-        raise InputError("a map shows one coefficient: list one coefficient in this `sample` statement", span)
+    if len(coefficients) > MAP_ROWS:
+        raise InputError(f"a map draws at most {MAP_ROWS} coefficients (a row of panels each): list fewer in this "
+                         "`sample` statement", span)
     if len(axes) != 2 or any(len(values) < 2 for _, values in axes):
         raise InputError("a map needs two scanned parameters with at least two values each "
                          "(`over alpha = [...], nu = [...]`)", span)

@@ -3,6 +3,7 @@
 use results (`products/sampled_use.py`) read.  Plain frozen dataclasses, no computation."""
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass
 
 import sympy
@@ -59,10 +60,32 @@ class SampledStatement:
     runs: tuple[SampledRun, ...]
     points: tuple[SampledPoint, ...]
     clusters: tuple[SampledCluster, ...] = ()    # what claims, values, tables and figures reuse
+    notes: tuple[tuple[str, str], ...] = ()      # coefficient label -> what its numbers leave out (tube coverage)
 
     @property
     def labels(self) -> list[str]:
         return _labels(self.sampling)
+
+    @property
+    def columns(self) -> list[SampledValue]:
+        """The coefficients' numbers a point may hold, once each, in the order of the statement and (among
+        tubes, with a free coverage) of the powers of the coverage; the tube pieces are not among them.  A
+        term absent at a point is exactly 0 there (`cell`)."""
+        order = {name: k for k, name in enumerate(self.labels)}
+        found = {}
+        for point in self.points:
+            for v in point.values:
+                if v.kind != "piece":
+                    found.setdefault(v.label, v)
+        return sorted(found.values(), key=lambda v: (order.get(label(v.kind, v.index), len(order)),
+                                                     (coverage_term(v.label) or ("", -1))[1]))
+
+    def cell(self, k: int, column: str) -> tuple[float, float]:
+        """(value, error) of one column at point k; (0.0, 0.0) where the term is exactly 0 there."""
+        return next(((v.value, v.error) for v in self.points[k].values if v.label == column), (0.0, 0.0))
+
+    def note(self, column: SampledValue) -> str | None:
+        return dict(self.notes).get(label(column.kind, column.index))
 
     @property
     def parameter_names(self) -> list[str]:
@@ -81,6 +104,12 @@ class SampledNumbers:
 
 def label(kind: str, index) -> str:
     return f"{'b' if kind == 'cluster' else 'a'}{bracket_label(index)}"
+
+
+def coverage_term(column: str) -> tuple[str, int] | None:
+    """(coverage, power) of a term's label ("a[2] [n^1]" -> ("n", 1)); None for a whole coefficient."""
+    match = re.search(r" \[(\w+)\^(\d+)\]$", column)
+    return (match.group(1), int(match.group(2))) if match else None
 
 
 def _labels(sampling: Sampling) -> list[str]:

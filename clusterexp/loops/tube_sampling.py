@@ -22,6 +22,10 @@ Seeds: piece P of a statement with seed S runs with the estimator seed SeedSeque
 with indices i < j SeedSequence([S, 3, i, j]), so every piece has its own random numbers and the
 statement alone repeats them.
 
+`table "f.csv"` and `map "f.png"` write these numbers as the other `sample` statements do (loops/report.py,
+loops/figures.py): a column, or a row of panels, per coefficient or per term in a free coverage, the
+truncation in the head and the caption.
+
 Build-time validation (`tube_request`) is called by `request._sampling`; the run (`tube_statement`) by
 `sampled._statement`.  This module imports neither of them (no import cycle).
 """
@@ -55,10 +59,6 @@ def tube_request(builder, statement, names: list[str]):
     """The coefficients of a `sample` statement among tubes, checked at their lines: (coefficients,
     needed parameters {name: (message, span) or None when optional}, least loops, estimator runs)."""
     from ..exact.periods import species_statistics
-    for clause in ("table", "map"):
-        if clause in statement.clauses:
-            raise NotSupportedYet(f"`{clause}` files of sampled tube pieces: the numbers are printed (text, LaTeX, "
-                                  "JSON); files of them are not written yet", statement.clause_span(clause))
     params = builder.by_symbol()
     species = list(builder.species.values())
     flux = sympy.sympify(builder.tubes.flux)
@@ -180,10 +180,14 @@ def sampled_pieces(system) -> dict[sympy.Symbol, sympy.Symbol]:
 def tube_statement(system, sampling, exact, points: list[dict]) -> SampledStatement:
     """Run one `sample` statement among tubes: every piece its coefficients contain over every point,
     composed into the coefficients (`exact(kind, index)` gives the derived coefficient)."""
+    from ..products.tube_use import coverage_truncation
     coverage = system.tubes.coverage
-    exprs, orders = {}, {}
+    exprs, orders, notes = {}, {}, {}
     for kind, index, span in sampling.coefficients:
         value = sympy.sympify(exact(kind, index))
+        cut = coverage_truncation(system, value)
+        if cut is not None and cut[1] is not None:   # the table's and map's words for the O(coverage^k) left out
+            notes[label(kind, index)] = cut[1]
         order = value.getO()
         value = value.removeO() if order is not None else value
         held = sorted((s for s in value.free_symbols if tube_piece(s) is not None), key=lambda s: s.name)
@@ -214,7 +218,7 @@ def tube_statement(system, sampling, exact, points: list[dict]) -> SampledStatem
         out_points.append(SampledPoint(shown, tuple(row)))
     clusters = tuple(SampledCluster((), tuple(point.items()), *estimates[p][k], piece=p)
                      for p in pieces for k, point in enumerate(points))
-    return SampledStatement(sampling, tuple(runs), tuple(out_points), clusters)
+    return SampledStatement(sampling, tuple(runs), tuple(out_points), clusters, tuple(notes.items()))
 
 
 def _remainder(coverage, order, point) -> str:

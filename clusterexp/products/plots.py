@@ -412,22 +412,52 @@ def plot_map(coefficient, first, second, path="coefficient_map.png", *, other_va
     caption_text = _caption_text(caption, system, other, {name1: span1, name2: span2})
     figure = _figure(Figure, caption_text.count("\n") + 1 if "footer" in options else 0)
     axes = figure.add_subplot()
-    masked = numpy.ma.masked_invalid(z)
-    low, high = float(masked.min()), float(masked.max())
-    noise = 1e-9 * max(abs(low), abs(high), 1e-300)  # rounding at exact zeros (e.g. integer mutual parameter)
-    if low < -noise and high > noise:
-        bound = max(-low, high)
-        mesh = axes.pcolormesh(grid_x, grid_y, masked, shading="auto", cmap="RdBu_r", vmin=-bound, vmax=bound)
-        axes.contour(grid_x, grid_y, masked, levels=[0.0], colors="k", linewidths=0.8)
-    else:
-        mesh = axes.pcolormesh(grid_x, grid_y, masked, shading="auto", cmap="viridis")
-    bar = figure.colorbar(mesh, ax=axes)
-    bar.set_label(f"${coefficient_latex(items[0], system)}$")
+    heat_map(figure, axes, grid_x, grid_y, z, f"${coefficient_latex(items[0], system)}$")
     axes.set_xlabel(f"${axis_latex(name1, system)}$")
     axes.set_ylabel(f"${axis_latex(name2, system)}$")
     if title:
         axes.set_title(title)
     return finish(figure, path, caption_text, into, options, caption_tex, _title(items, [name1, name2]))
+
+
+def heat_map(figure, axes, x, y, z, label: str, shading: str = "auto", error: bool = False, zero_line: bool = True):
+    """One heat map of `z` (a row per y) on `axes` with its colour bar named `label`: a value, in colours
+    centred on 0 where it changes sign (with the line where it vanishes, `zero_line`), or (`error`) a
+    standard error, from 0 up."""
+    numpy = _matplotlib()[2]
+    masked = numpy.ma.masked_invalid(z)
+    if error:
+        mesh = axes.pcolormesh(x, y, masked, shading=shading, cmap="Greys", vmin=0.0)
+    else:
+        low, high = float(masked.min()), float(masked.max())
+        noise = 1e-9 * max(abs(low), abs(high), 1e-300)  # rounding at exact zeros (e.g. integer mutual parameter)
+        if low < -noise and high > noise:
+            bound = max(-low, high)
+            mesh = axes.pcolormesh(x, y, masked, shading=shading, cmap="RdBu_r", vmin=-bound, vmax=bound)
+            if zero_line:
+                axes.contour(x, y, masked, levels=[0.0], colors="k", linewidths=0.8)
+        else:
+            mesh = axes.pcolormesh(x, y, masked, shading=shading, cmap="viridis")
+    figure.colorbar(mesh, ax=axes).set_label(label)
+    return mesh
+
+
+def value_and_error_maps(rows, x, y, labels: tuple[str, str], caption_lines: int = 0, zero_line: bool = True):
+    """A figure of one row of panels per quantity in `rows` ((colour-bar label, values, errors or None),
+    arrays with a row per y), one cell per point: the values' heat map and, where there are errors, the
+    one-standard-error map beside it (numbers with Monte Carlo parts: `sample ... map`, `plot` over two
+    parameters); `zero_line` as in `heat_map`."""
+    _, Figure, _ = _matplotlib()
+    columns = 2 if any(errors is not None for _, _, errors in rows) else 1
+    figure = Figure(figsize=(6.4 * columns, 4.8 * len(rows) + 0.18 * caption_lines))
+    for r, (label, values, errors) in enumerate(rows):
+        panels = [(values, label, False)] + ([] if errors is None else [(errors, f"error of {label}", True)])
+        for c, (z, name, error) in enumerate(panels):
+            axes = figure.add_subplot(len(rows), columns, r * columns + c + 1)
+            heat_map(figure, axes, x, y, z, name, "nearest", error, zero_line)
+            axes.set_xlabel(labels[0])
+            axes.set_ylabel(labels[1])
+    return figure
 
 
 def _axis(spec) -> tuple[str, object]:

@@ -265,9 +265,10 @@ def plot_sampled_line(derivation, figure, items, path, into, options=(), caption
     points with error bars at every `sample` point on the axis (the other parameters at the figure's
     values).  Among tubes (`tube_use`) a coefficient whose pieces do not change along the axis (the
     coverage, a mass) is a curve, with a one-standard-error band where a piece is sampled; otherwise
-    it is drawn as points where each piece is exact or sampled.  A heat map of a sampled coefficient
-    is the `map` clause of `sample`. Drawn in the figure style of `options` and written by
-    `plots.finish` (PDF, PNG, caption beside; `caption` replaces the conventions line)."""
+    it is drawn as points where each piece is exact or sampled; over two parameters it is a heat map
+    (`tube_use.tube_map`).  A heat map of another sampled coefficient is the `map` clause of `sample`.
+    Drawn in the figure style of `options` and written by `plots.finish` (PDF, PNG, caption beside;
+    `caption` replaces the conventions line)."""
     from . import plots
     from .figure_style import style
     plots._matplotlib()
@@ -277,10 +278,9 @@ def plot_sampled_line(derivation, figure, items, path, into, options=(), caption
 
 def _plot_sampled_line(derivation, figure, items, path, into, options, caption_tex, conventions) -> None:
     from . import plots
-    if len(figure.axes) != 1 and derivation.system.tubes is not None:
-        from ..errors import NotSupportedYet
-        raise NotSupportedYet("a heat map of a coefficient with tube pieces (`plot` over two parameters, or the `map` "
-                              "clause of `sample`); `plot` draws it over one parameter", figure.span)
+    if len(figure.axes) != 1 and derivation.system.tubes is not None:   # a heat map, point by point (tube_use)
+        from .tube_use import tube_map
+        return tube_map(derivation, figure, items[0], path, into, options, caption_tex, conventions)
     if len(figure.axes) != 1:
         raise InputError("a heat map of a coefficient with Monte Carlo parts is drawn by the `map` clause of its "
                          "`sample` statement; `plot` draws it over one parameter", figure.span)

@@ -151,13 +151,8 @@ def tube_points(derivation, item, axis, interval, fixed: dict, span) -> list:
     """The values of `axis` in `interval` at which every tube piece of `item` is exact or sampled: the
     points of the `sample` statements and the integers (where the pieces are exact); refused when
     there is none, with the piece and the `sample` statement to add at the interval's middle."""
-    from .sampled_use import sample_points
-    candidates = {p[axis] for p in sample_points(derivation, item.value) if axis in p}
-    low, high = int(sympy.ceiling(interval.lower)), int(sympy.floor(interval.upper))
-    if high - low < 1000:
-        candidates |= {sympy.Integer(k) for k in range(low, high + 1)}
-    along = sorted((v for v in candidates if interval.contains(v)
-                    and known_at(derivation, item.value, {**fixed, axis: v})), key=float)
+    along = [v for v in _candidates(derivation, item.value, axis, interval)
+             if known_at(derivation, item.value, {**fixed, axis: v})]
     if not along:
         middle = (interval.lower + interval.upper) / 2
         try:
@@ -166,6 +161,108 @@ def tube_points(derivation, item, axis, interval, fixed: dict, span) -> list:
             raise InputError(f"{item.label} has no point on {axis.name} in {interval} where its tube pieces are known "
                              f"(a figure over {axis.name} draws it where they are); {error.message}", span) from None
     return along
+
+
+def _candidates(derivation, expr, axis, interval) -> list:
+    """The values of `axis` in `interval` where a tube piece of `expr` may be known: those of the input's
+    `sample` points and the integers (every piece is exact at an integer flux, the anyon piece at the
+    bose/fermi points, the braid piece at an integer mutual parameter), in increasing order."""
+    from .sampled_use import sample_points
+    candidates = {p[axis] for p in sample_points(derivation, expr) if axis in p}
+    low, high = int(sympy.ceiling(interval.lower)), int(sympy.floor(interval.upper))
+    if high - low < 1000:
+        candidates |= {sympy.Integer(k) for k in range(low, high + 1)}
+    return sorted((v for v in candidates if interval.contains(v)), key=float)
+
+
+def tube_grid(derivation, item, figure, resolution: int = 121):
+    """(x, y, values, errors or None) of `item` on the grid of a `plot` over two parameters, the arrays
+    with a row per y.  An axis that a tube piece depends on (at the figure's fixed values) takes the
+    values where the pieces may be known (`_candidates`: the `sample` points on it and the integers), an
+    axis none depends on (the coverage, a mass) `resolution` points of its interval; every grid point
+    needs each piece exact or sampled (`resolved`), else the statement is refused at the first point
+    without one, with the `sample` statement to add.  Errors are those of the sampled pieces (None
+    when no point needed one)."""
+    import itertools
+
+    from . import plots
+    system = derivation.system
+    numpy = plots._matplotlib()[2]
+    fixed = dict(figure.fixed)
+    expr, _ = filled(system, sympy.sympify(item.value).xreplace(fixed), fixed)
+    moving = set()
+    for piece in tube_pieces_in(expr):
+        for _, definition in tube_piece(piece).definitions(system):
+            moving |= sympy.sympify(definition).xreplace(fixed).free_symbols
+    axes, values = [], []
+    for symbol, interval in figure.axes:
+        span = plots._interval(symbol.name, interval, system, system.parameters)
+        along = _candidates(derivation, item.value, symbol, span) if symbol in moving else \
+            list(plots._samples(span, resolution, numpy))
+        if len(along) < 2:
+            raise InputError(f"a heat map of {item.label} takes {symbol.name} where its tube pieces may be known (the "
+                             f"`sample` points and the integers), and {span} holds {len(along)}: add a `sample "
+                             f"{_sampled_in(system, tube_pieces_in(expr)[0])} over {symbol.name} = [...]`", figure.span)
+        axes.append(symbol)
+        values.append(along)
+    grid = numpy.meshgrid(*(numpy.array([float(v) for v in along]) for along in values))
+    z, errors, sampled = numpy.full(grid[0].shape, numpy.nan), numpy.zeros(grid[0].shape), False
+    sparse = [k for k in (0, 1) if axes[k] in moving]
+    dense = [k for k in (0, 1) if k not in sparse]
+    names = [axes[k].name for k in dense]
+    for combination in itertools.product(*(values[k] for k in sparse)):
+        point = {**fixed, **{axes[k]: v for k, v in zip(sparse, combination)}}
+        try:
+            exact, estimates = resolved(derivation, expr, point, figure.span)
+        except InputError as error:
+            raise InputError(f"a heat map of {item.label} needs its tube pieces at every point of its grid ("
+                             + "; ".join(f"{s.name} in {{{', '.join(sympy.sstr(v) for v in along)}}}"
+                                         for s, along, k in zip(axes, values, (0, 1)) if k in sparse)
+                             + f"); {error.message}", figure.span) from None
+        sampled = sampled or bool(estimates)
+        numbers = {p: sympy.Float(v, 17) for p, (v, _) in estimates.items()}
+        at = exact.xreplace(point)
+        value = at.xreplace(numbers)
+        variance = sum((sympy.diff(at, p).xreplace(numbers) * e) ** 2 for p, (_, e) in estimates.items())
+        rest = sorted(s.name for s in value.free_symbols if s not in {axes[k] for k in dense})
+        if rest:
+            raise InputError(f"{item.label} depends on {', '.join(rest)}: fix {'it' if len(rest) == 1 else 'them'} "
+                             f"with `at {rest[0]} = ...`", figure.span)
+        where = [slice(None), slice(None)]
+        for k, v in zip(sparse, combination):
+            where[1 - k] = values[k].index(v)    # rows run along the second axis
+        where = tuple(where)
+        if dense:
+            cells = [grid[k][where] for k in dense]
+            z[where] = plots._evaluator(value, names, numpy)(*cells)
+            errors[where] = numpy.sqrt(plots._evaluator(sympy.sympify(variance), names, numpy)(*cells))
+        else:
+            z[where], errors[where] = float(sympy.N(value, 17)), float(sympy.sqrt(variance))
+    x, y = (numpy.array([float(v) for v in along]) for along in values)
+    return x, y, z, errors if sampled else None
+
+
+def tube_map(derivation, figure, item, path, into, options, caption_tex, conventions) -> None:
+    """`plot` of a coefficient with tube pieces over two parameters: its heat map on `tube_grid` and,
+    when a point used a sampled piece, the one-standard-error map beside it (`plots.value_and_error_maps`,
+    as a `sample ... map`); the caption says where the numbers come from (`conventions` replaces the
+    conventions line, with the truncation in the coverage)."""
+    from . import plots
+    system = derivation.system
+    x, y, z, errors = tube_grid(derivation, item, figure)
+    label = f"${plots.coefficient_latex(item, system)}$"
+    how = ("Each cell: tube pieces exact where known, else Brownian-loop Monte Carlo ({}); right: one standard "
+           "error." if errors is not None else "Tube pieces exact at every grid point.")
+    caption = plots._caption_text(conventions, system, {s.name: v for s, v in figure.fixed}, {}) \
+        + "\n" + how.format("`sample`")
+    labels = tuple(f"${plots.axis_latex(s.name, system)}$" for s, _ in figure.axes)
+    plots._format(path)
+    drawing = plots.value_and_error_maps([(label, z, errors)], x, y, labels,
+                                         caption.count("\n") + 1 if "footer" in options else 0)
+    if caption_tex is not None:
+        caption_tex += " " + how.format(r"\texttt{sample}")
+    plots.finish(drawing, path, caption, into, options, caption_tex=caption_tex,
+                 title=f"{item.label} against {', '.join(s.name for s, _ in figure.axes)}")
 
 
 def tube_claim(derivation, claim, claimed, derived, label, limits):
