@@ -56,13 +56,14 @@ def test_four_cycle_alone_is_its_ring_part():
     assert err[1] < 0.03
 
 
-@pytest.mark.parametrize("p, q, batches", [(2, 2, 16), (3, 1, 12), (4, 1, 12)])
+@pytest.mark.parametrize("p, q, batches", [(2, 2, 16), (3, 1, 12), (4, 1, 12), (3, 2, 12), (5, 1, 12), (4, 2, 12),
+                                           (3, 3, 12)])
 def test_link_squared_of_two_species_against_the_quadrature_table(p, q, batches):
     """Two species at their boson points with a mutual parameter d: only the pairs between the cycles
     carry a phase, and the cluster's d^2 coefficient (one species' units) is the table's link squared
-    (clusterexp/routes/two_loop_table.py LINK: 0.2975 for {2, 2}, 0.6033 for {3, 1}, 0.5080 for {4, 1}),
-    which the package uses for d^2 in b_{2,2}, b_{3,1}, b_{4,1} of two species of equal masses
-    (docs/perturbative.md section 4h); first order -1/8, -1/3, -1/4 (section 3)."""
+    (clusterexp/routes/two_loop_table.py LINK, n = 4 .. 6), which the package uses for d^2 in b_{p,q} of two
+    species of equal masses (docs/perturbative.md section 4h); first order -1/(p q), -1/(2 p^2) for p = q
+    (section 3)."""
     from clusterexp.routes.two_loop_table import LINK
     c, err = _coefficients(p, q, batches, 47, link_only=True)
     first = -1 / (2 * p * p) if p == q else -1 / (p * q)
@@ -81,3 +82,13 @@ def test_four_cycle_with_a_loop_against_the_quadrature_table():
     assert err[1] < 0.04
     assert abs(c[0] + 0.25) < SIGMAS * err[0]
     assert abs(c[1] - (11 / 6 + BEYOND[(4, 1)][0])) < SIGMAS * err[1], (c[1], err[1])
+
+
+def test_three_cycle_with_a_two_cycle_against_the_quadrature_table():
+    """{3-cycle, 2-cycle} of b_5, one species: first order -1/6 (section 3), second order the H F ring
+    part 13/12 (the engine's rational contact part) plus the table's part beyond the chains (section 4h)."""
+    from clusterexp.routes.two_loop_table import BEYOND
+    c, err = _coefficients(3, 2, 24, 59)
+    assert err[1] < 0.03
+    assert abs(c[0] + 1 / 6) < SIGMAS * err[0]
+    assert abs(c[1] - (13 / 12 + BEYOND[(3, 2)][0])) < SIGMAS * err[1], (c[1], err[1])

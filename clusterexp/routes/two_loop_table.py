@@ -29,14 +29,22 @@ SINGLE_CYCLES_CHECKED = 6
 # parts carried by the self pairs of the p-cycle and of the q-cycle (value, error bound) each; a 1-cycle
 # has no self pairs (exactly 0). From benchmarks/two_loop_table-last-run.txt.
 LINK: dict[tuple[int, int], tuple[float, float]] = {
-    (2, 2): (0.2975218, 2e-06),
     (3, 1): (0.6033049, 4e-06),
+    (2, 2): (0.2975218, 2e-06),
     (4, 1): (0.5080151, 2e-06),
+    (3, 2): (0.4946569, 2e-06),
+    (5, 1): (0.4497495, 2e-06),
+    (4, 2): (0.4256340, 2e-06),
+    (3, 3): (0.2100900, 2e-06),
 }
 ANGLE: dict[tuple[int, int], tuple[tuple[float, float], tuple[float, float]]] = {
-    (2, 2): ((-0.0625000, 2e-06), (-0.0625000, 2e-06)),
     (3, 1): ((-0.3333332, 2e-06), (0.0, 0.0)),
+    (2, 2): ((-0.0625000, 2e-06), (-0.0625000, 2e-06)),
     (4, 1): ((-0.3750000, 2e-06), (0.0, 0.0)),
+    (3, 2): ((-0.1666664, 2e-06), (-0.0833333, 2e-06)),
+    (5, 1): ((-0.3999994, 2e-06), (0.0, 0.0)),
+    (4, 2): ((-0.1875000, 2e-06), (-0.0625000, 2e-06)),
+    (3, 3): ((-0.0555555, 2e-06), (-0.0555555, 2e-06)),
 }
 # the part beyond the chains for one species: the link squared and both angle-area parts, bounds added
 BEYOND: dict[tuple[int, int], tuple[float, float]] = {
