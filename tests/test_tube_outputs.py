@@ -1,5 +1,5 @@
 """`tabulate`, `plot`, `evaluate` and `claim ... within k errors` of coefficients among static flux tubes
-(products/tube_use.py, products/sampled_use.py; docs/tubes.md "In the input language").
+(products/sampled_use.py; docs/tubes.md "In the input language").
 
 At each point a tube piece is exact where known (integer flux, bose/fermi points), the `sample` estimate
 where a statement estimated it, else the statement is refused.  Every expected number is composed here
@@ -265,7 +265,7 @@ def _b2(alpha):
 def test_a_heat_map_takes_the_exact_and_the_sampled_points_with_their_errors():
     from types import SimpleNamespace
 
-    from clusterexp.products.tube_use import tube_grid
+    from clusterexp.products.sampled_use import tube_grid
     d = clusterexp.derive(MAPPED + "sample b[2] over alpha = [1/4, 1/2] at g = 1/2 seed 5 with 4000 loops\n"
                           + OVER_ALPHA_AND_G + "plot a[2] over alpha from 0 to 1, g from 3/4 to 2 at n = 1/10 into "
                           "\"exact.png\"\n")

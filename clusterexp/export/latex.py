@@ -11,7 +11,7 @@ import sympy
 from ..routes import regime_of
 from .quantities import quantities
 from .equations import labelled_equations
-from .latex_lines import aligned_rows, top_level_terms
+from .latex_lines import aligned_rows, escape_text, top_level_terms  # noqa: F401  (escape_text: used here and by the document)
 from ..naming import generated_latex_names, is_single_atom, latex_subscript, species_latex
 from ..exact.series import indices_up_to
 from .series_lines import series_latex_rows
@@ -163,9 +163,3 @@ def number_latex(text: str) -> str:
         return ("-" if text.startswith("-") else "") + rf"\tfrac{{{p}}}{{{q}}}"
     return text.replace("j", "i").replace("e", r"\times10^{") + ("}" if "e" in text else "")
 
-
-def escape_text(text: str) -> str:
-    for char, replacement in (("\\", r"\textbackslash{}"), ("_", r"\_"), ("%", r"\%"), ("&", r"\&"), ("#", r"\#"),
-                              ("$", r"\$"), ("{", r"\{"), ("}", r"\}"), ("^", r"\^{}"), ("~", r"\~{}")):
-        text = text.replace(char, replacement) if char != "\\" else text.replace(char, "\0")
-    return text.replace("\0", r"\textbackslash{}")

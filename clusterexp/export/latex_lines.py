@@ -42,3 +42,10 @@ def aligned_rows(lhs: str, latex: str | list[str], per_line: int = 4) -> str:
     for chunk in chunks[1:]:
         lines.append(r"  &\quad " + " ".join(chunk))
     return " \\nonumber \\\\\n".join(lines)
+
+
+def escape_text(text: str) -> str:
+    for char, replacement in (("\\", r"\textbackslash{}"), ("_", r"\_"), ("%", r"\%"), ("&", r"\&"), ("#", r"\#"),
+                              ("$", r"\$"), ("{", r"\{"), ("}", r"\}"), ("^", r"\^{}"), ("~", r"\~{}")):
+        text = text.replace(char, replacement) if char != "\\" else text.replace(char, "\0")
+    return text.replace("\0", r"\textbackslash{}")

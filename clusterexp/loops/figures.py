@@ -65,7 +65,7 @@ def _notes(statement, drawn, exact) -> list[str]:
 
 def map_caption_latex(statement, system) -> str:
     """The LaTeX caption of a sampled map (written beside it and used by the document)."""
-    from ..export.latex import escape_text
+    from ..export.latex_lines import escape_text
     from ..export.quantities import conventions_latex
     sampling = statement.sampling
     (first, _), (second, _) = sampling.axes

@@ -180,7 +180,7 @@ def sampled_pieces(system) -> dict[sympy.Symbol, sympy.Symbol]:
 def tube_statement(system, sampling, exact, points: list[dict]) -> SampledStatement:
     """Run one `sample` statement among tubes: every piece its coefficients contain over every point,
     composed into the coefficients (`exact(kind, index)` gives the derived coefficient)."""
-    from ..products.tube_use import coverage_truncation
+    from ..routes.tube_pieces import coverage_truncation
     coverage = system.tubes.coverage
     exprs, orders, notes = {}, {}, {}
     for kind, index, span in sampling.coefficients:

@@ -19,7 +19,8 @@ from ..errors import InputError
 from .numbers import csv_bytes, evaluate, format_number, grid_table
 from .sampled_use import (check_sampled_claim, plot_sampled_line, sampled_number_text, sampled_table,
                           uses_sampled)
-from .tube_use import coverage_truncation, tube_pieces_in
+from ..routes.tube_pieces import coverage_truncation
+from .sampled_use import tube_pieces_in
 
 
 def _coefficient(derivation, name):
@@ -212,7 +213,7 @@ class _Named:
 
 def _plain(derivation, name, span):
     """The coefficient for a table or figure: a closed form, or a series truncated in the tube coverage
-    (its O term stated beside it, `tube_use.coverage_truncation`); any other truncated series is
+    (its O term stated beside it, `routes.tube_pieces.coverage_truncation`); any other truncated series is
     refused (a table or figure of it would hide the O(...))."""
     coefficient = _coefficient(derivation, name)
     cut = coverage_truncation(derivation.system, coefficient.value)

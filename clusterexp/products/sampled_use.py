@@ -6,12 +6,16 @@ b at the same statistics parameters (exact equality of alpha, and alpha_12 for b
 substituted exactly, the b by its estimate, and the error is propagated to first order
 (`loops.sampled.propagate`).  Nothing is sampled here: a point no `sample` statement covers is refused
 with the statement to add.  Among flux tubes the sampled b's are the tube pieces, and each is first put
-in exactly where `TubePiece.exactly` knows it (`tube_use.resolved`): a point where every piece is exact
+in exactly where `TubePiece.exactly` knows it (`resolved`): a point where every piece is exact
 needs no `sample`, and a mixed point carries the error of its sampled pieces only.
 
 A claim on such a coefficient is compared at every point of the `sample` statements: it is "consistent
 within k standard errors" (k = 3 unless the claim says `within k errors`) when |claimed - value| < k
 error at every point, never "proven"; otherwise it is a mismatch shown with the numbers.
+
+Flux tubes (the second half; the two halves call each other): every coefficient among tubes is a series
+in the coverage, and a table or figure states the O(coverage^k) left out; a piece is exact where it can
+be, else a `sample` estimate at the same statistics, else refused with the `sample` statement to add.
 """
 from __future__ import annotations
 
@@ -21,7 +25,9 @@ import sympy
 
 from ..errors import InputError
 from ..naming import bracket_label, cluster_symbol
+from ..routes.tube_pieces import tube_piece
 from .check_result import MISMATCH, SAMPLED, CheckResult
+from .exact_pieces import filled
 
 DEFAULT_ERRORS = 3
 
@@ -84,12 +90,11 @@ def _point_text(point: dict) -> str:
 
 def sampled_value(derivation, expr, point: dict, span) -> tuple[float, float]:
     """(value, error) of `expr` at `point` ({symbol: exact value}) with the sampled b's estimates; among
-    tubes the pieces exactly known at the point are put in first (`tube_use.resolved`), so only the
+    tubes the pieces exactly known at the point are put in first (`resolved`), so only the
     sampled ones carry an error."""
     system = derivation.system
     expr = sympy.sympify(expr)
     if system.tubes is not None:   # the pieces exact at the point first, then the sampled ones
-        from .tube_use import resolved
         expr, estimates = resolved(derivation, expr, point, span)
         return _propagated(expr, point, estimates, span)
     table = _estimates(derivation)
@@ -134,7 +139,6 @@ def sample_points(derivation, expr) -> list[dict]:
             if marker in seen:
                 continue
             if tubes:   # each piece exact there or sampled there
-                from .tube_use import known_at
                 if known_at(derivation, expr, point):
                     seen.add(marker)
                     out.append(point)
@@ -150,8 +154,7 @@ def check_sampled_claim(derivation, claim, claimed, derived, label, limits) -> C
     """The claim against the Monte Carlo numbers, or None when its coefficient holds no sampled b."""
     errors = getattr(claim, "errors", None)
     if errors is not None and derivation.system.tubes is not None:
-        from .tube_use import tube_claim, tube_pieces_in
-        if tube_pieces_in(derived):   # a series in the coverage, compared term by term (tube_use)
+        if tube_pieces_in(derived):   # a series in the coverage, compared term by term (below)
             return tube_claim(derivation, claim, claimed, derived, label, limits)
         raise InputError(f"`within {errors:g} errors` is for claims on coefficients with sampled parts; "
                          f"{claim.target.label} holds no tube piece here", claim.span)
@@ -223,7 +226,7 @@ def sampled_table(derivation, table, items) -> list[list[str]]:
     """`tabulate` with sampled parts: a value column for each coefficient and an error column after
     each one that used a sampled number (full precision: the CSV is for further work; 0.0 where the
     point needed none), every grid point covered by a `sample` statement or exactly known (tube
-    pieces, `tube_use`). A coefficient known only to some order in the tube coverage says so in its
+    pieces, below). A coefficient known only to some order in the tube coverage says so in its
     header (`truncation` of the item)."""
     import itertools
 
@@ -249,9 +252,7 @@ def sampled_table(derivation, table, items) -> list[list[str]]:
 
 def _table_cell(derivation, expr, point: dict, table) -> tuple[str, float | None]:
     """(text of the value, its error or None when exact) of one coefficient at one grid point."""
-    from .exact_pieces import filled
     from .numbers import evaluate, format_number
-    from .tube_use import tube_pieces_in
     expr, _ = filled(derivation.system, expr, point)
     if uses_sampled(derivation, expr) or tube_pieces_in(expr):
         value, error = sampled_value(derivation, expr, point, table.span)
@@ -263,10 +264,10 @@ def _table_cell(derivation, expr, point: dict, table) -> tuple[str, float | None
 def plot_sampled_line(derivation, figure, items, path, into, options=(), caption_tex=None, caption=None) -> None:
     """`plot` over one axis with sampled parts: the exact coefficients as curves, the sampled ones as
     points with error bars at every `sample` point on the axis (the other parameters at the figure's
-    values).  Among tubes (`tube_use`) a coefficient whose pieces do not change along the axis (the
+    values).  Among tubes (below) a coefficient whose pieces do not change along the axis (the
     coverage, a mass) is a curve, with a one-standard-error band where a piece is sampled; otherwise
     it is drawn as points where each piece is exact or sampled; over two parameters it is a heat map
-    (`tube_use.tube_map`).  A heat map of another sampled coefficient is the `map` clause of `sample`.
+    (`tube_map`).  A heat map of another sampled coefficient is the `map` clause of `sample`.
     Drawn in the figure style of `options` and written by `plots.finish` (PDF, PNG, caption beside;
     `caption` replaces the conventions line)."""
     from . import plots
@@ -278,8 +279,7 @@ def plot_sampled_line(derivation, figure, items, path, into, options=(), caption
 
 def _plot_sampled_line(derivation, figure, items, path, into, options, caption_tex, conventions) -> None:
     from . import plots
-    if len(figure.axes) != 1 and derivation.system.tubes is not None:   # a heat map, point by point (tube_use)
-        from .tube_use import tube_map
+    if len(figure.axes) != 1 and derivation.system.tubes is not None:   # a heat map, point by point (below)
         return tube_map(derivation, figure, items[0], path, into, options, caption_tex, conventions)
     if len(figure.axes) != 1:
         raise InputError("a heat map of a coefficient with Monte Carlo parts is drawn by the `map` clause of its "
@@ -289,7 +289,6 @@ def _plot_sampled_line(derivation, figure, items, path, into, options, caption_t
     fixed = dict(figure.fixed)
     span = plots._interval(symbol.name, interval, system, system.parameters)
     _, Figure, numpy = plots._matplotlib()
-    from .tube_use import tube_pieces_in
     exact = [i for i in items if not uses_sampled(derivation, i.value) and not tube_pieces_in(i.value)]
     prepared, other = plots._prepare(exact, [symbol.name], {s.name: v for s, v in fixed.items()}, system,
                                      system.parameters) if exact else ([], {s.name: v for s, v in fixed.items()})
@@ -307,7 +306,6 @@ def _plot_sampled_line(derivation, figure, items, path, into, options, caption_t
         if item in exact:
             continue
         if system.tubes is not None:
-            from .tube_use import tube_curve, tube_points
             if tube_curve(derivation, item, symbol, fixed, axes, x, figure.span):
                 continue
             along = tube_points(derivation, item, symbol, span, fixed, figure.span)
@@ -329,3 +327,274 @@ def _plot_sampled_line(derivation, figure, items, path, into, options, caption_t
         caption_tex += r" Points: Brownian-loop Monte Carlo (\texttt{sample}), error bars one standard error." + tubes
     plots.finish(drawing, path, caption, into, options, caption_tex=caption_tex,
                  title=", ".join(i.label for i in items) + f" against {symbol.name}")
+
+
+# ------------------------------------------------------------------ among static flux tubes
+
+
+def tube_pieces_in(expr) -> list[sympy.Symbol]:
+    """The tube pieces an expression holds, by name."""
+    return sorted((s for s in sympy.sympify(expr).free_symbols if tube_piece(s) is not None), key=lambda s: s.name)
+
+
+def _sampled_in(system, piece) -> str:
+    """A coefficient that holds the piece and that `sample` takes: b[l e_i] of the first bose/fermi
+    species (T_two_tubes), b[2 e_i] of the anyons (B_anyon_tube_<i>), b[e_A + e_B] of the pair."""
+    from ..exact.periods import species_statistics
+    found = tube_piece(piece)
+    names = system.species_names
+    index = [0] * len(names)
+    if found.pair is not None:
+        for name in found.pair_of(system):
+            index[names.index(name)] = 1
+    elif found.species is not None:
+        index[names.index(found.species)] = 2
+    else:
+        params = {p.symbol: p for p in system.parameters}
+        ideal = [k for k, s in enumerate(system.species) if species_statistics(s, params) in ("bose", "fermi")]
+        index[ideal[0] if ideal else 0] = 1
+    return f"b{bracket_label(tuple(index))}"
+
+
+def _exact_where(piece) -> str:
+    found = tube_piece(piece)
+    if found.pair is not None:
+        return "at an integer flux or an integer mutual parameter"
+    if found.species is not None:
+        return f"at an integer flux or where {found.species} is a boson or a fermion"
+    return "at an integer flux"
+
+
+def missing_piece(system, piece, point: dict) -> str:
+    """Why `piece` has no value at `point`, and the `sample` statement that would give it one."""
+    definitions = tube_piece(piece).definitions(system)
+    depends = sorted(set().union(*(sympy.sympify(e).free_symbols for _, e in definitions)), key=lambda s: s.name)
+    unset = [s.name for s in depends if s not in point]
+    if unset:
+        return (f"{piece} depends on {', '.join(unset)} (through the "
+                f"{', '.join(kind for kind, e in definitions if sympy.sympify(e).free_symbols)}): give "
+                f"{'it a value' if len(unset) == 1 else 'them values'}")
+    at = ", ".join(f"{s.name} = {sympy.sstr(point[s])}" for s in depends)
+    statement = f"sample {_sampled_in(system, piece)}" + (f" at {at}" if at else "")
+    return (f"no value for {piece} at {_point_text(point) or 'this point'}: it is known exactly only "
+            f"{_exact_where(piece)}, and no `sample` statement of this input estimates it there; add "
+            f"`{statement}` (or put the point into a `sample ... over` list)")
+
+
+def resolved(derivation, expr, point: dict, span) -> tuple[sympy.Expr, dict]:
+    """(expr with the pieces exactly known at `point` put in, {sampled piece: (value, error)}) at a
+    point ({symbol: exact number}); a piece neither exact nor sampled there is refused at `span`."""
+    system = derivation.system
+    expr, _ = filled(system, sympy.sympify(expr), point)
+    table = _estimates(derivation)
+    estimates = {}
+    for piece in tube_pieces_in(expr):
+        key = _statistics_key(system, piece, point)
+        if key is None or (piece, key) not in table:
+            raise InputError(missing_piece(system, piece, point), span)
+        estimates[piece] = table[(piece, key)]
+    return expr, estimates
+
+
+def known_at(derivation, expr, point: dict) -> bool:
+    """Whether every tube piece of `expr` is exact or sampled at `point`."""
+    try:
+        resolved(derivation, expr, point, None)
+    except InputError:
+        return False
+    return True
+
+
+def tube_curve(derivation, item, axis, fixed: dict, axes, x, span) -> bool:
+    """Draw `item` as a curve on `axes` when none of its tube pieces changes along `axis` at the
+    figure's `fixed` values (the axis is the coverage or a mass, or the pieces are exact on the whole
+    axis): a sampled piece gives a one-standard-error band. False (nothing drawn) otherwise."""
+    from . import plots
+    system = derivation.system
+    expr, _ = filled(system, sympy.sympify(item.value).xreplace(fixed), fixed)
+    for piece in tube_pieces_in(expr):
+        definitions = tube_piece(piece).definitions(system)
+        if axis in set().union(*(sympy.sympify(e).xreplace(fixed).free_symbols for _, e in definitions)):
+            return False
+    expr, estimates = resolved(derivation, expr, fixed, span)
+    values = {p: sympy.Float(v, 17) for p, (v, _) in estimates.items()}
+    curve = expr.xreplace(values)
+    rest = sorted(s.name for s in curve.free_symbols - {axis})
+    if rest:
+        raise InputError(f"{item.label} depends on {', '.join(rest)}: fix {'it' if len(rest) == 1 else 'them'} with "
+                         f"`at {rest[0]} = ...`", span)
+    numpy = plots._matplotlib()[2]
+    y = plots._evaluator(curve, [axis.name], numpy)(x)
+    label = f"${plots.coefficient_latex(item)}$"
+    if not estimates:
+        axes.plot(x, y, label=label, linewidth=1.5)
+        return True
+    variance = numpy.zeros_like(y)
+    for piece, (_, error) in estimates.items():
+        slope = sympy.diff(expr, piece).xreplace(values)
+        variance = variance + (plots._evaluator(slope, [axis.name], numpy)(x) * error) ** 2
+    line, = axes.plot(x, y, label=label + " (Monte Carlo pieces)", linewidth=1.5)
+    axes.fill_between(x, y - numpy.sqrt(variance), y + numpy.sqrt(variance), color=line.get_color(), alpha=0.25,
+                      linewidth=0, label="one standard error")
+    return True
+
+
+def tube_points(derivation, item, axis, interval, fixed: dict, span) -> list:
+    """The values of `axis` in `interval` at which every tube piece of `item` is exact or sampled: the
+    points of the `sample` statements and the integers (where the pieces are exact); refused when
+    there is none, with the piece and the `sample` statement to add at the interval's middle."""
+    along = [v for v in _candidates(derivation, item.value, axis, interval)
+             if known_at(derivation, item.value, {**fixed, axis: v})]
+    if not along:
+        middle = (interval.lower + interval.upper) / 2
+        try:
+            resolved(derivation, item.value, {**fixed, axis: middle}, span)
+        except InputError as error:
+            raise InputError(f"{item.label} has no point on {axis.name} in {interval} where its tube pieces are known "
+                             f"(a figure over {axis.name} draws it where they are); {error.message}", span) from None
+    return along
+
+
+def _candidates(derivation, expr, axis, interval) -> list:
+    """The values of `axis` in `interval` where a tube piece of `expr` may be known: those of the input's
+    `sample` points and the integers (every piece is exact at an integer flux, the anyon piece at the
+    bose/fermi points, the braid piece at an integer mutual parameter), in increasing order."""
+    candidates = {p[axis] for p in sample_points(derivation, expr) if axis in p}
+    low, high = int(sympy.ceiling(interval.lower)), int(sympy.floor(interval.upper))
+    if high - low < 1000:
+        candidates |= {sympy.Integer(k) for k in range(low, high + 1)}
+    return sorted((v for v in candidates if interval.contains(v)), key=float)
+
+
+def tube_grid(derivation, item, figure, resolution: int = 121):
+    """(x, y, values, errors or None) of `item` on the grid of a `plot` over two parameters, the arrays
+    with a row per y.  An axis that a tube piece depends on (at the figure's fixed values) takes the
+    values where the pieces may be known (`_candidates`: the `sample` points on it and the integers), an
+    axis none depends on (the coverage, a mass) `resolution` points of its interval; every grid point
+    needs each piece exact or sampled (`resolved`), else the statement is refused at the first point
+    without one, with the `sample` statement to add.  Errors are those of the sampled pieces (None
+    when no point needed one)."""
+    import itertools
+
+    from . import plots
+    system = derivation.system
+    numpy = plots._matplotlib()[2]
+    fixed = dict(figure.fixed)
+    expr, _ = filled(system, sympy.sympify(item.value).xreplace(fixed), fixed)
+    moving = set()
+    for piece in tube_pieces_in(expr):
+        for _, definition in tube_piece(piece).definitions(system):
+            moving |= sympy.sympify(definition).xreplace(fixed).free_symbols
+    axes, values = [], []
+    for symbol, interval in figure.axes:
+        span = plots._interval(symbol.name, interval, system, system.parameters)
+        along = _candidates(derivation, item.value, symbol, span) if symbol in moving else \
+            list(plots._samples(span, resolution, numpy))
+        if len(along) < 2:
+            raise InputError(f"a heat map of {item.label} takes {symbol.name} where its tube pieces may be known (the "
+                             f"`sample` points and the integers), and {span} holds {len(along)}: add a `sample "
+                             f"{_sampled_in(system, tube_pieces_in(expr)[0])} over {symbol.name} = [...]`", figure.span)
+        axes.append(symbol)
+        values.append(along)
+    grid = numpy.meshgrid(*(numpy.array([float(v) for v in along]) for along in values))
+    z, errors, sampled = numpy.full(grid[0].shape, numpy.nan), numpy.zeros(grid[0].shape), False
+    sparse = [k for k in (0, 1) if axes[k] in moving]
+    dense = [k for k in (0, 1) if k not in sparse]
+    names = [axes[k].name for k in dense]
+    for combination in itertools.product(*(values[k] for k in sparse)):
+        point = {**fixed, **{axes[k]: v for k, v in zip(sparse, combination)}}
+        try:
+            exact, estimates = resolved(derivation, expr, point, figure.span)
+        except InputError as error:
+            raise InputError(f"a heat map of {item.label} needs its tube pieces at every point of its grid ("
+                             + "; ".join(f"{s.name} in {{{', '.join(sympy.sstr(v) for v in along)}}}"
+                                         for s, along, k in zip(axes, values, (0, 1)) if k in sparse)
+                             + f"); {error.message}", figure.span) from None
+        sampled = sampled or bool(estimates)
+        numbers = {p: sympy.Float(v, 17) for p, (v, _) in estimates.items()}
+        at = exact.xreplace(point)
+        value = at.xreplace(numbers)
+        variance = sum((sympy.diff(at, p).xreplace(numbers) * e) ** 2 for p, (_, e) in estimates.items())
+        rest = sorted(s.name for s in value.free_symbols if s not in {axes[k] for k in dense})
+        if rest:
+            raise InputError(f"{item.label} depends on {', '.join(rest)}: fix {'it' if len(rest) == 1 else 'them'} "
+                             f"with `at {rest[0]} = ...`", figure.span)
+        where = [slice(None), slice(None)]
+        for k, v in zip(sparse, combination):
+            where[1 - k] = values[k].index(v)    # rows run along the second axis
+        where = tuple(where)
+        if dense:
+            cells = [grid[k][where] for k in dense]
+            z[where] = plots._evaluator(value, names, numpy)(*cells)
+            errors[where] = numpy.sqrt(plots._evaluator(sympy.sympify(variance), names, numpy)(*cells))
+        else:
+            z[where], errors[where] = float(sympy.N(value, 17)), float(sympy.sqrt(variance))
+    x, y = (numpy.array([float(v) for v in along]) for along in values)
+    return x, y, z, errors if sampled else None
+
+
+def tube_map(derivation, figure, item, path, into, options, caption_tex, conventions) -> None:
+    """`plot` of a coefficient with tube pieces over two parameters: its heat map on `tube_grid` and,
+    when a point used a sampled piece, the one-standard-error map beside it (`plots.value_and_error_maps`,
+    as a `sample ... map`); the caption says where the numbers come from (`conventions` replaces the
+    conventions line, with the truncation in the coverage)."""
+    from . import plots
+    system = derivation.system
+    x, y, z, errors = tube_grid(derivation, item, figure)
+    label = f"${plots.coefficient_latex(item, system)}$"
+    how = ("Each cell: tube pieces exact where known, else Brownian-loop Monte Carlo ({}); right: one standard "
+           "error." if errors is not None else "Tube pieces exact at every grid point.")
+    caption = plots._caption_text(conventions, system, {s.name: v for s, v in figure.fixed}, {}) \
+        + "\n" + how.format("`sample`")
+    labels = tuple(f"${plots.axis_latex(s.name, system)}$" for s, _ in figure.axes)
+    plots._format(path)
+    drawing = plots.value_and_error_maps([(label, z, errors)], x, y, labels,
+                                         caption.count("\n") + 1 if "footer" in options else 0)
+    if caption_tex is not None:
+        caption_tex += " " + how.format(r"\texttt{sample}")
+    plots.finish(drawing, path, caption, into, options, caption_tex=caption_tex,
+                 title=f"{item.label} against {', '.join(s.name for s, _ in figure.axes)}")
+
+
+def tube_claim(derivation, claim, claimed, derived, label, limits):
+    """`claim ... within k errors` on a coefficient with tube pieces, at every point of the input's
+    `sample` statements where each piece is exact or sampled: with the coverage a parameter, each
+    power of it below the truncation is compared on its own (the terms left out are unknown, not
+    zero); with the coverage a number, the value through that order, and a claim k or more standard
+    errors away is undecided (the difference may lie in the terms left out), never a mismatch.
+    `claimed` and `derived` come truncated to `limits` (`run.run_checks`)."""
+    from dataclasses import replace
+
+    from .check_result import MISMATCH, UNDECIDED
+    system = derivation.system
+    coverage = system.tubes.coverage
+    other = sorted(s.name for s in limits if s != coverage)
+    if other:
+        raise InputError(f"a claim truncated in {', '.join(other)} is compared term by term, not with Monte Carlo "
+                         "numbers; drop `within ... errors` or that O(...) (an O term in the tube coverage is "
+                         "fine)", claim.span)
+    order = limits.get(coverage)
+    left_out = f"O({coverage}^{order})" + (f" at {coverage} = {sympy.sstr(system.tubes.value)}"
+                                          if system.tubes.value is not None else "")
+    claimed, derived = sympy.expand(sympy.sympify(claimed)), sympy.expand(derived)
+    if coverage in derived.free_symbols | claimed.free_symbols:
+        powers = range(order if order is not None else 1 + max(sympy.degree(derived, coverage),
+                                                                sympy.degree(claimed, coverage)))
+        parts = [(f"the {coverage}^{p} term", claimed.coeff(coverage, p), derived.coeff(coverage, p)) for p in powers]
+    else:
+        parts = [("", claimed, derived)]
+    points = [{s: v for s, v in p.items() if s != coverage} for p in sample_points(derivation, derived)]
+    points = list({tuple(sorted(p.items(), key=lambda kv: kv[0].name)): p for p in points}.values())
+    if not points:
+        pieces = ", ".join(s.name for s in tube_pieces_in(derived))
+        raise InputError(f"`within {claim.errors:g} errors` compares the claim with the numbers of the input's `sample` "
+                         f"statements, and none estimates {pieces} of {claim.target.label}; add one, e.g. "
+                         f"`sample {_sampled_in(system, tube_pieces_in(derived)[0])} at ...` with the parameters of "
+                         "the point", claim.span)
+    note = f"; the terms of {left_out} are unknown and left out of the comparison"
+    result = compared_at_points(derivation, claim, (claimed, derived), parts, points, claim.errors, label, note)
+    if result.status == MISMATCH and system.tubes.value is not None:
+        result = replace(result, status=UNDECIDED, method=result.method.replace(
+            "is a mismatch", "would be a mismatch, but the coverage is a number here and the difference may lie in "
+            "the terms left out (declare the coverage as a parameter to compare term by term)"))
+    return result

@@ -216,3 +216,19 @@ def braiding_pairs(system) -> list[tuple[str, str]]:
     names = system.species_names
     return [(a, b) for k, a in enumerate(names) for b in names[k + 1:]
             if braids(system.mutual(a, b), params) is not False]
+
+
+def coverage_truncation(system, value) -> tuple[sympy.Expr, str | None]:
+    """(value without its O term, the note that says what is left out) for a series truncated in the
+    tube coverage alone; (value, None) for a closed form; None for a series truncated in anything else
+    (a given series in a statistics parameter: a table of it would be a polynomial in disguise)."""
+    order = value.getO() if hasattr(value, "getO") else None
+    if order is None:
+        return value, None
+    tubes = getattr(system, "tubes", None)
+    if tubes is None or order.expr.free_symbols != {tubes.coverage}:
+        return None
+    note = f"truncated series, {sympy.sstr(order)} left out"
+    if tubes.value is not None:
+        note += f", {tubes.coverage} = {sympy.sstr(tubes.value)}"
+    return value.removeO(), note
