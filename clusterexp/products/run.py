@@ -17,10 +17,9 @@ from .checks import check_claim, check_decimal_claim, check_with_pieces
 from .exact_pieces import filled, noted
 from ..errors import InputError
 from .numbers import csv_bytes, evaluate, format_number, grid_table
-from .sampled_use import (check_sampled_claim, plot_sampled_line, sampled_number_text, sampled_table,
-                          uses_sampled)
 from ..routes.tube_pieces import coverage_truncation
-from .sampled_use import tube_pieces_in
+from .sampled_use import (check_sampled_claim, plot_sampled_line, sampled_number_text, sampled_table, tube_pieces_in,
+                          uses_sampled)
 
 
 def _coefficient(derivation, name):
@@ -293,7 +292,7 @@ def stage_files(derivation, batch, directory=".", overwrite: bool = False) -> No
         except InputError as error:
             raise _at(error, table.span) from None
     from ..export.captions import figure_caption_latex
-    from ..export.latex import escape_text
+    from ..export.latex_lines import escape_text
     for figure in system.figures:
         items = [_plain(derivation, t, figure.span) for t in figure.targets]
         path = directory / figure.path
