@@ -45,38 +45,45 @@ SAMPLING = (16.0, 20.0)
 _BUCKETS = (4, 5, 6, 7, 8, 10, 12, 14, 16, 19, 23, 27, 32, 38, 45, 54, 64, 76, 91, 108, 128, 152, 181, 215, 256)
 _CHUNK = 40000
 
-# Per thread: whether half-integer alpha uses the closed form (True; the benchmark of the variance
-# reduction switches it off for the "before" configuration through runner.Reduction).
+# Per thread: whether half-integer alpha uses the closed form (closed_half, True; the benchmark of the
+# variance reduction switches it off for the "before" configuration through runner.Reduction), and
+# whether the hot path runs compiled (compiled, True; False: the numpy reference, for the benchmarks).
 SETTINGS = threading.local()
-
-
-def minimal_angles(u0: np.ndarray, u1: np.ndarray) -> np.ndarray:
-    """Angle in (-pi, pi] from u0 to u1 (complex arrays)."""
-    return np.angle(u1 * np.conj(u0))
 
 
 def classify_segments(u: np.ndarray, v: float, cut: float = NEAR_CUT):
     """Split the slices of relative paths into far and near ones.
 
     u: complex array (paths, points).  Returns (far_sum, rows, x, phi): far_sum[path] is the sum of
-    minimal angles over far slices; rows/x/phi list the near slices (path index, x, phi).
+    minimal angles over far slices; rows/x/phi list the near slices (path index, x, phi), in row order.
+    A slice is near when its chord passes within d of the origin, 2 d^2 / v < cut.  Compiled
+    (`kernels.classify`); `classify_segments_numpy` is the same with numpy arrays, the reference.
     """
+    if not getattr(SETTINGS, "compiled", True):
+        return classify_segments_numpy(u, v, cut)
+    from .kernels import classify
+    return classify(u, v, cut)
+
+
+def classify_segments_numpy(u: np.ndarray, v: float, cut: float = NEAR_CUT):
+    """`classify_segments` with whole numpy arrays (the reference of the compiled form)."""
     u0 = u[:, :-1]
-    u1 = u[:, 1:]
-    phi = minimal_angles(u0, u1)
-    w = u1 - u0
-    ww = (w.real * w.real + w.imag * w.imag)
-    num = -(u0.real * w.real + u0.imag * w.imag)
+    z = u[:, 1:] * np.conj(u0)
+    phi = np.angle(z)                             # minimal angle from u0 to u1
+    r2 = u.real * u.real + u.imag * u.imag
+    r0, r1 = r2[:, :-1], r2[:, 1:]
+    dot = z.real                                  # u0 . u1
+    num = r0 - dot                                # -(u0 . w), w = u1 - u0
+    ww = num + (r1 - dot)                         # |w|^2
     with np.errstate(invalid="ignore", divide="ignore"):
         s = np.where(ww > 0, num / ww, 0.0)
-    s = np.clip(s, 0.0, 1.0)
-    p = u0 + s * w
-    d2 = p.real * p.real + p.imag * p.imag
-    near = (2.0 * d2 / v) < cut
+    np.clip(s, 0.0, 1.0, out=s)
+    d2 = r0 + s * (s * ww - 2.0 * num)            # |u0 + s w|^2, the chord's closest point
+    near = d2 < (0.5 * cut) * v
     far_sum = np.where(near, 0.0, phi).sum(axis=1)
-    rows, cols = np.nonzero(near)
-    x = np.abs(u0[rows, cols]) * np.abs(u1[rows, cols]) / v
-    return far_sum, rows, x, phi[rows, cols]
+    rows = np.nonzero(near)[0]
+    x = np.sqrt(r0[near] * r1[near]) / v
+    return far_sum, rows, x, phi[near]
 
 
 def _reduced_factor(a: float, x: np.ndarray, phi: np.ndarray, accuracy=PRECISE) -> np.ndarray:

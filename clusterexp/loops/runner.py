@@ -49,9 +49,10 @@ class Reduction:
     triple_width: float = sampler.WIDTH_TRIPLE
     sequence: str = "random"
     closed_half: bool = True      # the slice factor's closed form at half-integer alpha (pairfactor.py)
+    compiled: bool = True         # the compiled hot path (kernels.py); False: the numpy reference
 
 
-BEFORE = Reduction(control=False, triple_width=sampler.WIDTH_TRIPLE_BEFORE, closed_half=False)
+BEFORE = Reduction(control=False, triple_width=sampler.WIDTH_TRIPLE_BEFORE, closed_half=False, compiled=False)
 EARLY_MARGIN = 2.0       # give up early when the projection exceeds the cap by this factor ...
 EARLY_FRACTION = 0.1     # ... and at least this fraction of the cap has been spent
 
@@ -117,10 +118,12 @@ def run_batch(kind: str, family: str, index: int, count: int, slices: int, seed:
     little variance.
     """
     pairfactor.SETTINGS.closed_half = reduction.closed_half
+    pairfactor.SETTINGS.compiled = reduction.compiled
     try:
         return _batch(kind, family, index, count, slices, seed, params, extrapolate, reduction)
     finally:
         pairfactor.SETTINGS.closed_half = True
+        pairfactor.SETTINGS.compiled = True
 
 
 def _batch(kind, family, index, count, slices, seed, params, extrapolate, reduction):

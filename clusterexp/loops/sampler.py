@@ -26,7 +26,8 @@ from dataclasses import dataclass
 import numpy as np
 
 from .exact import loop_part_b2 as loop_part
-from .pairfactor import SAMPLING, classify_segments, pair_factor
+from .kernels import bridges, half_phase
+from .pairfactor import SAMPLING, SETTINGS, classify_segments, pair_factor
 
 # Importance sampling of sampled offsets: a defensive mixture of two centred complex Gaussians, so that
 # the weight stays bounded where the integrand's Gaussian tail is wider than the main component.
@@ -64,9 +65,18 @@ class PhaseData:
                    np.concatenate([p.x for p in parts]), np.concatenate([p.phi for p in parts]))
 
     def phase(self, alpha: float) -> np.ndarray:
+        if self.rows.size and (2 * alpha) % 2 == 1 and getattr(SETTINGS, "closed_half", True) \
+                and getattr(SETTINGS, "compiled", True):
+            return half_phase(alpha, self.far, self.rows, self.x, self.phi)      # compiled closed form
         out = np.exp(1j * alpha * self.far)
         if self.rows.size:
-            np.multiply.at(out, self.rows, pair_factor(alpha, self.x, self.phi, SAMPLING))
+            factors = pair_factor(alpha, self.x, self.phi, SAMPLING)
+            if np.all(self.rows[1:] >= self.rows[:-1]):
+                # rows come sorted from the classification: one product per sample over its run of rows
+                starts = np.flatnonzero(np.r_[True, self.rows[1:] != self.rows[:-1]])
+                out[self.rows[starts]] *= np.multiply.reduceat(factors, starts)
+            else:                          # joined pair groups: rows of each group in turn
+                np.multiply.at(out, self.rows, factors)
         return out
 
     @property
@@ -79,11 +89,12 @@ def brownian_loops(rng: np.random.Generator, count: int, segments: int, duration
     if hasattr(rng, "brownian_bridge"):    # randomized quasi-Monte Carlo (quasi.py): Levy construction
         return rng.brownian_bridge(count, segments, duration)
     scale = np.sqrt(duration / segments / (2.0 * np.pi))
-    steps = rng.standard_normal((count, segments, 2)) * scale
-    walk = np.zeros((count, segments + 1), dtype=complex)
-    walk[:, 1:] = np.cumsum(steps[..., 0] + 1j * steps[..., 1], axis=1)
-    frac = np.arange(segments + 1) / segments
-    return walk - frac[None, :] * walk[:, -1:]
+    steps = rng.standard_normal((count, segments, 2))
+    if getattr(SETTINGS, "compiled", True):
+        return bridges(steps, scale)
+    walk = np.zeros((count, segments + 1), dtype=complex)       # the numpy reference
+    walk[:, 1:] = np.cumsum(steps[..., 0] * scale + 1j * (steps[..., 1] * scale), axis=1)
+    return walk - (np.arange(segments + 1) / segments)[None, :] * walk[:, -1:]
 
 
 def complex_normal(rng: np.random.Generator, count: int, width: float) -> np.ndarray:
@@ -124,9 +135,10 @@ class CycleSamples:
 
     def __init__(self, rng: np.random.Generator, count: int, slices: int, strides=(1,)):
         x = brownian_loops(rng, count, 3 * slices, 3.0)
-        idx = (np.arange(3 * slices + 1) + slices) % (3 * slices)
+        # X(t) - X(t + 1) over t in [0, 3]: the points shifted by one unit of time, cyclically
+        shifted = np.concatenate([x[:, slices:3 * slices], x[:, :slices + 1]], axis=1)
         self.count = count
-        self.levels = phase_levels(x - x[:, idx], slices, strides)
+        self.levels = phase_levels(x - shifted, slices, strides)
 
     def values(self, alpha: float, stride: int = 1) -> np.ndarray:
         return self.levels[stride].phase(alpha).real / 9.0
