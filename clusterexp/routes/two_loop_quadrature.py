@@ -45,21 +45,23 @@ def chord_closed_single(order, d_rel, v_gap):
     return 2 * integrate.dblquad(f, 0, np.pi, 0, 50, epsabs=1e-11, epsrel=1e-10)[0] / v_gap
 
 
-def two_loop_parts(p, q, DX=1.0, DY=1.0, link_only=False, nsub=1, TOL=1e-8):
+def two_loop_parts(p, q, DX=1.0, DY=1.0, link_only=False, nsub=1, TOL=1e-8, cross_only=False):
     with warnings.catch_warnings():
         # corners and lines where two pieces meet are integrable log singularities; quad reports its
         # subdivision limit there, and the tests bound the error by comparing with exact values
         warnings.simplefilter('ignore', integrate.IntegrationWarning)
-        return _parts(p, q, DX, DY, link_only, nsub, TOL)
+        return _parts(p, q, DX, DY, link_only, nsub, TOL, cross_only)
 
 
-def _parts(p, q, DX, DY, link_only, nsub, TOL):
+def _parts(p, q, DX, DY, link_only, nsub, TOL, cross_only=False):
     """Second-order parts of the cluster of a p-cycle (loop X, diffusion DX) and a q-cycle (loop Y, DY),
     offset integrated, in the units of docs/perturbative.md section 4f (multiply by the normalisation P
     that the cluster's first order fixes): returns (number of link segments, the single-segment first
     order G1, the link^2 part, the contact part of self pair x link, E[theta_u Area] summed). The link
     curves are cut into nsub segments per unit time, each closed by its chord, plus the chord polygon
-    of each curve; the cross part (nsub = 1 only) is for one species (DX = DY)."""
+    of each curve. The cross part needs nsub = 1; its angle-area part holds for any DX, DY (checked against
+    the derived `routes.angle_area`), its contact part is checked for DX = DY only. cross_only skips the
+    link^2 part (returned as None)."""
     ell = 1.0 / nsub
     per = {'X': p, 'Y': q}
     dif = {'X': DX, 'Y': DY}
@@ -156,14 +158,15 @@ def _parts(p, q, DX, DY, link_only, nsub, TOL):
         return integrate.dblquad(f, 0, 1, 0, 1, epsabs=TOL)[0]
     segs = [(orb, j) for orb in orbits for j in range(NS)]
     link2 = nseg * G2
-    for (i1, s1), (i2, s2) in itertools.combinations(list(enumerate(segs)), 2):
+    for (i1, s1), (i2, s2) in ([] if cross_only else itertools.combinations(list(enumerate(segs)), 2)):
         link2 += lam(s1, s2) + 2 * math.pi * curve_double(closed[i1], closed[i2])
-    for pg in polygons:
+    for pg in ([] if cross_only else polygons):
         link2 += math.pi * curve_double(pg, pg)
         for cl in closed:
             link2 += 2 * math.pi * curve_double(cl, pg)
-    for p1, p2 in itertools.combinations(polygons, 2):
+    for p1, p2 in ([] if cross_only else itertools.combinations(polygons, 2)):
         link2 += 2 * math.pi * curve_double(p1, p2)
+    link2 = None if cross_only else link2
     if link_only:
         return nseg, G1, link2, None, None
     # ---------------------------------------------------------------- cross: self pairs x link
@@ -199,7 +202,9 @@ def _parts(p, q, DX, DY, link_only, nsub, TOL):
                         if -1 < off < L:
                             lo, hi = max(0.0, -off), min(1.0, L - off)
                             if hi > lo:
-                                val += 0.5 * sg * sgnZ * integrate.quad(lambda t: cov(A(t), B(t + off)) / vA, lo, hi, epsabs=TOL)[0]
+                                # the strands' increments are white noise of intensity dif[Z]
+                                val += 0.5 * sg * sgnZ * dif[Z] * integrate.quad(
+                                    lambda t: cov(A(t), B(t + off)) / vA, lo, hi, epsabs=TOL)[0]
                 angle_area[Z] += val
     return nseg, G1, link2, contact, angle_area
 
