@@ -182,11 +182,17 @@ def test_second_order_products_of_mutual_parameters_three_species():
         assert b[sympy.Abs(x) * sympy.Abs(y)] == 1 and b[x * y] == R(-1, 12)
     assert b[d ** 2] == b[g ** 2] == b[h ** 2] == 0
     assert all(b[sympy.Abs(x)] == 0 for x in (d, g, h))
-    # an exchange parameter times a mutual one beyond three particles: the product of the contacts is
-    # derived, e*d and the square are not (section 4c covers two particles of one species and one of another)
+    # an exchange parameter times a mutual one beyond three particles: the product of the contacts and
+    # e*d are derived (section 4i), the square is not; independent route for e*d: the quadrature engine's
+    # angle-area part of the {2-cycle, 2-cycle} cluster (two_loop_table.ANGLE, one species' units, times 2
+    # for two species), plus the Landau chain
+    from clusterexp.routes.two_loop_table import ANGLE
     b = taylor_coefficients([Species(e), Species(None)], {(0, 1): d}, (2, 2), "boson", 2, unknown="name")
-    assert b[sympy.Abs(e) * sympy.Abs(d)] != 0 and b[e * d].is_Symbol and b[d ** 2].is_Symbol
-    with pytest.raises(NotSupportedYet, match=r"b\[2,2\] in d\*e, d\*\*2"):
+    assert b[sympy.Abs(e) * sympy.Abs(d)] != 0 and b[e * d].is_Rational and b[d ** 2].is_Symbol
+    landau = chain_part([Species(e), Species(None)], {(0, 1): d}, (2, 2), "boson")[e * d]
+    (angle, bound), _ = ANGLE[(2, 2)]
+    assert abs(float(b[e * d] - landau) - 2 * angle) <= 2 * bound
+    with pytest.raises(NotSupportedYet, match=r"b\[2,2\] in d\*\*2"):
         taylor_coefficients([Species(e), Species(None)], {(0, 1): d}, (2, 2), "boson", 2)
     # unequal masses: e*d and the square are derived for b[2,1] (sections 4c, 4e)
     b = taylor_coefficients([Species(e, 2), Species(None)], {(0, 1): d}, (2, 1), "boson", 2)

@@ -17,11 +17,13 @@ exchange, period 1 for mutual. The derivation is docs/perturbative.md; in short:
   mean statistical field, -(1/24) sum_i x_i^2 k_i (`chain_part`). They are the whole coefficient of a
   product |x||y| of the absolute values of two different parameters (two contact vertices meet only in
   the ring) and of a product d_ij d_ik of two mutual parameters around a shared species (Hartree chains
-  only); monomials that connect no cluster are zero. Squares x^2 and e_i d_ij also get two-loop and
-  one-loop clusters: derived for three particles of one species (b_3: the loop + 2-cycle from Sen's
-  symmetry, the 3-cycle from its pairs; sections 4b, 4d) and for two particles of one species with one
-  of another (b_{2,1}: e_i d_ij and d_ij^2 for any masses; sections 4c, 4e), otherwise not
-  derived: `NotSupportedYet`, or named unknowns with unknown="name".
+  only); monomials that connect no cluster are zero. Products e_i d_ij also get the cluster of the
+  n_i-cycle of i with the n_j-cycle of j through its self angles and its link's area: derived for every
+  n and any masses (section 4i, `angle_area`). Squares x^2 also get two-loop and one-loop clusters:
+  derived for three particles of one species (b_3: the loop + 2-cycle from Sen's symmetry, the 3-cycle
+  from its pairs; sections 4b, 4d) and for two particles of one species with one of another (b_{2,1}:
+  d_ij^2 for any masses; section 4e), otherwise not derived: `NotSupportedYet`, or named unknowns
+  with unknown="name" (computed numbers beside some of them: `numerical_coefficients`).
 
 Monomials whose sign changes under the mirror image (every parameter -> minus itself; e.g. x,
 x*Abs(y), x*Abs(x)) vanish by that symmetry and are not listed.
@@ -41,6 +43,7 @@ from typing import Mapping, Sequence
 import sympy
 
 from ..errors import NotSupportedYet
+from .angle_area import angle_area_coefficients
 
 POINTS = ("boson", "fermion")
 DERIVED_ORDER = 2
@@ -230,22 +233,19 @@ def chain_part(species: Sequence[Species], mutual: Mapping[tuple[int, int], symp
 
 def _pair_with_one(gas: _Gas, link: _Link, n):
     """For b_n with two particles of species i and one of species j (link = the mutual pair {i, j}): the
-    second-order coefficients of the cluster of the 2-cycle of species i with the one-particle loop of j
-    (sections 4c, 4e), as (coefficient of d_ij^2, coefficient of e_i d_ij); None for
-    any other n. The 2-cycle's sign about fermions flips the whole cluster.
-
-    e_i d_ij: -(m_j/m_ref)/4, from E[Theta_S Area(S)] = lambda^2/(2 pi) of the 2-cycle (Gaussian
-    calculus, any masses). d_ij^2: (m_i/2 + m_j/4)/m_ref (section 4e: the relative curve cut into its two
-    pairs, each closed by the chord between its ends; 3/4 for equal masses, as Sen's symmetry gives, and
-    the static limits m_i -> inf, one flux 2 d, and m_j -> inf, one static flux d)."""
+    d_ij^2 coefficient of the cluster of the 2-cycle of species i with the one-particle loop of j
+    (section 4e), (m_i/2 + m_j/4)/m_ref: the relative curve cut into its two pairs, each closed by the
+    chord between its ends; 3/4 for equal masses, as Sen's symmetry gives, and the static limits
+    m_i -> inf, one flux 2 d, and m_j -> inf, one static flux d. The 2-cycle's sign about fermions flips
+    it. None for any other n. (Its e_i d_ij coefficient, -(m_j/m_ref)/4, is the p = 2, q = 1 case of
+    `angle_area.angle_area_coefficients`.)"""
     if link.i == link.j:
         return None
     pairs = [(a, b) for a, b in ((link.i, link.j), (link.j, link.i)) if n[a] == 2 and n[b] == 1]
     if sum(n) != 3 or not pairs:
         return None
     i, j = pairs[0]
-    sign = gas.sign[i]
-    return sign * (gas.mass[i] / 2 + gas.mass[j] / 4), -sign * gas.mass[j] / 4
+    return gas.sign[i] * (gas.mass[i] / 2 + gas.mass[j] / 4)
 
 
 def _beyond_the_chains_of_three(gas: _Gas, i: int) -> Fraction:
@@ -278,21 +278,24 @@ def _second_order(gas: _Gas, p: _Link, q: _Link, n):
         pair = _pair_with_one(gas, p, n)
         if pair is not None:
             ring, landau = _chain(gas, p, p, n)
-            return {x ** 2: ring + landau + pair[0]}
+            return {x ** 2: ring + landau + pair}
         return {x ** 2: None}
     monomials = (sympy.Abs(x) * sympy.Abs(y), x * y)
     if not p.species & q.species or support != p.species | q.species or not (_acts(p, n) and _acts(q, n)):
         return dict.fromkeys(monomials, Fraction(0))
     ring, landau = _chain(gas, p, q, n)
     if p.i == p.j or q.i == q.j:
-        # exchange times mutual: two contact vertices meet only in the ring, but the vector potentials
-        # also meet in exchange (Fock-type) clusters, derived for a pair of one species with one particle
-        # of another (section 4c), not beyond
-        mutual = q if p.i == p.j else p
-        pair = _pair_with_one(gas, mutual, n)
-        if pair is None or (p.i == p.j) == (q.i == q.j):
+        # exchange times mutual: two contact vertices meet only in the ring; the vector potentials also
+        # meet in the cluster of the n_i-cycle of i with the n_j-cycle of j, through the self angles of
+        # the i-cycle and the area of the link (section 4i, exact for any masses)
+        exchange, mutual = (p, q) if p.i == p.j else (q, p)
+        if mutual.i == mutual.j:
             return {monomials[0]: ring, monomials[1]: None}
-        return {monomials[0]: ring, monomials[1]: landau + pair[1]}
+        i = exchange.i
+        j = mutual.j if mutual.i == i else mutual.i
+        own, _ = angle_area_coefficients(n[i], n[j], gas.mass[i], gas.mass[j])
+        sign = gas.sign[i] ** (n[i] - 1) * gas.sign[j] ** (n[j] - 1)
+        return {monomials[0]: ring, monomials[1]: landau + sign * Fraction(int(own.p), int(own.q))}
     # two mutual links around a shared species: Hartree chains only (ring and Landau)
     return {monomials[0]: ring, monomials[1]: landau}
 
@@ -354,13 +357,13 @@ def _computed_square(gas: _Gas, link: _Link, n) -> tuple[float, float] | None:
     return float(ring + landau) + gas.sign[i] ** n[i] * float(gas.mass[i]) * value, float(gas.mass[i]) * error
 
 
-def _computed_two_species(gas: _Gas, links: Sequence[_Link], link: _Link, n) -> dict:
-    """For b_n of two species i, j of equal masses and the mutual link d = d_ij (n_i + n_j >= 3): the
-    coefficients of d^2, e_i d and e_j d, each the chains of three loops (exact) plus the cluster of the
-    n_i-cycle of i with the n_j-cycle of j (`two_loop_table.two_species_cluster`: its link squared and the
-    angle-area part of each cycle's self pairs), scaled from one species' units by the ratio of the
-    clusters' first orders (2 when n_i = n_j, else 1) and signed by the cycles' transpositions about
-    fermions. {monomial: (value, error)}; empty where the table does not reach."""
+def _computed_two_species(gas: _Gas, link: _Link, n) -> dict:
+    """For b_n of two species i, j of equal masses and the mutual link d = d_ij (n_i + n_j >= 4): the
+    coefficient of d^2, the chains of three loops (exact) plus the link squared of the cluster of the
+    n_i-cycle of i with the n_j-cycle of j (`two_loop_table.two_species_cluster`), scaled from one
+    species' units by the ratio of the clusters' first orders (2 when n_i = n_j, else 1) and signed by
+    the cycles' transpositions about fermions. {monomial: (value, error)}; empty where the table does not
+    reach. (The e_i d and e_j d coefficients are exact for any masses: `angle_area`, section 4i.)"""
     from .two_loop_table import two_species_cluster
     i, j = link.i, link.j
     a, b = n[i], n[j]
@@ -369,24 +372,18 @@ def _computed_two_species(gas: _Gas, links: Sequence[_Link], link: _Link, n) -> 
     cluster = two_species_cluster(a, b)
     if cluster is None:
         return {}
-    (square, square_error), (angle_i, error_i), (angle_j, error_j) = cluster
+    square, square_error = cluster[0]
     scale = float(gas.mass[i]) * (2 if a == b else 1) * gas.sign[i] ** (a - 1) * gas.sign[j] ** (b - 1)
     ring, landau = _chain(gas, link, link, n)
-    out = {link.symbol ** 2: (float(ring + landau) + scale * square, abs(scale) * square_error)}
-    for other in links:
-        if other.i == other.j and other.i in (i, j):
-            _, landau = _chain(gas, other, link, n)
-            angle, error = (angle_i, error_i) if other.i == i else (angle_j, error_j)
-            out[other.symbol * link.symbol] = (float(landau) + scale * angle, abs(scale) * error)
-    return out
+    return {link.symbol ** 2: (float(ring + landau) + scale * square, abs(scale) * square_error)}
 
 
 def numerical_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int, int], sympy.Symbol],
                            multi_index: Sequence[int], about="boson") -> dict:
     """{monomial: (value, error bound)} for the second-order Taylor coefficients of b_n that are not
     derived in closed form but computed numerically: the square of the exchange parameter in b_n of
-    one species (n = 4..two_loop_table.SINGLE_CYCLES_CHECKED), and d_ij^2, e_i d_ij, e_j d_ij in b_n of
-    two species of equal masses, |n| >= 4, where the table has the cluster; empty where none is. The
+    one species (n = 4..two_loop_table.SINGLE_CYCLES_CHECKED), and d_ij^2 in b_n of two species of
+    equal masses, |n| >= 4, where the table has the cluster; empty where none is. The
     values are floats with their quadrature error bounds: the tool keeps the coefficient's name and
     shows the number beside it, never in place of it."""
     K = len(species)
@@ -398,7 +395,7 @@ def numerical_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int
         computed = _computed_square(gas, link, n)
         if computed is not None:
             out[link.symbol ** 2] = computed
-        out.update(_computed_two_species(gas, links, link, n))
+        out.update(_computed_two_species(gas, link, n))
     return out
 
 
