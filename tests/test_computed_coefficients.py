@@ -91,10 +91,12 @@ def test_two_equal_cycles_count_twice_and_carry_their_bounds():
 
 
 def test_nothing_computed_where_the_table_does_not_reach():
-    """b_3 is exact (no number), b_7 needs the 7-cycle and the clusters of n = 7 (not computed), a
-    mixture of unequal masses is not covered: no estimate is offered there."""
+    """b_3 is exact (no number), b_n beyond the table (n > SINGLE_CYCLES_CHECKED: the n-cycle alone and
+    the clusters of that n not computed), a mixture of unequal masses is not covered: no estimate is
+    offered there."""
     assert numerical_coefficients([Species(E)], {}, (3,), "boson") == {}
-    assert numerical_coefficients([Species(E)], {}, (7,), "boson") == {}
+    beyond = two_loop_table.SINGLE_CYCLES_CHECKED + 1
+    assert numerical_coefficients([Species(E)], {}, (beyond,), "boson") == {}
     d = sympy.Symbol("d", real=True)
     assert numerical_coefficients([Species(E, 1), Species(None, 2)], {(0, 1): d}, (3, 1), "boson") == {}
 

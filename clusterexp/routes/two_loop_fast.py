@@ -26,6 +26,7 @@ import math
 
 import numpy as np
 
+from . import two_loop_quadrature
 from .two_loop_quadrature import chord_closed_single
 
 SIGMA = 0.15
@@ -374,3 +375,8 @@ def two_loop_parts(p, q, DX=1.0, DY=1.0, link_only=False, tol=1e-7):
         raise NotImplementedError("the angle-area part for unequal masses is not supported yet")
     contact, area = angle_area(p, q, levels, nodes)
     return nseg, G1, link2, contact, area
+
+
+def second_order(p: int, q: int, tol: float = 1e-7) -> dict:
+    """`two_loop_quadrature.second_order` with this engine: the parts normalised by the first order."""
+    return two_loop_quadrature.second_order(p, q, tol, parts=lambda p, q, tol: two_loop_parts(p, q, tol=tol))
