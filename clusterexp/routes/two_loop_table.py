@@ -26,7 +26,7 @@ The independent check of the n = 4 entries is the sampled-loop route of section 
 """
 from __future__ import annotations
 
-SINGLE_CYCLES_CHECKED = 7
+SINGLE_CYCLES_CHECKED = 8
 
 # Per cluster {p-cycle, q-cycle} (p >= q), one species' units: LINK the link squared, ANGLE the angle-area
 # parts carried by the self pairs of the p-cycle and of the q-cycle (value, error bound) each; a 1-cycle
@@ -42,6 +42,10 @@ LINK: dict[tuple[int, int], tuple[float, float]] = {
     (6, 1): (0.3797484, 2e-06),
     (5, 2): (0.3714330, 2e-06),
     (4, 3): (0.3671006, 2e-06),
+    (7, 1): (0.3072395, 2e-06),
+    (6, 2): (0.3362900, 2e-06),
+    (5, 3): (0.3247743, 2e-06),
+    (4, 4): (0.1621801, 2e-06),
 }
 ANGLE: dict[tuple[int, int], tuple[tuple[float, float], tuple[float, float]]] = {
     (3, 1): ((-0.3333332, 2e-06), (0.0, 0.0)),
@@ -54,6 +58,10 @@ ANGLE: dict[tuple[int, int], tuple[tuple[float, float], tuple[float, float]]] = 
     (6, 1): ((-0.4166667, 2e-06), (0.0, 0.0)),
     (5, 2): ((-0.2000000, 2e-06), (-0.0500000, 2e-06)),
     (4, 3): ((-0.1250000, 2e-06), (-0.0833333, 2e-06)),
+    (7, 1): ((-0.4285714, 2e-06), (0.0, 0.0)),
+    (6, 2): ((-0.2083333, 2e-06), (-0.0416667, 2e-06)),
+    (5, 3): ((-0.1333333, 2e-06), (-0.0666667, 2e-06)),
+    (4, 4): ((-0.0468750, 2e-06), (-0.0468750, 2e-06)),
 }
 # the part beyond the chains for one species: the link squared and both angle-area parts, bounds added
 BEYOND: dict[tuple[int, int], tuple[float, float]] = {
