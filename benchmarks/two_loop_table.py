@@ -26,11 +26,11 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 
-import sympy  # noqa: E402
+import sympy
 
-from clusterexp.routes import two_loop_fast, two_loop_quadrature  # noqa: E402
-from clusterexp.routes.cycle_alone import k_cycle_orders  # noqa: E402
-from clusterexp.routes.perturbative import Species, numerical_coefficients  # noqa: E402
+from clusterexp.routes import two_loop_fast, two_loop_quadrature
+from clusterexp.routes.cycle_alone import k_cycle_orders
+from clusterexp.routes.perturbative import Species, numerical_coefficients
 
 TOLERANCES = (1e-6, 1e-7)
 FLOOR = 2e-6

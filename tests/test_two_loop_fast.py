@@ -3,7 +3,6 @@ that do not come from it: exact values derived elsewhere, and the scalar engine'
 import math
 
 import pytest
-
 import sympy
 
 from clusterexp.routes import cycle_alone, two_loop_fast, two_loop_table

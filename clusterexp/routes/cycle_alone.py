@@ -14,7 +14,7 @@ from __future__ import annotations
 
 import math
 import warnings
-from functools import lru_cache
+from functools import cache
 from itertools import combinations
 
 import numpy as np
@@ -24,7 +24,7 @@ from .two_loop_fast import Forms, line_rule, square_rule
 from .two_loop_quadrature import laplace_x_k0
 
 
-@lru_cache(maxsize=None)
+@cache
 def _single(v: float, c: float, tol: float):
     """(first, second)-order parts of one pair whose relative vector has per-component variance v at
     each end and covariance c between its ends."""

@@ -39,7 +39,7 @@ def graded_unit(levels: int, nodes: int):
     cuts = [0.5 * SIGMA ** k for k in range(levels, -1, -1)]
     edges = [0.0] + cuts
     xs, ws = [], []
-    for a, b in zip(edges[:-1], edges[1:]):
+    for a, b in itertools.pairwise(edges):
         xs.append(a + (b - a) * (g + 1) / 2)
         ws.append((b - a) / 2 * w)
     x, wt = np.concatenate(xs), np.concatenate(ws)
@@ -230,8 +230,7 @@ def orbits_of(p: int, q: int):
 def link_squared(p, q, DX, DY, levels, nodes, record=None):
     """The link^2 part of `two_loop_quadrature._parts` (nsub = 1): (segments, G1, link2)."""
     L, orbits = orbits_of(p, q)
-    gam1 = lambda T: 1.0 * (T - 1) / T          # noqa: E731   gamma_T(1)
-    v = DX * gam1(p) + DY * gam1(q)
+    v = DX * (p - 1) / p + DY * (q - 1) / q        # the gap's variance: gamma_T(1) per loop
     G1, G2 = chord_closed_single(1, DX + DY, v), chord_closed_single(2, DX + DY, v)
     assert abs(G1 + math.pi * (DX + DY)) < 1e-7, G1
     nseg = L * len(orbits)
