@@ -281,7 +281,7 @@ def link_squared(p, q, DX, DY, levels, nodes, record=None):
             (a0, b0), j = a[1], a[2]
             (a1, b1), k = b[1], b[2]
             for dZ, T, o0, o1 in ((DX, p, a0, a1), (DY, q, b0, b1)):
-                if any(o1 - o0 + n * T - (j - k) == 0 for n in range(-3, 4)):
+                if (o1 - o0 - (j - k)) % T == 0:       # equal times on the loop: x - y = 0
                     delta += dZ
         ls = None
         if delta:

@@ -127,7 +127,7 @@ def _parts(p, q, DX, DY, link_only, nsub, TOL):
             (a1, b1), k = pc2[1], pc2[2]
             for dZ, T, o0, o1 in ((DX, p, a0, a1), (DY, q, b0, b1)):
                 # equal points: s + o0 = s' + o1 + n T, s = (j + x) ell, s' = (k + y) ell  ->  x - y = m
-                for n in range(-3, 4):
+                for n in range(-(L + T) // T - 1, (L + T) // T + 2):   # every lap of the loop within L
                     m = (o1 - o0 + n * T) / ell - (j - k)
                     if abs(m) < 1 - 1e-12:
                         lo, hi = max(0.0, m), min(1.0, 1 + m)
