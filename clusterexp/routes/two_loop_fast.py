@@ -212,6 +212,12 @@ def _crossing(a, b, loops):
     return x, y
 
 
+def _same_edge_reversed(a, b, L: int) -> bool:
+    """Two whole chords over the same two points of one link curve, run opposite ways."""
+    return (a[0] == b[0] == "line" and len(a) == len(b) == 4 and a[1] == b[1] and a[2] % L != a[3] % L
+            and a[2] % L == b[3] % L and a[3] % L == b[2] % L)
+
+
 def _split(pc, cut):
     return [pc + ((0.0, cut),), pc + ((cut, 1.0),)]
 
@@ -269,8 +275,7 @@ def link_squared(p, q, DX, DY, levels, nodes, record=None):
                 for b2 in _split(b, cross[1]):
                     pairs[(a2, b2)] = [w, wl]
     for (a, b), (w, wl) in pairs.items():
-        rev = a[0] == b[0] == "line" and len(a) == len(b) == 4 and a[1] == b[1] and a[2] % L == b[3] % L and a[3] % L == b[2] % L \
-            and a[2] % L != a[3] % L
+        rev = _same_edge_reversed(a, b, L)
         Pa, Ea = _piece(a, "x")
         Pb, Eb = _piece(b, "y", rev)
         U = Pa + _neg(Pb)
@@ -289,8 +294,8 @@ def link_squared(p, q, DX, DY, levels, nodes, record=None):
             line_forms.add(U, U, ls)
         plan.append((s, w, wl * (math.pi * (DX + DY)) ** 2 / (2 * math.pi), w * delta, ls, (a, b)))
     forms.compile(); line_forms.compile()
-    x, y, wt = square_rule(levels, nodes)
-    vals = forms.evaluate(x, y)
+    u, y, wt = square_rule(levels, nodes)
+    vals = forms.evaluate(u, y)
     xl, wlin = line_rule()
     lvals = line_forms.evaluate(0 * xl, xl) if line_forms.nslots else None
     total = nseg * G2
@@ -343,8 +348,8 @@ def angle_area(p, q, levels, nodes):
                             line_forms.add(A, B, ls)
                             lplan.append((Z, 0.5 * sg * sgnZ / vA, ls))
     forms.compile(); line_forms.compile()
-    x, y, wt = square_rule(levels, nodes)
-    vals = forms.evaluate(x, y)
+    u, y, wt = square_rule(levels, nodes)
+    vals = forms.evaluate(u, y)
     xl, wlin = line_rule()
     lvals = line_forms.evaluate(0 * xl, xl)
     area = {"X": 0.0, "Y": 0.0}
