@@ -1,16 +1,21 @@
 """The table of computed two-loop clusters (clusterexp/routes/two_loop_table.py): regenerate its entries
 and measure what each costs as n = p + q grows.
 
-Run:  python benchmarks/two_loop_table.py 3,1 2,2 4,1 ...     (minutes per cluster; one core each)
+Run:  python benchmarks/two_loop_table.py 3,1 2,2 4,1 ...     (seconds to minutes per cluster; one core)
       python benchmarks/two_loop_table.py --n 5                (every cluster {p, q} with p + q = 5)
+      python benchmarks/two_loop_table.py --scalar 2,2         (the scalar engine beside the vectorised one)
+      python benchmarks/two_loop_table.py --cycles 7 8         (the k-cycles alone, routes/cycle_alone.py)
 
-For each cluster {p-cycle, q-cycle} the quadrature engine (clusterexp/routes/two_loop_quadrature.py) runs
-at the tolerances 1e-6 and 1e-7; the lines printed for the table are the 1e-7 values of the part beyond
-the chains (link^2 + angle-area, one species), of link^2 and of the angle-area parts of each cycle (two
-species), each with the error bound max(10 |change between the tolerances|, 2e-6) of two_loop_table.py. The rational parts the same run computes (the H F contact part and the angle-area
-part) are printed beside their exact values as a check of the run. Side by side, the lookup the package
-does instead (`perturbative.numerical_coefficients`, what `expand` and `claim` call) is timed on the same
-n: the ratio is what the table saves a user.
+For each cluster {p-cycle, q-cycle} the vectorised engine (clusterexp/routes/two_loop_fast.py) runs with
+its rules for the tolerances 1e-6 and 1e-7; the lines printed for the table are the 1e-7 values of the
+part beyond the chains (link^2 + angle-area, one species), of link^2 and of the angle-area parts of each
+cycle (two species), each with the error bound max(10 |change between the rules|, 2e-6) of
+two_loop_table.py (the floor covers the largest difference with the scalar engine on n = 4..6, 5e-7).
+The rational parts the same run computes (the H F contact part and the angle-area part) are printed
+beside their exact values as a check of the run. With --scalar the scalar engine
+(clusterexp/routes/two_loop_quadrature.py) runs first at the same tolerances and the ratio of wall
+times is printed. Side by side, the lookup the package does instead (`perturbative.numerical_coefficients`,
+what `expand` and `claim` call) is timed on the same n.
 """
 from __future__ import annotations
 
@@ -21,10 +26,11 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 
-import sympy  # noqa: E402
+import sympy
 
-from clusterexp.routes.perturbative import Species, numerical_coefficients  # noqa: E402
-from clusterexp.routes.two_loop_quadrature import second_order  # noqa: E402
+from clusterexp.routes import two_loop_fast, two_loop_quadrature
+from clusterexp.routes.cycle_alone import k_cycle_orders
+from clusterexp.routes.perturbative import Species, numerical_coefficients
 
 TOLERANCES = (1e-6, 1e-7)
 FLOOR = 2e-6
@@ -42,19 +48,50 @@ def _near_rational(x: float) -> str:
     return f"{x:.9f} (~{f}, off {abs(x - float(f)):.1e})"
 
 
-def main(argv) -> None:
-    e = sympy.Symbol("e", real=True)
-    print("# benchmarks/two_loop_table.py: the quadrature engine per cluster, at two tolerances (wall seconds)")
-    for p, q in _clusters(argv):
-        runs = []
-        for tol in TOLERANCES:
+def _run(engine, name, p, q):
+    runs = []
+    for tol in TOLERANCES:
+        start = time.perf_counter()
+        parts = engine(p, q, tol=tol)
+        runs.append((tol, time.perf_counter() - start, parts))
+        print(f"{{{p},{q}}} n={p + q} {name} tol={tol:g}: {runs[-1][1]:8.1f} s  link2 {parts['link2']:.10f}  "
+              f"contact {_near_rational(parts['contact'])}  angle-area of the {p}-cycle "
+              f"{_near_rational(parts['angle_p'])}, of the {q}-cycle {_near_rational(parts['angle_q'])}  "
+              f"beyond {parts['beyond']:.10f}", flush=True)
+    return runs
+
+
+def _cycles(ks) -> None:
+    z = sympy.Symbol("z")
+    for k in ks:
+        ring = sympy.Rational(1, 2) * sympy.series(sympy.log(1 - z) ** 2 * z / (1 - z), z, 0, k + 1).removeO().coeff(z, k)
+        values = []
+        for rule in ((8, 8), (10, 12)):
             start = time.perf_counter()
-            parts = second_order(p, q, tol=tol)
-            runs.append((tol, time.perf_counter() - start, parts))
-            print(f"{{{p},{q}}} n={p + q} tol={tol:g}: {runs[-1][1]:8.1f} s  link2 {parts['link2']:.10f}  "
-                  f"contact {_near_rational(parts['contact'])}  angle-area of the {p}-cycle "
-                  f"{_near_rational(parts['angle_p'])}, of the {q}-cycle {_near_rational(parts['angle_q'])}  "
-                  f"beyond {parts['beyond']:.10f}", flush=True)
+            first, second = k_cycle_orders(k, *rule)
+            values.append(second)
+            print(f"{k}-cycle alone, rule {rule}: {time.perf_counter() - start:6.1f} s  first order {first:.12f}  "
+                  f"second order {second:.12f}  Fock-squared ring part {ring} = {float(ring):.12f}  "
+                  f"difference {second - float(ring):.1e}", flush=True)
+        print(f"  change between the rules {abs(values[1] - values[0]):.1e}", flush=True)
+
+
+def main(argv) -> None:
+    if argv[:1] == ["--cycles"]:
+        _cycles([int(k) for k in argv[1:]])
+        return
+    scalar = argv[:1] == ["--scalar"]
+    argv = argv[1:] if scalar else argv
+    e = sympy.Symbol("e", real=True)
+    print("# benchmarks/two_loop_table.py: the engine per cluster, at two tolerances (wall seconds)")
+    for p, q in _clusters(argv):
+        if scalar:
+            slow = _run(lambda p, q, tol: two_loop_quadrature.second_order(p, q, tol), "scalar", p, q)
+        runs = _run(two_loop_fast.second_order, "vectorised", p, q)
+        if scalar:
+            for (tol, t_slow, a), (_, t_fast, b) in zip(slow, runs):
+                print(f"  tol {tol:g}: scalar / vectorised wall time = {t_slow / t_fast:.0f}; link2 differs by "
+                      f"{abs(a['link2'] - b['link2']):.1e}, beyond by {abs(a['beyond'] - b['beyond']):.1e}", flush=True)
         for key in ("beyond", "link2", "angle_p", "angle_q"):
             change = abs(runs[1][2][key] - runs[0][2][key])
             print(f"  table entry {key}: ({p}, {q}): ({runs[1][2][key]:.7f}, {max(10 * change, FLOOR):.0e}),   "

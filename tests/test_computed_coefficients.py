@@ -75,6 +75,33 @@ def test_the_two_species_bookkeeping_gives_the_derived_pair_with_one(monkeypatch
             assert abs(value - float(derived[monomial])) < 1e-12 and error == 0, (monomial, value)
 
 
+@pytest.mark.parametrize("n", [7, 8])
+def test_b7_b8_square_are_the_chains_plus_the_table(n):
+    """numerical_coefficients at n = 7, 8 (the vectorised engine's entries, section 4h): the exact chains
+    plus every cluster {p, n - p} of the table, sign (-1)^n about fermions. Bookkeeping only (the code
+    against its own table); the outside checks of the engine are tests/test_two_loop_fast.py (exact
+    {2-cycle, loop} values, equal and unequal masses, and the scalar engine's n = 4 entry) and of the
+    n-cycle alone its Fock-squared ring part (routes/cycle_alone.py, docs 4h)."""
+    clusters = [(p, n - p) for p in range((n + 1) // 2, n)]
+    beyond = sum(two_loop_table.BEYOND[c][0] for c in clusters)
+    for about in ("boson", "fermion"):
+        value, error = numerical_coefficients([Species(E)], {}, (n,), about)[E ** 2]
+        assert abs(value - _b_square(n, about, beyond)) < 1e-12
+        assert 0 < error < 1e-4
+
+
+def test_expand_prints_numbers_through_the_eighth_virial_coefficient():
+    """`virial up to 8` with `expand alpha about 0 to 2`: a[8] gets its series with the computed
+    coefficients, and b_8's coefficient is listed with its value (10.41010, docs/perturbative.md 4h)."""
+    out = _run(ONE_SPECIES.replace("virial up to 4", "virial up to 8") + "expand alpha about 0 to 2")
+    assert out.returncode == 0, out.stderr
+    lines = out.stdout.splitlines()
+    at = next(i for i, x in enumerate(lines) if x.strip().startswith("a[8] ="))
+    assert "with the computed coefficients" in lines[at + 2]
+    assert "b_8_alpha_2_above = coefficient of alpha^2 in b[8] about alpha = 0 from above; computed: 10.410" \
+        in out.stdout
+
+
 def test_two_equal_cycles_count_twice_and_carry_their_bounds():
     """n_i = n_j: the two-species cluster of two 2-cycles has twice the first order of the one-species
     {2-cycle, 2-cycle} (-|d|/4 against -1/8), so twice its link squared, bound too; the chains add
@@ -92,10 +119,12 @@ def test_two_equal_cycles_count_twice_and_carry_their_bounds():
 
 
 def test_nothing_computed_where_the_table_does_not_reach():
-    """b_3 is exact (no number), b_7 needs the 7-cycle and the clusters of n = 7 (not computed), a
-    mixture of unequal masses is not covered: no estimate is offered there."""
+    """b_3 is exact (no number), b_n beyond the table (n > SINGLE_CYCLES_CHECKED: the n-cycle alone and
+    the clusters of that n not computed), a mixture of unequal masses is not covered: no estimate is
+    offered there."""
     assert numerical_coefficients([Species(E)], {}, (3,), "boson") == {}
-    assert numerical_coefficients([Species(E)], {}, (7,), "boson") == {}
+    beyond = two_loop_table.SINGLE_CYCLES_CHECKED + 1
+    assert numerical_coefficients([Species(E)], {}, (beyond,), "boson") == {}
     d = sympy.Symbol("d", real=True)
     assert numerical_coefficients([Species(E, 1), Species(None, 2)], {(0, 1): d}, (3, 1), "boson") == {}
 

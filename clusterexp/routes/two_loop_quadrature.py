@@ -129,7 +129,7 @@ def _parts(p, q, DX, DY, link_only, nsub, TOL, cross_only=False):
             (a1, b1), k = pc2[1], pc2[2]
             for dZ, T, o0, o1 in ((DX, p, a0, a1), (DY, q, b0, b1)):
                 # equal points: s + o0 = s' + o1 + n T, s = (j + x) ell, s' = (k + y) ell  ->  x - y = m
-                for n in range(-3, 4):
+                for n in range(-(L + T) // T - 1, (L + T) // T + 2):   # every lap of the loop within L
                     m = (o1 - o0 + n * T) / ell - (j - k)
                     if abs(m) < 1 - 1e-12:
                         lo, hi = max(0.0, m), min(1.0, 1 + m)
@@ -215,13 +215,18 @@ def first_order_share(p: int, q: int) -> float:
     return -1 / (p * q) if p != q else -1 / (2 * p * p)
 
 
-def second_order(p: int, q: int, tol: float = 1e-8) -> dict:
+def second_order(p: int, q: int, tol: float = 1e-8, parts=None) -> dict:
     """The alpha^2 coefficients of the cluster {p-cycle, q-cycle} in b_{p+q} (one species, equal masses,
     about bosons), normalised by its first order: {"link2", "contact", "angle_area", "total"}; "contact"
     is the Hartree-Fock ring's H F part (a rational number), "beyond" = total - contact the part the
     chains of three loops do not carry; "angle_p", "angle_q" the angle-area part split by the cycle whose
-    self pairs carry the angle (for two species, the coefficients of e_i d and e_j d)."""
-    segments, first, link2, contact, angle_area = two_loop_parts(p, q, TOL=tol)
+    self pairs carry the angle (for two species, the coefficients of e_i d and e_j d). parts: the engine,
+    a function (p, q, tol) -> the tuple of `two_loop_parts` (by default this module's scalar one;
+    `two_loop_fast.second_order` passes the vectorised one)."""
+    if parts is None:
+        segments, first, link2, contact, angle_area = two_loop_parts(p, q, TOL=tol)
+    else:
+        segments, first, link2, contact, angle_area = parts(p, q, tol)
     norm = first_order_share(p, q) / (segments * first)
     parts = {"link2": norm * link2, "contact": norm * contact,
              "angle_p": -2 * math.pi * norm * angle_area['X'], "angle_q": -2 * math.pi * norm * angle_area['Y']}
