@@ -196,9 +196,24 @@ def _definitions(system, index, piece=None) -> list[tuple[str, sympy.Expr]]:
     out.append(("smooth", system.reference_mass))
     for i, j in itertools.combinations(occupied, 2):
         out.append(("mutual", system.mutual(names[i], names[j])))
-    if system.tubes is not None:
+    if system.tubes is not None and not tube_free(system, piece):
         out += [("flux", system.tubes.flux), ("smooth", system.tubes.coverage)]
     return out
+
+
+def tube_free(system, symbol) -> bool:
+    """Whether `symbol` is the value at zero tube coverage of a generated piece: the piece of the gas
+    without tubes, a function of no flux (its Taylor coefficients are the tube-free ones)."""
+    if system.tubes is None or not isinstance(symbol, sympy.Symbol):
+        return False
+    coverage = {s.name for s in sympy.sympify(system.tubes.coverage).free_symbols}
+    found = False
+    while symbol.name in _NAMED:
+        unknown = _NAMED[symbol.name]
+        if any(v.name not in coverage or k or p != 0 for v, p, k, _ in unknown.monomial):
+            return False
+        found, symbol = True, unknown.piece
+    return found and bool(_PIECE.match(symbol.name))
 
 
 _PERIODS = {"exchange": 2, "mutual": 1, "flux": 1}
@@ -271,8 +286,8 @@ def expand_pieces(system, value: sympy.Expr, variables: Sequence[tuple[sympy.Sym
         derived = derived_taylor(system, piece, used)
         if derived is not None and derived[1] >= 1 and notes is not None:
             reach = f"{derived[1] - 1}, partly {derived[1]}," if derived[2] else f"{derived[1]}"
-            notes.append(f"{piece_label(piece)} through order {reach} from the perturbative route "
-                         "(docs/perturbative.md)")
+            source = "docs/tubes.md" if system.tubes is not None and _tube_piece(piece) else "docs/perturbative.md"
+            notes.append(f"{piece_label(piece)} through order {reach} from the perturbative route ({source})")
         for powers in itertools.product(*(range(k + 1) for _, _, k, _ in used)):
             monomial = tuple((v, p, e, s) for (v, p, _, s), e in zip(used, powers))
             coefficient = value_at(system, piece, {v: p for v, p, _, _ in used}) if not any(powers) else None
@@ -329,50 +344,44 @@ def derived_taylor(system, piece: sympy.Symbol, used) -> tuple[dict, int, frozen
     {power: (value, error bound)} for those of them computed numerically), or None
     where it does not apply: every pair
     phase of the piece's species must sit at a boson or fermion point (mutual: an integer) at the
-    expansion point, each deviation linear in one expansion variable, masses rational, no tubes."""
+    expansion point, each deviation linear in one expansion variable, masses rational. Among tubes: the
+    value at zero coverage of a b piece (the tube-free piece), and the tube pieces themselves about an
+    integer flux (`routes.tube_perturbative`, docs/tubes.md)."""
     from .routes import regime_of
     from .routes.perturbative import Species as Perturbed, numerical_coefficients, taylor_coefficients
-    if piece.name in _NAMED or not piece.name.startswith("b_") or system.tubes is not None \
-            or not regime_of(system).named_pieces:
+    if not regime_of(system).named_pieces:
         return None
-    index = piece_index(piece, len(system.species))
+    tube = _tube_piece(piece) if system.tubes is not None and piece.name not in _NAMED else None
+    if tube is None and (not _root(piece)[0].name.startswith("b_")
+                         or ((piece.name in _NAMED or system.tubes is not None) and not tube_free(system, piece))):
+        return None
     point = {v: sympy.sympify(p) for v, p, _, _ in used}
     shift = {v: sympy.Symbol(f"u_{v.name}") for v in point}
     side = {v: s for v, _, _, s in used}
-    occupied = [i for i, n in enumerate(index) if n]
-    deviations = {}   # perturbative symbol -> (deviation in the shifts, sign of |deviation| on the side)
+    shifts = [shift[v] for v, _, _, _ in used]
+    order = min(max(k for _, _, k, _ in used), 2)
 
     def deviation(expr):
-        expr = sympy.sympify(expr)
-        at = expr.subs(point)
-        if not at.is_Integer or not expr.free_symbols <= set(point):
-            return None
-        dev = sympy.expand(expr.subs({v: point[v] + shift[v] for v in point}) - at)
-        if dev == 0:
-            return at, None
-        variables = [v for v in point if dev.has(shift[v])]
-        if len(variables) != 1 or not dev.is_polynomial(shift[variables[0]]) \
-                or sympy.degree(dev, shift[variables[0]]) != 1:
-            return None
-        slope = dev.coeff(shift[variables[0]])
-        if not slope.is_Rational:
-            return None
-        if side[variables[0]] is None:   # analytic there: no |deviation| may appear (checked below)
-            return at, (dev, None)
-        sign = (1 if slope > 0 else -1) * (1 if side[variables[0]] == "above" else -1)
-        return at, (dev, sign)
+        return _deviation(expr, point, shift, side)
 
-    m_ref = system.reference_mass
+    def mass(m):   # a mass in units of m_ref at the point, or None
+        if sympy.sympify(m / system.reference_mass).free_symbols & set(point):
+            return None   # a mass that moves with the expansion variable: not the route's expansion
+        m = sympy.sympify(m / system.reference_mass).subs(point)
+        return m if m.is_Rational and m > 0 else None
+    if tube is not None:
+        return _tube_taylor(system, tube, deviation, mass, order, shifts)
+    index = piece_index(piece, len(system.species))
+    occupied = [i for i, n in enumerate(index) if n]
+    deviations = {}   # perturbative symbol -> (deviation in the shifts, sign of |deviation| on the side)
     species, about = [], []
     names = system.species_names
     for i, s in enumerate(system.species):
-        if sympy.sympify(s.mass / m_ref).free_symbols & set(point):
-            return None   # a mass that moves with the expansion variable: not the route's expansion
-        mass = sympy.sympify(s.mass / m_ref).subs(point)
-        if not (mass.is_Rational and mass > 0):
+        m = mass(s.mass)
+        if m is None:
             return None
         if i not in occupied:
-            species.append(Perturbed(None, mass))
+            species.append(Perturbed(None, m))
             about.append("boson")
             continue
         found = deviation(s.exchange)
@@ -383,7 +392,7 @@ def derived_taylor(system, piece: sympy.Symbol, used) -> tuple[dict, int, frozen
         symbol = sympy.Symbol(f"e_{i}", real=True) if dev else None
         if dev:
             deviations[symbol] = dev
-        species.append(Perturbed(symbol, mass))
+        species.append(Perturbed(symbol, m))
     mutual = {}
     for i, j in itertools.combinations(occupied, 2):
         found = deviation(system.mutual(names[i], names[j]))
@@ -392,10 +401,69 @@ def derived_taylor(system, piece: sympy.Symbol, used) -> tuple[dict, int, frozen
         if found[1]:
             mutual[(i, j)] = sympy.Symbol(f"d_{i}_{j}", real=True)
             deviations[mutual[(i, j)]] = found[1]
-    order = min(max(k for _, _, k, _ in used), 2)
     terms = taylor_coefficients(species, mutual, index, tuple(about), order, unknown="name")
     numbers = numerical_coefficients(species, mutual, index, tuple(about)) if order >= 2 else {}
-    shifts = [shift[v] for v, _, _, _ in used]
+    found = _in_shifts(terms, numbers, deviations, shifts)
+    return None if found is None else (found[0], order, found[1], found[2])
+
+
+def _deviation(expr, point, shift, side):
+    """(value at the point, (deviation linear in one shift, sign of |deviation| on the side) or None when
+    it does not move), or None where the route does not apply (not an integer there, not linear)."""
+    expr = sympy.sympify(expr)
+    at = expr.subs(point)
+    if not at.is_Integer or not expr.free_symbols <= set(point):
+        return None
+    dev = sympy.expand(expr.subs({v: point[v] + shift[v] for v in point}) - at)
+    if dev == 0:
+        return at, None
+    variables = [v for v in point if dev.has(shift[v])]
+    if len(variables) != 1 or not dev.is_polynomial(shift[variables[0]]) \
+            or sympy.degree(dev, shift[variables[0]]) != 1:
+        return None
+    slope = dev.coeff(shift[variables[0]])
+    if not slope.is_Rational:
+        return None
+    if side[variables[0]] is None:   # analytic there: no |deviation| may appear (checked below)
+        return at, (dev, None)
+    sign = (1 if slope > 0 else -1) * (1 if side[variables[0]] == "above" else -1)
+    return at, (dev, sign)
+
+
+def _tube_taylor(system, tube, deviation, mass, order, shifts):
+    """derived_taylor for a tube piece: about an integer flux and, for the anyon piece, the anyons'
+    boson or fermion point, for the braid piece an integer mutual parameter (docs/tubes.md)."""
+    from .routes.tube_perturbative import EXCHANGE, FLUX, MUTUAL, tube_coefficients
+    kind, about, masses, deviations = "two_tubes", "boson", (1, 1), {}
+    wanted = [(FLUX, system.tubes.flux)]
+    if tube.species is not None:
+        kind = "anyon"
+        wanted.append((EXCHANGE, system.species[system.species_names.index(tube.species)].exchange))
+    elif tube.pair is not None:
+        kind = "braid"
+        pair = tube.pair_of(system)
+        wanted.append((MUTUAL, system.mutual(*pair)))
+        masses = tuple(mass(system.species[system.species_names.index(name)].mass) for name in pair)
+        if None in masses:
+            return None
+    for symbol, expr in wanted:
+        found = deviation(expr)
+        if found is None:
+            return None
+        if symbol is EXCHANGE:
+            about = "boson" if found[0] % 2 == 0 else "fermion"
+        if found[1]:
+            deviations[symbol] = found[1]
+    still = {x: 0 for x in (FLUX, EXCHANGE, MUTUAL) if x not in deviations}
+    terms = {m.xreplace(still): v for m, v in tube_coefficients(kind, about, masses, order).items()}
+    found = _in_shifts({m: v for m, v in terms.items() if m != 0}, {}, deviations, shifts)
+    return None if found is None else (found[0], order, found[1], found[2])
+
+
+def _in_shifts(terms, numbers, deviations, shifts):
+    """The route's {monomial: value} in the expansion variables' shifts: ({powers: value} known,
+    the powers not derived, {powers: (value, error bound)} computed), or None where a |deviation| meets
+    a point the caller took for analytic."""
     estimates, unestimated = {}, set()
     polynomial, missing = sympy.Integer(0), set()
     for monomial, value in terms.items():
@@ -422,7 +490,7 @@ def derived_taylor(system, piece: sympy.Symbol, used) -> tuple[dict, int, frozen
     # a power is estimated only when every coefficient that reaches it is; the known part adds exactly
     estimates = {powers: (value + float(polynomial.coeff_monomial(powers)), error)
                  for powers, (value, error) in estimates.items() if powers not in unestimated}
-    return known, order, frozenset(missing), estimates
+    return known, frozenset(missing), estimates
 
 
 def side_in_range(parameters: Iterable, symbol: sympy.Symbol, point) -> str | None:

@@ -300,3 +300,26 @@ def estimate_anyons_tube(points, kind: str = "identical", *, samples: int | None
     per_round = batch * len(families)
     return _finish("anyons_tube_" + kind, pts, table, rounds, seconds, per_round, slices, depth, seed,
                    target_error, rows)
+
+
+def flux_parts(kind: str, base: float, h: float, rounds: int, *, seed: int = 0, slices: int = DEFAULT_SLICES,
+               batch: int = DEFAULT_BATCH) -> tuple[Estimate, Estimate]:
+    """The parts odd and even in the flux of the first order in the coverage at the points (base + h,
+    +-h): kind "identical" (b_2 of anyons, parameter alpha) or "distinct" (b_11, parameter alpha_12, both
+    species feeling the flux), equal masses. Both signs are evaluated on the same loops and each part's
+    bar is the scatter of its per-batch values, far below the two values' bars for the odd part (checks
+    of the small-flux Taylor coefficients, docs/tubes.md)."""
+    if kind not in ("identical", "distinct"):
+        raise LoopsError(f"unknown kind {kind!r}: 'identical' or 'distinct'")
+    if kind == "identical":
+        points = [(base + h, h), (base + h, -h)]
+        weights = {"pair_tube": 0.5, "swap_tube": 0.25}     # b_2's weights (docs/tubes.md (ii))
+    else:
+        points = [(base + h, h, h), (base + h, -h, -h)]
+        weights = {"pair_tube": 1.0}
+    odd, even = [], []
+    for r in range(rounds):
+        b = sum(w * run_batch(f, r, batch, slices, seed, points, DEPTH, None)[f] for f, w in weights.items())
+        odd.append((b[0] - b[1]) / 2)
+        even.append((b[0] + b[1]) / 2)
+    return tuple(Estimate(float(np.mean(x)), float(np.std(x, ddof=1) / math.sqrt(rounds))) for x in (odd, even))

@@ -1,0 +1,105 @@
+"""Taylor coefficients of the tube pieces (`routes.tube_pieces`) about zero flux and the boson/fermion
+point, through second order, from the perturbative route's mixtures (`routes.perturbative`) with one
+species made infinitely heavy (docs/tubes.md, "Small fluxes from an infinitely heavy species").
+
+A static tube of flux f is a particle of a species H of infinite mass whose mutual parameter with every
+mobile species is f. Poisson tubes of coverage n are an ideal classical gas of H at fugacity z_H with
+n = z_H b_{e_H}, b_{e_H} = M/m_ref. The mixture's ln Xi averages the mobile gas over the tube positions
+with the weight the tubes' own partition function gives (an annealed average), the tube pieces are
+defined with ln Xi of the mobile gas averaged at fixed tubes (quenched). With Delta(R) = ln Xi(R) -
+ln Xi(no tube) for one tube at R, the annealed one-tube term is n int d^2R (e^Delta - 1)/lambda^2, the
+quenched one n int d^2R Delta/lambda^2. The one-tube shift of one loop, s = -|f|(1 - |f|)/2, does not
+depend on R (the particle's start point is integrated), so at z_i z_j the two differ by s_i s_j
+(1/2 s^2 at z_i^2), which is f^2/4 (f^2/8) at second order:
+
+  B_anyon_tube_A(e, f) = lim_{M -> inf} b_{2 e_A + e_H}/b_{e_H} - s^2/2,
+  B_braid_tube_A_B(d, f) = lim b_{e_A + e_B + e_H}/b_{e_H} - s^2,
+  T_two_tubes(f) = lim 2 (m_A/m_ref) b_{e_A + 2 e_H}/b_{e_H}^2          (one mobile particle: no difference).
+
+The mixture coefficients are exact rational functions of M; the limit is read off by exact polynomial
+interpolation in 1/M through `NODES` (every term of the route is a polynomial of low degree in 1/M) and
+checked at one more node, so a term that is not such a polynomial stops with an internal error instead
+of a wrong limit.
+"""
+from __future__ import annotations
+
+import sympy
+
+from .perturbative import Species, taylor_coefficients
+
+FLUX = sympy.Symbol("f", real=True)          # deviation of the flux from an integer
+EXCHANGE = sympy.Symbol("e", real=True)      # deviation of the anyons' exchange parameter from its point
+MUTUAL = sympy.Symbol("d", real=True)        # deviation of the braid pair's mutual parameter from an integer
+KINDS = ("two_tubes", "anyon", "braid")
+NODES = (1, 2, 3, 4, 5, 6)                   # heavy masses M (units of m_ref); the last one checks the rest
+
+
+def _heavy(kind: str, M: int, about: str, masses) -> dict:
+    """{monomial: Rational} of the mixture coefficient with a heavy species of mass M, divided by the
+    tube factor (b_{e_H}, or b_{e_H}^2 / (2 m_A) for two tubes), the heavy links renamed to the flux."""
+    g = [sympy.Symbol(f"g_{k}", real=True) for k in range(2)]
+    if kind == "two_tubes":
+        species = [Species(None, masses[0]), Species(None, M)]
+        terms = taylor_coefficients(species, {(0, 1): g[0]}, (1, 2), ("boson", "boson"), 2)
+        scale = sympy.Rational(2) * sympy.Rational(masses[0]) / M ** 2
+    elif kind == "anyon":
+        species = [Species(EXCHANGE, masses[0]), Species(None, M)]
+        terms = taylor_coefficients(species, {(0, 1): g[0]}, (2, 1), (about, "boson"), 2)
+        scale = sympy.Rational(1, M)
+    else:
+        species = [Species(None, masses[0]), Species(None, masses[1]), Species(None, M)]
+        terms = taylor_coefficients(species, {(0, 1): MUTUAL, (0, 2): g[0], (1, 2): g[1]}, (1, 1, 1),
+                                    ("boson",) * 3, 2)
+        scale = sympy.Rational(1, M)
+    total = sympy.expand(sum(scale * value * monomial for monomial, value in terms.items()))
+    return sympy.expand(total.xreplace({g[0]: FLUX, g[1]: FLUX}))
+
+
+def _limit(values: list[sympy.Rational]) -> sympy.Rational:
+    """The value at x = 0 of the polynomial through (1/M, value) at the nodes but the last, which must
+    lie on it too (exact Lagrange interpolation)."""
+    xs = [sympy.Rational(1, M) for M in NODES]
+
+    def through(points, x):
+        out = sympy.Integer(0)
+        for a, (xa, ya) in enumerate(points):
+            weight = sympy.Integer(1)
+            for b, (xb, _) in enumerate(points):
+                if b != a:
+                    weight *= (x - xb) / (xa - xb)
+            out += ya * weight
+        return out
+    fit = list(zip(xs[:-1], values[:-1]))
+    if through(fit, xs[-1]) != values[-1]:
+        raise RuntimeError("static limit: a mixture coefficient is not a polynomial of low degree in 1/M "
+                           "(internal error, docs/tubes.md)")
+    return through(fit, sympy.Integer(0))
+
+
+def tube_coefficients(kind: str, about: str = "boson", masses=(1, 1), order: int = 2) -> dict:
+    """{monomial: Rational} of the tube piece `kind` ("two_tubes", "anyon", "braid") through `order`
+    (0, 1 or 2) in FLUX (the flux minus an integer), EXCHANGE (the anyons' exchange parameter minus
+    their point `about`, "boson" or "fermion") and MUTUAL (the braid pair's mutual parameter minus an
+    integer), |x| for the kinks; masses: the mobile species' masses (m_A, m_B) in units of m_ref (exact).
+    Monomials absent from the dict have coefficient 0."""
+    if kind not in KINDS:
+        raise ValueError(f"kind must be one of {KINDS}, got {kind!r}")
+    if order not in (0, 1, 2):
+        raise ValueError(f"order must be 0, 1 or 2, got {order!r}")
+    per_node = [sympy.Poly(_heavy(kind, M, about, masses), *sorted(
+        {FLUX, EXCHANGE, MUTUAL, sympy.Abs(FLUX), sympy.Abs(EXCHANGE), sympy.Abs(MUTUAL)}, key=str))
+        for M in NODES]
+    monomials = sorted(set().union(*(p.monoms() for p in per_node)))
+    gens = per_node[0].gens
+    out = {}
+    for powers in monomials:
+        value = _limit([p.coeff_monomial(powers) for p in per_node])
+        monomial = sympy.Mul(*(g ** k for g, k in zip(gens, powers)))
+        degree = sum(powers)
+        if value != 0 and degree <= order:
+            out[monomial] = out.get(monomial, 0) + value
+    if order >= 2:   # quenched, not annealed: s = -|f|(1 - |f|)/2 per loop, s^2/2 (anyons) or s^2 (braid)
+        quenched = {"anyon": sympy.Rational(1, 8), "braid": sympy.Rational(1, 4)}.get(kind, 0)
+        out[FLUX ** 2] = out.get(FLUX ** 2, 0) - quenched
+    return {m: v for m, v in out.items() if v != 0}
+
