@@ -314,6 +314,7 @@ def value_at(system, piece: sympy.Symbol, point: Mapping) -> sympy.Expr | None:
     else None. The pieces are continuous there, so this is also the order-0 Taylor coefficient from
     either side."""
     import dataclasses
+
     from .routes import regime_of
     from .routes.pairphase import two_body_clusters
     if piece.name in _NAMED or not regime_of(system).named_pieces:
@@ -348,7 +349,8 @@ def derived_taylor(system, piece: sympy.Symbol, used) -> tuple[dict, int, frozen
     value at zero coverage of a b piece (the tube-free piece), and the tube pieces themselves about an
     integer flux (`routes.tube_perturbative`, docs/tubes.md)."""
     from .routes import regime_of
-    from .routes.perturbative import Species as Perturbed, numerical_coefficients, taylor_coefficients
+    from .routes.perturbative import Species as Perturbed
+    from .routes.perturbative import numerical_coefficients, taylor_coefficients
     if not regime_of(system).named_pieces:
         return None
     tube = _tube_piece(piece) if system.tubes is not None and piece.name not in _NAMED else None

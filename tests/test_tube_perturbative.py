@@ -15,7 +15,10 @@ import pytest
 import sympy
 
 from clusterexp.loops.tube_estimates import flux_parts
-from clusterexp.routes.tube_perturbative import EXCHANGE as e, FLUX as f, MUTUAL as d, tube_coefficients
+from clusterexp.routes.tube_perturbative import EXCHANGE as e
+from clusterexp.routes.tube_perturbative import FLUX as f
+from clusterexp.routes.tube_perturbative import MUTUAL as d
+from clusterexp.routes.tube_perturbative import tube_coefficients
 
 
 def _one_tube_shift_from_above():
