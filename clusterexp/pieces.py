@@ -27,6 +27,8 @@ from typing import Iterable, Mapping, Sequence
 import sympy
 
 from .naming import bracket_label
+from .piece_taylor import deviation as deviation_of
+from .piece_taylor import in_shifts, tube_taylor
 
 _PIECE = re.compile(r"^([ab])_(\d+(?:_\d+)*)$")
 SIDE_SIGNS = {"above": "+", "below": "-"}
@@ -204,16 +206,22 @@ def _definitions(system, index, piece=None) -> list[tuple[str, sympy.Expr]]:
 def tube_free(system, symbol) -> bool:
     """Whether `symbol` is the value at zero tube coverage of a generated piece: the piece of the gas
     without tubes, a function of no flux (its Taylor coefficients are the tube-free ones)."""
+    return coverage_power(system, symbol) == 0
+
+
+def coverage_power(system, symbol) -> int | None:
+    """k when `symbol` is the coefficient of coverage^k in a generated piece (k = 0: its value at zero
+    coverage), reached by expansions in the coverage alone; else None."""
     if system.tubes is None or not isinstance(symbol, sympy.Symbol):
-        return False
+        return None
     coverage = {s.name for s in sympy.sympify(system.tubes.coverage).free_symbols}
-    found = False
+    power = None
     while symbol.name in _NAMED:
         unknown = _NAMED[symbol.name]
-        if any(v.name not in coverage or k or p != 0 for v, p, k, _ in unknown.monomial):
-            return False
-        found, symbol = True, unknown.piece
-    return found and bool(_PIECE.match(symbol.name))
+        if any(v.name not in coverage or p != 0 for v, p, _, _ in unknown.monomial) or power is not None:
+            return None
+        power, symbol = sum(k for _, _, k, _ in unknown.monomial), unknown.piece
+    return power if _PIECE.match(symbol.name) else None
 
 
 _PERIODS = {"exchange": 2, "mutual": 1, "flux": 1}
@@ -286,7 +294,9 @@ def expand_pieces(system, value: sympy.Expr, variables: Sequence[tuple[sympy.Sym
         derived = derived_taylor(system, piece, used)
         if derived is not None and derived[1] >= 1 and notes is not None:
             reach = f"{derived[1] - 1}, partly {derived[1]}," if derived[2] else f"{derived[1]}"
-            source = "docs/tubes.md" if system.tubes is not None and _tube_piece(piece) else "docs/perturbative.md"
+            source = "docs/tubes.md" if system.tubes is not None and (_tube_piece(piece) or (coverage_power(
+                system, piece) or 0) >= 1) \
+                else "docs/perturbative.md"
             notes.append(f"{piece_label(piece)} through order {reach} from the perturbative route ({source})")
         for powers in itertools.product(*(range(k + 1) for _, _, k, _ in used)):
             monomial = tuple((v, p, e, s) for (v, p, _, s), e in zip(used, powers))
@@ -354,6 +364,13 @@ def derived_taylor(system, piece: sympy.Symbol, used) -> tuple[dict, int, frozen
     if not regime_of(system).named_pieces:
         return None
     tube = _tube_piece(piece) if system.tubes is not None and piece.name not in _NAMED else None
+    index = piece_index(piece, len(system.species))
+    cycle = 2
+    if tube is None and coverage_power(system, piece) == 1 and _root(piece)[0].name.startswith("b_") \
+            and sum(1 for n in index if n) == 1:   # the coverage part of b_l of one species: an anyon piece
+        from .routes.tube_pieces import TubePiece
+        cycle = max(index)
+        tube = TubePiece(piece, system.species_names[index.index(cycle)])
     if tube is None and (not _root(piece)[0].name.startswith("b_")
                          or ((piece.name in _NAMED or system.tubes is not None) and not tube_free(system, piece))):
         return None
@@ -364,7 +381,7 @@ def derived_taylor(system, piece: sympy.Symbol, used) -> tuple[dict, int, frozen
     order = min(max(k for _, _, k, _ in used), 2)
 
     def deviation(expr):
-        return _deviation(expr, point, shift, side)
+        return deviation_of(expr, point, shift, side)
 
     def mass(m):   # a mass in units of m_ref at the point, or None
         if sympy.sympify(m / system.reference_mass).free_symbols & set(point):
@@ -372,8 +389,7 @@ def derived_taylor(system, piece: sympy.Symbol, used) -> tuple[dict, int, frozen
         m = sympy.sympify(m / system.reference_mass).subs(point)
         return m if m.is_Rational and m > 0 else None
     if tube is not None:
-        return _tube_taylor(system, tube, deviation, mass, order, shifts)
-    index = piece_index(piece, len(system.species))
+        return tube_taylor(system, tube, deviation, mass, order, shifts, cycle)
     occupied = [i for i, n in enumerate(index) if n]
     deviations = {}   # perturbative symbol -> (deviation in the shifts, sign of |deviation| on the side)
     species, about = [], []
@@ -405,94 +421,8 @@ def derived_taylor(system, piece: sympy.Symbol, used) -> tuple[dict, int, frozen
             deviations[mutual[(i, j)]] = found[1]
     terms = taylor_coefficients(species, mutual, index, tuple(about), order, unknown="name")
     numbers = numerical_coefficients(species, mutual, index, tuple(about)) if order >= 2 else {}
-    found = _in_shifts(terms, numbers, deviations, shifts)
+    found = in_shifts(terms, numbers, deviations, shifts)
     return None if found is None else (found[0], order, found[1], found[2])
-
-
-def _deviation(expr, point, shift, side):
-    """(value at the point, (deviation linear in one shift, sign of |deviation| on the side) or None when
-    it does not move), or None where the route does not apply (not an integer there, not linear)."""
-    expr = sympy.sympify(expr)
-    at = expr.subs(point)
-    if not at.is_Integer or not expr.free_symbols <= set(point):
-        return None
-    dev = sympy.expand(expr.subs({v: point[v] + shift[v] for v in point}) - at)
-    if dev == 0:
-        return at, None
-    variables = [v for v in point if dev.has(shift[v])]
-    if len(variables) != 1 or not dev.is_polynomial(shift[variables[0]]) \
-            or sympy.degree(dev, shift[variables[0]]) != 1:
-        return None
-    slope = dev.coeff(shift[variables[0]])
-    if not slope.is_Rational:
-        return None
-    if side[variables[0]] is None:   # analytic there: no |deviation| may appear (checked below)
-        return at, (dev, None)
-    sign = (1 if slope > 0 else -1) * (1 if side[variables[0]] == "above" else -1)
-    return at, (dev, sign)
-
-
-def _tube_taylor(system, tube, deviation, mass, order, shifts):
-    """derived_taylor for a tube piece: about an integer flux and, for the anyon piece, the anyons'
-    boson or fermion point, for the braid piece an integer mutual parameter (docs/tubes.md)."""
-    from .routes.tube_perturbative import EXCHANGE, FLUX, MUTUAL, tube_coefficients
-    kind, about, masses, deviations = "two_tubes", "boson", (1, 1), {}
-    wanted = [(FLUX, system.tubes.flux)]
-    if tube.species is not None:
-        kind = "anyon"
-        wanted.append((EXCHANGE, system.species[system.species_names.index(tube.species)].exchange))
-    elif tube.pair is not None:
-        kind = "braid"
-        pair = tube.pair_of(system)
-        wanted.append((MUTUAL, system.mutual(*pair)))
-        masses = tuple(mass(system.species[system.species_names.index(name)].mass) for name in pair)
-        if None in masses:
-            return None
-    for symbol, expr in wanted:
-        found = deviation(expr)
-        if found is None:
-            return None
-        if symbol is EXCHANGE:
-            about = "boson" if found[0] % 2 == 0 else "fermion"
-        if found[1]:
-            deviations[symbol] = found[1]
-    still = {x: 0 for x in (FLUX, EXCHANGE, MUTUAL) if x not in deviations}
-    terms = {m.xreplace(still): v for m, v in tube_coefficients(kind, about, masses, order).items()}
-    found = _in_shifts({m: v for m, v in terms.items() if m != 0}, {}, deviations, shifts)
-    return None if found is None else (found[0], order, found[1], found[2])
-
-
-def _in_shifts(terms, numbers, deviations, shifts):
-    """The route's {monomial: value} in the expansion variables' shifts: ({powers: value} known,
-    the powers not derived, {powers: (value, error bound)} computed), or None where a |deviation| meets
-    a point the caller took for analytic."""
-    estimates, unestimated = {}, set()
-    polynomial, missing = sympy.Integer(0), set()
-    for monomial, value in terms.items():
-        if value == 0:
-            continue
-        if any(deviations[a.args[0]][1] is None for a in monomial.atoms(sympy.Abs)):
-            return None   # a kink the caller took for an analytic point
-        term = monomial.replace(sympy.Abs, lambda x: deviations[x][1] * x)
-        term = sympy.expand(term.xreplace({x: dev for x, (dev, _) in deviations.items()}))
-        if isinstance(value, sympy.Symbol):   # not derived: every power it reaches stays unknown
-            reached = sympy.Poly(term, *shifts)
-            missing.update(reached.monoms())
-            if monomial not in numbers:
-                unestimated.update(reached.monoms())
-                continue
-            number, error = numbers[monomial]   # computed numerically: shown beside the name, never in its place
-            for powers, c in zip(reached.monoms(), reached.coeffs()):
-                before = estimates.get(powers, (0.0, 0.0))
-                estimates[powers] = (before[0] + float(c) * number, before[1] + abs(float(c)) * error)
-            continue
-        polynomial += value * term
-    polynomial = sympy.Poly(sympy.expand(polynomial), *shifts)
-    known = {powers: c for powers, c in zip(polynomial.monoms(), polynomial.coeffs()) if powers not in missing}
-    # a power is estimated only when every coefficient that reaches it is; the known part adds exactly
-    estimates = {powers: (value + float(polynomial.coeff_monomial(powers)), error)
-                 for powers, (value, error) in estimates.items() if powers not in unestimated}
-    return known, frozenset(missing), estimates
 
 
 def side_in_range(parameters: Iterable, symbol: sympy.Symbol, point) -> str | None:

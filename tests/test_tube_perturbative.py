@@ -120,7 +120,8 @@ def test_expand_among_tubes_uses_the_derived_coefficients(cli, tmp_path):
     al. 1985) plus n times the anyon piece, whose coefficients here are summed by hand from the pieces'
     table (|alpha||f| and alpha f both alpha f from above: 1 - 1/3); and b[3] at zero coverage is the
     tube-free b_3 = 1/9 - alpha + 59/24 alpha^2 (Myrheim & Olaussen, Phys. Lett. B 299 (1993) 267, via
-    a_3 = 1/36 + alpha^2/12), with no flux-dependent unknown named for it."""
+    a_3 = 1/36 + alpha^2/12), with no flux-dependent unknown named for it; its coverage part is derived
+    too, and at alpha = 0 it is the bose law F/3 (Comtet, Georgelin, Ouvry 1989, from memory)."""
     import json
     path = tmp_path / "gas.in"
     path.write_text(GAS)
@@ -137,6 +138,33 @@ def test_expand_among_tubes_uses_the_derived_coefficients(cli, tmp_path):
     b3 = polynomial(series[(3,)])
     at_zero = b3.subs(n, 0)
     assert at_zero == sympy.Rational(1, 9) - alpha + sympy.Rational(59, 24) * alpha ** 2
+    assert b3.coeff(n, 1).subs(alpha, 0) == sympy.expand(-fx * (1 - fx) / 2 / 3)   # bosons: F/3 per tube
     names = set(document["unknowns"])
-    assert "b_3_n_0" in names and "b_3_n_1_alpha_0_f_1_above" in names   # the n part stays named
-    assert not any(name.startswith("b_3_n_0_") for name in names), names
+    assert not any(name.startswith(("b_3_n_0_", "b_3_n_1_")) for name in names), names
+
+
+@pytest.mark.parametrize("cycle", [2, 3, 4, 5, 6])
+@pytest.mark.parametrize("about, sign", [("boson", 1), ("fermion", -1)])
+def test_coverage_part_of_b_l_at_the_bose_and_fermi_points(cycle, about, sign):
+    """An ideal species among tubes: b_l gains (+-1)^(l+1) n F/l, F = -|f|(1 - |f|)/2, for every flux
+    (each l-cycle is one loop around each tube; Comtet, Georgelin, Ouvry 1989 for F, from memory in
+    physics.md). The e = 0 part of the coverage part of b_l of the anyons must be its expansion: the
+    static limit of the l-cycle with the heavy loop, the chains anyon-cycle - tube - anyon-cycle and the
+    quenched correction (1/2) sum s_a s_b, which cancel, must leave exactly that. l = 2 is the piece
+    B_anyon_tube itself. The anyons' mass does not enter."""
+    terms = tube_coefficients("anyon", about, cycle=cycle)
+    at_point = sum(v * m.subs(sympy.Abs(f), f) for m, v in terms.items() if not m.has(e))
+    exact = sympy.expand(sign ** (cycle + 1) * _one_tube_shift_from_above() / cycle)
+    assert sympy.expand(at_point) == exact
+    assert tube_coefficients("anyon", about, (sympy.Rational(3, 2), 1), cycle=cycle) == terms
+
+
+def test_coverage_part_contact_term_follows_the_first_order_of_b_l():
+    """The |e||f| coefficient of the coverage part of b_l about bosons is H_{l-1} (1, 3/2, 11/6, 25/12),
+    i.e. -(l/2) times the |alpha| coefficient -(2/l) H_{l-1} of b_l (first order, Dasnieres de Veigy &
+    Ouvry, Nucl. Phys. B 388 (1992) 715): at l = 2 the contact law -|f| b_2 of docs/tubes.md (ii), derived
+    from the loops; for l >= 3 a consistency pattern of the route (the ring through the tube's contact and
+    the anyons' contact), not an outside value."""
+    for cycle in range(2, 7):
+        harmonic = sum(sympy.Rational(1, k) for k in range(1, cycle))
+        assert tube_coefficients("anyon", "boson", cycle=cycle)[sympy.Abs(e) * sympy.Abs(f)] == harmonic

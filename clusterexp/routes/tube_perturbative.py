@@ -25,7 +25,7 @@ from __future__ import annotations
 
 import sympy
 
-from .perturbative import Species, taylor_coefficients
+from .perturbative import Species, chain_part, taylor_coefficients
 
 FLUX = sympy.Symbol("f", real=True)          # deviation of the flux from an integer
 EXCHANGE = sympy.Symbol("e", real=True)      # deviation of the anyons' exchange parameter from its point
@@ -34,9 +34,13 @@ KINDS = ("two_tubes", "anyon", "braid")
 NODES = (1, 2, 3, 4, 5, 6)                   # heavy masses M (units of m_ref); the last one checks the rest
 
 
-def _heavy(kind: str, M: int, about: str, masses) -> dict:
+def _heavy(kind: str, M: int, about: str, masses, cycle: int = 2) -> dict:
     """{monomial: Rational} of the mixture coefficient with a heavy species of mass M, divided by the
-    tube factor (b_{e_H}, or b_{e_H}^2 / (2 m_A) for two tubes), the heavy links renamed to the flux."""
+    tube factor (b_{e_H}, or b_{e_H}^2 / (2 m_A) for two tubes), the heavy links renamed to the flux.
+    kind "anyon": b_{l e_A + e_H}, l = cycle; for l >= 3 its d^2 coefficient is the chains (derived)
+    plus the cluster of the l-cycle with the heavy loop, which the route computes for equal masses only
+    but whose static limit is exact: one loop of duration l beta around a point flux, the l-cycle's
+    (+-1)^(l+1)/l times the d^2 part 1/2 of the one-tube shift s (docs/tubes.md (iii))."""
     g = [sympy.Symbol(f"g_{k}", real=True) for k in range(2)]
     if kind == "two_tubes":
         species = [Species(None, masses[0]), Species(None, M)]
@@ -44,7 +48,11 @@ def _heavy(kind: str, M: int, about: str, masses) -> dict:
         scale = sympy.Rational(2) * sympy.Rational(masses[0]) / M ** 2
     elif kind == "anyon":
         species = [Species(EXCHANGE, masses[0]), Species(None, M)]
-        terms = taylor_coefficients(species, {(0, 1): g[0]}, (2, 1), (about, "boson"), 2)
+        terms = taylor_coefficients(species, {(0, 1): g[0]}, (cycle, 1), (about, "boson"), 2, unknown="name")
+        if isinstance(terms[g[0] ** 2], sympy.Symbol):   # not derived at finite M: its static limit
+            sign = 1 if about == "boson" else (-1) ** (cycle + 1)
+            chains = chain_part(species, {(0, 1): g[0]}, (cycle, 1), (about, "boson"))[g[0] ** 2]
+            terms[g[0] ** 2] = chains + sign * sympy.Rational(M, 2 * cycle)
         scale = sympy.Rational(1, M)
     else:
         species = [Species(None, masses[0]), Species(None, masses[1]), Species(None, M)]
@@ -76,17 +84,20 @@ def _limit(values: list[sympy.Rational]) -> sympy.Rational:
     return through(fit, sympy.Integer(0))
 
 
-def tube_coefficients(kind: str, about: str = "boson", masses=(1, 1), order: int = 2) -> dict:
+def tube_coefficients(kind: str, about: str = "boson", masses=(1, 1), order: int = 2, cycle: int = 2) -> dict:
     """{monomial: Rational} of the tube piece `kind` ("two_tubes", "anyon", "braid") through `order`
     (0, 1 or 2) in FLUX (the flux minus an integer), EXCHANGE (the anyons' exchange parameter minus
     their point `about`, "boson" or "fermion") and MUTUAL (the braid pair's mutual parameter minus an
     integer), |x| for the kinks; masses: the mobile species' masses (m_A, m_B) in units of m_ref (exact).
-    Monomials absent from the dict have coefficient 0."""
+    For "anyon", `cycle` = l >= 2 gives the coefficient of the coverage in b_l of the anyons (l = 2: the
+    piece B_anyon_tube). Monomials absent from the dict have coefficient 0."""
     if kind not in KINDS:
         raise ValueError(f"kind must be one of {KINDS}, got {kind!r}")
     if order not in (0, 1, 2):
         raise ValueError(f"order must be 0, 1 or 2, got {order!r}")
-    per_node = [sympy.Poly(_heavy(kind, M, about, masses), *sorted(
+    if not isinstance(cycle, int) or cycle < 2 or (cycle != 2 and kind != "anyon"):
+        raise ValueError(f"cycle must be an integer >= 2, for kind 'anyon' only; got {cycle!r}")
+    per_node = [sympy.Poly(_heavy(kind, M, about, masses, cycle), *sorted(
         {FLUX, EXCHANGE, MUTUAL, sympy.Abs(FLUX), sympy.Abs(EXCHANGE), sympy.Abs(MUTUAL)}, key=str))
         for M in NODES]
     monomials = sorted(set().union(*(p.monoms() for p in per_node)))
@@ -98,8 +109,22 @@ def tube_coefficients(kind: str, about: str = "boson", masses=(1, 1), order: int
         degree = sum(powers)
         if value != 0 and degree <= order:
             out[monomial] = out.get(monomial, 0) + value
-    if order >= 2:   # quenched, not annealed: s = -|f|(1 - |f|)/2 per loop, s^2/2 (anyons) or s^2 (braid)
-        quenched = {"anyon": sympy.Rational(1, 8), "braid": sympy.Rational(1, 4)}.get(kind, 0)
-        out[FLUX ** 2] = out.get(FLUX ** 2, 0) - quenched
+    if order >= 2:   # quenched, not annealed: minus (e^Delta - 1 - Delta) at z^l, through f^2
+        out[FLUX ** 2] = out.get(FLUX ** 2, 0) - _quenched_correction(kind, about, cycle)
     return {m: v for m, v in out.items() if v != 0}
 
+
+
+def _quenched_correction(kind: str, about: str, cycle: int) -> sympy.Rational:
+    """The f^2 coefficient of the annealed-only part (e^Delta - 1 - Delta) of the one-tube term: Delta =
+    sum_a z^a s_a does not depend on the tube's position, and s_a = (+-1)^(a+1) F/a, F = -|f|/2 + O(f^2),
+    is the one-tube part of b_a of the ideal species (docs/tubes.md (iii)); at second order only products
+    of two first-order s_a remain: (1/2) sum_{a+b=l} s_a s_b for anyons (l = 2: s_1^2/2 = f^2/8), s_A s_B
+    = f^2/4 for the braid pair, nothing for one mobile particle (two tubes)."""
+    if kind == "braid":
+        return sympy.Rational(1, 4)
+    if kind == "two_tubes":
+        return sympy.Integer(0)
+    sign = 1 if about == "boson" else -1
+    first = {a: -sympy.Rational(sign ** (a + 1), 2 * a) for a in range(1, cycle)}
+    return sum((first[a] * first[cycle - a] for a in range(1, cycle)), sympy.Integer(0)) / 2

@@ -1,0 +1,94 @@
+"""The Taylor polynomials that the derivation routes supply for named pieces, in the shifts of the
+expansion variables (`pieces.derived_taylor`): how a parameter deviates from its boson, fermion or
+integer point, the route's monomials (with |x| at kinks) turned into powers of the shifts, and the tube
+pieces' coefficients (`routes.tube_perturbative`, docs/tubes.md (iii))."""
+from __future__ import annotations
+
+import sympy
+
+
+def deviation(expr, point, shift, side):
+    """(value at the point, (deviation linear in one shift, sign of |deviation| on the side) or None when
+    it does not move), or None where the route does not apply (not an integer there, not linear)."""
+    expr = sympy.sympify(expr)
+    at = expr.subs(point)
+    if not at.is_Integer or not expr.free_symbols <= set(point):
+        return None
+    dev = sympy.expand(expr.subs({v: point[v] + shift[v] for v in point}) - at)
+    if dev == 0:
+        return at, None
+    variables = [v for v in point if dev.has(shift[v])]
+    if len(variables) != 1 or not dev.is_polynomial(shift[variables[0]]) \
+            or sympy.degree(dev, shift[variables[0]]) != 1:
+        return None
+    slope = dev.coeff(shift[variables[0]])
+    if not slope.is_Rational:
+        return None
+    if side[variables[0]] is None:   # analytic there: no |deviation| may appear (checked below)
+        return at, (dev, None)
+    sign = (1 if slope > 0 else -1) * (1 if side[variables[0]] == "above" else -1)
+    return at, (dev, sign)
+
+
+def tube_taylor(system, tube, deviation, mass, order, shifts, cycle=2):
+    """derived_taylor for a tube piece (or the coverage part of b_l of one species: the anyon kind with
+    cycle = l): about an integer flux and, for the anyons, their boson or fermion point, for the braid
+    piece an integer mutual parameter (docs/tubes.md (iii))."""
+    from .routes.tube_perturbative import EXCHANGE, FLUX, MUTUAL, tube_coefficients
+    kind, about, masses, deviations = "two_tubes", "boson", (1, 1), {}
+    wanted = [(FLUX, system.tubes.flux)]
+    if tube.species is not None:
+        kind = "anyon"
+        wanted.append((EXCHANGE, system.species[system.species_names.index(tube.species)].exchange))
+    elif tube.pair is not None:
+        kind = "braid"
+        pair = tube.pair_of(system)
+        wanted.append((MUTUAL, system.mutual(*pair)))
+        masses = tuple(mass(system.species[system.species_names.index(name)].mass) for name in pair)
+        if None in masses:
+            return None
+    for symbol, expr in wanted:
+        found = deviation(expr)
+        if found is None:
+            return None
+        if symbol is EXCHANGE:
+            about = "boson" if found[0] % 2 == 0 else "fermion"
+        if found[1]:
+            deviations[symbol] = found[1]
+    still = {x: 0 for x in (FLUX, EXCHANGE, MUTUAL) if x not in deviations}
+    terms = {m.xreplace(still): v for m, v in tube_coefficients(kind, about, masses, order, cycle).items()}
+    found = in_shifts({m: v for m, v in terms.items() if m != 0}, {}, deviations, shifts)
+    return None if found is None else (found[0], order, found[1], found[2])
+
+
+def in_shifts(terms, numbers, deviations, shifts):
+    """The route's {monomial: value} in the expansion variables' shifts: ({powers: value} known,
+    the powers not derived, {powers: (value, error bound)} computed), or None where a |deviation| meets
+    a point the caller took for analytic."""
+    estimates, unestimated = {}, set()
+    polynomial, missing = sympy.Integer(0), set()
+    for monomial, value in terms.items():
+        if value == 0:
+            continue
+        if any(deviations[a.args[0]][1] is None for a in monomial.atoms(sympy.Abs)):
+            return None   # a kink the caller took for an analytic point
+        term = monomial.replace(sympy.Abs, lambda x: deviations[x][1] * x)
+        term = sympy.expand(term.xreplace({x: dev for x, (dev, _) in deviations.items()}))
+        if isinstance(value, sympy.Symbol):   # not derived: every power it reaches stays unknown
+            reached = sympy.Poly(term, *shifts)
+            missing.update(reached.monoms())
+            if monomial not in numbers:
+                unestimated.update(reached.monoms())
+                continue
+            number, error = numbers[monomial]   # computed numerically: shown beside the name, never in its place
+            for powers, c in zip(reached.monoms(), reached.coeffs()):
+                before = estimates.get(powers, (0.0, 0.0))
+                estimates[powers] = (before[0] + float(c) * number, before[1] + abs(float(c)) * error)
+            continue
+        polynomial += value * term
+    polynomial = sympy.Poly(sympy.expand(polynomial), *shifts)
+    known = {powers: c for powers, c in zip(polynomial.monoms(), polynomial.coeffs()) if powers not in missing}
+    # a power is estimated only when every coefficient that reaches it is; the known part adds exactly
+    estimates = {powers: (value + float(polynomial.coeff_monomial(powers)), error)
+                 for powers, (value, error) in estimates.items() if powers not in unestimated}
+    return known, frozenset(missing), estimates
