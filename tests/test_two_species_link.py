@@ -126,3 +126,19 @@ def test_the_command_line_shows_the_number_beside_the_name():
     value, bound = two_species_link.link_squared_coefficient(2, 2, 1, 2)
     number = float(line.split("computed: ")[1].split(" +-")[0])
     assert abs(number - (1.5 + value)) < 1e-6 and abs(value - 0.880807) < 1e-5, line
+
+
+def test_a_terminal_sees_which_rule_runs_and_the_value_is_cached(monkeypatch):
+    """The quadrature reports each rule on the progress line (clusterexp/progress.py; on a terminal only,
+    forced on here) and is computed once per (a, b, mass ratio): masses (14, 2) reuse (7, 1), scaled."""
+    import io
+    from clusterexp.progress import Progress
+    stream = io.StringIO()
+    monkeypatch.setattr(two_species_link, "Progress", lambda: Progress(stream=stream, enabled=True))
+    two_species_link._at_ratio.cache_clear()
+    value, bound = two_species_link.link_squared_coefficient(2, 1, 7, 1)
+    assert "deriving by quadrature: rule 2/2, link^2 of {2-cycle, 1-cycle}, masses 7:1" in stream.getvalue()
+    assert abs(value - (7 / 2 + 1 / 4)) < bound                      # section 4e
+    shown = len(stream.getvalue())
+    assert two_species_link.link_squared_coefficient(2, 1, 14, 2) == (2 * value, 2 * bound)
+    assert len(stream.getvalue()) == shown and two_species_link._at_ratio.cache_info().hits == 1

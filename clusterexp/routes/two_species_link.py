@@ -82,9 +82,8 @@ def _at_ratio(a: int, b: int, ratio: Fraction) -> tuple[float, float]:
     report = Progress()
     values = []
     try:
-        for k, (tolerance, rule) in enumerate(RULES, 1):
-            report.step(f"quadrature the link squared of the {{{a}-cycle, {b}-cycle}} cluster at masses "
-                        f"{ratio}:1, rule {k} of {len(RULES)} (tolerance {tolerance:g})")
+        for k, (_, rule) in enumerate(RULES, 1):
+            report.step(f"quadrature rule {k}/{len(RULES)}, link^2 of {{{a}-cycle, {b}-cycle}}, masses {ratio}:1")
             _, _, link2 = two_loop_fast.link_squared(a, b, float(1 / ratio), 1.0, *rule)
             values.append(norm * link2)
     finally:
