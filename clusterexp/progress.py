@@ -20,6 +20,7 @@ KIND_WORDS = {
     "virial": "virial coefficients",
     "density": "density expansion",
     "fugacity": "fugacity expansion",
+    "quadrature": "by quadrature",
 }
 
 

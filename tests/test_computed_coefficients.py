@@ -120,13 +120,19 @@ def test_two_equal_cycles_count_twice_and_carry_their_bounds():
 
 def test_nothing_computed_where_the_table_does_not_reach():
     """b_3 is exact (no number), b_n beyond the table (n > SINGLE_CYCLES_CHECKED: the n-cycle alone and
-    the clusters of that n not computed), a mixture of unequal masses is not covered: no estimate is
-    offered there."""
+    the clusters of that n not computed); a mixture of unequal masses beyond the on-demand quadrature's
+    reach (|n| > two_species_link.MAX_PARTICLES, or a mass ratio beyond MAX_RATIO) and b_{2,1} (derived
+    exactly, section 4e): no estimate is offered there."""
+    from clusterexp.routes import two_species_link
     assert numerical_coefficients([Species(E)], {}, (3,), "boson") == {}
     beyond = two_loop_table.SINGLE_CYCLES_CHECKED + 1
     assert numerical_coefficients([Species(E)], {}, (beyond,), "boson") == {}
     d = sympy.Symbol("d", real=True)
-    assert numerical_coefficients([Species(E, 1), Species(None, 2)], {(0, 1): d}, (3, 1), "boson") == {}
+    far = two_species_link.MAX_PARTICLES + 1
+    assert numerical_coefficients([Species(E, 1), Species(None, 2)], {(0, 1): d}, (far - 1, 1), "boson") == {}
+    heavy = two_species_link.MAX_RATIO + 1
+    assert numerical_coefficients([Species(E, 1), Species(None, heavy)], {(0, 1): d}, (3, 1), "boson") == {}
+    assert numerical_coefficients([Species(E, 1), Species(None, 2)], {(0, 1): d}, (2, 1), "boson") == {}
 
 
 def test_the_engine_reproduces_the_table_entry_of_two_two_cycles():

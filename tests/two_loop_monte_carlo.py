@@ -18,7 +18,7 @@ import math
 
 import numpy as np
 
-from clusterexp.loops.sampler import PhaseData, brownian_loops, mixture_offsets, phase_levels
+from clusterexp.loops.sampler import PhaseData, brownian_loops, coarse, mixture_offsets, phase_levels, slice_variance
 
 WIDTH = 0.4
 
@@ -52,19 +52,31 @@ def _orbits(p: int, q: int) -> list[tuple[int, int]]:
 class TwoLoopSamples:
     """`count` samples of the {p-cycle, q-cycle} cluster at `n` slices per unit time, seen at strides."""
 
-    def __init__(self, rng: np.random.Generator, count: int, p: int, q: int, n: int, strides=(1,), own=True):
-        x = brownian_loops(rng, count, p * n, float(p))
-        y = brownian_loops(rng, count, q * n, float(q))
+    def __init__(self, rng: np.random.Generator, count: int, p: int, q: int, n: int, strides=(1,), own=True,
+                 masses=None):
+        """masses = (m_x, m_y), in units of m_ref (own=False only): two species, the p-cycle of mass m_x
+        (per-component variance t/(2 pi m_x) over a time t) and the q-cycle of mass m_y; the link slices
+        then have the relative variance (1/m_x + 1/m_y) t/(2 pi), and the cluster's term of b_{p,q} has
+        the weight m_x m_y/(p q)^2 (each k-cycle of species s: free weight (m_s/m_ref)/k), its first order
+        -(m_x + m_y)/(2 p q) (section 3). None: one species of unit mass, weight 1/(p q)^2, halved for p = q."""
+        if masses is not None and own:
+            raise ValueError("masses are for two species (own=False)")
+        m_x, m_y = masses or (1.0, 1.0)
+        x = brownian_loops(rng, count, p * n, float(p)) / math.sqrt(m_x)
+        y = brownian_loops(rng, count, q * n, float(q)) / math.sqrt(m_y)
         centre = x[:, :: n][:, :p].mean(axis=1) - y[:, :: n][:, :q].mean(axis=1)
         off, dens = mixture_offsets(rng, count, WIDTH, 1)
         c = centre + off[:, 0]
-        self.weight = 1.0 / dens / ((p * q) ** 2 * (2 if p == q else 1))
+        if masses is None:
+            self.weight = 1.0 / dens / ((p * q) ** 2 * (2 if p == q else 1))
+        else:
+            self.weight = m_x * m_y / dens / (p * q) ** 2
         period = p * q // math.gcd(p, q)
         steps = np.arange(period * n + 1)
         links = [x[:, (steps + a * n) % (p * n)] - y[:, (steps + b * n) % (q * n)] - c[:, None]
                  for a, b in _orbits(p, q)]
         selfs = _self_curves(x, p, n) + _self_curves(y, q, n) if own else []   # own=False: any p, q
-        self.link = _joined(links, n, strides)
+        self.link = _joined(links, n, strides, (1 / m_x + 1 / m_y) / 2)
         self.self = _joined(selfs, n, strides) if selfs else None
 
     def values(self, alpha: float, stride: int = 1, own: bool = True) -> np.ndarray:
@@ -89,23 +101,30 @@ class CycleAloneSamples:
         return (self.self[stride].phase(alpha).real - 1.0) * self.weight
 
 
-def _joined(curves, n, strides) -> dict[int, PhaseData]:
-    levels = [phase_levels(u, n, strides) for u in curves]
+def _joined(curves, n, strides, diffusion: float = 1.0) -> dict[int, PhaseData]:
+    """diffusion: the relative variance per slice over that of two particles of unit mass."""
+    if diffusion == 1.0:
+        levels = [phase_levels(u, n, strides) for u in curves]
+    else:
+        levels = [{s: PhaseData.from_paths(coarse(u, s), diffusion * slice_variance(n // s)) for s in strides}
+                  for u in curves]
     return {s: PhaseData.join([lv[s] for lv in levels]) for s in strides}
 
 
 def even_parts(p: int, q: int, amplitudes, n: int, strides, count: int, batches: int, seed: int,
-               link_only: bool = False):
+               link_only: bool = False, masses=None):
     """Per batch and stride, the even part (f(a) + f(-a))/2 at each amplitude a (a -> 2 - a is -a for
     one species: the exchange parameter has period 2). Returns an array [batch, stride, amplitude].
     q = 0: the p-cycle alone (CycleAloneSamples), its ideal-Bose value taken off. link_only: only the
-    pairs between the cycles carry the phase (a mutual parameter, period 1: -a is 1 - a)."""
+    pairs between the cycles carry the phase (a mutual parameter, period 1: -a is 1 - a); masses (with
+    link_only): two species of those masses (`TwoLoopSamples`)."""
     rng = np.random.default_rng(seed)
     out = np.empty((batches, len(strides), len(amplitudes)))
     make = CycleAloneSamples if q == 0 else TwoLoopSamples
     period = 1.0 if link_only else 2.0
     for b in range(batches):
-        s = make(rng, count, p, q, n, strides, own=False) if link_only else make(rng, count, p, q, n, strides)
+        s = make(rng, count, p, q, n, strides, own=False, masses=masses) if link_only \
+            else make(rng, count, p, q, n, strides)
         values = (lambda a, st: s.values(a, st, own=False)) if link_only else s.values
         for i, st in enumerate(strides):
             for j, a in enumerate(amplitudes):

@@ -23,7 +23,10 @@ exchange, period 1 for mutual. The derivation is docs/perturbative.md; in short:
   derived for three particles of one species (b_3: the loop + 2-cycle from Sen's symmetry, the 3-cycle
   from its pairs; sections 4b, 4d) and for two particles of one species with one of another (b_{2,1}:
   d_ij^2 for any masses; section 4e), otherwise not derived: `NotSupportedYet`, or named unknowns
-  with unknown="name" (computed numbers beside some of them: `numerical_coefficients`).
+  with unknown="name" (computed numbers beside some of them: `numerical_coefficients`; for d_ij^2 of two
+  species the chains, exact for any masses, plus the link squared of the {n_i-cycle, n_j-cycle} cluster,
+  from the table at equal masses and by quadrature at the user's mass ratio otherwise, section 4j: it
+  is not linear in the masses).
 
 Monomials whose sign changes under the mirror image (every parameter -> minus itself; e.g. x,
 x*Abs(y), x*Abs(x)) vanish by that symmetry and are not listed.
@@ -334,8 +337,11 @@ def taylor_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int, i
         raise NotSupportedYet(f"second-order Taylor coefficients of b[{','.join(map(str, n))}] in {listed}: "
                               f"not derived ({_HOW}); derived at "
                               "second order: two-particle b, b_3 of one species, products |x||y| of two different "
-                              "parameters, products d_ij d_ik of two mutual parameters, and b with two particles of "
-                              "one species and one of another")
+                              "parameters, products d_ij d_ik of two mutual parameters, products e_i d_ij (any n), "
+                              "and b with two particles of one species and one of another; computed as numbers "
+                              "beside the name (unknown='name', numerical_coefficients): e^2 in b_4 .. b_8 of one "
+                              "species, d_ij^2 in b of two species with |n| <= 8 at equal masses and |n| <= 6 "
+                              "at unequal masses (mass ratio <= 100)")
     label = "_".join(map(str, n))
     return {m: (sympy.Symbol(f"t_b_{label}__{m}") if v is None else sympy.Rational(v.numerator, v.denominator))
             for m, v in out.items()}
@@ -358,32 +364,46 @@ def _computed_square(gas: _Gas, link: _Link, n) -> tuple[float, float] | None:
 
 
 def _computed_two_species(gas: _Gas, link: _Link, n) -> dict:
-    """For b_n of two species i, j of equal masses and the mutual link d = d_ij (n_i + n_j >= 4): the
-    coefficient of d^2, the chains of three loops (exact) plus the link squared of the cluster of the
-    n_i-cycle of i with the n_j-cycle of j (`two_loop_table.two_species_cluster`), scaled from one
-    species' units by the ratio of the clusters' first orders (2 when n_i = n_j, else 1) and signed by
-    the cycles' transpositions about fermions. {monomial: (value, error)}; empty where the table does not
-    reach. (The e_i d and e_j d coefficients are exact for any masses: `angle_area`, section 4i.)"""
+    """For b_n of two species i, j and the mutual link d = d_ij (n_i + n_j >= 4): the coefficient of d^2,
+    the chains of three loops (exact, any masses) plus the link squared of the cluster of the n_i-cycle
+    of i with the n_j-cycle of j, signed by the cycles' transpositions about fermions. Equal masses: from
+    the table (`two_loop_table.two_species_cluster`, one species' units, scaled by the ratio of the
+    clusters' first orders: 2 when n_i = n_j, else 1). Unequal masses: computed on demand at the mass ratio
+    (`two_species_link`, |n| <= its MAX_PARTICLES; the link squared is not linear in the masses, section
+    4j). {monomial: (value, error)}; empty where neither reaches. (The e_i d and e_j d coefficients are
+    exact for any masses: `angle_area`, section 4i.)"""
     from .two_loop_table import two_species_cluster
+    from .two_species_link import link_squared_coefficient
     i, j = link.i, link.j
     a, b = n[i], n[j]
-    if link.i == link.j or sum(n) != a + b or a < 1 or b < 1 or gas.mass[i] != gas.mass[j]:
+    if link.i == link.j or sum(n) != a + b or a < 1 or b < 1:
         return {}
-    cluster = two_species_cluster(a, b)
-    if cluster is None:
-        return {}
-    square, square_error = cluster[0]
-    scale = float(gas.mass[i]) * (2 if a == b else 1) * gas.sign[i] ** (a - 1) * gas.sign[j] ** (b - 1)
+    sign = gas.sign[i] ** (a - 1) * gas.sign[j] ** (b - 1)
+    if gas.mass[i] == gas.mass[j]:
+        cluster = two_species_cluster(a, b)
+        if cluster is None:
+            return {}
+        square, square_error = cluster[0]
+        scale = float(gas.mass[i]) * (2 if a == b else 1)
+    else:
+        if a + b < 4:
+            return {}                       # |n| = 3 is derived exactly (section 4e)
+        try:
+            square, square_error = link_squared_coefficient(a, b, gas.mass[i], gas.mass[j])
+        except NotSupportedYet:
+            return {}
+        scale = 1.0
     ring, landau = _chain(gas, link, link, n)
-    return {link.symbol ** 2: (float(ring + landau) + scale * square, abs(scale) * square_error)}
+    return {link.symbol ** 2: (float(ring + landau) + sign * scale * square, scale * square_error)}
 
 
 def numerical_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int, int], sympy.Symbol],
                            multi_index: Sequence[int], about="boson") -> dict:
     """{monomial: (value, error bound)} for the second-order Taylor coefficients of b_n that are not
     derived in closed form but computed numerically: the square of the exchange parameter in b_n of
-    one species (n = 4..two_loop_table.SINGLE_CYCLES_CHECKED), and d_ij^2 in b_n of two species of
-    equal masses, |n| >= 4, where the table has the cluster; empty where none is. The
+    one species (n = 4..two_loop_table.SINGLE_CYCLES_CHECKED), and d_ij^2 in b_n of two species, |n| >= 4:
+    equal masses where the table has the cluster (|n| <= 8), unequal masses computed by quadrature on
+    demand (|n| <= two_species_link.MAX_PARTICLES, seconds to a minute each, cached); empty where none is. The
     values are floats with their quadrature error bounds: the tool keeps the coefficient's name and
     shows the number beside it, never in place of it."""
     K = len(species)

@@ -69,7 +69,7 @@ BEYOND: dict[tuple[int, int], tuple[float, float]] = {
     key: (LINK[key][0] + ANGLE[key][0][0] + ANGLE[key][1][0], LINK[key][1] + ANGLE[key][0][1] + ANGLE[key][1][1])
     for key in LINK if key in ANGLE}
 
-SOURCE = "quadrature of the two-loop clusters (docs/perturbative.md, section 4h), not a closed form"
+SOURCE = "quadrature of the two-loop clusters (docs/perturbative.md, sections 4h, 4j), not a closed form"
 
 
 def two_species_cluster(a: int, b: int):

@@ -1,0 +1,92 @@
+"""Computed on demand, not closed: the link squared of the two-loop cluster of a mixture at unequal masses.
+
+In b_n with a particles of species i and b of species j, the d_ij^2 coefficient is the chains of three
+loops (exact, `perturbative._chain`) plus the link squared of the cluster {a-cycle X of species i,
+b-cycle Y of species j} (docs/perturbative.md, sections 4f-4h and 4j). X is a Brownian loop of duration a
+with per-component diffusion D_X = m_ref/m_i, Y one of duration b with D_Y = m_ref/m_j; the link curves
+are X(s + a0) - Y(s + b0). The cluster's first order, -(m_i + m_j)/(2 m_ref a b) |d| (section 3), shared
+by its a b link segments of contact -pi (D_X + D_Y) |d| each, fixes its normalisation
+P = m_i m_j/(2 pi m_ref^2 a^2 b^2) (`angle_area.first_order_normalisation`), and the d^2 coefficient is
+P times the engine's link squared (`two_loop_fast.link_squared`, numerical evaluation).
+
+The mass dependence is not linear (section 4j): the coefficient is m_j g(m_i/m_j) (homogeneous of
+degree one in the masses, the engine's integrals being homogeneous of degree one in (D_X, D_Y)), with
+g(r) -> r/(2 b) for a heavy a-cycle (one static flux a d seen by the b-cycle, approached with a
+logarithm) and g(r) -> 1/(2 a) per m_j for a heavy b-cycle, but g is neither of the two lines between.
+So there is no table: each mass ratio is computed when asked, at two quadrature rules (the engine's
+tolerances 1e-6 and 1e-7), with the error bound of benchmarks/two_loop_table.py (ten times the change
+between the rules, never below FLOOR per unit of the larger mass), cached for the process. The cost
+grows with the cluster (about 4 s for |n| = 4, up to 40 s for |n| = 6, up to 130 s for |n| = 8 on this
+machine), so it is offered for |n| <= MAX_PARTICLES and mass ratios up to MAX_RATIO (beyond, the rules
+stop agreeing: at 1000 they differ by 5e-2); beyond either, NotSupportedYet.
+"""
+from __future__ import annotations
+
+from fractions import Fraction
+from functools import lru_cache
+
+from ..errors import NotSupportedYet
+from ..progress import Progress
+from . import two_loop_fast
+from .angle_area import first_order_normalisation
+
+MAX_PARTICLES = 6
+MAX_RATIO = 100
+RULES = ((1e-6, (8, 8)), (1e-7, (10, 12)))      # tolerance name -> (levels, nodes) of two_loop_fast.RULES
+FLOOR = 2e-6
+MARGIN = 10
+
+
+def _fraction(value, name: str) -> Fraction:
+    if isinstance(value, float):
+        raise NotSupportedYet(f"{name} = {value!r} is a float: give an exact mass (int, Fraction or Rational)")
+    try:
+        out = Fraction(str(value))
+    except (TypeError, ValueError):
+        raise ValueError(f"{name} must be a positive rational mass, got {value!r}") from None
+    if out <= 0:
+        raise ValueError(f"{name} must be a positive rational mass, got {value!r}")
+    return out
+
+
+def link_squared_coefficient(a: int, b: int, m_i, m_j) -> tuple[float, float]:
+    """(value, error bound) of the d_ij^2 coefficient that the link of the cluster {a-cycle of species i,
+    b-cycle of species j} adds to b_{a e_i + b e_j}, about bosons for both species (about fermions times
+    (-1)^(a - 1) (-1)^(b - 1)), masses in units of m_ref; the chains of three loops are not included.
+    Numerical evaluation (two quadrature rules), cached per (a, b, m_i/m_j). At a + b = 3 this is section
+    4e's exact (m_i/2 + m_j/4)/m_ref for {2-cycle, loop}."""
+    for value, name in ((a, "a"), (b, "b")):
+        if isinstance(value, bool) or not isinstance(value, int) or value < 1:
+            raise ValueError(f"{name} must be a positive integer cycle length, got {value!r}")
+    m_i, m_j = _fraction(m_i, "m_i"), _fraction(m_j, "m_j")
+    if a + b > MAX_PARTICLES:
+        raise NotSupportedYet(f"the link squared of the {{{a}-cycle, {b}-cycle}} cluster at unequal masses for "
+                              f"|n| = {a + b} > {MAX_PARTICLES} (computed on demand up to |n| = {MAX_PARTICLES}; "
+                              "docs/perturbative.md, section 4j)")
+    ratio = m_i / m_j
+    if max(ratio, 1 / ratio) > MAX_RATIO:
+        raise NotSupportedYet(f"the link squared at the mass ratio {ratio} (the quadrature is offered for ratios "
+                              f"up to {MAX_RATIO}; docs/perturbative.md, section 4j)")
+    if a < b:                                     # the engine's clusters are {p-cycle, q-cycle}, p >= q
+        a, b, ratio = b, a, 1 / ratio
+        m_j = m_i
+    value, bound = _at_ratio(a, b, ratio)
+    return float(m_j) * value, float(m_j) * bound
+
+
+@lru_cache(maxsize=None)
+def _at_ratio(a: int, b: int, ratio: Fraction) -> tuple[float, float]:
+    """(value, bound) per unit of m_j at m_i/m_j = ratio (a >= b), cached for the process; a terminal
+    shows which rule is running (`progress.Progress`, on stderr and only on a terminal)."""
+    norm = float(first_order_normalisation(a, b, ratio, 1, 1))
+    report = Progress()
+    values = []
+    try:
+        for k, (_, rule) in enumerate(RULES, 1):
+            report.step(f"quadrature rule {k}/{len(RULES)}, link^2 of {{{a}-cycle, {b}-cycle}}, masses {ratio}:1")
+            _, _, link2 = two_loop_fast.link_squared(a, b, float(1 / ratio), 1.0, *rule)
+            values.append(norm * link2)
+    finally:
+        report.done()
+    bound = max(MARGIN * abs(values[1] - values[0]), FLOOR * float(max(ratio, 1)))
+    return float(values[1]), float(bound)
