@@ -2,10 +2,11 @@
 second-order Taylor coefficients of `routes.tube_perturbative` (docs/tubes.md, "Small fluxes from an
 infinitely heavy species"), an independent check: the sampler knows nothing of the perturbative route.
 
-The piece is sampled at (parameter point + h, flux +-h) for h = 0.1 and 0.05, both signs on the same
-loops. Its part odd in the flux is c h^2 + O(h^3), its even part c1 h + c2 h^2 + O(h^3) with c1 the
-contact law's; Richardson's rule 2 X(h/2) - X(h), X = (part - c1 h)/h^2, removes the cubic remainder.
-The test (tests/test_tube_perturbative.py) does the same with 40/80 batches; this runs 10 times more.
+The piece is sampled at (parameter point + h, flux +-h) for h = 0.2, 0.1, 0.05, 0.025, both signs on
+the same loops. Its part odd in the flux is c h^2 + O(h^3), its even part c1 h + c2 h^2 + O(h^3) with c1
+the contact law's; X = (part - c1 h)/h^2 is extrapolated to h = 0 (`limit_at_zero`) through the two
+smallest steps (Richardson: removes a h only), through three (a h + b h^2) and through all four. The
+test (tests/test_tube_perturbative.py) uses three steps with 40/80/160 batches.
 
 Run:  python benchmarks/tube_small_flux.py [--rounds 400]
 """
@@ -20,7 +21,7 @@ sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 
 import sympy  # noqa: E402
 
-from clusterexp.loops.tube_estimates import flux_parts  # noqa: E402
+from clusterexp.loops.tube_estimates import flux_parts, limit_at_zero  # noqa: E402
 from clusterexp.routes.tube_perturbative import EXCHANGE, FLUX, MUTUAL, tube_coefficients  # noqa: E402
 
 CASES = (("anyon", "boson", 0.0), ("anyon", "fermion", 1.0), ("braid", "boson", 0.0))
@@ -28,11 +29,11 @@ CASES = (("anyon", "boson", 0.0), ("anyon", "fermion", 1.0), ("braid", "boson", 
 
 def main() -> None:
     parser = argparse.ArgumentParser()
-    parser.add_argument("--rounds", type=int, default=400, help="batches of 1000 loops at h = 0.1 (twice at 0.05)")
+    parser.add_argument("--rounds", type=int, default=400, help="batches of 1000 loops at h = 0.2, 0.1 (twice that at 0.05, 0.025)")
     parser.add_argument("--seed", type=int, default=31)
     args = parser.parse_args()
     print(f"# tube pieces at small parameters: sampled loops (16 slices) against the route's second order; "
-          f"{args.rounds}/{2 * args.rounds} batches of 1000 loops at h = 0.1/0.05, seed {args.seed}")
+          f"{args.rounds} batches of 1000 loops at h = 0.2, 0.1, {2 * args.rounds} at 0.05, 0.025, seed {args.seed}")
     for kind, about, base in CASES:
         start = time.perf_counter()
         terms = tube_coefficients(kind, about)
@@ -41,17 +42,19 @@ def main() -> None:
                     "even": (terms.get(sympy.Abs(FLUX), 0), terms.get(sympy.Abs(x) * sympy.Abs(FLUX), 0)
                              + terms.get(FLUX ** 2, 0))}
         sampler = "identical" if kind == "anyon" else "distinct"
-        parts = {h: flux_parts(sampler, base, h, rounds, seed=args.seed)
-                 for h, rounds in ((0.1, args.rounds), (0.05, 2 * args.rounds))}
+        steps = ((0.2, args.rounds), (0.1, args.rounds), (0.05, 2 * args.rounds), (0.025, 2 * args.rounds))
+        parts = {h: flux_parts(sampler, base, h, rounds, seed=args.seed) for h, rounds in steps}
         print(f"\n{kind} piece about {about} (parameter {base} + h, flux +-h), {time.perf_counter() - start:.0f} s")
         for k, which in enumerate(("odd", "even")):
             c1, c2 = expected[which]
-            X = {h: (parts[h][k].value - float(c1) * h) / h ** 2 for h in parts}
-            bars = {h: parts[h][k].error / h ** 2 for h in parts}
-            estimate, bar = 2 * X[0.05] - X[0.1], 2 * bars[0.05] + bars[0.1]
-            print(f"  {which:4s} part: X(0.1) = {X[0.1]:+.4f} +- {bars[0.1]:.4f}, X(0.05) = {X[0.05]:+.4f} +- "
-                  f"{bars[0.05]:.4f}; Richardson {estimate:+.4f} +- {bar:.4f}; route {sympy.nsimplify(c2)} = "
-                  f"{float(c2):+.4f} ({(estimate - float(c2)) / bar:+.1f} sigma)")
+            X = {h: (parts[h][k].value - float(c1) * h) / h ** 2 for h, _ in steps}
+            bars = {h: parts[h][k].error / h ** 2 for h, _ in steps}
+            print(f"  {which} part, route {sympy.nsimplify(c2)} = {float(c2):+.4f}; X(h): " + ", ".join(
+                f"{h}: {X[h]:+.4f} +- {bars[h]:.4f}" for h, _ in steps))
+            for chosen in ((0.05, 0.025), (0.2, 0.1, 0.05), (0.1, 0.05, 0.025), (0.2, 0.1, 0.05, 0.025)):
+                limit = limit_at_zero(chosen, [X[h] for h in chosen], [bars[h] for h in chosen])
+                print(f"    through h = {', '.join(map(str, chosen))}: {limit.value:+.4f} +- {limit.error:.4f} "
+                      f"({(limit.value - float(c2)) / limit.error:+.1f} sigma)")
 
 
 if __name__ == "__main__":

@@ -323,3 +323,17 @@ def flux_parts(kind: str, base: float, h: float, rounds: int, *, seed: int = 0, 
         odd.append((b[0] - b[1]) / 2)
         even.append((b[0] + b[1]) / 2)
     return tuple(Estimate(float(np.mean(x)), float(np.std(x, ddof=1) / math.sqrt(rounds))) for x in (odd, even))
+
+
+def limit_at_zero(steps, values, errors) -> Estimate:
+    """The value at h = 0 of the polynomial through (h_k, value_k) (Lagrange; with three steps the
+    remainder c + a h + b h^2 of a Taylor coefficient read off at finite h), its bar sum |L_k| error_k
+    (conservative: no credit for correlations)."""
+    weights = []
+    for k, hk in enumerate(steps):
+        w = 1.0
+        for m, hm in enumerate(steps):
+            if m != k:
+                w *= (0.0 - hm) / (hk - hm)
+        weights.append(w)
+    return Estimate(sum(w * v for w, v in zip(weights, values)), sum(abs(w) * e for w, e in zip(weights, errors)))
