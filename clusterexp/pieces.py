@@ -378,7 +378,7 @@ def derived_taylor(system, piece: sympy.Symbol, used) -> tuple[dict, int, frozen
     shift = {v: sympy.Symbol(f"u_{v.name}") for v in point}
     side = {v: s for v, _, _, s in used}
     shifts = [shift[v] for v, _, _, _ in used]
-    order = min(max(k for _, _, k, _ in used), 2)
+    order = min(sum(k for _, _, k, _ in used), 2)   # a box (O(p^2) + O(q^2)) holds p q: total degree 2
 
     def deviation(expr):
         return deviation_of(expr, point, shift, side)
