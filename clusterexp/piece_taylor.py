@@ -92,3 +92,28 @@ def in_shifts(terms, numbers, deviations, shifts):
     estimates = {powers: (value + float(polynomial.coeff_monomial(powers)), error)
                  for powers, (value, error) in estimates.items() if powers not in unestimated}
     return known, frozenset(missing), estimates
+
+
+def coverage_part_at(system, root, power: int, point, value_of_root):
+    """The exact value at `point` ({parameter: exact number}) of the coefficient of coverage^power in the
+    generated b piece `root` (power 0: the tube-free piece), where it is known, else None: every power
+    >= 1 is 0 at an integer flux (no Aharonov-Bohm phase on any loop: the tubes drop out), and where the
+    regime knows the whole b at the point (`value_of_root`: its species bosons or fermions there, b_l =
+    (+-1)^(l+1)[r/l^2 + n F/l + ...], or species that do not braid, b = 0) the coefficient is read off.
+    The pieces are continuous in the statistics parameters and the flux, so this is also the order-0
+    Taylor coefficient from either side."""
+    from .routes.tube_pieces import _exactly_integer
+    coverage = system.tubes.coverage
+    if power >= 1 and _exactly_integer(sympy.sympify(system.tubes.flux).subs(point)):
+        return sympy.Integer(0)
+    whole = value_of_root(system, root, point)
+    if whole is None:
+        return None
+    whole = sympy.expand(sympy.sympify(whole).removeO() if hasattr(whole, "removeO") else whole)
+    if not whole.is_polynomial(coverage):
+        return None
+    part = sympy.Poly(whole, coverage).coeff_monomial(coverage ** power)
+    from .routes.tube_pieces import tube_piece
+    if any(tube_piece(s) is not None for s in sympy.sympify(part).free_symbols):
+        return None   # a sampled tube piece (T_two_tubes in the n^2 part): not an exact value
+    return sympy.expand(part)

@@ -301,6 +301,9 @@ def expand_pieces(system, value: sympy.Expr, variables: Sequence[tuple[sympy.Sym
         for powers in itertools.product(*(range(k + 1) for _, _, k, _ in used)):
             monomial = tuple((v, p, e, s) for (v, p, _, s), e in zip(used, powers))
             coefficient = value_at(system, piece, {v: p for v, p, _, _ in used}) if not any(powers) else None
+            if any(powers) and not all(powers) and value_at(
+                    system, piece, {v: p for (v, p, _, _), e in zip(used, powers) if not e}) == 0:
+                coefficient = sympy.Integer(0)   # zero on the whole line (integer flux, no braiding)
             if derived is not None and sum(powers) <= derived[1] and powers not in derived[2]:
                 coefficient = derived[0].get(powers, sympy.Integer(0))
             if coefficient is None:
@@ -327,8 +330,10 @@ def value_at(system, piece: sympy.Symbol, point: Mapping) -> sympy.Expr | None:
 
     from .routes import regime_of
     from .routes.pairphase import two_body_clusters
-    if piece.name in _NAMED or not regime_of(system).named_pieces:
+    if not regime_of(system).named_pieces:
         return None
+    if piece.name in _NAMED:
+        return _coverage_part_at(system, piece, point)
     tube = _tube_piece(piece) if system.tubes is not None else None
     if tube is not None:
         return tube.value_at(system, {v: sympy.sympify(p) for v, p in point.items()})
@@ -346,6 +351,16 @@ def value_at(system, piece: sympy.Symbol, point: Mapping) -> sympy.Expr | None:
     there = dataclasses.replace(system, species=species, mutuals=mutuals, tubes=tubes)
     value = two_body_clusters(there, sum(index)).get(index)
     return None if value is None else sympy.expand(value)
+
+
+def _coverage_part_at(system, piece: sympy.Symbol, point: Mapping) -> sympy.Expr | None:
+    """value_at for the coefficient of a power of the tube coverage in a generated b (`coverage_power`)."""
+    power = coverage_power(system, piece)
+    if power is None:
+        return None
+    from .piece_taylor import coverage_part_at
+    return coverage_part_at(system, _root(piece)[0], power, {v: sympy.sympify(p) for v, p in point.items()},
+                            value_at)
 
 
 def derived_taylor(system, piece: sympy.Symbol, used) -> tuple[dict, int, frozenset, dict] | None:
