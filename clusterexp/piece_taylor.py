@@ -117,3 +117,22 @@ def coverage_part_at(system, root, power: int, point, value_of_root):
     if any(tube_piece(s) is not None for s in sympy.sympify(part).free_symbols):
         return None   # a sampled tube piece (T_two_tubes in the n^2 part): not an exact value
     return sympy.expand(part)
+
+
+def line_coefficient(line, rest):
+    """The coefficient of prod (v - p)^e in `line`, the exact value of a piece on the whole line (or plane)
+    where the other expansion variables sit at their points, a function of the variables `rest` ([(v, p,
+    e, side)], side "above"/"below" at a kink, else None): the periodic parts frozen on each side, then
+    the Taylor coefficient of what is left; None when that is not a polynomial there."""
+    from .exact.periods import frozen_at
+    eps = sympy.Rational(1, 10 ** 9)
+    probes = {v: p + (-eps if s == "below" else eps if s == "above" else 0) for v, p, _, s in rest}
+    frozen, undecided = frozen_at(sympy.sympify(line), probes)
+    if undecided is not None:
+        return None
+    shifts = {v: sympy.Symbol(f"u_{v.name}") for v, _, _, _ in rest}
+    shifted = sympy.expand(frozen.subs({v: p + shifts[v] for v, p, _, _ in rest}, simultaneous=True))
+    if not shifted.is_polynomial(*shifts.values()):
+        return None
+    poly = sympy.Poly(shifted, *shifts.values())
+    return sympy.expand(poly.coeff_monomial(sympy.Mul(*(shifts[v] ** e for v, _, e, _ in rest))))

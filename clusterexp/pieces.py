@@ -28,7 +28,7 @@ import sympy
 
 from .naming import bracket_label
 from .piece_taylor import deviation as deviation_of
-from .piece_taylor import in_shifts, tube_taylor
+from .piece_taylor import in_shifts, line_coefficient, tube_taylor
 
 _PIECE = re.compile(r"^([ab])_(\d+(?:_\d+)*)$")
 SIDE_SIGNS = {"above": "+", "below": "-"}
@@ -301,9 +301,10 @@ def expand_pieces(system, value: sympy.Expr, variables: Sequence[tuple[sympy.Sym
         for powers in itertools.product(*(range(k + 1) for _, _, k, _ in used)):
             monomial = tuple((v, p, e, s) for (v, p, _, s), e in zip(used, powers))
             coefficient = value_at(system, piece, {v: p for v, p, _, _ in used}) if not any(powers) else None
-            if any(powers) and not all(powers) and value_at(
-                    system, piece, {v: p for (v, p, _, _), e in zip(used, powers) if not e}) == 0:
-                coefficient = sympy.Integer(0)   # zero on the whole line (integer flux, no braiding)
+            if any(powers) and not all(powers):   # known on the whole line (integer flux, no braiding, bosons)
+                line = value_at(system, piece, {v: p for (v, p, _, _), e in zip(used, powers) if not e})
+                if line is not None and not pieces_in(line, K):
+                    coefficient = line_coefficient(line, [(v, p, e, s) for (v, p, _, s), e in zip(used, powers) if e])
             if derived is not None and sum(powers) <= derived[1] and powers not in derived[2]:
                 coefficient = derived[0].get(powers, sympy.Integer(0))
             if coefficient is None:

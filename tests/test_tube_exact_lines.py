@@ -75,3 +75,19 @@ def test_mixed_coverage_part_vanishes_on_the_lines_of_no_braiding_and_integer_fl
         assert part.subs(s["f"], 0) == 0 and part.subs(s["nu"], 0) == 0, part
     names = [u for u in document.get("unknowns", {}) if "_n_1_" in u]
     assert sorted(names) == ["b_1_2_n_1_nu_1_above_f_1_above", "b_2_1_n_1_nu_1_above_f_1_above"], names
+
+
+def test_third_order_joint_series_keeps_the_bose_line_exact(cli, tmp_path):
+    """expand alpha, f about 0, 0 to 3: the route derives through total degree 2, but on the line alpha = 0
+    the pieces are known for every flux (B_anyon_tube = F/2, the coverage part of b_3 = F/3, polynomials
+    of degree 2 in f > 0): their f^3 coefficients are 0, not named unknowns. What stays unknown is of
+    degree 3 with alpha in it."""
+    document = _run(cli, tmp_path, "species T exchange alpha\ntubes flux f coverage n\nclusters pairphase\n"
+                                   "derive cluster up to 3\nexpand alpha, f about 0, 0 to 3 from above\n")
+    for index, cycle in (((2,), 2), ((3,), 3)):
+        value, s = _symbols(_series(document, index))
+        F = -s["f"] * (1 - s["f"]) / 2
+        assert sympy.expand(value.subs(s["alpha"], 0).coeff(s["n"], 1)) == sympy.expand(F / cycle), value
+    unknowns = list(document.get("unknowns", {}))
+    assert not [u for u in unknowns if "alpha_0_f" in u], unknowns
+    assert "b_3_n_0_alpha_3_above" in unknowns   # the alpha^3 term of the tube-free b_3: not derived
