@@ -106,6 +106,7 @@ def coverage_part_at(system, root, power: int, point, value_of_root):
     coverage = system.tubes.coverage
     if power >= 1 and _exactly_integer(sympy.sympify(system.tubes.flux).subs(point)):
         return sympy.Integer(0)
+    point = {v: p for v, p in point.items() if v != coverage}   # the part, not the whole at that coverage
     whole = value_of_root(system, root, point)
     if whole is None:
         return None

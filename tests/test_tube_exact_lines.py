@@ -91,3 +91,23 @@ def test_third_order_joint_series_keeps_the_bose_line_exact(cli, tmp_path):
     unknowns = list(document.get("unknowns", {}))
     assert not [u for u in unknowns if "alpha_0_f" in u], unknowns
     assert "b_3_n_0_alpha_3_above" in unknowns   # the alpha^3 term of the tube-free b_3: not derived
+
+
+def test_evaluate_at_the_bose_and_fermi_points_puts_the_ideal_gas_b_in(cli, tmp_path):
+    """`evaluate` of b[3], a[3] of anyons at alpha = 0 (bosons) and alpha = 1 (fermions) among tubes: b_3 =
+    1/9 + n F/3 (ideal gas, one-tube law) and a_3 = 1/36 (the ideal a_3, unchanged at first order in n
+    since every b_l gains the same n F/l per loop: a_l is the free gas's, docs/tubes.md); without tubes
+    b_3 = 1/9 at both points. Before, the named b_3 (b_3_n_0, b_3_n_1) made `evaluate` refuse."""
+    text = ("species T exchange alpha\ntubes flux f coverage n\nclusters pairphase\nderive virial up to 3\n"
+            "evaluate b[3], a[3] at alpha = 0, f = 1/2, n = 1/10\n"
+            "evaluate b[3], a[3] at alpha = 1, f = 1/3, n = 1/10\n")
+    document = _run(cli, tmp_path, text)
+    for entry, s in zip(document["values"], (sympy.Rational(1, 2), sympy.Rational(1, 3))):
+        numbers = [float(v) for v in entry["values"].values()]
+        F = -s * (1 - s) / 2
+        assert abs(numbers[0] - float(sympy.Rational(1, 9) + F / 30)) < 1e-13, entry
+        assert abs(numbers[1] - 1 / 36) < 1e-13, entry
+    plain = "species T exchange alpha\nclusters pairphase\nderive virial up to 3\nevaluate b[3] at alpha = 0\n" \
+            "evaluate b[3] at alpha = 1\n"
+    for entry in _run(cli, tmp_path, plain)["values"]:
+        assert [abs(float(v) - 1 / 9) < 1e-14 for v in entry["values"].values()] == [True], entry
