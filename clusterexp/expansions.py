@@ -9,7 +9,7 @@ from dataclasses import dataclass
 import sympy
 
 from .exact.orders import split_truncation, truncation_problem  # noqa: F401 (read here too)
-from .exact.periods import PeriodicPart
+from .exact.periods import PeriodicPart, frozen_at  # noqa: F401 (frozen_at read here too)
 
 
 def kinks(expr: sympy.Expr, symbol: sympy.Symbol, point) -> bool:
@@ -166,28 +166,6 @@ class JointSeriesPiece(SeriesPiece):
         for note in self.notes:
             text += f"; {note}"
         return text
-
-
-def frozen_at(expr: sympy.Expr, probes: dict) -> tuple[sympy.Expr, sympy.Expr | None]:
-    """expr with every periodic part (floor, Mod) that involves the probed variables frozen at its value
-    at the probe point (just off the expansion point on each variable's side), and the first such part
-    whose value there is not a number (it depends on other parameters too), or None."""
-    expr = expr.replace(lambda e: isinstance(e, PeriodicPart), lambda e: e.floor_form())
-    undecided = None
-    floors = {}
-    for f in expr.atoms(sympy.floor):
-        if f.free_symbols & set(probes):
-            at = f.args[0].subs(probes)
-            undecided = undecided if at.is_number else undecided or f
-            floors[f] = sympy.floor(at)
-    expr = expr.subs(floors)
-    mods = {}
-    for m in expr.atoms(sympy.Mod):
-        if m.free_symbols & set(probes):
-            at = (m.args[0] / m.args[1]).subs(probes)
-            undecided = undecided if at.is_number else undecided or m
-            mods[m] = m.args[0] - m.args[1] * sympy.floor(at)
-    return expr.subs(mods), undecided
 
 
 def _at_point(label, exact, limits, symbol, point, known, system, span):

@@ -92,3 +92,48 @@ def in_shifts(terms, numbers, deviations, shifts):
     estimates = {powers: (value + float(polynomial.coeff_monomial(powers)), error)
                  for powers, (value, error) in estimates.items() if powers not in unestimated}
     return known, frozenset(missing), estimates
+
+
+def coverage_part_at(system, root, power: int, point, value_of_root):
+    """The exact value at `point` ({parameter: exact number}) of the coefficient of coverage^power in the
+    generated b piece `root` (power 0: the tube-free piece), where it is known, else None: every power
+    >= 1 is 0 at an integer flux (no Aharonov-Bohm phase on any loop: the tubes drop out), and where the
+    regime knows the whole b at the point (`value_of_root`: its species bosons or fermions there, b_l =
+    (+-1)^(l+1)[r/l^2 + n F/l + ...], or species that do not braid, b = 0) the coefficient is read off.
+    The pieces are continuous in the statistics parameters and the flux, so this is also the order-0
+    Taylor coefficient from either side."""
+    from .routes.tube_pieces import _exactly_integer
+    coverage = system.tubes.coverage
+    if power >= 1 and _exactly_integer(sympy.sympify(system.tubes.flux).subs(point)):
+        return sympy.Integer(0)
+    point = {v: p for v, p in point.items() if v != coverage}   # the part, not the whole at that coverage
+    whole = value_of_root(system, root, point)
+    if whole is None:
+        return None
+    whole = sympy.expand(sympy.sympify(whole).removeO() if hasattr(whole, "removeO") else whole)
+    if not whole.is_polynomial(coverage):
+        return None
+    part = sympy.Poly(whole, coverage).coeff_monomial(coverage ** power)
+    from .routes.tube_pieces import tube_piece
+    if any(tube_piece(s) is not None for s in sympy.sympify(part).free_symbols):
+        return None   # a sampled tube piece (T_two_tubes in the n^2 part): not an exact value
+    return sympy.expand(part)
+
+
+def line_coefficient(line, rest):
+    """The coefficient of prod (v - p)^e in `line`, the exact value of a piece on the whole line (or plane)
+    where the other expansion variables sit at their points, a function of the variables `rest` ([(v, p,
+    e, side)], side "above"/"below" at a kink, else None): the periodic parts frozen on each side, then
+    the Taylor coefficient of what is left; None when that is not a polynomial there."""
+    from .exact.periods import frozen_at
+    eps = sympy.Rational(1, 10 ** 9)
+    probes = {v: p + (-eps if s == "below" else eps if s == "above" else 0) for v, p, _, s in rest}
+    frozen, undecided = frozen_at(sympy.sympify(line), probes)
+    if undecided is not None:
+        return None
+    shifts = {v: sympy.Symbol(f"u_{v.name}") for v, _, _, _ in rest}
+    shifted = sympy.expand(frozen.subs({v: p + shifts[v] for v, p, _, _ in rest}, simultaneous=True))
+    if not shifted.is_polynomial(*shifts.values()):
+        return None
+    poly = sympy.Poly(shifted, *shifts.values())
+    return sympy.expand(poly.coeff_monomial(sympy.Mul(*(shifts[v] ** e for v, _, e, _ in rest))))

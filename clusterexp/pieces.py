@@ -28,7 +28,7 @@ import sympy
 
 from .naming import bracket_label
 from .piece_taylor import deviation as deviation_of
-from .piece_taylor import in_shifts, tube_taylor
+from .piece_taylor import in_shifts, line_coefficient, tube_taylor
 
 _PIECE = re.compile(r"^([ab])_(\d+(?:_\d+)*)$")
 SIDE_SIGNS = {"above": "+", "below": "-"}
@@ -301,6 +301,10 @@ def expand_pieces(system, value: sympy.Expr, variables: Sequence[tuple[sympy.Sym
         for powers in itertools.product(*(range(k + 1) for _, _, k, _ in used)):
             monomial = tuple((v, p, e, s) for (v, p, _, s), e in zip(used, powers))
             coefficient = value_at(system, piece, {v: p for v, p, _, _ in used}) if not any(powers) else None
+            if any(powers) and not all(powers):   # known on the whole line (integer flux, no braiding, bosons)
+                line = value_at(system, piece, {v: p for (v, p, _, _), e in zip(used, powers) if not e})
+                if line is not None and not pieces_in(line, K):
+                    coefficient = line_coefficient(line, [(v, p, e, s) for (v, p, _, s), e in zip(used, powers) if e])
             if derived is not None and sum(powers) <= derived[1] and powers not in derived[2]:
                 coefficient = derived[0].get(powers, sympy.Integer(0))
             if coefficient is None:
@@ -327,8 +331,10 @@ def value_at(system, piece: sympy.Symbol, point: Mapping) -> sympy.Expr | None:
 
     from .routes import regime_of
     from .routes.pairphase import two_body_clusters
-    if piece.name in _NAMED or not regime_of(system).named_pieces:
+    if not regime_of(system).named_pieces:
         return None
+    if piece.name in _NAMED:
+        return _coverage_part_at(system, piece, point)
     tube = _tube_piece(piece) if system.tubes is not None else None
     if tube is not None:
         return tube.value_at(system, {v: sympy.sympify(p) for v, p in point.items()})
@@ -346,6 +352,16 @@ def value_at(system, piece: sympy.Symbol, point: Mapping) -> sympy.Expr | None:
     there = dataclasses.replace(system, species=species, mutuals=mutuals, tubes=tubes)
     value = two_body_clusters(there, sum(index)).get(index)
     return None if value is None else sympy.expand(value)
+
+
+def _coverage_part_at(system, piece: sympy.Symbol, point: Mapping) -> sympy.Expr | None:
+    """value_at for the coefficient of a power of the tube coverage in a generated b (`coverage_power`)."""
+    power = coverage_power(system, piece)
+    if power is None:
+        return None
+    from .piece_taylor import coverage_part_at
+    return coverage_part_at(system, _root(piece)[0], power, {v: sympy.sympify(p) for v, p in point.items()},
+                            value_at)
 
 
 def derived_taylor(system, piece: sympy.Symbol, used) -> tuple[dict, int, frozenset, dict] | None:
@@ -378,7 +394,7 @@ def derived_taylor(system, piece: sympy.Symbol, used) -> tuple[dict, int, frozen
     shift = {v: sympy.Symbol(f"u_{v.name}") for v in point}
     side = {v: s for v, _, _, s in used}
     shifts = [shift[v] for v, _, _, _ in used]
-    order = min(max(k for _, _, k, _ in used), 2)
+    order = min(sum(k for _, _, k, _ in used), 2)   # a box (O(p^2) + O(q^2)) holds p q: total degree 2
 
     def deviation(expr):
         return deviation_of(expr, point, shift, side)

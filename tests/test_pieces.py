@@ -251,18 +251,30 @@ def test_no_first_order_term_about_fermions():
         assert shifted.coeff(sympy.Symbol("u"), 1) == 0, n
 
 
-def test_first_order_in_two_parameters_at_once_leaves_only_the_cross_term_unknown():
+def test_first_order_in_two_parameters_at_once_leaves_only_the_cross_term():
     """A truncation in the exchange parameter of A and the mutual parameter at once (unequal masses,
     B fermions): every first-order term of the mixed a[2,1] is known (at first order the statistical
     coupling is a contact whose only effect on a is in a_(2 e_i) and a_(e_i + e_j): docs/perturbative.md,
     checked there against the Monte Carlo), and a[2,1](0, 0) = 0 (species that do not braid: a fact of
-    the trade); what stays open is the alpha*nu term, second order, and the check says exactly that."""
-    d = clusterexp.derive("dimension 2 parameter alpha in [0, 1] parameter nu in [0, 1] species A exchange alpha "
-                          "species B mass 2 fermi mutual A B = nu clusters pairphase derive virial up to 3 "
-                          "claim a[2,1] = O(alpha^2) + O(nu^2)")
+    the trade); what is left in the box O(alpha^2) + O(nu^2) is the alpha*nu term, of total degree 2,
+    which the route derives (the whole of b_{2,1} at second order): the box claim must use it, the same
+    number as the joint series through total degree 2, not name it as an unknown."""
+    head = ("dimension 2 parameter alpha in [0, 1] parameter nu in [0, 1] species A exchange alpha "
+            "species B mass 2 fermi mutual A B = nu clusters pairphase derive virial up to 3 ")
+    d = clusterexp.derive(head + "claim a[2,1] = O(alpha^2) + O(nu^2) expand alpha, nu about 0, 0 to 2 from above")
     (result,) = d.checks
-    assert result.status == "undecided", result.render()
-    assert [e.lhs.name for e in result.conditions] == ["b_2_1_alpha_1_above_nu_1_above"]
+    assert result.status == "mismatch", result.render()
+    alpha, nu = sympy.symbols("alpha nu", real=True)
+    difference = sympy.expand(result.difference.subs({s: {"alpha": alpha, "nu": nu}[s.name]
+                                                      for s in result.difference.free_symbols}))
+    cross = difference.coeff(alpha, 1).coeff(nu, 1)
+    assert cross != 0 and sympy.expand(difference - cross * alpha * nu) == 0, difference
+    (series,) = d.series_of(d.coefficient("virial", (2, 1)))
+    joint = sympy.expand(series.polynomial.subs({s: {"alpha": alpha, "nu": nu}.get(s.name, s)
+                                                 for s in series.polynomial.free_symbols}))
+    assert joint.coeff(alpha, 1).coeff(nu, 1) == -cross
+    d = clusterexp.derive(head + f"claim a[2,1] = ({-cross})*alpha*nu + O(alpha^2) + O(nu^2)")
+    assert d.checks[0].status == "proven", d.checks[0].render()
 
 
 @pytest.mark.parametrize("text, message", [

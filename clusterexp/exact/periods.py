@@ -152,3 +152,25 @@ def _range_of(value, parameters):
 
 def _open_top(value, parameters) -> bool:
     return False
+
+
+def frozen_at(expr: sympy.Expr, probes: dict) -> tuple[sympy.Expr, sympy.Expr | None]:
+    """expr with every periodic part (floor, Mod) that involves the probed variables frozen at its value
+    at the probe point (just off the expansion point on each variable's side), and the first such part
+    whose value there is not a number (it depends on other parameters too), or None."""
+    expr = expr.replace(lambda e: isinstance(e, PeriodicPart), lambda e: e.floor_form())
+    undecided = None
+    floors = {}
+    for f in expr.atoms(sympy.floor):
+        if f.free_symbols & set(probes):
+            at = f.args[0].subs(probes)
+            undecided = undecided if at.is_number else undecided or f
+            floors[f] = sympy.floor(at)
+    expr = expr.subs(floors)
+    mods = {}
+    for m in expr.atoms(sympy.Mod):
+        if m.free_symbols & set(probes):
+            at = (m.args[0] / m.args[1]).subs(probes)
+            undecided = undecided if at.is_number else undecided or m
+            mods[m] = m.args[0] - m.args[1] * sympy.floor(at)
+    return expr.subs(mods), undecided
