@@ -298,6 +298,7 @@ def expand_pieces(system, value: sympy.Expr, variables: Sequence[tuple[sympy.Sym
                 system, piece) or 0) >= 1) \
                 else "docs/perturbative.md"
             notes.append(f"{piece_label(piece)} through order {reach} from the perturbative route ({source})")
+            notes.extend(f"{piece_label(piece)}: {gap}" for gap in (derived[4] if len(derived) > 4 else ()))
         for powers in itertools.product(*(range(k + 1) for _, _, k, _ in used)):
             monomial = tuple((v, p, e, s) for (v, p, _, s), e in zip(used, powers))
             coefficient = value_at(system, piece, {v: p for v, p, _, _ in used}) if not any(powers) else None
@@ -436,9 +437,12 @@ def derived_taylor(system, piece: sympy.Symbol, used) -> tuple[dict, int, frozen
             mutual[(i, j)] = sympy.Symbol(f"d_{i}_{j}", real=True)
             deviations[mutual[(i, j)]] = found[1]
     terms = taylor_coefficients(species, mutual, index, tuple(about), order, unknown="name")
-    numbers = numerical_coefficients(species, mutual, index, tuple(about)) if order >= 2 else {}
+    gaps: list[str] = []   # why a coefficient the route computes has no number here (a reach of the quadrature)
+    numbers = numerical_coefficients(species, mutual, index, tuple(about), gaps) if order >= 2 else {}
     found = in_shifts(terms, numbers, deviations, shifts)
-    return None if found is None else (found[0], order, found[1], found[2])
+    for (i, j), symbol in mutual.items():   # the gaps in the user's words
+        gaps = [g.replace(f"{symbol}^2", f"({system.mutual(names[i], names[j])})^2") for g in gaps]
+    return None if found is None else (found[0], order, found[1], found[2], gaps)
 
 
 def side_in_range(parameters: Iterable, symbol: sympy.Symbol, point) -> str | None:

@@ -128,6 +128,21 @@ def test_the_command_line_shows_the_number_beside_the_name():
     assert abs(number - (1.5 + value)) < 1e-6 and abs(value - 0.880807) < 1e-5, line
 
 
+def test_the_series_says_why_a_coefficient_has_no_number():
+    """Beyond the quadrature's reach (mass ratio 1000) the d^2 coefficient keeps its name without a number,
+    and the series line says why, in the user's parameter (not the route's internal symbol)."""
+    import subprocess
+    import sys
+    text = ("dimension 2 parameter nu in [0, 1] species A bose species B mass 1000 bose mutual A B = nu "
+            "clusters pairphase derive cluster b[2,2] expand nu about 0 to 2")
+    out = subprocess.run([sys.executable, "-m", "clusterexp", "run", "-e", text, "--no-files"],
+                         capture_output=True, text=True, timeout=300)
+    assert out.returncode == 0, out.stderr
+    line = next(x for x in out.stdout.splitlines() if "series in nu" in x)
+    assert "no number for the coefficient of (nu)^2" in line and "mass ratio" in line, line
+    assert "d_0_1" not in out.stdout and "computed: " not in out.stdout
+
+
 def test_a_terminal_sees_which_rule_runs_and_the_value_is_cached(monkeypatch):
     """The quadrature reports each rule on the progress line (clusterexp/progress.py; on a terminal only,
     forced on here) and is computed once per (a, b, mass ratio): masses (14, 2) reuse (7, 1), scaled."""

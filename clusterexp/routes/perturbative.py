@@ -363,7 +363,7 @@ def _computed_square(gas: _Gas, link: _Link, n) -> tuple[float, float] | None:
     return float(ring + landau) + gas.sign[i] ** n[i] * float(gas.mass[i]) * value, float(gas.mass[i]) * error
 
 
-def _computed_two_species(gas: _Gas, link: _Link, n) -> dict:
+def _computed_two_species(gas: _Gas, link: _Link, n, gaps: list | None = None) -> dict:
     """For b_n of two species i, j and the mutual link d = d_ij (n_i + n_j >= 4): the coefficient of d^2,
     the chains of three loops (exact, any masses) plus the link squared of the cluster of the n_i-cycle
     of i with the n_j-cycle of j, signed by the cycles' transpositions about fermions. Equal masses: from
@@ -390,7 +390,9 @@ def _computed_two_species(gas: _Gas, link: _Link, n) -> dict:
             return {}                       # |n| = 3 is derived exactly (section 4e)
         try:
             square, square_error = link_squared_coefficient(a, b, gas.mass[i], gas.mass[j])
-        except NotSupportedYet:
+        except NotSupportedYet as why:
+            if gaps is not None:   # said beside the name: why it has no number
+                gaps.append(f"no number for the coefficient of {link.symbol}^2 ({why})")
             return {}
         scale = 1.0
     ring, landau = _chain(gas, link, link, n)
@@ -398,7 +400,7 @@ def _computed_two_species(gas: _Gas, link: _Link, n) -> dict:
 
 
 def numerical_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int, int], sympy.Symbol],
-                           multi_index: Sequence[int], about="boson") -> dict:
+                           multi_index: Sequence[int], about="boson", gaps: list | None = None) -> dict:
     """{monomial: (value, error bound)} for the second-order Taylor coefficients of b_n that are not
     derived in closed form but computed numerically: the square of the exchange parameter in b_n of
     one species (n = 4..two_loop_table.SINGLE_CYCLES_CHECKED), and d_ij^2 in b_n of two species, |n| >= 4:
@@ -415,7 +417,7 @@ def numerical_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int
         computed = _computed_square(gas, link, n)
         if computed is not None:
             out[link.symbol ** 2] = computed
-        out.update(_computed_two_species(gas, link, n))
+        out.update(_computed_two_species(gas, link, n, gaps))
     return out
 
 
