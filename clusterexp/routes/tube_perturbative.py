@@ -23,6 +23,8 @@ of a wrong limit.
 """
 from __future__ import annotations
 
+import functools
+
 import sympy
 
 from .perturbative import Species, chain_part, taylor_coefficients
@@ -97,6 +99,14 @@ def tube_coefficients(kind: str, about: str = "boson", masses=(1, 1), order: int
         raise ValueError(f"order must be 0, 1 or 2, got {order!r}")
     if not isinstance(cycle, int) or cycle < 2 or (cycle != 2 and kind != "anyon"):
         raise ValueError(f"cycle must be an integer >= 2, for kind 'anyon' only; got {cycle!r}")
+    masses = tuple(sympy.Rational(m) for m in masses)
+    return dict(_coefficients(kind, about, masses, order, cycle))
+
+
+@functools.lru_cache(maxsize=256)
+def _coefficients(kind: str, about: str, masses: tuple, order: int, cycle: int) -> tuple:
+    """tube_coefficients as a tuple of items, computed once per process and argument set (six mixtures
+    through the perturbative route each, 0.01-0.2 s; every expansion and truncated claim asks again)."""
     per_node = [sympy.Poly(_heavy(kind, M, about, masses, cycle), *sorted(
         {FLUX, EXCHANGE, MUTUAL, sympy.Abs(FLUX), sympy.Abs(EXCHANGE), sympy.Abs(MUTUAL)}, key=str))
         for M in NODES]
@@ -111,7 +121,7 @@ def tube_coefficients(kind: str, about: str = "boson", masses=(1, 1), order: int
             out[monomial] = out.get(monomial, 0) + value
     if order >= 2:   # quenched, not annealed: minus (e^Delta - 1 - Delta) at z^l, through f^2
         out[FLUX ** 2] = out.get(FLUX ** 2, 0) - _quenched_correction(kind, about, cycle)
-    return {m: v for m, v in out.items() if v != 0}
+    return tuple((m, v) for m, v in out.items() if v != 0)
 
 
 
