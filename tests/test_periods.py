@@ -211,3 +211,15 @@ def test_exclusion_warns_when_an_exchange_outside_the_unit_interval_becomes_g():
     for text in ("dimension 2 species A exchange 1/2 clusters exclusion",
                  "dimension 2 species A exchange 3/2 clusters exclusion statistics A A = 3/2"):
         assert not any("not periodic" in w for w, _ in build_system(text).warnings)
+
+
+def test_a_series_in_one_parameter_keeps_the_others_periodic_part():
+    """`expand f` with the exchange parameter symbolic and unbounded: b_2's Mod(alpha, 2) (Arovas et al.
+    1985, period 2 in alpha) stays as it prints, not rewritten into floor terms."""
+    from clusterexp.exact.periods import frozen_at
+    alpha, fx = sympy.symbols("alpha f", real=True)
+    expr = sympy.Rational(1, 4) - sympy.Mod(alpha, 2) + sympy.Mod(alpha, 2) ** 2 / 2 - fx * sympy.Mod(fx, 1)
+    frozen, undecided = frozen_at(expr, {fx: sympy.Rational(1, 10 ** 9)})
+    assert undecided is None
+    assert not frozen.atoms(sympy.floor), frozen
+    assert sympy.expand(frozen - (sympy.Rational(1, 4) - sympy.Mod(alpha, 2) + sympy.Mod(alpha, 2) ** 2 / 2 - fx ** 2)) == 0

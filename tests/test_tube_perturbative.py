@@ -11,6 +11,8 @@ T2 = |g1||g2|/4 - g1 g2/12 of docs/tubes.md (i), derived from the loops' winding
 Werner 1994, from memory) and Levy's area law; and the sampled loops of `loops.tube_estimates`, which
 know nothing of the perturbative route.
 """
+import json
+
 import pytest
 import sympy
 
@@ -125,7 +127,6 @@ def test_expand_among_tubes_uses_the_derived_coefficients(cli, tmp_path):
     tube-free b_3 = 1/9 - alpha + 59/24 alpha^2 (Myrheim & Olaussen, Phys. Lett. B 299 (1993) 267, via
     a_3 = 1/36 + alpha^2/12), with no flux-dependent unknown named for it; its coverage part is derived
     too, and at alpha = 0 it is the bose law F/3 (Comtet, Georgelin, Ouvry 1989, from memory)."""
-    import json
     path = tmp_path / "gas.in"
     path.write_text(GAS)
     result = cli("run", str(path), "--format", "json", "--no-files")
@@ -171,3 +172,46 @@ def test_coverage_part_contact_term_follows_the_first_order_of_b_l():
     for cycle in range(2, 7):
         harmonic = sum(sympy.Rational(1, k) for k in range(1, cycle))
         assert tube_coefficients("anyon", "boson", cycle=cycle)[sympy.Abs(e) * sympy.Abs(f)] == harmonic
+
+
+EVALUATIONS = """evaluate b[3] at alpha = 1/100, f = 0, n = 1/10
+evaluate b[3] at alpha = 1/100, f = 1/50, n = 0
+evaluate b[3] at alpha = 1/100, f = 1/50, n = 1/10
+"""
+
+
+def _values(cli, tmp_path, text):
+    path = tmp_path / "gas.in"
+    path.write_text(text)
+    result = cli("run", str(path), "--format", "json", "--no-files")
+    assert result.returncode == 0, result.stderr
+    return json.loads(result.stdout)
+
+
+def test_evaluate_near_the_joint_point_uses_the_series(cli, tmp_path):
+    """Near (alpha, f) = (0, 0+) the value comes from the truncated joint series, labelled so.  Without
+    tubes (n = 0) or at zero flux, b_3 = 1/9 - alpha + 59/24 alpha^2 through second order (Myrheim &
+    Olaussen, Phys. Lett. B 299 (1993) 267, via a_3 = 1/36 + alpha^2/12); with both, the series adds n
+    times the coverage part -f/6 + f^2/6 + (3/2)|alpha||f| - (11/24) alpha f (docs/tubes.md (iii); its
+    alpha = 0 part is the bose law F/3, F = -f(1 - f)/2, tested in test_tube_perturbative.py)."""
+    document = _values(cli, tmp_path, GAS + EVALUATIONS)
+    f, n, a = sympy.Rational(1, 50), sympy.Rational(1, 10), sympy.Rational(1, 100)
+    free = sympy.Rational(1, 9) - a + sympy.Rational(59, 24) * a ** 2
+    coverage = -f / 6 + f ** 2 / 6 + sympy.Rational(3, 2) * a * f - sympy.Rational(11, 24) * a * f
+    for block, exact in zip(document["values"], [free, free, free + n * coverage]):
+        (label, number), = block["values"].items()
+        assert "truncated joint series about (alpha, f) = (0, 0)" in label, label
+        assert "terms of total degree 3 left out" in label, label
+        assert abs(float(number) - float(exact)) < 1e-13, (label, number, float(exact))
+    assert len(document["values"]) == 3
+
+
+def test_a_point_on_the_wrong_side_is_not_taken_from_the_series(cli, tmp_path):
+    """The series is one-sided in f (from above): at f < 0 it says nothing, and the named pieces have no
+    value there, so `evaluate` refuses at the user's line."""
+    path = tmp_path / "gas.in"
+    path.write_text((GAS + EVALUATIONS).replace("f = 1/50, n = 1/10", "f = -1/50, n = 1/10"))
+    result = cli("run", str(path), "--no-files")
+    assert result.returncode == 2, result.stdout
+    assert "gas.in:12:1" in result.stderr and "no value for b_3_n_0" in result.stderr, result.stderr
+    assert "Traceback" not in result.stderr

@@ -158,7 +158,9 @@ def frozen_at(expr: sympy.Expr, probes: dict) -> tuple[sympy.Expr, sympy.Expr | 
     """expr with every periodic part (floor, Mod) that involves the probed variables frozen at its value
     at the probe point (just off the expansion point on each variable's side), and the first such part
     whose value there is not a number (it depends on other parameters too), or None."""
-    expr = expr.replace(lambda e: isinstance(e, PeriodicPart), lambda e: e.floor_form())
+    # only the parts that involve a probed variable: the others stay as they print (Mod(alpha, 2), not floors)
+    expr = expr.replace(lambda e: isinstance(e, PeriodicPart) and bool(e.free_symbols & set(probes)),
+                        lambda e: e.floor_form())
     undecided = None
     floors = {}
     for f in expr.atoms(sympy.floor):

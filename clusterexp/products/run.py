@@ -16,6 +16,7 @@ from .check_result import MISMATCH, UNDECIDED, CheckList
 from .checks import check_claim, check_decimal_claim, check_with_pieces
 from .exact_pieces import filled, noted
 from ..errors import InputError
+from ..expansions import TotalDegree
 from .numbers import csv_bytes, evaluate, format_number, grid_table
 from ..routes.tube_pieces import coverage_truncation
 from .sampled_use import (check_sampled_claim, plot_sampled_line, sampled_number_text, sampled_table, tube_pieces_in,
@@ -135,7 +136,8 @@ def run_evaluations(derivation) -> list:
             if _with_numbers(derivation, value):   # Monte Carlo parts: value +- error
                 rows.append((label, sampled_number_text(derivation, value, point, evaluation.span)))
                 continue
-            through = _through_series(derivation, _coefficient(derivation, target), value, point, evaluation.digits)
+            through = _through_series(derivation, _coefficient(derivation, target), value, point, evaluation.digits,
+                                       label)
             if through is not None:   # named pieces: the `expand` series of the input, if it reaches the point
                 rows.append((f"{label} ({through[0]})", through[1]))
                 continue
@@ -151,9 +153,9 @@ def run_evaluations(derivation) -> list:
 NEAR = sympy.Rational(1, 4)   # how far from its point `evaluate` takes an `expand` series for the value
 
 
-def _through_series(derivation, coefficient, value, point: dict, digits: int):
+def _through_series(derivation, coefficient, value, point: dict, digits: int, stated: str = ""):
     """For a value with named many-body pieces: (how, number text) from the `expand` series of the input
-    nearest to the point among those that reach it (one variable, the point on the series' side and
+    nearest to the point among those that reach it (one variable or a joint series: the point on each side and
     within NEAR of it, every other parameter given, every named Taylor coefficient in it computed or
     absent), else None. The number is the truncated series at the point; `how` says which series, the
     O term left out and its size there; a +- is the computed coefficients' bound only."""
@@ -162,29 +164,54 @@ def _through_series(derivation, coefficient, value, point: dict, digits: int):
         return None
     candidates = []
     for piece in derivation.series_of(coefficient):
-        if getattr(piece, "variables", ()) or piece.variable not in point:
-            continue
-        shift = sympy.sympify(point[piece.variable] - piece.point)
-        if abs(shift) > NEAR or (piece.side == "above" and shift < 0) or (piece.side == "below" and shift > 0):
+        axes = getattr(piece, "variables", ()) or ((piece.variable, piece.point, piece.side),)
+        shifts = _shifts_within(axes, point)
+        if shifts is None:
             continue
         estimates = {u.symbol: u.estimate for u in piece.unknowns}
         if any(e is None for e in estimates.values()):
             continue
         number = with_estimates(sympy.expand(piece.polynomial).subs(point), estimates)
         if number is not None:
-            candidates.append((abs(shift), piece, shift, estimates, number))
+            candidates.append((max(shifts), piece, axes, max(shifts), estimates, number))
     if not candidates:
         return None
-    _, piece, shift, estimates, (number, bound) = min(candidates, key=lambda c: c[0])
-    size = format_number(evaluate(abs(shift) ** (piece.known + 1), {}, 3), 3)
-    base = f"{piece.variable}" if piece.point == 0 else f"({piece.variable} - {piece.point})"
-    others = [sympy.sstr(o.expr) for o in piece.remainder if piece.variable not in o.expr.free_symbols]
-    how = (f"truncated series about {piece.variable} = {piece.point}" + (f" from {piece.side}" if piece.side else "")
-           + f" through order {piece.known}; O({base}^{piece.known + 1}) left out, {base}^{piece.known + 1} = {size} here"
-           + (f"; also O({'), O('.join(others)})" if others else ""))
+    _, piece, axes, reach, estimates, (number, bound) = min(candidates, key=lambda c: c[0])
+    size = format_number(evaluate(reach ** (piece.known + 1), {}, 3), 3)
+    names = [v for v, _, _ in axes]
+    bases = [f"{v}" if p == 0 else f"({v} - {p})" for v, p, _ in axes]
+    others = [sympy.sstr(o.expr) for o in piece.remainder
+              if not any(v in o.expr.free_symbols for v in names) and not isinstance(o, TotalDegree)
+              and f"O({sympy.sstr(o.expr)})" not in stated]   # not again what the label already says
+    if len(axes) == 1:
+        v, p, side = axes[0]
+        how = (f"truncated series about {v} = {p}" + (f" from {side}" if side else "")
+               + f" through order {piece.known}; O({bases[0]}^{piece.known + 1}) left out, "
+               f"{bases[0]}^{piece.known + 1} = {size} here")
+    else:
+        sides = [f"{v} from {s}" for v, _, s in axes if s]
+        how = (f"truncated joint series about ({', '.join(map(str, names))}) = ({', '.join(str(p) for _, p, _ in axes)})"
+               + (f" ({', '.join(sides)})" if sides else "")
+               + f" through total degree {piece.known}; terms of total degree {piece.known + 1} left out, "
+               f"each up to {size} here (largest deviation {format_number(evaluate(reach, {}, 3), 3)})")
+    how += f"; also O({'), O('.join(others)})" if others else ""
     if not estimates:
         return how, format_number(evaluate(sympy.expand(piece.polynomial).subs(point), {}, digits), digits)
     return how + "; +- from the computed coefficients only", format_estimate(number, max(bound, 10.0 ** -digits))
+
+
+def _shifts_within(axes, point: dict):
+    """|deviation| of each series variable at `point` when every one is given, on its series' side and
+    within NEAR of its expansion point; else None."""
+    shifts = []
+    for variable, centre, side in axes:
+        if variable not in point:
+            return None
+        shift = sympy.sympify(point[variable] - centre)
+        if abs(shift) > NEAR or (side == "above" and shift < 0) or (side == "below" and shift > 0):
+            return None
+        shifts.append(abs(shift))
+    return shifts
 
 
 def _gas_symbols(system) -> set:
