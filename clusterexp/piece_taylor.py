@@ -30,10 +30,12 @@ def deviation(expr, point, shift, side):
     return at, (dev, sign)
 
 
-def tube_taylor(system, tube, deviation, mass, order, shifts, cycle=2):
-    """derived_taylor for a tube piece (or the coverage part of b_l of one species: the anyon kind with
-    cycle = l): about an integer flux and, for the anyons, their boson or fermion point, for the braid
-    piece an integer mutual parameter (docs/tubes.md (iii))."""
+def tube_taylor(system, tube, deviation, mass, order, shifts, cycle=None):
+    """derived_taylor for a tube piece, or for the coverage part of b_l of one species (the anyon kind
+    with cycle = l) or of b_{a e_A + b e_B} of two braiding species (the braid kind with cycle = (a, b)):
+    about an integer flux and, for the anyons, their boson or fermion point, for the braid pieces an
+    integer mutual parameter and each species with two or more particles at its boson or fermion point
+    (docs/tubes.md (iii))."""
     from .routes.tube_perturbative import EXCHANGE, FLUX, MUTUAL, tube_coefficients
     kind, about, masses, deviations = "two_tubes", "boson", (1, 1), {}
     wanted = [(FLUX, system.tubes.flux)]
@@ -47,6 +49,13 @@ def tube_taylor(system, tube, deviation, mass, order, shifts, cycle=2):
         masses = tuple(mass(system.species[system.species_names.index(name)].mass) for name in pair)
         if None in masses:
             return None
+        points = []
+        for name, count in zip(pair, cycle or (1, 1)):
+            found = deviation(system.species[system.species_names.index(name)].exchange) if count >= 2 else (0, None)
+            if found is None:   # an anyon away from its boson/fermion point: not this route's expansion
+                return None
+            points.append("boson" if found[0] % 2 == 0 else "fermion")   # no exchange term at this order
+        about = tuple(points)
     for symbol, expr in wanted:
         found = deviation(expr)
         if found is None:

@@ -79,6 +79,76 @@ def test_braid_piece_depends_on_the_mass_ratio_alone_and_has_no_flux_square():
     assert f ** 2 not in tube_coefficients("braid")
 
 
+@pytest.mark.parametrize("cycle, about, masses", [((2, 1), "boson", (1, 1)), ((1, 2), "fermion", (1, 1)),
+                                                  ((3, 2), ("boson", "fermion"), (1, 1)), ((2, 2), "fermion", (1, 1)),
+                                                  ((2, 1), "boson", (2, 1)), ((3, 1), ("fermion", "boson"), (sympy.Rational(1, 3), 5))])
+def test_mixed_coverage_parts_follow_the_contact_law(cycle, about, masses):
+    """The coverage part of b_{a e_A + b e_B} of two braiding species through second order (the braid kind
+    with cycle (a, b)).  Two outside laws fix all but its d f term:
+    (1) species that do not braid have no mixed b at fixed tubes (ln Xi is the sum of the two species'
+        own), so at d = 0 the part vanishes for every flux: no |f|, f or f^2 term.  The f^2 term of the
+        annealed limit is the chain A - tube - B, which the quenched correction s_a s_b (the exact one-tube
+        law, Comtet, Georgelin, Ouvry 1989, from memory) must cancel for every (a, b) and both points;
+    (2) the contact law of docs/tubes.md (ii) (from the loops' winding areas: a loop of duration l of mass
+        ratio r gains -|f| l/(2 r) at leading order, a shift of the chemical potentials) times the
+        first-order b_{a,b} = -sigma |d| (m_A + m_B)/(2 a b) (no first-order term in the mixed virial
+        coefficients, docs/perturbative.md section 3) gives the |d||f| coefficient
+        sigma (a/m_A + b/m_B)(m_A + m_B)/(4 a b), sigma the fermions' (-1)^(a+1), (-1)^(b+1)."""
+    a, b = cycle
+    points = (about, about) if isinstance(about, str) else about
+    sigma = 1
+    for point, k in zip(points, cycle):
+        sigma *= (-1) ** (k + 1) if point == "fermion" else 1
+    mA, mB = (sympy.Rational(m) for m in masses)
+    terms = tube_coefficients("braid", about, masses, cycle=cycle)
+    assert set(terms) <= {sympy.Abs(d) * sympy.Abs(f), d * f}, terms
+    assert terms[sympy.Abs(d) * sympy.Abs(f)] == sigma * (a / mA + b / mB) * (mA + mB) / (4 * a * b)
+    assert terms[d * f] != 0
+
+
+def test_the_first_mixed_coverage_part_is_the_braid_piece():
+    """cycle (1, 1) is B_braid_tube itself (checked against sampled loops below); the points of single
+    particles do not matter."""
+    assert tube_coefficients("braid", "fermion", cycle=(1, 1)) == tube_coefficients("braid")
+    assert tube_coefficients("braid", ("boson", "fermion"), (3, 2), cycle=(1, 1)) == tube_coefficients("braid", masses=(3, 2))
+    with pytest.raises(ValueError):
+        tube_coefficients("braid", cycle=(0, 1))
+    with pytest.raises(ValueError):
+        tube_coefficients("two_tubes", cycle=2)
+
+
+MIXED_GAS = """dimension 2
+parameter f real
+parameter nu real
+parameter n nonnegative
+species A {stat}
+species B bose
+mutual A B = nu
+tubes flux f coverage n
+clusters pairphase
+derive cluster up to 3
+expand nu, f about 0, 0 to 2 from above
+"""
+
+
+@pytest.mark.parametrize("stat, sign", [("bose", 1), ("fermi", -1)])
+def test_expand_among_tubes_derives_the_mixed_coverage_parts(cli, tmp_path, stat, sign):
+    """b[2,1] of two species among tubes about (nu, f) = (0, 0+): the coverage part +-(3/4 - 1/8) nu f (the
+    contact law's 3/4 above, the chain's -1/8), with no coefficient left named; its zero-coverage part is
+    the tube-free b_21 = -+nu/2 + ... (test_joint_series.py)."""
+    path = tmp_path / "gas.in"
+    path.write_text(MIXED_GAS.format(stat=stat))
+    result = cli("run", str(path), "--format", "json", "--no-files")
+    assert result.returncode == 0, result.stderr
+    document = json.loads(result.stdout)
+    (b21,) = [c for c in document["coefficients"] if c["kind"] == "cluster" and tuple(c["index"]) == (2, 1)]
+    text = b21["series"][0]["value"]
+    nu, fx, n = sympy.symbols("nu f n", real=True)
+    poly = sympy.expand(sympy.sympify(text.split(" + O(")[0], locals={"nu": nu, "f": fx, "n": n}))
+    assert poly.coeff(n, 1) == sign * sympy.Rational(5, 8) * nu * fx, text
+    assert "b_2_1_n_1_" not in json.dumps(document), "a mixed coverage coefficient left named"
+
+
 @pytest.mark.parametrize("kind, about, base", [("anyon", "boson", 0.0), ("anyon", "fermion", 1.0),
                                                ("braid", "boson", 0.0)])
 def test_sampled_loops_confirm_the_second_order(kind, about, base):

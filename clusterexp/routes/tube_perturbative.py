@@ -31,12 +31,13 @@ from .perturbative import Species, chain_part, taylor_coefficients
 
 FLUX = sympy.Symbol("f", real=True)          # deviation of the flux from an integer
 EXCHANGE = sympy.Symbol("e", real=True)      # deviation of the anyons' exchange parameter from its point
+EXCHANGE_B = sympy.Symbol("e_B", real=True)  # the same for the second species of a braid pair
 MUTUAL = sympy.Symbol("d", real=True)        # deviation of the braid pair's mutual parameter from an integer
 KINDS = ("two_tubes", "anyon", "braid")
 NODES = (1, 2, 3, 4, 5, 6)                   # heavy masses M (units of m_ref); the last one checks the rest
 
 
-def _heavy(kind: str, M: int, about: str, masses, cycle: int = 2) -> dict:
+def _heavy(kind: str, M: int, about, masses, cycle) -> dict:
     """{monomial: Rational} of the mixture coefficient with a heavy species of mass M, divided by the
     tube factor (b_{e_H}, or b_{e_H}^2 / (2 m_A) for two tubes), the heavy links renamed to the flux.
     kind "anyon": b_{l e_A + e_H}, l = cycle; for l >= 3 its d^2 coefficient is the chains (derived)
@@ -56,10 +57,12 @@ def _heavy(kind: str, M: int, about: str, masses, cycle: int = 2) -> dict:
             chains = chain_part(species, {(0, 1): g[0]}, (cycle, 1), (about, "boson"))[g[0] ** 2]
             terms[g[0] ** 2] = chains + sign * sympy.Rational(M, 2 * cycle)
         scale = sympy.Rational(1, M)
-    else:
-        species = [Species(None, masses[0]), Species(None, masses[1]), Species(None, M)]
-        terms = taylor_coefficients(species, {(0, 1): MUTUAL, (0, 2): g[0], (1, 2): g[1]}, (1, 1, 1),
-                                    ("boson",) * 3, 2)
+    else:   # cycle = (a, b): b_{a e_A + b e_B + e_H}; about = (point of A, point of B)
+        a, b = cycle
+        species = [Species(EXCHANGE if a >= 2 else None, masses[0]), Species(EXCHANGE_B if b >= 2 else None, masses[1]),
+                   Species(None, M)]
+        terms = taylor_coefficients(species, {(0, 1): MUTUAL, (0, 2): g[0], (1, 2): g[1]}, (a, b, 1),
+                                    (*about, "boson"), 2)
         scale = sympy.Rational(1, M)
     total = sympy.expand(sum(scale * value * monomial for monomial, value in terms.items()))
     return sympy.expand(total.xreplace({g[0]: FLUX, g[1]: FLUX}))
@@ -86,29 +89,45 @@ def _limit(values: list[sympy.Rational]) -> sympy.Rational:
     return through(fit, sympy.Integer(0))
 
 
-def tube_coefficients(kind: str, about: str = "boson", masses=(1, 1), order: int = 2, cycle: int = 2) -> dict:
+def tube_coefficients(kind: str, about="boson", masses=(1, 1), order: int = 2, cycle=None) -> dict:
     """{monomial: Rational} of the tube piece `kind` ("two_tubes", "anyon", "braid") through `order`
     (0, 1 or 2) in FLUX (the flux minus an integer), EXCHANGE (the anyons' exchange parameter minus
     their point `about`, "boson" or "fermion") and MUTUAL (the braid pair's mutual parameter minus an
     integer), |x| for the kinks; masses: the mobile species' masses (m_A, m_B) in units of m_ref (exact).
-    For "anyon", `cycle` = l >= 2 gives the coefficient of the coverage in b_l of the anyons (l = 2: the
-    piece B_anyon_tube). Monomials absent from the dict have coefficient 0."""
+    For "anyon", `cycle` = l >= 2 (default 2) gives the coefficient of the coverage in b_l of the anyons
+    (l = 2: the piece B_anyon_tube). For "braid", `cycle` = (a, b) (default (1, 1): the piece
+    B_braid_tube) gives the coefficient of the coverage in b_{a e_A + b e_B}, and `about` is one point
+    for both species or a pair (A's, B's). Monomials absent from the dict have coefficient 0."""
     if kind not in KINDS:
         raise ValueError(f"kind must be one of {KINDS}, got {kind!r}")
     if order not in (0, 1, 2):
         raise ValueError(f"order must be 0, 1 or 2, got {order!r}")
-    if not isinstance(cycle, int) or cycle < 2 or (cycle != 2 and kind != "anyon"):
-        raise ValueError(f"cycle must be an integer >= 2, for kind 'anyon' only; got {cycle!r}")
+    if kind == "anyon":
+        cycle = 2 if cycle is None else cycle
+        if not isinstance(cycle, int) or cycle < 2:
+            raise ValueError(f"cycle must be an integer >= 2 for kind 'anyon'; got {cycle!r}")
+    elif kind == "braid":
+        cycle = (1, 1) if cycle is None else tuple(cycle)
+        if len(cycle) != 2 or not all(isinstance(k, int) and k >= 1 for k in cycle):
+            raise ValueError(f"cycle must be a pair of integers >= 1 for kind 'braid'; got {cycle!r}")
+        points = (about, about) if isinstance(about, str) else tuple(about)
+        if len(points) != 2 or not set(points) <= {"boson", "fermion"}:
+            raise ValueError(f"about must be 'boson', 'fermion' or a pair of them; got {about!r}")
+        # one particle of a species has no exchange: its point does not matter
+        about = tuple(p if k >= 2 else "boson" for p, k in zip(points, cycle))
+    elif cycle is not None:
+        raise ValueError(f"cycle is for the kinds 'anyon' and 'braid'; got {cycle!r}")
     masses = tuple(sympy.Rational(m) for m in masses)
     return dict(_coefficients(kind, about, masses, order, cycle))
 
 
 @functools.lru_cache(maxsize=256)
-def _coefficients(kind: str, about: str, masses: tuple, order: int, cycle: int) -> tuple:
+def _coefficients(kind: str, about, masses: tuple, order: int, cycle) -> tuple:
     """tube_coefficients as a tuple of items, computed once per process and argument set (six mixtures
     through the perturbative route each, 0.01-0.2 s; every expansion and truncated claim asks again)."""
     per_node = [sympy.Poly(_heavy(kind, M, about, masses, cycle), *sorted(
-        {FLUX, EXCHANGE, MUTUAL, sympy.Abs(FLUX), sympy.Abs(EXCHANGE), sympy.Abs(MUTUAL)}, key=str))
+        {FLUX, EXCHANGE, EXCHANGE_B, MUTUAL, sympy.Abs(FLUX), sympy.Abs(EXCHANGE), sympy.Abs(EXCHANGE_B),
+         sympy.Abs(MUTUAL)}, key=str))
         for M in NODES]
     monomials = sorted(set().union(*(p.monoms() for p in per_node)))
     gens = per_node[0].gens
@@ -119,20 +138,26 @@ def _coefficients(kind: str, about: str, masses: tuple, order: int, cycle: int) 
         degree = sum(powers)
         if value != 0 and degree <= order:
             out[monomial] = out.get(monomial, 0) + value
+    if kind == "braid" and any(m.has(EXCHANGE, EXCHANGE_B) for m in out):
+        raise RuntimeError("braid pieces: an exchange term at second order (docs/tubes.md (iii) says the "
+                           "loops of a mixed cluster with a tube need three links for it; internal error)")
     if order >= 2:   # quenched, not annealed: minus (e^Delta - 1 - Delta) at z^l, through f^2
         out[FLUX ** 2] = out.get(FLUX ** 2, 0) - _quenched_correction(kind, about, cycle)
     return tuple((m, v) for m, v in out.items() if v != 0)
 
 
 
-def _quenched_correction(kind: str, about: str, cycle: int) -> sympy.Rational:
+def _quenched_correction(kind: str, about, cycle) -> sympy.Rational:
     """The f^2 coefficient of the annealed-only part (e^Delta - 1 - Delta) of the one-tube term: Delta =
     sum_a z^a s_a does not depend on the tube's position, and s_a = (+-1)^(a+1) F/a, F = -|f|/2 + O(f^2),
     is the one-tube part of b_a of the ideal species (docs/tubes.md (iii)); at second order only products
-    of two first-order s_a remain: (1/2) sum_{a+b=l} s_a s_b for anyons (l = 2: s_1^2/2 = f^2/8), s_A s_B
-    = f^2/4 for the braid pair, nothing for one mobile particle (two tubes)."""
-    if kind == "braid":
-        return sympy.Rational(1, 4)
+    of two first-order s_a remain: (1/2) sum_{a+b=l} s_a s_b for anyons (l = 2: s_1^2/2 = f^2/8), s_a of
+    A times s_b of B for b_{a e_A + b e_B} (a mixed multi-index has no first-order shift of its own; f^2/4
+    for the braid piece), nothing for one mobile particle (two tubes)."""
+    if kind == "braid":   # s_a of A times s_b of B
+        (a, b), (pa, pb) = cycle, about
+        sign = (1 if pa == "boson" else (-1) ** (a + 1)) * (1 if pb == "boson" else (-1) ** (b + 1))
+        return sympy.Rational(sign, 4 * a * b)
     if kind == "two_tubes":
         return sympy.Integer(0)
     sign = 1 if about == "boson" else -1
