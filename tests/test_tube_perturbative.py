@@ -106,6 +106,20 @@ def test_mixed_coverage_parts_follow_the_contact_law(cycle, about, masses):
     assert terms[d * f] != 0
 
 
+@pytest.mark.parametrize("a, about, sign", [(1, "boson", 1), (2, "boson", 1), (3, "boson", 1), (2, "fermion", -1)])
+def test_mixed_coverage_part_with_a_static_partner_is_the_two_tube_law(a, about, sign):
+    """With B infinitely heavy, B is a second static flux d for A's a-cycle: per particle of B
+    (b_{e_B} = m_B/m_ref) the coverage part of b_{a,1} tends to the connected integral of one loop and two
+    distinct tubes, the small-flux law T2(d, f) = |d||f|/4 - d f/12 of docs/tubes.md (i) (the loops' winding
+    areas and Levy's area law, not this route), the same for every cycle length (the a-cycle's weight 1/a^2
+    times its areas squared a^2), signed (-1)^(a+1) for fermions.  This checks the d f coefficient, which
+    the contact law does not reach.  The approach is exact in 1/m_B; at m_B = 10^4 the ratio is within 1e-4."""
+    big = 10 ** 4
+    terms = tube_coefficients("braid", (about, "boson"), (1, big), cycle=(a, 1))
+    assert abs(float(terms[d * f]) / big + sign / 12) < 1e-4
+    assert abs(float(terms[sympy.Abs(d) * sympy.Abs(f)]) / big - sign / 4) < 1e-4
+
+
 def test_the_first_mixed_coverage_part_is_the_braid_piece():
     """cycle (1, 1) is B_braid_tube itself (checked against sampled loops below); the points of single
     particles do not matter."""
