@@ -119,14 +119,16 @@ def test_two_equal_cycles_count_twice_and_carry_their_bounds():
 
 
 def test_nothing_computed_where_the_table_does_not_reach():
-    """b_3 is exact (no number), b_n beyond the table (n > SINGLE_CYCLES_CHECKED: the n-cycle alone and
-    the clusters of that n not computed); a mixture of unequal masses beyond the on-demand quadrature's
+    """b_3 is exact (no number), b_n beyond the on-demand reach (n > two_loop_demand.MAX_N; the gap says
+    why); a mixture of unequal masses beyond the on-demand quadrature's
     reach (|n| > two_species_link.MAX_PARTICLES, or a mass ratio beyond MAX_RATIO) and b_{2,1} (derived
     exactly, section 4e): no estimate is offered there."""
-    from clusterexp.routes import two_species_link
+    from clusterexp.routes import two_loop_demand, two_species_link
     assert numerical_coefficients([Species(E)], {}, (3,), "boson") == {}
-    beyond = two_loop_table.SINGLE_CYCLES_CHECKED + 1
-    assert numerical_coefficients([Species(E)], {}, (beyond,), "boson") == {}
+    gaps = []
+    beyond = two_loop_demand.MAX_N + 1
+    assert numerical_coefficients([Species(E)], {}, (beyond,), "boson", gaps) == {}
+    assert len(gaps) == 1 and f"up to n = {two_loop_demand.MAX_N}" in gaps[0], gaps
     d = sympy.Symbol("d", real=True)
     far = two_species_link.MAX_PARTICLES + 1
     assert numerical_coefficients([Species(E, 1), Species(None, 2)], {(0, 1): d}, (far - 1, 1), "boson") == {}
@@ -264,3 +266,23 @@ def test_a_mass_that_moves_with_the_variable_gets_no_number():
     (unknown,) = clusterexp.derive(text.replace("MASS", "2")).unknowns()
     assert abs(unknown.estimate[0] - 2 * 4.359161) < 4e-5
     assert format_estimate(0.1, 1.4e-5) == "0.10000 +- 0.00002"     # a bound is never shown smaller
+
+
+def test_on_demand_computation_reproduces_the_table_at_n_4():
+    """The on-demand path for b_n beyond the table (routes/two_loop_demand.py: every cluster {p, q} at
+    two rules, plus the n-cycle alone beyond its ring part), run at n = 4 where the table has the answer
+    (code against the code that wrote the table, the same engine: a check of the plumbing and the bound,
+    not an outside value; the outside check of n = 4 is the sampled-loop route of section 4g). Also the
+    ring part against its series: (1/2)[z^n] z ln^2(1 - z)/(1 - z), 203/90 and 469/180 for n = 7, 8."""
+    from fractions import Fraction
+    from clusterexp.routes import two_loop_demand
+    value, bound = two_loop_demand._computed(4)
+    table, table_bound = two_loop_table.beyond_the_chains(4)
+    assert abs(value - table) <= bound + table_bound, (value, table, bound)
+    assert bound < 1e-5
+    z = sympy.Symbol("z")
+    for n in (4, 7, 8):
+        series = sympy.Rational(1, 2) * sympy.series(sympy.log(1 - z) ** 2 * z / (1 - z), z, 0, n + 1).removeO().coeff(z, n)
+        assert two_loop_demand.ring_part(n) == Fraction(int(series.p), int(series.q))
+    with pytest.raises(ValueError):
+        two_loop_demand.beyond_on_demand(4)

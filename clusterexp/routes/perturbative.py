@@ -347,15 +347,24 @@ def taylor_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int, i
             for m, v in out.items()}
 
 
-def _computed_square(gas: _Gas, link: _Link, n) -> tuple[float, float] | None:
+def _computed_square(gas: _Gas, link: _Link, n, gaps: list | None = None) -> tuple[float, float] | None:
     """(value, error bound) of e_i^2 in b_n of one species i with n >= 4 particles: the chains of three
-    loops (exact) plus the two-loop clusters beyond them, computed by quadrature (`two_loop_table`; their
-    sign about fermions is (-1)^n), times m_i/m_ref; None where the table does not reach."""
-    from .two_loop_table import beyond_the_chains
+    loops (exact) plus the two-loop clusters beyond them, computed by quadrature (`two_loop_table` through
+    its SINGLE_CYCLES_CHECKED, `two_loop_demand` beyond, minutes and cached; their sign about fermions is
+    (-1)^n), times m_i/m_ref; None where neither reaches (the reason appended to `gaps`)."""
+    from .two_loop_demand import beyond_on_demand
+    from .two_loop_table import SINGLE_CYCLES_CHECKED, beyond_the_chains
     i = link.i
     if link.i != link.j or sum(n) != n[i] or n[i] < 4:
         return None
     found = beyond_the_chains(n[i])
+    if found is None and n[i] > SINGLE_CYCLES_CHECKED:
+        try:
+            found = beyond_on_demand(n[i])
+        except NotSupportedYet as why:
+            if gaps is not None:   # said beside the name: why it has no number
+                gaps.append(f"no number for the coefficient of {link.symbol}^2 ({why})")
+            return None
     if found is None:
         return None
     ring, landau = _chain(gas, link, link, n)
@@ -403,7 +412,8 @@ def numerical_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int
                            multi_index: Sequence[int], about="boson", gaps: list | None = None) -> dict:
     """{monomial: (value, error bound)} for the second-order Taylor coefficients of b_n that are not
     derived in closed form but computed numerically: the square of the exchange parameter in b_n of
-    one species (n = 4..two_loop_table.SINGLE_CYCLES_CHECKED), and d_ij^2 in b_n of two species, |n| >= 4:
+    one species (n = 4..two_loop_table.SINGLE_CYCLES_CHECKED from the table, beyond up to
+    two_loop_demand.MAX_N computed when asked: minutes, cached), and d_ij^2 in b_n of two species, |n| >= 4:
     equal masses where the table has the cluster (|n| <= 8), unequal masses computed by quadrature on
     demand (|n| <= two_species_link.MAX_PARTICLES, seconds to a minute each, cached); empty where none is. The
     values are floats with their quadrature error bounds: the tool keeps the coefficient's name and
@@ -414,7 +424,7 @@ def numerical_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int
     links = _links(species, mutual)
     out = {}
     for link in links:
-        computed = _computed_square(gas, link, n)
+        computed = _computed_square(gas, link, n, gaps)
         if computed is not None:
             out[link.symbol ** 2] = computed
         out.update(_computed_two_species(gas, link, n, gaps))

@@ -28,6 +28,7 @@ The independent check of the n = 4 entries is the sampled-loop route of section 
 from __future__ import annotations
 
 SINGLE_CYCLES_CHECKED = 8
+FLOOR = 2e-6          # the smallest error bound of an entry (docstring above)
 
 # Per cluster {p-cycle, q-cycle} (p >= q), one species' units: LINK the link squared, ANGLE the angle-area
 # parts carried by the self pairs of the p-cycle and of the q-cycle (value, error bound) each; a 1-cycle
