@@ -286,3 +286,10 @@ def test_on_demand_computation_reproduces_the_table_at_n_4():
         assert two_loop_demand.ring_part(n) == Fraction(int(series.p), int(series.q))
     with pytest.raises(ValueError):
         two_loop_demand.beyond_on_demand(4)
+    link, link_bound = two_loop_demand._link(3, 1)        # the two-species path: the link squared alone
+    assert abs(link - two_loop_table.LINK[(3, 1)][0]) <= link_bound + two_loop_table.LINK[(3, 1)][1]
+    d = sympy.Symbol("d", real=True)
+    gaps = []
+    far = two_loop_demand.MAX_N + 1
+    assert numerical_coefficients([Species(None), Species(None)], {(0, 1): d}, (far - 1, 1), "boson", gaps) == {}
+    assert len(gaps) == 1 and f"up to |n| = {two_loop_demand.MAX_N}" in gaps[0], gaps

@@ -377,7 +377,8 @@ def _computed_two_species(gas: _Gas, link: _Link, n, gaps: list | None = None) -
     the chains of three loops (exact, any masses) plus the link squared of the cluster of the n_i-cycle
     of i with the n_j-cycle of j, signed by the cycles' transpositions about fermions. Equal masses: from
     the table (`two_loop_table.two_species_cluster`, one species' units, scaled by the ratio of the
-    clusters' first orders: 2 when n_i = n_j, else 1). Unequal masses: computed on demand at the mass ratio
+    clusters' first orders: 2 when n_i = n_j, else 1), beyond it on demand (`two_loop_demand`, |n| <= its
+    MAX_N). Unequal masses: computed on demand at the mass ratio
     (`two_species_link`, |n| <= its MAX_PARTICLES; the link squared is not linear in the masses, section
     4j). {monomial: (value, error)}; empty where neither reaches. (The e_i d and e_j d coefficients are
     exact for any masses: `angle_area`, section 4i.)"""
@@ -390,9 +391,16 @@ def _computed_two_species(gas: _Gas, link: _Link, n, gaps: list | None = None) -
     sign = gas.sign[i] ** (a - 1) * gas.sign[j] ** (b - 1)
     if gas.mass[i] == gas.mass[j]:
         cluster = two_species_cluster(a, b)
-        if cluster is None:
-            return {}
-        square, square_error = cluster[0]
+        if cluster is not None:
+            square, square_error = cluster[0]
+        else:   # beyond the table: on demand (minutes, cached) up to two_loop_demand.MAX_N
+            from .two_loop_demand import link_squared_on_demand
+            try:
+                square, square_error = link_squared_on_demand(a, b)
+            except (NotSupportedYet, ValueError) as why:
+                if gaps is not None and isinstance(why, NotSupportedYet):
+                    gaps.append(f"no number for the coefficient of {link.symbol}^2 ({why})")
+                return {}
         scale = float(gas.mass[i]) * (2 if a == b else 1)
     else:
         if a + b < 4:
@@ -414,7 +422,7 @@ def numerical_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int
     derived in closed form but computed numerically: the square of the exchange parameter in b_n of
     one species (n = 4..two_loop_table.SINGLE_CYCLES_CHECKED from the table, beyond up to
     two_loop_demand.MAX_N computed when asked: minutes, cached), and d_ij^2 in b_n of two species, |n| >= 4:
-    equal masses where the table has the cluster (|n| <= 8), unequal masses computed by quadrature on
+    equal masses from the table (|n| <= 8) or on demand (|n| <= two_loop_demand.MAX_N), unequal masses computed by quadrature on
     demand (|n| <= two_species_link.MAX_PARTICLES, seconds to a minute each, cached); empty where none is. The
     values are floats with their quadrature error bounds: the tool keeps the coefficient's name and
     shows the number beside it, never in place of it."""

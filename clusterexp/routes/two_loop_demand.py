@@ -84,3 +84,31 @@ def _computed(n: int) -> tuple[float, float]:
     finally:
         report.done()
     return float(value), float(bound)
+
+
+def link_squared_on_demand(a: int, b: int) -> tuple[float, float]:
+    """(value, error bound) of the link squared of the cluster {a-cycle, b-cycle} at equal masses, in one
+    species' units as in `two_loop_table.LINK` (for two species the caller scales it), computed now for
+    SINGLE_CYCLES_CHECKED < a + b <= MAX_N (the table has the smaller ones)."""
+    n = a + b
+    if n <= SINGLE_CYCLES_CHECKED:
+        raise ValueError(f"a + b must be above {SINGLE_CYCLES_CHECKED} (below, the table has it); got {a} + {b}")
+    if n > MAX_N:
+        raise NotSupportedYet(f"the link squared of the {{{a}-cycle, {b}-cycle}} cluster for |n| = {n} (computed on "
+                              f"demand up to |n| = {MAX_N}; docs/perturbative.md, section 4h)")
+    return _link(max(a, b), min(a, b))
+
+
+@lru_cache(maxsize=None)
+def _link(p: int, q: int) -> tuple[float, float]:
+    report = Progress()
+    runs = []
+    try:
+        for tol in TOLERANCES:
+            report.step(f"link^2 of {{{p}-cycle, {q}-cycle}}, quadrature rule {tol:g}")
+            start = time.perf_counter()
+            runs.append(two_loop_fast.second_order(p, q, tol)["link2"])
+            STEPS.append((f"link^2 {{{p},{q}}} tol={tol:g}", time.perf_counter() - start, runs[-1]))
+    finally:
+        report.done()
+    return float(runs[-1]), float(max(MARGIN * abs(runs[1] - runs[0]), FLOOR))
