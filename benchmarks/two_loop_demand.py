@@ -1,7 +1,7 @@
 """b_n of one species at second order beyond the table, computed on demand (clusterexp/routes/two_loop_demand.py):
 what each step costs as n grows, and the coefficient it gives.
 
-Run:  python benchmarks/two_loop_demand.py 9          (about ten minutes of one core; figures in two_loop_demand-last-run.txt)
+Run:  python benchmarks/two_loop_demand.py 9          (about six minutes of one core; figures in two_loop_demand-last-run.txt)
 
 For n the steps are the clusters {p-cycle, q-cycle}, p + q = n, at the rules of the tolerances 1e-6 and 1e-7
 (two_loop_fast.second_order), then the n-cycle alone at two rules (cycle_alone.k_cycle_orders); each is
