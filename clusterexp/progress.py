@@ -63,7 +63,10 @@ class Progress:
         if not self.enabled:
             return
         now = time.monotonic()
-        if order == self._order and now - self._last < self.min_interval:
+        # within one order of a derivation many labels pass quickly: redraw at most every min_interval; a
+        # stage without an order (a quadrature rule, a cluster) is long and always drawn, or the line
+        # would keep showing the stage before while the next one runs
+        if order is not None and order == self._order and now - self._last < self.min_interval:
             return
         self._order, self._last = order, now
         text = self.message(what, order)

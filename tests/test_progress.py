@@ -63,3 +63,16 @@ def test_long_lines_are_cut_to_the_terminal_and_a_closed_stream_is_harmless(monk
     stream.close()
     progress.step("virial a[2]", order=31)  # must not raise
     assert not progress.enabled
+
+
+def test_a_stage_without_an_order_is_always_drawn():
+    """Stages without an order (quadrature rules, clusters: each long) are drawn even when the one before
+    ended within min_interval; before, a fast first rule left the line on it while the second ran."""
+    stream = io.StringIO()
+    progress = Progress(stream=stream, enabled=True, min_interval=60)
+    progress.step("quadrature rule 1/2")
+    progress.step("quadrature rule 2/2")
+    assert "rule 2/2" in stream.getvalue()
+    progress.step("virial a[2,0]", order=2)
+    progress.step("virial a[1,1]", order=2)     # the same order within min_interval: throttled
+    assert "a[1,1]" not in stream.getvalue()
