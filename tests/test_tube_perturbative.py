@@ -261,6 +261,7 @@ def test_coverage_part_contact_term_follows_the_first_order_of_b_l():
 EVALUATIONS = """evaluate b[3] at alpha = 1/100, f = 0, n = 1/10
 evaluate b[3] at alpha = 1/100, f = 1/50, n = 0
 evaluate b[3] at alpha = 1/100, f = 1/50, n = 1/10
+evaluate b[2] at alpha = 1/100, f = 1/50, n = 1/20
 """
 
 
@@ -282,12 +283,16 @@ def test_evaluate_near_the_joint_point_uses_the_series(cli, tmp_path):
     f, n, a = sympy.Rational(1, 50), sympy.Rational(1, 10), sympy.Rational(1, 100)
     free = sympy.Rational(1, 9) - a + sympy.Rational(59, 24) * a ** 2
     coverage = -f / 6 + f ** 2 / 6 + sympy.Rational(3, 2) * a * f - sympy.Rational(11, 24) * a * f
-    for block, exact in zip(document["values"], [free, free, free + n * coverage]):
+    # b[2] holds the tube piece B_anyon_tube itself (no `sample` for it): the series, not a refusal.
+    # Exact b_2 (Arovas et al. 1985) plus n times -|f|/4 + f^2/4 + |alpha||f| - alpha f/3 (the table above)
+    b2 = (sympy.Rational(1, 4) - a + a ** 2 / 2
+          + n / 2 * (-f / 4 + f ** 2 / 4 + a * f - a * f / 3))
+    for block, exact in zip(document["values"], [free, free, free + n * coverage, b2]):
         (label, number), = block["values"].items()
         assert "truncated joint series about (alpha, f) = (0, 0)" in label, label
         assert "terms of total degree 3 left out" in label, label
         assert abs(float(number) - float(exact)) < 1e-13, (label, number, float(exact))
-    assert len(document["values"]) == 3
+    assert len(document["values"]) == 4
 
 
 def test_a_point_on_the_wrong_side_is_not_taken_from_the_series(cli, tmp_path):

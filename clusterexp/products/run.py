@@ -133,12 +133,14 @@ def run_evaluations(derivation) -> list:
                 label += f" (truncated series, {sympy.sstr(order)} left out)"
             value, notes = filled(derivation.system, value, point)   # tube pieces exact at this point
             label = noted(label, notes)
-            if _with_numbers(derivation, value):   # Monte Carlo parts: value +- error
+            through = None
+            if not uses_sampled(derivation, value):   # named pieces: the `expand` series of the input, if it reaches the point
+                through = _through_series(derivation, _coefficient(derivation, target), value, point, evaluation.digits,
+                                           label)
+            if through is None and _with_numbers(derivation, value):   # Monte Carlo parts: value +- error
                 rows.append((label, sampled_number_text(derivation, value, point, evaluation.span)))
                 continue
-            through = _through_series(derivation, _coefficient(derivation, target), value, point, evaluation.digits,
-                                       label)
-            if through is not None:   # named pieces: the `expand` series of the input, if it reaches the point
+            if through is not None:
                 rows.append((f"{label} ({through[0]})", through[1]))
                 continue
             try:
