@@ -66,8 +66,8 @@ def _computed(n: int) -> tuple[float, float]:
         for k, (p, q) in enumerate(clusters, 1):
             runs = []
             for tol in TOLERANCES:
-                report.step(f"b_{n} at second order: cluster {{{p}-cycle, {q}-cycle}} ({k}/{len(clusters) + 1}), "
-                            f"quadrature rule {tol:g}")
+                report.step(f"quadrature b_{n} at second order, cluster {{{p}-cycle, {q}-cycle}} "
+                            f"({k}/{len(clusters) + 1}), rule {tol:g}")
                 start = time.perf_counter()
                 runs.append(two_loop_fast.second_order(p, q, tol)["beyond"])
                 STEPS.append((f"{{{p},{q}}} tol={tol:g}", time.perf_counter() - start, runs[-1]))
@@ -75,7 +75,7 @@ def _computed(n: int) -> tuple[float, float]:
             bound += max(MARGIN * abs(runs[1] - runs[0]), FLOOR)
         runs = []
         for rule in CYCLE_RULES:
-            report.step(f"b_{n} at second order: the {n}-cycle alone ({len(clusters) + 1}/{len(clusters) + 1})")
+            report.step(f"quadrature b_{n} at second order, the {n}-cycle alone ({len(clusters) + 1}/{len(clusters) + 1})")
             start = time.perf_counter()
             runs.append(k_cycle_orders(n, *rule)[1] - float(ring_part(n)))
             STEPS.append((f"{n}-cycle alone beyond its ring part, rule {rule}", time.perf_counter() - start, runs[-1]))
@@ -105,7 +105,7 @@ def _link(p: int, q: int) -> tuple[float, float]:
     runs = []
     try:
         for tol in TOLERANCES:
-            report.step(f"link^2 of {{{p}-cycle, {q}-cycle}}, quadrature rule {tol:g}")
+            report.step(f"quadrature link^2 of {{{p}-cycle, {q}-cycle}}, rule {tol:g}")
             start = time.perf_counter()
             runs.append(two_loop_fast.second_order(p, q, tol)["link2"])
             STEPS.append((f"link^2 {{{p},{q}}} tol={tol:g}", time.perf_counter() - start, runs[-1]))
