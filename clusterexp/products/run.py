@@ -175,10 +175,10 @@ def _through_series(derivation, coefficient, value, point: dict, digits: int, st
             continue
         number = with_estimates(sympy.expand(piece.polynomial).subs(point), estimates)
         if number is not None:
-            candidates.append((max(shifts), piece, axes, max(shifts), estimates, number))
+            candidates.append((max(shifts), piece, axes, estimates, number))
     if not candidates:
         return None
-    _, piece, axes, reach, estimates, (number, bound) = min(candidates, key=lambda c: c[0])
+    reach, piece, axes, estimates, (number, bound) = min(candidates, key=lambda c: c[0])
     size = format_number(evaluate(reach ** (piece.known + 1), {}, 3), 3)
     names = [v for v, _, _ in axes]
     bases = [f"{v}" if p == 0 else f"({v} - {p})" for v, p, _ in axes]
