@@ -123,6 +123,7 @@ class Tubes:
     coverage: sympy.Expr  # always a symbol: the results are series in it, first order known
     span: Span
     value: sympy.Expr | None = None  # the declared coverage when it is not a bare symbol (`rho_tubes` stands for it)
+    order: int | None = None  # `to order k`: results through coverage^k (None: the regime's default)
 
     @property
     def declared(self) -> sympy.Expr:

@@ -31,8 +31,9 @@ def deviation(expr, point, shift, side):
 
 
 def tube_taylor(system, tube, deviation, mass, order, shifts, cycle=None):
-    """derived_taylor for a tube piece, or for the coverage part of b_l of one species (the anyon kind
-    with cycle = l) or of b_{a e_A + b e_B} of two braiding species (the braid kind with cycle = (a, b)):
+    """derived_taylor for a tube piece, or for the coverage (tube.tubes = 1) or coverage-squared (2) part
+    of b_l of one species (the anyon kind with cycle = l) or of b_{a e_A + b e_B} of two braiding species
+    (the braid kind with cycle = (a, b)):
     about an integer flux and, for the anyons, their boson or fermion point, for the braid pieces an
     integer mutual parameter and each species with two or more particles at its boson or fermion point
     (docs/tubes.md (iii))."""
@@ -41,7 +42,12 @@ def tube_taylor(system, tube, deviation, mass, order, shifts, cycle=None):
     wanted = [(FLUX, system.tubes.flux)]
     if tube.species is not None:
         kind = "anyon"
-        wanted.append((EXCHANGE, system.species[system.species_names.index(tube.species)].exchange))
+        anyon = system.species[system.species_names.index(tube.species)]
+        wanted.append((EXCHANGE, anyon.exchange))
+        if tube.tubes == 2:   # the coverage-squared part depends on m/m_ref
+            masses = (mass(anyon.mass), 1)
+            if None in masses:
+                return None
     elif tube.pair is not None:
         kind = "braid"
         pair = tube.pair_of(system)
@@ -65,7 +71,7 @@ def tube_taylor(system, tube, deviation, mass, order, shifts, cycle=None):
         if found[1]:
             deviations[symbol] = found[1]
     still = {x: 0 for x in (FLUX, EXCHANGE, MUTUAL) if x not in deviations}
-    terms = {m.xreplace(still): v for m, v in tube_coefficients(kind, about, masses, order, cycle).items()}
+    terms = {m.xreplace(still): v for m, v in tube_coefficients(kind, about, masses, order, cycle, tube.tubes).items()}
     found = in_shifts({m: v for m, v in terms.items() if m != 0}, {}, deviations, shifts)
     return None if found is None else (found[0], order, found[1], found[2])
 

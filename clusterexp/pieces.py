@@ -384,12 +384,14 @@ def derived_taylor(system, piece: sympy.Symbol, used) -> tuple[dict, int, frozen
     index = piece_index(piece, len(system.species))
     cycle = None
     occupied = [i for i, n in enumerate(index or ()) if n]
-    if tube is None and coverage_power(system, piece) == 1 and _root(piece)[0].name.startswith("b_") \
-            and len(occupied) in (1, 2):   # the coverage part of b_l of one species (an anyon piece) or
-        from .routes.tube_pieces import TubePiece   # of b_{a e_A + b e_B} of two (a braid piece)
+    power = coverage_power(system, piece) if tube is None else None
+    if power in (1, 2) and _root(piece)[0].name.startswith("b_") and len(occupied) in (1, 2):
+        # the coverage (squared) part of b_l of one species (an anyon piece) or of b_{a e_A + b e_B} of two
+        from .routes.tube_pieces import TubePiece   # (a braid piece)
         names = [system.species_names[i] for i in occupied]
         cycle = index[occupied[0]] if len(occupied) == 1 else tuple(index[i] for i in occupied)
-        tube = TubePiece(piece, names[0]) if len(occupied) == 1 else TubePiece(piece, None, "_".join(names))
+        tube = TubePiece(piece, names[0], None, power) if len(occupied) == 1 else \
+            TubePiece(piece, None, "_".join(names), power)
     if tube is None and (not _root(piece)[0].name.startswith("b_")
                          or ((piece.name in _NAMED or system.tubes is not None) and not tube_free(system, piece))):
         return None

@@ -8,7 +8,7 @@ from pathlib import Path
 import lark
 import sympy
 
-from ..errors import InputError, Span
+from ..errors import InputError, NotSupportedYet, Span
 from .expressions import FUNCTIONS, ExpressionBuilder
 from .hints import did_you_mean
 from ..model import (FORMATS, QUANTITIES, Expansion, GivenValue, Mutual, OutputSettings, Parameter, Request, Source,
@@ -301,21 +301,33 @@ class _Builder:
     def _tubes(self, tree):
         if self.tubes is not None:
             raise InputError("`tubes` is declared twice", self.span(tree))
-        flux, coverage = (self.expr(c) for c in tree.children)
+        flux, coverage = (self.expr(c) for c in tree.children[:2])
+        order = None
+        if len(tree.children) > 2:
+            order = int(tree.children[2])
+            if order not in (1, 2):
+                raise NotSupportedYet(f"`to order {order}`: the tubes enter through the coverage (order 1) or its "
+                                      "square (order 2); three tubes and more are not derived",
+                                      self.span(tree.children[2]))
         for value, child, what in ((flux, tree.children[0], "flux"), (coverage, tree.children[1], "coverage")):
             if _decide(lambda: value.is_real, self.span(child), f"the tube {what} is real") is False:
                 raise InputError(f"the tube {what} must be real", self.span(child))
         if coverage.is_number and coverage < 0:
             raise InputError("the tube coverage (tubes per lambda^2) cannot be negative", self.span(tree.children[1]))
         if isinstance(coverage, sympy.Symbol):
-            self.tubes = Tubes(flux, coverage, self.span(tree))
+            self.tubes = Tubes(flux, coverage, self.span(tree), order=order)
         else:  # a number or an expression: the results are still only first order in it
-            self.tubes = Tubes(flux, TUBE_COVERAGE, self.span(tree), value=coverage)
+            self.tubes = Tubes(flux, TUBE_COVERAGE, self.span(tree), value=coverage, order=order)
         name = "coverage" if self.tubes.value is None else f"{TUBE_COVERAGE} = {sympy.sstr(coverage)}"
+        symbol = "coverage" if self.tubes.value is None else TUBE_COVERAGE
+        if order is None:
+            how = ("k = 3 with bose/fermi mobile species that do not braid, 2 with anyonic or braiding ones (`to order "
+                   "2` keeps their coverage-squared parts as named pieces)")
+        else:
+            how = f"k = {order + 1} (`to order {order}`)"
         self.warnings.append((f"flux tubes enter to a finite order in their coverage (independent tubes): results "
-                              f"carry O({'coverage' if self.tubes.value is None else TUBE_COVERAGE}^k), k = 3 with "
-                              "bose/fermi mobile species that do not braid, 2 with anyonic or braiding ones"
-                              + ("" if self.tubes.value is None else f", {name}"), self.span(tree)))
+                              f"carry O({symbol}^k), {how}" + ("" if self.tubes.value is None else f", {name}"),
+                              self.span(tree)))
 
     def _expand(self, tree):
         self.expansions.append((tree, self.file))

@@ -45,9 +45,10 @@ from .tube_virial import compose
 
 WORKERS = 2
 SUPPORTED = ("supported with flux tubes: `sample` of b[l], a[l] (l >= 1 for b, l >= 2 for a) of a bose or fermi "
-             "species (the piece T_two_tubes: one mobile particle and two tubes) and of b[2], a[2] of an anyonic "
-             "species (the piece B_anyon_tube_<species>: two anyons and one tube), and of b[1,1], a[1,1] of two "
-             "braiding species (the piece B_braid_tube_<A>_<B>: two braiding particles and one tube)")
+             "species (the piece T_two_tubes: one mobile particle and two tubes; also b[1] of an anyonic species "
+             "with `to order 2`) and of b[2], a[2] of an anyonic species (the piece B_anyon_tube_<species>: two "
+             "anyons and one tube), and of b[1,1], a[1,1] of two braiding species (the piece B_braid_tube_<A>_<B>: "
+             "two braiding particles and one tube), these two without `to order 2`")
 _FAMILIES = {"two_tubes": 1, "anyons_tube": 2, "braid_tube": 1}   # families per round: loops per round / DEFAULT_BATCH
 
 
@@ -86,18 +87,24 @@ def tube_request(builder, statement, names: list[str]):
         i = occupied[0]
         l, mobile = index[i], species[i]
         ideal = species_statistics(mobile, params) in ("bose", "fermi")
-        if ideal and letter == "a" and l == 1:
+        squares = builder.tubes.order == 2
+        if letter == "a" and l == 1:
             _refuse(f"{name} = 1 contains no tube piece", ref_span)
-        if not ideal and l == 1:
+        if not ideal and l == 1 and not squares:
             _refuse(f"{name} contains no tube piece: for anyons among tubes it is known through the first order in "
                     "the coverage, where it is exact (the coverage-squared term is beyond the anyonic results' "
-                    "O(coverage^2))", ref_span)
+                    "O(coverage^2); `tubes ... to order 2` keeps it)", ref_span)
         if not ideal and l >= 3:
             _refuse(f"{name}: more than two mobile particles with a tube ({l} anyons of {mobile.name} and one tube) "
                     "is a many-body piece the loop estimator does not sample", ref_span, unsupported=True)
-        piece = two_tubes_symbol() if ideal else anyon_tube_symbol(mobile.name)
+        if not ideal and l == 2 and squares:
+            _refuse(f"{name}: with `to order 2` it holds {anyon_tube_symbol(mobile.name, 2)} (two anyons and two "
+                    "tubes), which the loop estimator does not sample yet; sample it from an input without `to order "
+                    "2`", ref_span, unsupported=True)
+        one = ideal or l == 1      # one mobile particle (or an ideal species): the two-tube integral T2
+        piece = two_tubes_symbol() if one else anyon_tube_symbol(mobile.name)
         pieces[piece] = None
-        _needed(needed, name, piece, [("flux", flux)] + ([] if ideal else [("exchange", mobile.exchange)]), ref_span)
+        _needed(needed, name, piece, [("flux", flux)] + ([] if one else [("exchange", mobile.exchange)]), ref_span)
         coefficients.append(("cluster" if letter == "b" else "virial", index, ref_span))
     gas = [s.mass for s in species] + [builder.tubes.coverage] + [m.exchange for m in species] \
         + [m.value for m in builder.mutuals]
@@ -134,6 +141,10 @@ def _braid_request(builder, index, name: str, span) -> sympy.Symbol:
         _refuse(f"{name}: more than two mobile particles with a tube ({sum(index)} particles of braiding species "
                 f"{first.name}, {second.name} and one tube) is a many-body piece the loop estimator does not sample",
                 span, unsupported=True)
+    if builder.tubes.order == 2:
+        _refuse(f"{name}: with `to order 2` it holds {braid_tube_symbol(first.name, second.name, 2)} (two braiding "
+                "particles and two tubes), which the loop estimator does not sample yet; sample it from an input "
+                "without `to order 2`", span, unsupported=True)
     return braid_tube_symbol(first.name, second.name)
 
 
@@ -169,7 +180,7 @@ def sampled_pieces(system) -> dict[sympy.Symbol, sympy.Symbol]:
         for _, index, _ in sampling.coefficients:
             occupied = [k for k, n in enumerate(index) if n]
             mobile = system.species[occupied[0]]
-            ideal = species_statistics(mobile, params) in ("bose", "fermi")
+            ideal = species_statistics(mobile, params) in ("bose", "fermi") or index[occupied[0]] == 1
             piece = two_tubes_symbol() if ideal else anyon_tube_symbol(mobile.name)
             if len(occupied) == 2:
                 piece = braid_tube_symbol(*(system.species_names[k] for k in occupied))
@@ -193,9 +204,10 @@ def tube_statement(system, sampling, exact, points: list[dict]) -> SampledStatem
         held = sorted((s for s in value.free_symbols if tube_piece(s) is not None), key=lambda s: s.name)
         if not held:
             first_order = order is not None and sympy.Poly(order.expr, coverage).total_degree() == 2
+            why = "`to order 1`" if system.tubes.order == 1 else "its anyonic or braiding species"
             raise InputError(f"{label(kind, index)} = {value} contains no tube piece here"
-                             + (f" (its coverage-squared term is beyond this input's O({coverage}^2), set by its "
-                                "anyonic or braiding species)" if first_order else "") + ": nothing to sample; "
+                             + (f" (its coverage-squared term is beyond this input's O({coverage}^2), set by "
+                                f"{why})" if first_order else "") + ": nothing to sample; "
                              + SUPPORTED, span)
         exprs[(kind, index)] = value
         orders[(kind, index)] = None if order is None else sympy.Poly(order.expr, coverage).total_degree()

@@ -69,7 +69,9 @@ def two_body_clusters(system, order: int) -> dict:
     shift = flux_shift(tubes.flux, params) * tubes.coverage if tubes is not None else sympy.Integer(0)
     # the coverage-squared term of every l-cycle (docs/tubes.md): n^2 T2 m_ref / (2 m_i), T2 named
     no_tube = tubes is None or sympy.sympify(tubes.flux).is_integer is True   # integer flux: no phase at all
-    second = sympy.Integer(0) if no_tube else tubes.coverage ** 2 * two_tubes_symbol() / 2
+    second = sympy.Integer(0) if no_tube or tubes.order == 1 else tubes.coverage ** 2 * two_tubes_symbol() / 2
+    # `to order 2`: the coverage-squared parts of b_2 of anyons and b_11 of braiding pairs, four-body pieces
+    squares = not no_tube and tubes.order == 2
     ideal = [species_statistics(s, params) for s in species]
     coupled = braiding_relation(system)
     out = {}
@@ -86,6 +88,8 @@ def two_body_clusters(system, order: int) -> dict:
                 out[n] = sympy.expand(sign * (ratio / sympy.Integer(l) ** 2 + shift / l + second / ratio))
             elif l == 2:   # identical anyons: the one-tube term of b_2 is the sampled piece B_anyon_tube_<name>
                 tube = 0 if no_tube else tubes.coverage * anyon_tube_symbol(species[i].name)
+                if squares:
+                    tube += tubes.coverage ** 2 * anyon_tube_symbol(species[i].name, 2)
                 out[n] = exchange_b2(species[i].exchange, ratio, params) + tube
             else:
                 out[n] = None
@@ -96,6 +100,8 @@ def two_body_clusters(system, order: int) -> dict:
             name_i, name_j = system.species_names[i], system.species_names[j]
             # two braiding particles and one tube: the sampled piece B_braid_tube_<i>_<j> (docs/tubes.md)
             tube = 0 if no_tube else tubes.coverage * braid_tube_symbol(name_i, name_j)
+            if squares:
+                tube += tubes.coverage ** 2 * braid_tube_symbol(name_i, name_j, 2)
             total = (species[i].mass + species[j].mass) / m_ref
             out[n] = mutual_b11(system.mutual(name_i, name_j), total, params) + tube
         else:
@@ -111,7 +117,10 @@ def _anyonic(system) -> bool:
 def _first_order_only(system) -> bool:
     """Among tubes, results stop at the first order in the coverage when a two-body coefficient has a
     sampled one-tube piece (anyons: b_2; braiding species: b_11), whose coverage-squared term is a
-    four-body piece (two mobile particles and two tubes)."""
+    four-body piece (two mobile particles and two tubes), unless the input asks `to order 2` (then that
+    term is a named piece); `to order 1` stops every species there."""
+    if system.tubes.order is not None:
+        return system.tubes.order == 1
     return _anyonic(system) or bool(braiding_pairs(system))
 
 
@@ -137,8 +146,9 @@ ADJECTIVE = {"bose": "bosonic", "fermi": "fermionic"}
 TUBES_SUPPORTED = ("supported in the input language: `tubes flux gamma coverage n` with `clusters pairphase` in "
                    "`dimension 2`: bose or fermi species that do not braid through the coverage squared (the piece "
                    "T_two_tubes), anyonic species through the first order (the piece B_anyon_tube_<species>), two "
-                   "braiding species through the first order (the piece B_braid_tube_<A>_<B> in b_11); more than two "
-                   "mobile particles with a tube stay named many-body pieces")
+                   "braiding species through the first order (the piece B_braid_tube_<A>_<B> in b_11), and with "
+                   "`to order 2` through the coverage squared (the pieces B_anyon_two_tubes_<species>, "
+                   "B_braid_two_tubes_<A>_<B>); more than two mobile particles with a tube stay named many-body pieces")
 
 
 def known_piece(system, index) -> str | None:
@@ -285,7 +295,8 @@ class PairPhaseRegime(Regime):
             for p in builder.parameters.values():
                 if tube_piece(p.symbol) is not None:   # it would be read as the unknown tube piece
                     raise InputError(f"the parameter name {p.name} is the name of a tube piece here (T_two_tubes, "
-                                     "B_anyon_tube_<species>, B_braid_tube_<A>_<B>); choose another name", p.span)
+                                     "B_anyon_tube_<species>, B_braid_tube_<A>_<B>, B_anyon_two_tubes_<species>, "
+                                     "B_braid_two_tubes_<A>_<B>); choose another name", p.span)
             _refuse_colliding_pieces(builder)
         return source
 
@@ -351,7 +362,7 @@ class PairPhaseRegime(Regime):
         if tubes is None:
             return {}
         # bose/fermi species: every b_l through the coverage squared; anyons (b_2) and braiding pairs (b_11)
-        # only through the first order
+        # only through the first order unless `to order 2` (named coverage-squared pieces)
         return {tubes.coverage: 3 if not _first_order_only(system) else 2}
 
     def known_zero(self, system, index) -> bool:
@@ -373,9 +384,12 @@ class PairPhaseRegime(Regime):
                          f"placed; b_(l e_i) of a bose/fermi species gains (+-1)^(l+1) [({tubes.coverage})/l (-s(1 - s)/2) + "
                          f"({tubes.coverage})^2 T_two_tubes m_ref/(2 m_i)], s = ({tubes.flux}) mod 1"
                          + (f"; an anyonic species gains the same terms in b_(e_i), and ({tubes.coverage}) "
-                            "B_anyon_tube_<species> in b_(2 e_i)" if _anyonic(system) else "")
-                         + (f"; two braiding species gain ({tubes.coverage}) B_braid_tube_<A>_<B> in b_(e_A + e_B)"
-                            if braiding_pairs(system) else "")
+                            "B_anyon_tube_<species>" + (f" + ({tubes.coverage})^2 B_anyon_two_tubes_<species>"
+                                                        if tubes.order == 2 else "")
+                            + " in b_(2 e_i)" if _anyonic(system) else "")
+                         + (f"; two braiding species gain ({tubes.coverage}) B_braid_tube_<A>_<B>"
+                            + (f" + ({tubes.coverage})^2 B_braid_two_tubes_<A>_<B>" if tubes.order == 2 else "")
+                            + " in b_(e_A + e_B)" if braiding_pairs(system) else "")
                          + f"; O({tubes.coverage}^{k})")
             lines += [piece.text(system) for piece in pieces_of(system)]
         return lines

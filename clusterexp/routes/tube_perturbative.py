@@ -37,14 +37,18 @@ KINDS = ("two_tubes", "anyon", "braid")
 NODES = (1, 2, 3, 4, 5, 6)                   # heavy masses M (units of m_ref); the last one checks the rest
 
 
-def _heavy(kind: str, M: int, about, masses, cycle) -> dict:
+def _heavy(kind: str, M: int, about, masses, cycle, tubes: int = 1) -> dict:
     """{monomial: Rational} of the mixture coefficient with a heavy species of mass M, divided by the
     tube factor (b_{e_H}, or b_{e_H}^2 / (2 m_A) for two tubes), the heavy links renamed to the flux.
+    tubes = 2 (kinds "anyon" and "braid"): the coefficient with two heavy particles over b_{e_H}^2, the
+    coverage-squared part (`_two_tubes`).
     kind "anyon": b_{l e_A + e_H}, l = cycle; for l >= 3 its d^2 coefficient is the chains (derived)
     plus the cluster of the l-cycle with the heavy loop, which the route computes for equal masses only
     but whose static limit is exact: one loop of duration l beta around a point flux, the l-cycle's
     (+-1)^(l+1)/l times the d^2 part 1/2 of the one-tube shift s (docs/tubes.md (iii))."""
     g = [sympy.Symbol(f"g_{k}", real=True) for k in range(2)]
+    if tubes == 2:
+        return _two_tubes(kind, M, about, masses, cycle, g)
     if kind == "two_tubes":
         species = [Species(None, masses[0]), Species(None, M)]
         terms = taylor_coefficients(species, {(0, 1): g[0]}, (1, 2), ("boson", "boson"), 2)
@@ -65,6 +69,33 @@ def _heavy(kind: str, M: int, about, masses, cycle) -> dict:
                                     (*about, "boson"), 2)
         scale = sympy.Rational(1, M)
     total = sympy.expand(sum(scale * value * monomial for monomial, value in terms.items()))
+    return sympy.expand(total.xreplace({g[0]: FLUX, g[1]: FLUX}))
+
+
+def _two_tubes(kind: str, M: int, about, masses, cycle, g) -> dict:
+    """The coverage-squared part at heavy mass M: b_{l e_A + 2 e_H} (kind "anyon", cycle = l, A of mass
+    masses[0]) or b_{a e_A + b e_B + 2 e_H} (kind "braid") over b_{e_H}^2 = M^2 (docs/tubes.md (iii),
+    "The coverage-squared part"). For the anyons at l >= 2 the route leaves the g^2 coefficient named at
+    unequal masses: it is the chains (derived, any masses) plus the link squared of the cluster of A's
+    l-cycle with the 2-cycle of the heavy species, which is homogeneous of degree one in the masses and
+    tends to its heavy-cycle line M/(2l) (docs/perturbative.md 4j): over M^2 it vanishes in the limit, so
+    the chains alone are kept here (the limit is then exact; at finite M this is not the mixture's
+    coefficient)."""
+    if kind == "anyon":
+        species = [Species(EXCHANGE if cycle >= 2 else None, masses[0]), Species(None, M)]
+        mutual, index, points = {(0, 1): g[0]}, (cycle, 2), (about, "boson")
+    else:
+        a, b = cycle
+        species = [Species(EXCHANGE if a >= 2 else None, masses[0]),
+                   Species(EXCHANGE_B if b >= 2 else None, masses[1]), Species(None, M)]
+        mutual, index, points = {(0, 1): MUTUAL, (0, 2): g[0], (1, 2): g[1]}, (a, b, 2), (*about, "boson")
+    terms = taylor_coefficients(species, mutual, index, points, 2, unknown="name")
+    for monomial, value in list(terms.items()):
+        if isinstance(value, sympy.Symbol):
+            if monomial != g[0] ** 2 or kind != "anyon":
+                raise RuntimeError(f"coverage-squared part: {monomial} not derived at finite M (internal error)")
+            terms[monomial] = chain_part(species, mutual, index, points)[monomial]
+    total = sympy.expand(sum(value * monomial for monomial, value in terms.items()) / M ** 2)
     return sympy.expand(total.xreplace({g[0]: FLUX, g[1]: FLUX}))
 
 
@@ -89,7 +120,8 @@ def _limit(values: list[sympy.Rational]) -> sympy.Rational:
     return through(fit, sympy.Integer(0))
 
 
-def tube_coefficients(kind: str, about="boson", masses=(1, 1), order: int = 2, cycle=None) -> dict:
+def tube_coefficients(kind: str, about="boson", masses=(1, 1), order: int = 2, cycle=None,
+                      tubes: int = 1) -> dict:
     """{monomial: Rational} of the tube piece `kind` ("two_tubes", "anyon", "braid") through `order`
     (0, 1 or 2) in FLUX (the flux minus an integer), EXCHANGE (the anyons' exchange parameter minus
     their point `about`, "boson" or "fermion") and MUTUAL (the braid pair's mutual parameter minus an
@@ -97,11 +129,16 @@ def tube_coefficients(kind: str, about="boson", masses=(1, 1), order: int = 2, c
     For "anyon", `cycle` = l >= 2 (default 2) gives the coefficient of the coverage in b_l of the anyons
     (l = 2: the piece B_anyon_tube). For "braid", `cycle` = (a, b) (default (1, 1): the piece
     B_braid_tube) gives the coefficient of the coverage in b_{a e_A + b e_B}, and `about` is one point
-    for both species or a pair (A's, B's). Monomials absent from the dict have coefficient 0."""
+    for both species or a pair (A's, B's). tubes = 2 (kinds "anyon" and "braid"): the coefficient of the
+    coverage squared instead (two tubes; l = 2 is the piece B_anyon_two_tubes, (1, 1) B_braid_two_tubes),
+    which depends on the masses in units of m_ref (masses[0] for the anyons). Monomials absent from the
+    dict have coefficient 0."""
     if kind not in KINDS:
         raise ValueError(f"kind must be one of {KINDS}, got {kind!r}")
     if order not in (0, 1, 2):
         raise ValueError(f"order must be 0, 1 or 2, got {order!r}")
+    if tubes not in (1, 2) or (tubes == 2 and kind == "two_tubes"):
+        raise ValueError(f"tubes must be 1 or 2 (2 for the kinds 'anyon' and 'braid'), got {tubes!r}")
     if kind == "anyon":
         cycle = 2 if cycle is None else cycle
         if not isinstance(cycle, int) or cycle < 2:
@@ -118,14 +155,14 @@ def tube_coefficients(kind: str, about="boson", masses=(1, 1), order: int = 2, c
     elif cycle is not None:
         raise ValueError(f"cycle is for the kinds 'anyon' and 'braid'; got {cycle!r}")
     masses = tuple(sympy.Rational(m) for m in masses)
-    return dict(_coefficients(kind, about, masses, order, cycle))
+    return dict(_coefficients(kind, about, masses, order, cycle, tubes))
 
 
 @functools.lru_cache(maxsize=256)
-def _coefficients(kind: str, about, masses: tuple, order: int, cycle) -> tuple:
+def _coefficients(kind: str, about, masses: tuple, order: int, cycle, tubes: int = 1) -> tuple:
     """tube_coefficients as a tuple of items, computed once per process and argument set (six mixtures
     through the perturbative route each, 0.01-0.2 s; every expansion and truncated claim asks again)."""
-    per_node = [sympy.Poly(_heavy(kind, M, about, masses, cycle), *sorted(
+    per_node = [sympy.Poly(_heavy(kind, M, about, masses, cycle, tubes), *sorted(
         {FLUX, EXCHANGE, EXCHANGE_B, MUTUAL, sympy.Abs(FLUX), sympy.Abs(EXCHANGE), sympy.Abs(EXCHANGE_B),
          sympy.Abs(MUTUAL)}, key=str))
         for M in NODES]
@@ -141,7 +178,8 @@ def _coefficients(kind: str, about, masses: tuple, order: int, cycle) -> tuple:
     if kind == "braid" and any(m.has(EXCHANGE, EXCHANGE_B) for m in out):
         raise RuntimeError("braid pieces: an exchange term at second order (docs/tubes.md (iii) says the "
                            "loops of a mixed cluster with a tube need three links for it; internal error)")
-    if order >= 2:   # quenched, not annealed: minus (e^Delta - 1 - Delta) at z^l, through f^2
+    if order >= 2 and tubes == 1:   # quenched, not annealed: minus (e^Delta - 1 - Delta) at z^l, through f^2
+        # (two tubes: annealed and quenched differ from the third order on, docs/tubes.md (iii))
         out[FLUX ** 2] = out.get(FLUX ** 2, 0) - _quenched_correction(kind, about, cycle)
     return tuple((m, v) for m, v in out.items() if v != 0)
 

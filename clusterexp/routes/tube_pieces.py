@@ -22,6 +22,16 @@ gas's ln Xi averaged over the tube positions:
                     parameter an integer, period 1: the relative phase is 1 on every pair of loops, and
                     the one-tube shifts stay in b_10 and b_01 alone) and at integer flux.
 
+With `tubes ... to order 2` the anyonic and braiding coefficients are kept through the coverage squared
+too, with two more pieces (four-body: two mobile particles and two tubes; not sampled):
+
+  B_anyon_two_tubes_<A>  the coefficient of n^2 in b_2 of the identical anyons of species A. A function of
+                    A's exchange parameter, the flux and m_A/m_ref. Exactly (+-1) T2 m_ref/(2 m_A) at the
+                    bose/fermi points (the 2-cycle's coverage-squared term above) and 0 at integer flux.
+  B_braid_two_tubes_<A>_<B>  the coefficient of n^2 in b_11 of two braiding species. A function of the
+                    mutual parameter, the flux and both masses over m_ref; 0 where they do not braid and at
+                    integer flux.
+
 Their values are sampled (`clusterexp.loops.tube_estimates`), not derived: in the exact results they
 stay symbols, and `pieces` treats them like the b_n pieces (claims undecided with conditions, series
 expanding them with named Taylor coefficients, a kink where a pair phase has one).
@@ -36,21 +46,25 @@ import sympy
 TWO_TUBES_NAME = "T_two_tubes"      # the same symbol as loops.tube_virial.TWO_TUBES
 ANYON_TUBE_PREFIX = "B_anyon_tube_"
 BRAID_TUBE_PREFIX = "B_braid_tube_"
-_ANYON = re.compile(r"^B_anyon_tube_(.+)$")
-_BRAID = re.compile(r"^B_braid_tube_(.+_.+)$")
+ANYON_TWO_TUBES_PREFIX = "B_anyon_two_tubes_"
+BRAID_TWO_TUBES_PREFIX = "B_braid_two_tubes_"
+_ANYON = re.compile(r"^B_anyon_(tube|two_tubes)_(.+)$")
+_BRAID = re.compile(r"^B_braid_(tube|two_tubes)_(.+_.+)$")
 
 
 def two_tubes_symbol() -> sympy.Symbol:
     return sympy.Symbol(TWO_TUBES_NAME, real=True)
 
 
-def anyon_tube_symbol(species_name: str) -> sympy.Symbol:
-    return sympy.Symbol(ANYON_TUBE_PREFIX + species_name, real=True)
+def anyon_tube_symbol(species_name: str, tubes: int = 1) -> sympy.Symbol:
+    """The coefficient of the coverage (tubes = 1) or of its square (tubes = 2) in b_2 of the anyons."""
+    return sympy.Symbol((ANYON_TUBE_PREFIX if tubes == 1 else ANYON_TWO_TUBES_PREFIX) + species_name, real=True)
 
 
-def braid_tube_symbol(first: str, second: str) -> sympy.Symbol:
-    """The piece of two distinct species, named in their order of declaration."""
-    return sympy.Symbol(f"{BRAID_TUBE_PREFIX}{first}_{second}", real=True)
+def braid_tube_symbol(first: str, second: str, tubes: int = 1) -> sympy.Symbol:
+    """The piece of two distinct species, named in their order of declaration (tubes as for the anyons)."""
+    prefix = BRAID_TUBE_PREFIX if tubes == 1 else BRAID_TWO_TUBES_PREFIX
+    return sympy.Symbol(f"{prefix}{first}_{second}", real=True)
 
 
 def pair_splits(names, text: str) -> list[tuple[str, str]]:
@@ -64,11 +78,13 @@ def pair_splits(names, text: str) -> list[tuple[str, str]]:
 @dataclass(frozen=True)
 class TubePiece:
     """A named tube piece: `species` is the mobile species it belongs to (None for T_two_tubes); for the
-    piece of two braiding species `pair` is the text after the prefix (`pair_of` resolves it)."""
+    piece of two braiding species `pair` is the text after the prefix (`pair_of` resolves it); `tubes`
+    is the power of the coverage it multiplies in b_2 or b_11 (2: the four-body pieces)."""
 
     symbol: sympy.Symbol
     species: str | None
     pair: str | None = None
+    tubes: int = 1
 
     def pair_of(self, system) -> tuple[str, str]:
         """The two species of a braid piece in this system (the first split: a collision is refused at
@@ -79,11 +95,16 @@ class TubePiece:
         """(kind, expression) of what it depends on, kinds as in `pieces._definitions`."""
         out = [("flux", system.tubes.flux)]
         if self.species is not None:
-            out.append(("exchange", system.species[system.species_names.index(self.species)].exchange))
+            species = system.species[system.species_names.index(self.species)]
+            out.append(("exchange", species.exchange))
+            if self.tubes == 2:
+                out.append(("smooth", species.mass / system.reference_mass))
         if self.pair is not None:
             first, second = self.pair_of(system)
             masses = [system.species[system.species_names.index(name)].mass for name in (first, second)]
             out += [("mutual", system.mutual(first, second)), ("smooth", masses[0] / masses[1])]
+            if self.tubes == 2:
+                out.append(("smooth", masses[1] / system.reference_mass))
         return out
 
     def value_at(self, system, point) -> sympy.Expr | None:
@@ -118,47 +139,63 @@ class TubePiece:
         stats = species_statistics(there, params)
         if stats not in ("bose", "fermi"):
             return None
-        s = reduced(flux, 1, params)   # the one-tube shift -s(1 - s)/2 (as routes/pairphase.flux_shift)
         sign, word, half = (1, "boson", "F/2") if stats == "bose" else (-1, "fermion", "-F/2")
+        if self.tubes == 2:   # the ideal 2-cycle's coverage-squared term, (+-1) T2 m_ref / (2 m)
+            ratio = sympy.sympify(species.mass / system.reference_mass).subs(point)
+            return (sign * two_tubes_symbol() / (2 * ratio),
+                    f"{self.species} is a {word} here, {'' if sign > 0 else '-'}{TWO_TUBES_NAME} m_ref/(2 m)")
+        s = reduced(flux, 1, params)   # the one-tube shift -s(1 - s)/2 (as routes/pairphase.flux_shift)
         return (sympy.expand(sign * (-s * (1 - s) / 2) / 2),
                 f"{self.species} is a {word} here, {half} with F = -s(1 - s)/2, s = flux mod 1")
 
     def text(self, system) -> str:
         flux = system.tubes.flux
+        n = system.tubes.coverage
+        power, count = (str(n), "one tube") if self.tubes == 1 else (f"{n}^2", "two tubes")
         if self.pair is not None:
             first, second = self.pair_of(system)
-            return (f"{self.symbol} = the coefficient of {system.tubes.coverage} in b_(e_{first} + e_{second}) (two "
-                    "braiding particles and one tube; sampled, docs/tubes.md), 0 where they do not braid")
+            how = "sampled" if self.tubes == 1 else "not sampled; derived near zero flux"
+            return (f"{self.symbol} = the coefficient of {power} in b_(e_{first} + e_{second}) (two braiding particles "
+                    f"and {count}; {how}, docs/tubes.md), 0 where they do not braid")
         if self.species is None:
             return (f"{self.symbol} = T2({flux}): the connected integral of one loop of duration beta and two tubes "
                     "of this flux (sampled, docs/tubes.md); b_l of a bose/fermi species gains "
-                    f"(+-1)^(l+1) {system.tubes.coverage}^2 {self.symbol} m_ref/(2 m)")
-        return (f"{self.symbol} = the coefficient of {system.tubes.coverage} in b[2] of species {self.species} "
+                    f"(+-1)^(l+1) {n}^2 {self.symbol} m_ref/(2 m)")
+        if self.tubes == 2:
+            return (f"{self.symbol} = the coefficient of {n}^2 in b[2] of species {self.species} (two anyons and two "
+                    f"tubes; not sampled, derived near zero flux, docs/tubes.md), +-{TWO_TUBES_NAME} m_ref/(2 m) at "
+                    "the bose/fermi points")
+        return (f"{self.symbol} = the coefficient of {n} in b[2] of species {self.species} "
                 "(two anyons and one tube; sampled, docs/tubes.md), +-F/2 at the bose/fermi points")
 
     @property
     def latex_name(self) -> str:
         """The name in the LaTeX output (T with the subscript "2 tubes"; B with "tube" over the species,
-        "braid" over the pair)."""
+        "braid" over the pair; "2 tubes" / "braid, 2 tubes" for the coverage-squared pieces)."""
+        two = r",\,2\,tubes" if self.tubes == 2 else ""
         if self.pair is not None:
             pair = self.pair.replace("_", "\\_")
-            return rf"B^{{\mathrm{{braid}}}}_{{\mathrm{{{pair}}}}}"
+            return rf"B^{{\mathrm{{braid{two}}}}}_{{\mathrm{{{pair}}}}}"
         if self.species is None:
             return r"T_{\mathrm{2\,tubes}}"
-        return rf"B^{{\mathrm{{tube}}}}_{{\mathrm{{{self.species}}}}}"
+        top = "tube" if self.tubes == 1 else r"2\,tubes"
+        return rf"B^{{\mathrm{{{top}}}}}_{{\mathrm{{{self.species}}}}}"
 
     def latex(self, system) -> str:
         name = self.latex_name
+        n = sympy.latex(system.tubes.coverage)
+        power, count, how = (n, "one tube", "sampled") if self.tubes == 1 else \
+            (f"{n}^2", "two tubes", "not sampled; derived near zero flux")
         if self.pair is not None:
             first, second = self.pair_of(system)
-            return (rf"${name}$ is the coefficient of ${sympy.latex(system.tubes.coverage)}$ in $b_{{11}}$ of species "
-                    rf"{first} and {second} (two braiding particles and one tube; sampled).")
+            return (rf"${name}$ is the coefficient of ${power}$ in $b_{{11}}$ of species "
+                    rf"{first} and {second} (two braiding particles and {count}; {how}).")
         if self.species is None:
             return (rf"${name}$ is the connected integral of one loop of duration $\beta$ and two tubes of this "
                     r"flux (sampled); $b_{l e_i}$ of a bose/fermi species gains "
-                    rf"$(\pm1)^{{l+1}}\,{sympy.latex(system.tubes.coverage)}^2\,{name}\,m_{{\mathrm{{ref}}}}/(2m_i)$.")
-        return (rf"${name}$ is the coefficient of ${sympy.latex(system.tubes.coverage)}$ in $b_2$ of species "
-                rf"{self.species} (two anyons and one tube; sampled).")
+                    rf"$(\pm1)^{{l+1}}\,{n}^2\,{name}\,m_{{\mathrm{{ref}}}}/(2m_i)$.")
+        return (rf"${name}$ is the coefficient of ${power}$ in $b_2$ of species "
+                rf"{self.species} (two anyons and {count}; {how}).")
 
 
 def _exactly_integer(value) -> bool:
@@ -190,22 +227,27 @@ def tube_piece(symbol) -> TubePiece | None:
         return TubePiece(two_tubes_symbol(), None)
     match = _BRAID.match(name)
     if match:
-        return TubePiece(sympy.Symbol(name, real=True), None, match.group(1))
+        return TubePiece(sympy.Symbol(name, real=True), None, match.group(2), 1 if match.group(1) == "tube" else 2)
     match = _ANYON.match(name)
-    return TubePiece(anyon_tube_symbol(match.group(1)), match.group(1)) if match else None
+    if not match:
+        return None
+    tubes = 1 if match.group(1) == "tube" else 2
+    return TubePiece(anyon_tube_symbol(match.group(2), tubes), match.group(2), None, tubes)
 
 
 def pieces_of(system) -> list[TubePiece]:
     """The tube pieces of a system with tubes: T_two_tubes (in every b_(e_i)), one anyon-tube piece per
-    anyonic species and one braid-tube piece per braiding pair (for the glossary of every format)."""
+    anyonic species and one braid-tube piece per braiding pair, and with `to order 2` their
+    coverage-squared pieces (for the glossary of every format)."""
     from ..exact.periods import species_statistics
     if system.tubes is None:
         return []
     params = {p.symbol: p for p in system.parameters}
+    powers = (1, 2) if system.tubes.order == 2 else (1,)
     return [TubePiece(two_tubes_symbol(), None)] + [
-        TubePiece(anyon_tube_symbol(s.name), s.name) for s in system.species
+        TubePiece(anyon_tube_symbol(s.name, k), s.name, None, k) for s in system.species for k in powers
         if species_statistics(s, params) not in ("bose", "fermi")] + [
-        TubePiece(braid_tube_symbol(a, b), None, f"{a}_{b}") for a, b in braiding_pairs(system)]
+        TubePiece(braid_tube_symbol(a, b, k), None, f"{a}_{b}", k) for a, b in braiding_pairs(system) for k in powers]
 
 
 def braiding_pairs(system) -> list[tuple[str, str]]:
