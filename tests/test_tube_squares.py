@@ -174,3 +174,13 @@ def test_sampling_a_square_piece_is_not_supported_yet():
     assert str(caught.value.span).endswith("6:8")
     derivation = clusterexp.derive(base + "derive cluster up to 2\nsample b[1] seed 3 with 4000 loops")
     assert derivation.system.tubes.order == 2
+
+
+def test_evaluate_away_from_exact_points_says_the_pieces_are_not_sampled_with_order_two(cli):
+    """`evaluate` of b[2] of anyons at a generic point with `to order 2`: refused at the statement, saying
+    that the pieces are not sampled in this setting (instead of proposing a `sample` that is refused)."""
+    result = cli("run", "-e", ANYONS.format(mass=1, order=" to order 2", point=0).replace(
+        "expand alpha, f about 0, 0 to 2 from above", "evaluate b[2,0] at alpha = 1/2, f = 1/3, n = 1/10"))
+    assert result.returncode == 2, result.stderr
+    assert "does not sample the pieces of b[2] of anyons" in result.stderr and "^" in result.stderr
+    assert "Traceback" not in result.stderr

@@ -374,6 +374,12 @@ def missing_piece(system, piece, point: dict) -> str:
         return (f"{piece} depends on {', '.join(unset)} (through the "
                 f"{', '.join(kind for kind, e in definitions if sympy.sympify(e).free_symbols)}): give "
                 f"{'it a value' if len(unset) == 1 else 'them values'}")
+    found = tube_piece(piece)
+    if system.tubes.order == 2 and (found.species is not None or found.pair is not None):
+        return (f"no value for {piece} at {_point_text(point) or 'this point'}: it is known exactly only "
+                f"{_exact_where(piece)}, and with `to order 2` the loop estimator does not sample the pieces of "
+                "b[2] of anyons and b[1,1] (not supported yet: declare the tubes without `to order 2` to sample "
+                "them through the first order in the coverage)")
     at = ", ".join(f"{s.name} = {sympy.sstr(point[s])}" for s in depends)
     statement = f"sample {_sampled_in(system, piece)}" + (f" at {at}" if at else "")
     return (f"no value for {piece} at {_point_text(point) or 'this point'}: it is known exactly only "
