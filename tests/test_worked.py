@@ -231,6 +231,42 @@ def test_braiding_among_vortices_against_the_contact_law(tmp_path):
         assert (coefficient["above", (a, b)] - coefficient["below", (a, b)]) / 2 == contact, (a, b, coefficient)
 
 
+def test_anyons_through_vortex_pairs_against_the_ideal_gas_among_tubes():
+    # `to order 2` near alpha = 0, f = 0+: at alpha = 0 the anyons are ideal bosons, whose l-cycle among
+    # Poisson tubes gains n F/l + n^2 T2/2 (the cycle argument of the test above; F = -f(1 - f)/2, the exact
+    # Aharonov-Bohm shift, Comtet, Georgelin, Ouvry 1989, from memory) with the small-flux T2 = f^2/6 of
+    # docs/tubes.md (i) (Levy's area and the winding areas, not the perturbative route). The alpha-free part
+    # of every printed series, b and a (the a's composed here by iteration), must be that gas through f^2
+    # and n^2; the coverage-squared parts carry no alpha at this order (docs/tubes.md (iii)).
+    result = run_cli("run", str(ROOT / "worked" / "anyons_through_vortex_pairs" / "input.gas"), "--format", "json",
+                     "--no-files")
+    assert result.returncode == 0, result.stderr
+    data = json.loads(result.stdout)
+    alpha, f, n = sympy.symbols("alpha f n")
+    F, T2 = -f * (1 - f) / 2, f ** 2 / 6
+    ideal = {(l,): sympy.Rational(1, l ** 2) + n * F / l + n ** 2 * T2 / 2 for l in (1, 2, 3)}
+    virial = virial_by_iteration(ideal, 3)
+
+    def through_second_order(expr):
+        poly = sympy.Poly(sympy.expand(expr), alpha, f)
+        return sum((c * alpha ** i * f ** j for (i, j), c in zip(poly.monoms(), poly.coeffs()) if i + j <= 2),
+                   sympy.Integer(0))
+    checked = 0
+    for c in data["coefficients"]:
+        if not c.get("series"):
+            assert c["kind"] == "virial" and tuple(c["index"]) == (1,)      # a_1 = 1: no series line
+            continue
+        checked += 1
+        series = sympy.expand(sympy.sympify(c["series"][0]["value"].split(" + O(")[0],
+                                            locals={"alpha": alpha, "f": f, "n": n}))
+        assert "O(n**3)" in c["series"][0]["value"]
+        reference = ideal[tuple(c["index"])] if c["kind"] == "cluster" else virial[tuple(c["index"])]
+        reference = sympy.expand(sympy.series(reference, n, 0, 3).removeO())
+        assert sympy.expand(series.subs(alpha, 0) - through_second_order(reference)) == 0, (c["kind"], c["index"])
+        assert sympy.expand(series.coeff(n, 2).coeff(alpha)) == 0
+    assert checked == 5
+
+
 def test_semion_bilayer_against_published_a3_and_the_vanishing_mixed_coefficient():
     # Monte Carlo numbers, reproducible by seed (the golden file); the content is checked here against
     # sources outside the project, within the run's own error bars.
