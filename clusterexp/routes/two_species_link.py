@@ -16,9 +16,10 @@ logarithm) and g(r) -> 1/(2 a) per m_j for a heavy b-cycle, but g is neither of 
 So there is no table: each mass ratio is computed when asked, at two quadrature rules (the engine's
 tolerances 1e-6 and 1e-7), with the error bound of benchmarks/two_loop_table.py (ten times the change
 between the rules, never below FLOOR per unit of the larger mass), cached for the process. The cost
-grows with the cluster (about 4 s for |n| = 4, up to 40 s for |n| = 6, up to 130 s for |n| = 8 on this
-machine), so it is offered for |n| <= MAX_PARTICLES and mass ratios up to MAX_RATIO (beyond, the rules
-stop agreeing: at 1000 they differ by 5e-2); beyond either, NotSupportedYet.
+grows with the cluster (about 4 s for |n| = 4, up to 40 s for |n| = 6, up to about two minutes for
+|n| = 8 on this machine; benchmarks/two_species_link.py), so it is offered for |n| <= MAX_PARTICLES and
+mass ratios up to MAX_RATIO (beyond, the rules stop agreeing: at 1000 they differ by 5e-2); beyond
+either, NotSupportedYet. A terminal shows which rule is running.
 """
 from __future__ import annotations
 
@@ -30,7 +31,7 @@ from ..progress import Progress
 from . import two_loop_fast
 from .angle_area import first_order_normalisation
 
-MAX_PARTICLES = 6
+MAX_PARTICLES = 8
 MAX_RATIO = 100
 RULES = ((1e-6, (8, 8)), (1e-7, (10, 12)))      # tolerance name -> (levels, nodes) of two_loop_fast.RULES
 FLOOR = 2e-6
