@@ -422,9 +422,9 @@ def numerical_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int
     derived in closed form but computed numerically: the square of the exchange parameter in b_n of
     one species (n = 4..two_loop_table.SINGLE_CYCLES_CHECKED from the table, beyond up to
     two_loop_demand.MAX_N computed when asked: minutes, cached), and d_ij^2 in b_n of two species, |n| >= 4:
-    equal masses from the table (|n| <= 8) or on demand (|n| <= two_loop_demand.MAX_N), unequal masses computed by quadrature on
-    demand (|n| <= two_species_link.MAX_PARTICLES, seconds to a minute and a half each, cached); empty where none is. The
-    values are floats with their quadrature error bounds: the tool keeps the coefficient's name and
+    equal masses from the table (|n| <= 8) or on demand (|n| <= two_loop_demand.MAX_N), unequal masses
+    computed by quadrature on demand (|n| <= two_species_link.MAX_PARTICLES, seconds to a minute and a
+    half each, cached); empty where none is. The values are floats with their quadrature error bounds: the tool keeps the coefficient's name and
     shows the number beside it, never in place of it."""
     K = len(species)
     gas = _Gas(species, _points(about, K))

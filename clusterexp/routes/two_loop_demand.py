@@ -13,8 +13,8 @@ quantities are computed here when asked, with the same engines and the same erro
 Each at the engines' rules for the tolerances 1e-6 and 1e-7; the bound is max(MARGIN x the change
 between the rules, FLOOR) per cluster, as for the table. Per unit mass about bosons (about fermions the
 clusters' sign is (-1)^n, the caller's). The cost grows fast with n (benchmarks/two_loop_demand.py: six
-minutes of one core for n = 9, about fifteen for n = 10), so the result is cached for the process, each step
-shows on a terminal, and n > MAX_N is refused (NotSupportedYet, said beside the coefficient's name).
+minutes of one core for n = 9, twenty on a loaded machine for n = 10), so the result is cached for the
+process, each step shows on a terminal, and n > MAX_N is refused (NotSupportedYet, said beside the coefficient's name).
 """
 from __future__ import annotations
 
