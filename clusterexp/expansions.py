@@ -37,6 +37,17 @@ def one_sided_series(expr: sympy.Expr, symbol: sympy.Symbol, point, order: int, 
     return sympy.expand(kept.subs(u, symbol - point))
 
 
+def _degree(term: sympy.Expr, symbol: sympy.Symbol) -> int:
+    """The degree in `symbol` of one term of an expanded polynomial: read off its factors when the symbol
+    enters only as a power of itself (the usual case, no Poly built), else sympy.degree."""
+    powers = term.as_powers_dict()
+    if all(base == symbol or symbol not in base.free_symbols for base in powers):
+        exponent = sympy.sympify(powers.get(symbol, 0))
+        if exponent.is_Integer:
+            return int(exponent)
+    return sympy.degree(term, symbol)
+
+
 def truncate(value: sympy.Expr, limits: dict) -> sympy.Expr:
     """value as a polynomial in the truncated symbols with every power at or beyond its limit dropped,
     plus the O term that says so."""
@@ -46,7 +57,7 @@ def truncate(value: sympy.Expr, limits: dict) -> sympy.Expr:
             raise ValueError(f"cannot truncate a periodic (piecewise) dependence on {symbol}")
         if not value.is_polynomial(symbol):
             value = sympy.expand(sympy.series(value, symbol, 0, k).removeO())
-        value = sum((term for term in sympy.Add.make_args(value) if sympy.degree(term, symbol) < k), sympy.Integer(0))
+        value = sympy.Add(*(term for term in sympy.Add.make_args(value) if _degree(term, symbol) < k))
     orders = [sympy.Order(s ** k) for s, k in sorted(limits.items(), key=lambda item: item[0].name)]
     return sympy.Add(value, *orders) if orders else value
 
