@@ -128,7 +128,12 @@ class Forms:
         self.r_poly = np.array([self.rows[k] for k in keys]).reshape(-1, 6) @ to_uy
         cs = sorted(self.const)
         self.c_slot = np.array(cs, dtype=int)
-        self.c_poly = np.array([self.const[s] for s in cs]).reshape(-1, 6) @ to_uy
+        c_poly = np.array([self.const[s] for s in cs]).reshape(-1, 6) @ to_uy
+        # coefficients that cancel in exact arithmetic leave a few ulps in floating point; where the
+        # variance of two chords over the same two points is u^2 V, such a residue would stand for u^2 V
+        # below |u| ~ 1e-8 and cost seven digits of the log integral: those are set to zero
+        scale = np.abs(c_poly).max(axis=1, keepdims=True) if len(cs) else 0.0
+        self.c_poly = np.where(np.abs(c_poly) < 1e-13 * scale, 0.0, c_poly)
 
     def evaluate(self, u, y, chunk_rows: float = 4e6):
         """(nslots, len(u)) values of every slot at the points x = u + y, y."""
@@ -218,6 +223,35 @@ def _same_edge_reversed(a, b, L: int) -> bool:
             and a[2] % L == b[3] % L and a[3] % L == b[2] % L)
 
 
+def _ends(pc, L: int):
+    """The end points (orbit, index mod L) of a whole piece at v = 0 and v = 1."""
+    if pc[0] == "bridge":
+        return (pc[1], pc[2] % L), (pc[1], (pc[2] + 1) % L)
+    return (pc[1], pc[2] % L), (pc[1], pc[3] % L)
+
+
+def _shared_end_first(a, b, L: int):
+    """For two pieces, one of them a chord, with one end point in common, or two halves of two chords cut
+    where they cross: which of the two to run reversed so that the common point sits at x = y = 0. There
+    the variance of their difference is small, and the compiled polynomials (in u = x - y and y) keep it
+    accurate; at y = 1 it is the difference of numbers of order one, and near a common end of two chords
+    (where it is quadratic in the distance) eight digits were lost (docs/perturbative.md 4f). Reversing
+    a piece maps its variable v to 1 - v and leaves the integral as it is; two bridges are left as they
+    are (their variance is linear in the distance, and their equal-time line must stay at x = y)."""
+    if "line" not in (a[0], b[0]) or a == b:
+        return False, False
+    if len(a) == len(b) == 5:                    # halves of two crossing chords: they meet at the cut
+        return a[4][0] == 0.0, b[4][0] == 0.0
+    if len(a) == 5 or len(b) == 5:
+        return False, False
+    ea, eb = _ends(a, L), _ends(b, L)
+    shared = set(ea) & set(eb)
+    if len(shared) != 1:
+        return False, False
+    (s,) = shared
+    return ea[1] == s and ea[0] != s, eb[1] == s and eb[0] != s
+
+
 def _split(pc, cut):
     return [pc + ((0.0, cut),), pc + ((cut, 1.0),)]
 
@@ -276,8 +310,9 @@ def link_squared(p, q, DX, DY, levels, nodes, record=None):
                     pairs[(a2, b2)] = [w, wl]
     for (a, b), (w, wl) in pairs.items():
         rev = _same_edge_reversed(a, b, L)
-        Pa, Ea = _piece(a, "x")
-        Pb, Eb = _piece(b, "y", rev)
+        rev_a, rev_b = (False, True) if rev else _shared_end_first(a, b, L)
+        Pa, Ea = _piece(a, "x", rev_a)
+        Pb, Eb = _piece(b, "y", rev_b)
         U = Pa + _neg(Pb)
         s = [forms.slot() for _ in range(4)]
         forms.add(U, U, s[0]); forms.add(Ea, Eb, s[1]); forms.add(Ea, U, s[2]); forms.add(Eb, U, s[3])
