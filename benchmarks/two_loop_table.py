@@ -5,6 +5,7 @@ Run:  python benchmarks/two_loop_table.py 3,1 2,2 4,1 ...     (seconds to minute
       python benchmarks/two_loop_table.py --n 5                (every cluster {p, q} with p + q = 5)
       python benchmarks/two_loop_table.py --scalar 2,2         (the scalar engine beside the vectorised one)
       python benchmarks/two_loop_table.py --cycles 7 8         (the k-cycles alone, routes/cycle_alone.py)
+      python benchmarks/two_loop_table.py --links 4 5 6 7 8    (the LINK entries at two fine rules)
 
 For each cluster {p-cycle, q-cycle} the vectorised engine (clusterexp/routes/two_loop_fast.py) runs with
 its rules for the tolerances 1e-6 and 1e-7; the lines printed for the table are the 1e-7 values of the
@@ -76,9 +77,41 @@ def _cycles(ks) -> None:
         print(f"  change between the rules {abs(values[1] - values[0]):.1e}", flush=True)
 
 
+LINK_RULES = ((12, 16), (14, 20))         # (levels, nodes) of the table's LINK entries
+LINK_FLOOR = 1e-11
+
+
+def _links(ns) -> None:
+    """The LINK entries (equal masses) at two fine rules, and the sum rule of docs/perturbative.md 4f:
+    over the clusters {p, n - p} (weight 1/2 for p = n - p) the ratios r = link^2/(segments x G1) add up
+    to -n(n - 1)/4."""
+    print(f"# the link squared of every cluster with p + q = n at the rules {LINK_RULES} (wall seconds)")
+    for n in ns:
+        total = 0.0
+        for p in range(n - 1, (n - 1) // 2, -1):
+            q = n - p
+            runs = []
+            for rule in LINK_RULES:
+                start = time.perf_counter()
+                segments, g1, link2 = two_loop_fast.link_squared(p, q, 1.0, 1.0, *rule)
+                runs.append((link2 / (segments * g1), time.perf_counter() - start))
+            (r0, t0), (r1, t1) = runs
+            share = 0.5 if p == q else 1.0
+            total += share * r1
+            unit = share / (p * q)                 # |r| / (p q), halved for p = q: the table's units
+            print(f"{{{p},{q}}}: r = {r1:.15f}, change {abs(r1 - r0):.1e} ({t0:.0f} s, {t1:.0f} s)   "
+                  f"table entry ({p}, {q}): ({-r1 * unit:.13f}, {max(10 * abs(r1 - r0) * unit, LINK_FLOOR):.0e}),",
+                  flush=True)
+        print(f"  n = {n}: sum of the weighted r = {total:.15f}, + n(n - 1)/4 = {total + n * (n - 1) / 4:.1e}",
+              flush=True)
+
+
 def main(argv) -> None:
     if argv[:1] == ["--cycles"]:
         _cycles([int(k) for k in argv[1:]])
+        return
+    if argv[:1] == ["--links"]:
+        _links([int(n) for n in argv[1:]])
         return
     scalar = argv[:1] == ["--scalar"]
     argv = argv[1:] if scalar else argv

@@ -30,6 +30,7 @@ from . import two_loop_quadrature
 from .two_loop_quadrature import chord_closed_single
 
 SIGMA = 0.15
+MAX_VALUES = 2.5e8          # slot values evaluated in one pass (8 bytes each): fine rules run in passes
 RULES = {1e-6: (8, 8), 1e-7: (10, 12), 1e-8: (12, 16)}     # tolerance name -> (levels, nodes)
 
 
@@ -330,16 +331,21 @@ def link_squared(p, q, DX, DY, levels, nodes, record=None):
         plan.append((s, w, wl * (math.pi * (DX + DY)) ** 2 / (2 * math.pi), w * delta, ls, (a, b)))
     forms.compile(); line_forms.compile()
     u, y, wt = square_rule(levels, nodes)
-    vals = forms.evaluate(u, y)
+    parts = np.zeros(len(plan))
+    step = max(1000, int(MAX_VALUES // max(1, forms.nslots)))    # the points of one pass (memory)
+    for lo in range(0, len(u), step):
+        vals = forms.evaluate(u[lo:lo + step], y[lo:lo + step])
+        for k, (s, w, wl, _, _, _) in enumerate(plan):
+            vu, kxy, cxu, cyu = vals[s[0]], vals[s[1]], vals[s[2]], vals[s[3]]
+            ok = vu > 1e-300
+            safe = np.where(ok, vu, 1.0)
+            f = np.where(ok, w * (np.log(safe) * kxy + cxu * cyu / safe) + wl / safe, 0.0)
+            parts[k] += f @ wt[lo:lo + step]
     xl, wlin = line_rule()
     lvals = line_forms.evaluate(0 * xl, xl) if line_forms.nslots else None
     total = nseg * G2
-    for s, w, wl, wd, ls, pair in plan:
-        vu, kxy, cxu, cyu = vals[s[0]], vals[s[1]], vals[s[2]], vals[s[3]]
-        ok = vu > 1e-300
-        safe = np.where(ok, vu, 1.0)
-        f = np.where(ok, w * (np.log(safe) * kxy + cxu * cyu / safe) + wl / safe, 0.0)
-        part = f @ wt
+    for k, (s, w, wl, wd, ls, pair) in enumerate(plan):
+        part = parts[k]
         if ls is not None:
             part += wd * (np.log(lvals[ls]) @ wlin)
         total += part
