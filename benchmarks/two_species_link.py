@@ -5,6 +5,8 @@ their change) holds against a third, finer rule where they agree least (the larg
 Run:  python benchmarks/two_species_link.py          (about twenty minutes of one core; figures in
                                                       two_species_link-last-run.txt)
       python benchmarks/two_species_link.py 7        (one |n|)
+      python benchmarks/two_species_link.py --tool 9 (the tool's path only: each rule once, not twice)
+      python benchmarks/two_species_link.py --far 4 5   (mass ratios 10^3 .. 10^5, three rules and a fourth)
 
 For every cluster {a-cycle of species i, b-cycle of species j}, a + b = |n|, at masses (m_i, m_j) = (2, 1):
 the seconds of each rule (`two_species_link.RULES`, the engine's tolerances 1e-6 and 1e-7), the value per unit of
@@ -40,7 +42,8 @@ def _rules(a: int, b: int, ratio: Fraction, rules) -> list[tuple[float, float]]:
 
 
 def main(argv) -> None:
-    sizes = [int(argv[0])] if argv else [7, 8]
+    tool_only = "--tool" in argv
+    sizes = [int(x) for x in argv if x != "--tool"] or [7, 8]
     print(f"# benchmarks/two_species_link.py {' '.join(argv)}, {time.strftime('%Y-%m-%d %H:%MZ', time.gmtime())}, "
           f"MAX_PARTICLES = {two_species_link.MAX_PARTICLES}", flush=True)
     rules = [rule for _, rule in two_species_link.RULES]
@@ -48,6 +51,9 @@ def main(argv) -> None:
         print(f"|n| = {n}, masses (m_i, m_j) = (2, 1)", flush=True)
         for a in range(n - 1, 0, -1):
             b = n - a
+            if tool_only:
+                _tool_path(a, b)
+                continue
             p, q, ratio = (a, b, Fraction(2)) if a >= b else (b, a, Fraction(1, 2))
             runs = _rules(p, q, ratio, rules)
             change = abs(runs[1][0] - runs[0][0])
@@ -71,5 +77,47 @@ def main(argv) -> None:
                   f"{'within' if third <= bound else 'OUTSIDE'} the bound", flush=True)
 
 
+def _tool_path(a: int, b: int) -> None:
+    """The tool's path alone (both rules once, inside `link_squared_coefficient`): value, bound, seconds."""
+    start = time.perf_counter()
+    value, bound = two_species_link.link_squared_coefficient(a, b, 2, 1)
+    tool = time.perf_counter() - start
+    print(f"  {{{a}-cycle of i, {b}-cycle of j}}: tool {value:.7f} +- {bound:.0e} in {tool:5.1f} s (both rules)",
+          flush=True)
+
+
+FOURTH_RULE = (14, 20)
+
+
+def far(sizes) -> None:
+    """Beyond MAX_RATIO: every cluster of each |n| at the mass ratios 10^3, 10^4, 10^5 (both orders of the species)
+    through the tool's path (three rules, a number only where they converge), and a fourth, finer rule to see whether
+    the bound of each accepted number holds."""
+    print(f"# benchmarks/two_species_link.py --far {' '.join(map(str, sizes))}, "
+          f"{time.strftime('%Y-%m-%d %H:%MZ', time.gmtime())}, FAR_RATIO = {two_species_link.FAR_RATIO}", flush=True)
+    for n in sizes:
+        for a in range(n - 1, 0, -1):
+            b = n - a
+            if a < b:
+                continue
+            for ratio in (Fraction(10 ** 3), Fraction(10 ** 4), Fraction(10 ** 5)):
+                for rr in ((ratio, 1 / ratio) if a != b else (ratio,)):
+                    start = time.perf_counter()
+                    value, bound = two_species_link._at_ratio(a, b, rr)
+                    tool = time.perf_counter() - start
+                    heavy = f"heavy {a}-cycle" if rr > 1 else f"heavy {b}-cycle"
+                    if value is None:
+                        print(f"  {{{a}, {b}}} {heavy}, ratio {rr}: no number ({bound}); {tool:.0f} s", flush=True)
+                        continue
+                    (fourth, seconds), = _rules(a, b, rr, [FOURTH_RULE])
+                    moved = abs(fourth - value)
+                    print(f"  {{{a}, {b}}} {heavy}, ratio {rr}: per m_j {value:.9f} +- {bound:.1e} in {tool:.0f} s; "
+                          f"fourth rule (14, 20) in {seconds:.0f} s moves it by {moved:.1e}: "
+                          f"{'within' if moved <= bound else 'OUTSIDE'} the bound", flush=True)
+
+
 if __name__ == "__main__":
-    main(sys.argv[1:])
+    if sys.argv[1:2] == ["--far"]:
+        far([int(x) for x in sys.argv[2:]] or [4, 5])
+    else:
+        main(sys.argv[1:])

@@ -121,7 +121,7 @@ def test_two_equal_cycles_count_twice_and_carry_their_bounds():
 def test_nothing_computed_where_the_table_does_not_reach():
     """b_3 is exact (no number), b_n beyond the on-demand reach (n > two_loop_demand.MAX_N; the gap says
     why); a mixture of unequal masses beyond the on-demand quadrature's
-    reach (|n| > two_species_link.MAX_PARTICLES, or a mass ratio beyond MAX_RATIO) and b_{2,1} (derived
+    reach (|n| > two_species_link.MAX_PARTICLES, or a mass ratio beyond FAR_RATIO) and b_{2,1} (derived
     exactly, section 4e): no estimate is offered there."""
     from clusterexp.routes import two_loop_demand, two_species_link
     assert numerical_coefficients([Species(E)], {}, (3,), "boson") == {}
@@ -132,7 +132,7 @@ def test_nothing_computed_where_the_table_does_not_reach():
     d = sympy.Symbol("d", real=True)
     far = two_species_link.MAX_PARTICLES + 1
     assert numerical_coefficients([Species(E, 1), Species(None, 2)], {(0, 1): d}, (far - 1, 1), "boson") == {}
-    heavy = two_species_link.MAX_RATIO + 1
+    heavy = two_species_link.FAR_RATIO + 1
     assert numerical_coefficients([Species(E, 1), Species(None, heavy)], {(0, 1): d}, (3, 1), "boson") == {}
     assert numerical_coefficients([Species(E, 1), Species(None, 2)], {(0, 1): d}, (2, 1), "boson") == {}
 

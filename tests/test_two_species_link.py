@@ -46,12 +46,14 @@ def _static_flux_square(a: int, about: str) -> float:
     return float(sympy.series(square, z, 0, a + 1).removeO().coeff(z, a))
 
 
-@pytest.mark.parametrize("a, about", [(3, ("boson", "boson")), (3, ("fermion", "boson")), (6, ("boson", "boson"))])
+@pytest.mark.parametrize("a, about", [(3, ("boson", "boson")), (3, ("fermion", "boson")), (6, ("boson", "boson")),
+                                      (8, ("boson", "boson"))])
 def test_an_infinitely_heavy_particle_is_a_static_flux(a, about):
     """Static limit m_j -> infinity of b_{a,1} (ii): the whole d^2 coefficient (chains plus the link
     squared at masses (1, M)) over M tends to the exact static-flux value of `_static_flux_square` (1/6
     + 1/8 about bosons for a = 3); the approach is 1/M, so the two masses M = 40, 80 are extrapolated
-    (Richardson). a = 6 is |n| = 7, beyond the first reach of the on-demand quadrature (|n| <= 6)."""
+    (Richardson). a = 6 is |n| = 7, beyond the first reach of the on-demand quadrature (|n| <= 6); a = 8 is
+    |n| = 9, offered since the twelfth session."""
     values = []
     for M in (40, 80):
         numbers = numerical_coefficients([Species(E1, 1), Species(None, M)], {(0, 1): D}, (a, 1), about)
@@ -101,12 +103,12 @@ def test_not_linear_in_the_masses():
 
 
 def test_beyond_the_reach_is_not_supported_yet():
-    """|n| > MAX_PARTICLES and mass ratios beyond MAX_RATIO raise NotSupportedYet (no silent guess);
+    """|n| > MAX_PARTICLES and mass ratios beyond FAR_RATIO raise NotSupportedYet (no silent guess);
     numerical_coefficients then offers no number (the coefficient keeps its name)."""
     with pytest.raises(NotSupportedYet, match="not supported yet|computed on demand up to"):
         two_species_link.link_squared_coefficient(two_species_link.MAX_PARTICLES, 1, 2, 1)
     with pytest.raises(NotSupportedYet, match="mass ratio"):
-        two_species_link.link_squared_coefficient(3, 1, two_species_link.MAX_RATIO + 1, 1)
+        two_species_link.link_squared_coefficient(3, 1, two_species_link.FAR_RATIO + 1, 1)
     with pytest.raises(NotSupportedYet, match="float"):
         two_species_link.link_squared_coefficient(3, 1, 1.5, 1)
 
@@ -130,11 +132,11 @@ def test_the_command_line_shows_the_number_beside_the_name():
 
 
 def test_the_series_says_why_a_coefficient_has_no_number():
-    """Beyond the quadrature's reach (mass ratio 1000) the d^2 coefficient keeps its name without a number,
+    """Beyond the quadrature's reach (mass ratio 10^6) the d^2 coefficient keeps its name without a number,
     and the series line says why, in the user's parameter (not the route's internal symbol)."""
     import subprocess
     import sys
-    text = ("dimension 2 parameter nu in [0, 1] species A bose species B mass 1000 bose mutual A B = nu "
+    text = ("dimension 2 parameter nu in [0, 1] species A bose species B mass 1000000 bose mutual A B = nu "
             "clusters pairphase derive cluster b[2,2] expand nu about 0 to 2")
     out = subprocess.run([sys.executable, "-m", "clusterexp", "run", "-e", text, "--no-files"],
                          capture_output=True, text=True, timeout=300)
@@ -158,3 +160,29 @@ def test_a_terminal_sees_which_rule_runs_and_the_value_is_cached(monkeypatch):
     shown = len(stream.getvalue())
     assert two_species_link.link_squared_coefficient(2, 1, 14, 2) == (2 * value, 2 * bound)
     assert len(stream.getvalue()) == shown and two_species_link._at_ratio.cache_info().hits == 1
+
+
+def test_far_mass_ratios_approach_the_static_flux():
+    """Beyond MAX_RATIO three rules run. For {2-cycle, 2-cycle} with one cycle 10^4 and 10^5 times heavier
+    the heavy cycle is one static flux 2d seen by the light 2-cycle: per unit of the heavy mass the
+    coefficient tends to 1/(2 b) = 1/4 (the exact static-flux law, route R3; section 4j), approached with a
+    logarithm, so the slope between the two ratios is 1/4 up to kappa ln 10 / 9e4 (|kappa| < 0.1 measured).
+    The heavy cycle as species j gives the same (the cluster is symmetric). The bounds (the floor, 2e-6 per
+    unit of the heavy mass) are small against the values."""
+    heavy = {m: two_species_link.link_squared_coefficient(2, 2, m, 1) for m in (10 ** 4, 10 ** 5)}
+    slope = (heavy[10 ** 5][0] - heavy[10 ** 4][0]) / (10 ** 5 - 10 ** 4)
+    assert abs(slope - 0.25) < 1e-5, slope
+    assert all(bound < 1e-5 * value for value, bound in heavy.values()), heavy
+    light, bound = two_species_link.link_squared_coefficient(2, 2, 1, 10 ** 5)    # the heavy one is now species j
+    assert abs(light - heavy[10 ** 5][0]) < bound + heavy[10 ** 5][1] < 2e-5 * light    # {2, 2} is symmetric
+
+
+def test_rules_that_do_not_converge_give_no_number():
+    """The judgement of successive rules (two_species_link._judged): a number with ten times the last change
+    as its bound where each change is at least ten times smaller than the one before, none where the finer
+    rules move as much as the coarser (the measured {4-cycle, 2-cycle} at the mass ratio 10^4 moved by 1.1,
+    then 2.2; section 4j), and small last changes under the floor always pass."""
+    assert two_species_link._judged([1.0, 1.1, 1.101], 1e-9) == (1.101, pytest.approx(0.01))
+    value, why = two_species_link._judged([2502.09, 2503.19, 2501.00], 1e-2)
+    assert value is None and "do not converge" in why
+    assert two_species_link._judged([1.0, 1.0 + 1e-7, 1.0 + 2e-7], 1e-5)[0] == 1.0 + 2e-7

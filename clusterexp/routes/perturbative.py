@@ -341,7 +341,8 @@ def taylor_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int, i
                               "and b with two particles of one species and one of another; computed as numbers "
                               "beside the name (unknown='name', numerical_coefficients): e^2 in b_4 .. b_8 of one "
                               "species (b_9, b_10 on demand), d_ij^2 in b of two species with |n| <= 8 at equal masses "
-                              "(9, 10 on demand) and |n| <= 8 at unequal masses (mass ratio <= 100)")
+                              "(9, 10 on demand) and |n| <= 10 at unequal masses (mass ratios up to 10^5 where the "
+                              "quadrature converges)")
     label = "_".join(map(str, n))
     return {m: (sympy.Symbol(f"t_b_{label}__{m}") if v is None else sympy.Rational(v.numerator, v.denominator))
             for m, v in out.items()}
@@ -423,8 +424,8 @@ def numerical_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int
     one species (n = 4..two_loop_table.SINGLE_CYCLES_CHECKED from the table, beyond up to
     two_loop_demand.MAX_N computed when asked: minutes, cached), and d_ij^2 in b_n of two species, |n| >= 4:
     equal masses from the table (|n| <= 8) or on demand (|n| <= two_loop_demand.MAX_N), unequal masses
-    computed by quadrature on demand (|n| <= two_species_link.MAX_PARTICLES, seconds to a minute and a
-    half each, cached); empty where none is. The values are floats with their quadrature error bounds: the tool keeps the coefficient's name and
+    computed by quadrature on demand (|n| <= two_species_link.MAX_PARTICLES, seconds to a few minutes
+    each, cached); empty where none is. The values are floats with their quadrature error bounds: the tool keeps the coefficient's name and
     shows the number beside it, never in place of it."""
     K = len(species)
     gas = _Gas(species, _points(about, K))

@@ -17,9 +17,13 @@ So there is no table: each mass ratio is computed when asked, at two quadrature 
 tolerances 1e-6 and 1e-7), with the error bound of benchmarks/two_loop_table.py (ten times the change
 between the rules, never below FLOOR per unit of the larger mass), cached for the process. The cost
 grows with the cluster (about 4 s for |n| = 4, up to 40 s for |n| = 6, up to about two minutes for
-|n| = 8 on this machine; benchmarks/two_species_link.py), so it is offered for |n| <= MAX_PARTICLES and
-mass ratios up to MAX_RATIO (beyond, the rules stop agreeing: at 1000 they differ by 5e-2); beyond
-either, NotSupportedYet. A terminal shows which rule is running.
+|n| = 8 on this machine; benchmarks/two_species_link.py), so it is offered for |n| <= MAX_PARTICLES.
+Mass ratios up to MAX_RATIO use the two rules. Beyond, up to FAR_RATIO, the heavy loop's short diffusion
+scale is not always resolved (section 4j: a heavy cycle of three or more strands against a light one of
+two or more converges slowly or not at all), so a third, finer rule runs as well and the number is given
+only where the three converge (each change at least CONVERGING times smaller than the one before), with
+ten times the last change as the bound; where they do not, NotSupportedYet says so and the coefficient
+keeps its name. A terminal shows which rule is running.
 """
 from __future__ import annotations
 
@@ -31,11 +35,14 @@ from ..progress import Progress
 from . import two_loop_fast
 from .angle_area import first_order_normalisation
 
-MAX_PARTICLES = 8
-MAX_RATIO = 100
+MAX_PARTICLES = 10
+MAX_RATIO = 100          # two rules up to here
+FAR_RATIO = 10 ** 5      # three rules, and a number only where they converge, up to here
 RULES = ((1e-6, (8, 8)), (1e-7, (10, 12)))      # tolerance name -> (levels, nodes) of two_loop_fast.RULES
+FAR_RULES = RULES + ((1e-8, (12, 16)),)
 FLOOR = 2e-6
 MARGIN = 10
+CONVERGING = 10
 
 
 def _fraction(value, name: str) -> Fraction:
@@ -65,29 +72,45 @@ def link_squared_coefficient(a: int, b: int, m_i, m_j) -> tuple[float, float]:
                               f"|n| = {a + b} > {MAX_PARTICLES} (computed on demand up to |n| = {MAX_PARTICLES}; "
                               "docs/perturbative.md, section 4j)")
     ratio = m_i / m_j
-    if max(ratio, 1 / ratio) > MAX_RATIO:
+    if max(ratio, 1 / ratio) > FAR_RATIO:
         raise NotSupportedYet(f"the link squared at the mass ratio {ratio} (the quadrature is offered for ratios "
-                              f"up to {MAX_RATIO}; docs/perturbative.md, section 4j)")
+                              f"up to {FAR_RATIO}; docs/perturbative.md, section 4j)")
     if a < b:                                     # the engine's clusters are {p-cycle, q-cycle}, p >= q
         a, b, ratio = b, a, 1 / ratio
         m_j = m_i
     value, bound = _at_ratio(a, b, ratio)
+    if value is None:
+        raise NotSupportedYet(f"the link squared of the {{{a}-cycle, {b}-cycle}} cluster at the mass ratio "
+                              f"{ratio}: {bound} (docs/perturbative.md, section 4j)")
     return float(m_j) * value, float(m_j) * bound
 
 
 @lru_cache(maxsize=None)
-def _at_ratio(a: int, b: int, ratio: Fraction) -> tuple[float, float]:
-    """(value, bound) per unit of m_j at m_i/m_j = ratio (a >= b), cached for the process; a terminal
-    shows which rule is running (`progress.Progress`, on stderr and only on a terminal)."""
+def _at_ratio(a: int, b: int, ratio: Fraction) -> tuple:
+    """(value, bound) per unit of m_j at m_i/m_j = ratio (a >= b), or (None, why) where the rules of a
+    far mass ratio do not converge; cached for the process (refusals too); a terminal shows which rule is
+    running (`progress.Progress`, on stderr and only on a terminal)."""
     norm = float(first_order_normalisation(a, b, ratio, 1, 1))
+    rules = RULES if max(ratio, 1 / ratio) <= MAX_RATIO else FAR_RULES
     report = Progress()
     values = []
     try:
-        for k, (_, rule) in enumerate(RULES, 1):
-            report.step(f"quadrature rule {k}/{len(RULES)}, link^2 of {{{a}-cycle, {b}-cycle}}, masses {ratio}:1")
+        for k, (_, rule) in enumerate(rules, 1):
+            report.step(f"quadrature rule {k}/{len(rules)}, link^2 of {{{a}-cycle, {b}-cycle}}, masses {ratio}:1")
             _, _, link2 = two_loop_fast.link_squared(a, b, float(1 / ratio), 1.0, *rule)
             values.append(norm * link2)
     finally:
         report.done()
-    bound = max(MARGIN * abs(values[1] - values[0]), FLOOR * float(max(ratio, 1)))
-    return float(values[1]), float(bound)
+    return _judged(values, FLOOR * float(max(ratio, 1)))
+
+
+def _judged(values: list, floor: float) -> tuple:
+    """(value of the finest rule, bound) from the values of successively finer rules: the bound is MARGIN
+    times the last change (never below floor); with three or more rules, each change must be at least
+    CONVERGING times smaller than the one before, else (None, why)."""
+    changes = [abs(y - x) for x, y in zip(values, values[1:])]
+    for before, after in zip(changes, changes[1:]):
+        if after > floor / MARGIN and CONVERGING * after > before:
+            return None, (f"the quadrature rules do not converge there (changes {before:.1e}, then {after:.1e}): "
+                          "the heavy loop's short diffusion scale is not resolved")
+    return float(values[-1]), float(max(MARGIN * changes[-1], floor))
