@@ -18,9 +18,9 @@ tolerances 1e-6 and 1e-7), with the error bound of benchmarks/two_loop_table.py 
 between the rules, never below FLOOR per unit of the larger mass), cached for the process. The cost
 grows with the cluster (about 4 s for |n| = 4, up to 40 s for |n| = 6, up to about two minutes for
 |n| = 8 on this machine; benchmarks/two_species_link.py), so it is offered for |n| <= MAX_PARTICLES.
-Mass ratios up to MAX_RATIO use the two rules. Beyond, up to FAR_RATIO, the heavy loop's short diffusion
-scale is not always resolved (section 4j: a heavy cycle of three or more strands against a light one of
-two or more converges slowly or not at all), so a third, finer rule runs as well and the number is given
+Mass ratios up to MAX_RATIO use the two rules. Beyond, up to FAR_RATIO, the rules do not always converge
+(section 4j: a heavy cycle of three or more strands against a light one of two or more converges slowly
+or not at all beyond about 1000; why is not diagnosed), so a third, finer rule runs as well and the number is given
 only where the three converge (each change at least CONVERGING times smaller than the one before), with
 ten times the last change as the bound; where they do not, NotSupportedYet says so and the coefficient
 keeps its name. A terminal shows which rule is running.
@@ -80,8 +80,8 @@ def link_squared_coefficient(a: int, b: int, m_i, m_j) -> tuple[float, float]:
         m_j = m_i
     value, bound = _at_ratio(a, b, ratio)
     if value is None:
-        raise NotSupportedYet(f"the link squared of the {{{a}-cycle, {b}-cycle}} cluster at the mass ratio "
-                              f"{ratio}: {bound} (docs/perturbative.md, section 4j)")
+        raise NotSupportedYet(f"the link squared of the {{{a}-cycle, {b}-cycle}} cluster at masses {ratio}:1 "
+                              f"(the {a}-cycle's to the {b}-cycle's): {bound} (docs/perturbative.md, section 4j)")
     return float(m_j) * value, float(m_j) * bound
 
 
@@ -111,6 +111,6 @@ def _judged(values: list, floor: float) -> tuple:
     changes = [abs(y - x) for x, y in zip(values, values[1:])]
     for before, after in zip(changes, changes[1:]):
         if after > floor / MARGIN and CONVERGING * after > before:
-            return None, (f"the quadrature rules do not converge there (changes {before:.1e}, then {after:.1e}): "
-                          "the heavy loop's short diffusion scale is not resolved")
+            return None, (f"the quadrature rules do not converge there (changes {before:.1e}, then {after:.1e}; "
+                          "the mass ratio is too far for them)")
     return float(values[-1]), float(max(MARGIN * changes[-1], floor))
