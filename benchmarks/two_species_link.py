@@ -133,8 +133,8 @@ def kappa() -> None:
             m = Fraction(10 ** e)
             p, q, ratio = (a, b, m) if a >= b else (b, a, 1 / m)
             (value, _), = _rules(p, q, ratio, [THIRD_RULE])
-            per_heavy = value if a >= b else value * float(m)        # in units of the light mass
-            excess.append(per_heavy - float(m) / (2 * b))
+            c = value if a >= b else value * float(m)        # c in units of the light mass
+            excess.append(c - float(m) / (2 * b))
         steps = [(x - y) / math.log(10) for x, y in zip(excess, excess[1:])]
         print(f"  heavy {a}-cycle, light {b}-cycle: c - m/(2b) = {', '.join(f'{x:.6f}' for x in excess)} at 10^3..10^5; "
               f"kappa per decade {', '.join(f'{x:.6f}' for x in steps)}; observed law {law} = {float(law):.6f}",
