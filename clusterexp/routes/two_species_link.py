@@ -61,7 +61,7 @@ def link_squared_coefficient(a: int, b: int, m_i, m_j) -> tuple[float, float]:
     """(value, error bound) of the d_ij^2 coefficient that the link of the cluster {a-cycle of species i,
     b-cycle of species j} adds to b_{a e_i + b e_j}, about bosons for both species (about fermions times
     (-1)^(a - 1) (-1)^(b - 1)), masses in units of m_ref; the chains of three loops are not included.
-    Numerical evaluation (two quadrature rules), cached per (a, b, m_i/m_j). At a + b = 3 this is section
+    Numerical evaluation (two quadrature rules, three beyond MAX_RATIO), cached per (a, b, m_i/m_j). At a + b = 3 this is section
     4e's exact (m_i/2 + m_j/4)/m_ref for {2-cycle, loop}."""
     for value, name in ((a, "a"), (b, "b")):
         if isinstance(value, bool) or not isinstance(value, int) or value < 1:
