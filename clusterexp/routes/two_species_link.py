@@ -23,7 +23,9 @@ Mass ratios up to MAX_RATIO use the two rules. Beyond, up to FAR_RATIO, the rule
 or not at all beyond about 1000; why is not diagnosed), so a third, finer rule runs as well and the number is given
 only where the three converge (each change at least CONVERGING times smaller than the one before), with
 ten times the last change as the bound; where they do not, NotSupportedYet says so and the coefficient
-keeps its name. A terminal shows which rule is running.
+keeps its name. A terminal shows which rule is running. The clusters with |n| <= 6 at ratios 1/100 .. 100
+come from `two_species_table` instead (the same engine's values at Chebyshev points, interpolated, with
+their own bound): no quadrature at all for a mixture's series through total order 6.
 """
 from __future__ import annotations
 
@@ -32,7 +34,7 @@ from functools import lru_cache
 
 from ..errors import NotSupportedYet
 from ..progress import Progress
-from . import two_loop_fast
+from . import two_loop_fast, two_species_table
 from .angle_area import first_order_normalisation
 
 MAX_PARTICLES = 10
@@ -43,6 +45,7 @@ FAR_RULES = RULES + ((1e-8, (12, 16)),)
 FLOOR = 2e-6
 MARGIN = 10
 CONVERGING = 10
+USE_TABLE = True         # |n| <= 6 at ratios 1/100 .. 100 from two_species_table (benchmarks turn it off)
 
 
 def _fraction(value, name: str) -> Fraction:
@@ -78,6 +81,9 @@ def link_squared_coefficient(a: int, b: int, m_i, m_j) -> tuple[float, float]:
     if a < b:                                     # the engine's clusters are {p-cycle, q-cycle}, p >= q
         a, b, ratio = b, a, 1 / ratio
         m_j = m_i
+    if USE_TABLE and two_species_table.covers(a, b, ratio):
+        value, bound = two_species_table.coefficient(a, b, ratio)
+        return float(m_j) * value, float(m_j) * bound
     value, bound = _at_ratio(a, b, ratio)
     if value is None:
         raise NotSupportedYet(f"the link squared of the {{{a}-cycle, {b}-cycle}} cluster at masses {ratio}:1 "
