@@ -231,7 +231,7 @@ def coefficient(p: int, q: int, ratio: Fraction) -> tuple[float, float]:
         raise ValueError(f"the table holds {sorted(NODES)} at ratios 1/100 .. 100, not {{{p}, {q}}} at {ratio}")
     r = float(ratio)
     x = math.log(r)
-    piece = min(max(sum(x > e for e in EDGES[1:-1]), 0), 3)
+    piece = sum(x > e for e in EDGES[1:-1])         # 0 .. 3
     values, node_bounds, tail = NODES[(p, q)][piece]
     lo, hi = EDGES[piece], EDGES[piece + 1]
     basis = _lagrange((2 * x - lo - hi) / (hi - lo))
