@@ -34,11 +34,13 @@ MAX_VALUES = 2.5e8          # slot values evaluated in one pass (8 bytes each): 
 RULES = {1e-6: (8, 8), 1e-7: (10, 12), 1e-8: (12, 16)}     # tolerance name -> (levels, nodes)
 
 
-def graded_unit(levels: int, nodes: int):
-    """Nodes and weights on [0, 1], composite Gauss-Legendre graded geometrically toward both ends."""
+def graded_unit(levels: int, nodes: int, middle: int = 0):
+    """Nodes and weights on [0, 1], composite Gauss-Legendre graded geometrically toward both ends, and with
+    middle > 0 toward 1/2 as well (`middle` more panels on each side of it, ratio SIGMA)."""
     g, w = np.polynomial.legendre.leggauss(nodes)
-    cuts = [0.5 * SIGMA ** k for k in range(levels, -1, -1)]
-    edges = [0.0] + cuts
+    cuts = [0.5 * SIGMA ** k for k in range(levels, 0, -1)]
+    top = cuts[-1] if cuts else 0.0
+    edges = [0.0] + cuts + [0.5 - (0.5 - top) * SIGMA ** k for k in range(1, middle + 1)] + [0.5]
     xs, ws = [], []
     for a, b in itertools.pairwise(edges):
         xs.append(a + (b - a) * (g + 1) / 2)
@@ -47,14 +49,17 @@ def graded_unit(levels: int, nodes: int):
     return np.concatenate([x, 1 - x[::-1]]), np.concatenate([wt, wt[::-1]])
 
 
-def square_rule(levels: int, nodes: int):
+def square_rule(levels: int, nodes: int, middle: int = 0):
     """(u, y, weight) on [0, 1]^2 (x = u + y) through (u, t): u = x - y graded toward -1, 0, 1, y over its
-    segment at fraction t graded toward 0, 1."""
+    segment at fraction t graded toward 0, 1 and, with middle > 0, toward t = 1/2 as well: there x + y = 1,
+    where two chords run over the same two points of one loop in opposite directions coincide in that
+    loop's part (docs/perturbative.md 4j: at far mass ratios the other, heavy loop's part is small there)."""
     r, wr = graded_unit(levels, nodes)
+    rt, wrt = graded_unit(levels, nodes, middle)
     xs, ys, ws = [], [], []
     for sign in (1, -1):
-        u, t = np.meshgrid(sign * r, r, indexing="ij")
-        wu, wt = np.meshgrid(wr, wr, indexing="ij")
+        u, t = np.meshgrid(sign * r, rt, indexing="ij")
+        wu, wt = np.meshgrid(wr, wrt, indexing="ij")
         span = 1 - np.abs(u)
         y = np.where(u >= 0, 0.0, -u) + t * span
         xs.append(u.ravel()); ys.append(y.ravel()); ws.append((wu * wt * span).ravel())
@@ -268,8 +273,9 @@ def orbits_of(p: int, q: int):
     return L, orbits
 
 
-def link_squared(p, q, DX, DY, levels, nodes, record=None):
-    """The link^2 part of `two_loop_quadrature._parts` (nsub = 1): (segments, G1, link2)."""
+def link_squared(p, q, DX, DY, levels, nodes, middle=0, record=None):
+    """The link^2 part of `two_loop_quadrature._parts` (nsub = 1): (segments, G1, link2); `middle` grades
+    the rule toward x + y = 1 as well (`square_rule`)."""
     L, orbits = orbits_of(p, q)
     v = DX * (p - 1) / p + DY * (q - 1) / q        # the gap's variance: gamma_T(1) per loop
     G1, G2 = chord_closed_single(1, DX + DY, v), chord_closed_single(2, DX + DY, v)
@@ -330,7 +336,7 @@ def link_squared(p, q, DX, DY, levels, nodes, record=None):
             line_forms.add(U, U, ls)
         plan.append((s, w, wl * (math.pi * (DX + DY)) ** 2 / (2 * math.pi), w * delta, ls, (a, b)))
     forms.compile(); line_forms.compile()
-    u, y, wt = square_rule(levels, nodes)
+    u, y, wt = square_rule(levels, nodes, middle)
     parts = np.zeros(len(plan))
     step = max(1000, int(MAX_VALUES // max(1, forms.nslots)))    # the points of one pass (memory)
     for lo in range(0, len(u), step):

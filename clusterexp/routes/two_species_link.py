@@ -18,12 +18,14 @@ tolerances 1e-6 and 1e-7), with the error bound of benchmarks/two_loop_table.py 
 between the rules, never below FLOOR per unit of the larger mass), cached for the process. The cost
 grows with the cluster (about 4 s for |n| = 4, up to 40 s for |n| = 6, up to about two minutes for
 |n| = 8 on this machine; benchmarks/two_species_link.py), so it is offered for |n| <= MAX_PARTICLES.
-Mass ratios up to MAX_RATIO use the two rules. Beyond, up to FAR_RATIO, the rules do not always converge
-(section 4j: a heavy cycle of three or more strands against a light one of two or more converges slowly
-or not at all beyond about 1000; why is not diagnosed), so a third, finer rule runs as well and the number is given
-only where the three converge (each change at least CONVERGING times smaller than the one before), with
-ten times the last change as the bound; where they do not, NotSupportedYet says so and the coefficient
-keeps its name. A terminal shows which rule is running. The clusters with |n| <= 6 at ratios 1/100 .. 100
+Mass ratios up to MAX_RATIO use the two rules. Beyond, up to FAR_RATIO, two chords of the light loop's
+link curves that run over the same two points in opposite directions coincide in the light loop's part on
+the line x + y = 1, and only the heavy loop's small diffusion keeps them apart there: a near-singularity of
+width about (m_light/m_heavy)^(1/2) in the middle of the rule's widest panels (section 4j). So FAR_RULES
+are three rules graded toward that line as well (`two_loop_fast.square_rule`, `middle`), and the number is
+given only where the three converge (each change at least CONVERGING times smaller than the one before),
+with ten times the last change as the bound; where they do not, NotSupportedYet says so and the
+coefficient keeps its name. A terminal shows which rule is running. The clusters with |n| <= 6 at ratios 1/100 .. 100
 come from `two_species_table` instead (the same engine's values at Chebyshev points, interpolated, with
 their own bound): no quadrature at all for a mixture's series through total order 6.
 """
@@ -40,8 +42,8 @@ from .angle_area import first_order_normalisation
 MAX_PARTICLES = 10
 MAX_RATIO = 100          # two rules up to here
 FAR_RATIO = 10 ** 5      # three rules, and a number only where they converge, up to here
-RULES = ((1e-6, (8, 8)), (1e-7, (10, 12)))      # tolerance name -> (levels, nodes) of two_loop_fast.RULES
-FAR_RULES = RULES + ((1e-8, (12, 16)),)
+RULES = ((8, 8), (10, 12))             # (levels, nodes): two_loop_fast.RULES at the tolerances 1e-6 and 1e-7
+FAR_RULES = ((8, 12, 8), (8, 16, 8), (8, 24, 8))    # (levels, nodes, middle): graded toward x + y = 1 too
 FLOOR = 2e-6
 MARGIN = 10
 CONVERGING = 10
@@ -64,8 +66,8 @@ def link_squared_coefficient(a: int, b: int, m_i, m_j) -> tuple[float, float]:
     """(value, error bound) of the d_ij^2 coefficient that the link of the cluster {a-cycle of species i,
     b-cycle of species j} adds to b_{a e_i + b e_j}, about bosons for both species (about fermions times
     (-1)^(a - 1) (-1)^(b - 1)), masses in units of m_ref; the chains of three loops are not included.
-    Numerical evaluation (two quadrature rules, three beyond MAX_RATIO), cached per (a, b, m_i/m_j). At a + b = 3 this is section
-    4e's exact (m_i/2 + m_j/4)/m_ref for {2-cycle, loop}."""
+    Numerical evaluation (two quadrature rules, the three FAR_RULES beyond MAX_RATIO), cached per
+    (a, b, m_i/m_j). At a + b = 3 this is section 4e's exact (m_i/2 + m_j/4)/m_ref for {2-cycle, loop}."""
     for value, name in ((a, "a"), (b, "b")):
         if isinstance(value, bool) or not isinstance(value, int) or value < 1:
             raise ValueError(f"{name} must be a positive integer cycle length, got {value!r}")
@@ -101,7 +103,7 @@ def _at_ratio(a: int, b: int, ratio: Fraction) -> tuple:
     report = Progress()
     values = []
     try:
-        for k, (_, rule) in enumerate(rules, 1):
+        for k, rule in enumerate(rules, 1):
             report.step(f"quadrature rule {k}/{len(rules)}, link^2 of {{{a}-cycle, {b}-cycle}}, masses {ratio}:1")
             _, _, link2 = two_loop_fast.link_squared(a, b, float(1 / ratio), 1.0, *rule)
             values.append(norm * link2)
