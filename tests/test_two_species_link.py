@@ -183,7 +183,7 @@ def test_a_heavy_three_cycle_against_a_light_two_cycle_now_converges(monkeypatch
     toward x + y = 1 (its changes stalled at 1e-2; section 4j). With that grading the rules converge, and per
     unit of the heavy mass the coefficient is the exact static-flux law 1/(2 b) = 1/4 (a static flux 3d seen
     by the light 2-cycle, route R3) up to the logarithmic approach, c - m/4 = 0.61, 0.74, 0.87 at 10^3 ..
-    10^5 (measured; here |c - m/4| < 1). Two of the far rules' kind, coarser than FAR_RULES, keep it to
+    10^5 (measured; here |c - m/4| < 1). Three rules of the far rules' kind, coarser than FAR_RULES, keep it to
     about forty seconds; benchmarks/two_species_link.py --far runs FAR_RULES themselves."""
     monkeypatch.setattr(two_species_link, "FAR_RULES", ((8, 8, 8), (8, 12, 8), (8, 16, 8)))
     two_species_link._at_ratio.cache_clear()
