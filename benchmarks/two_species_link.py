@@ -7,7 +7,8 @@ Run:  python benchmarks/two_species_link.py          (about twenty minutes of on
       python benchmarks/two_species_link.py 7        (one |n|)
       python benchmarks/two_species_link.py --tool 9 (the tool's path only: each rule once, not twice)
       python benchmarks/two_species_link.py --far 4 5   (mass ratios 10^3 .. 10^5, three rules and a fourth)
-      python benchmarks/two_species_link.py --kappa     (the heavy cycle's logarithm, docs/perturbative.md 4j)
+      python benchmarks/two_species_link.py --kappa [5,2 ...]   (the heavy cycle's logarithm, docs/perturbative.md 4j;
+                                                                 pairs heavy,light; default all)
 
 For every cluster {a-cycle of species i, b-cycle of species j}, a + b = |n|, at masses (m_i, m_j) = (2, 1):
 the seconds of each rule (`two_species_link.RULES`, the engine's tolerances 1e-6 and 1e-7), the value per unit of
@@ -118,34 +119,45 @@ def far(sizes) -> None:
                           f"{'within' if moved <= bound else 'OUTSIDE'} the bound", flush=True)
 
 
-KAPPA_CASES = ((2, 1), (3, 1), (4, 1), (5, 1), (2, 2), (2, 3), (2, 4), (2, 5))     # (heavy cycle, light cycle)
+KAPPA_CASES = ((2, 1), (3, 1), (4, 1), (5, 1), (2, 2), (2, 3), (2, 4), (2, 5),     # (heavy cycle, light cycle)
+               (3, 2), (4, 2), (3, 3), (5, 2), (4, 3), (6, 1))
+KAPPA_RULES = two_species_link.FAR_RULES[-2:]
 
 
-def kappa() -> None:
-    """The logarithm of the heavy-cycle approach c = m/(2 b) - kappa ln m + beta (heavy a-cycle, light b-cycle,
-    m the mass ratio; docs/perturbative.md 4j, observed): the third rule at m = 10^3, 10^4, 10^5, and kappa read
-    off each decade, beside the observed laws C(a, 3)/a^2 (b = 1) and -(b - 1)/(4 b^2) (a = 2)."""
+def kappa_law(a: int, b: int) -> Fraction:
+    """The observed law of docs/perturbative.md 4j (not derived): [C(a, 3) - (b - 1) C(a, 2)]/(a b)^2."""
     import math
-    print(f"# benchmarks/two_species_link.py --kappa, {time.strftime('%Y-%m-%d %H:%MZ', time.gmtime())}", flush=True)
-    for a, b in KAPPA_CASES:
-        law = Fraction(math.comb(a, 3), a * a) if b == 1 else Fraction(-(b - 1), 4 * b * b)
-        excess = []
+    return Fraction(math.comb(a, 3) - (b - 1) * math.comb(a, 2), (a * b) ** 2)
+
+
+def kappa(cases) -> None:
+    """The logarithm of the heavy-cycle approach c = m/(2 b) - kappa ln m + beta (heavy a-cycle, light b-cycle,
+    m the mass ratio; docs/perturbative.md 4j, observed): the two finest far rules at m = 10^3, 10^4, 10^5 (their
+    change beside each value), and kappa read off each decade, beside the observed law."""
+    import math
+    print(f"# benchmarks/two_species_link.py --kappa, {time.strftime('%Y-%m-%d %H:%MZ', time.gmtime())}, "
+          f"rules {KAPPA_RULES}", flush=True)
+    for a, b in cases:
+        law = kappa_law(a, b)
+        excess, notes = [], []
         for e in (3, 4, 5):
             m = Fraction(10 ** e)
             p, q, ratio = (a, b, m) if a >= b else (b, a, 1 / m)
-            (value, _), = _rules(p, q, ratio, [THIRD_RULE])
-            c = value if a >= b else value * float(m)        # c in units of the light mass
-            excess.append(c - float(m) / (2 * b))
+            start = time.perf_counter()
+            (coarse, _), (value, _) = _rules(p, q, ratio, KAPPA_RULES)
+            scale = 1.0 if a >= b else float(m)          # c in units of the light mass
+            excess.append(value * scale - float(m) / (2 * b))
+            notes.append(f"change {abs(value - coarse) * scale:.1e}, {time.perf_counter() - start:.0f} s")
         steps = [(x - y) / math.log(10) for x, y in zip(excess, excess[1:])]
-        print(f"  heavy {a}-cycle, light {b}-cycle: c - m/(2b) = {', '.join(f'{x:.6f}' for x in excess)} at 10^3..10^5; "
-              f"kappa per decade {', '.join(f'{x:.6f}' for x in steps)}; observed law {law} = {float(law):.6f}",
-              flush=True)
+        print(f"  heavy {a}-cycle, light {b}-cycle: c - m/(2b) = {', '.join(f'{x:.7f}' for x in excess)} at 10^3..10^5 "
+              f"({'; '.join(notes)}); kappa per decade {', '.join(f'{x:.6f}' for x in steps)}; "
+              f"observed law {law} = {float(law):.6f}", flush=True)
 
 
 if __name__ == "__main__":
     if sys.argv[1:2] == ["--far"]:
         far([int(x) for x in sys.argv[2:]] or [4, 5])
     elif sys.argv[1:2] == ["--kappa"]:
-        kappa()
+        kappa([tuple(int(v) for v in x.split(",")) for x in sys.argv[2:]] or KAPPA_CASES)
     else:
         main(sys.argv[1:])
