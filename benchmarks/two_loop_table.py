@@ -6,6 +6,7 @@ Run:  python benchmarks/two_loop_table.py 3,1 2,2 4,1 ...     (seconds to minute
       python benchmarks/two_loop_table.py --scalar 2,2         (the scalar engine beside the vectorised one)
       python benchmarks/two_loop_table.py --cycles 7 8         (the k-cycles alone, routes/cycle_alone.py)
       python benchmarks/two_loop_table.py --links 4 5 6 7 8    (the LINK entries at two fine rules)
+      python benchmarks/two_loop_table.py --angles 9 10        (the ANGLE entries: the angle-area parts alone)
 
 For each cluster {p-cycle, q-cycle} the vectorised engine (clusterexp/routes/two_loop_fast.py) runs with
 its rules for the tolerances 1e-6 and 1e-7; the lines printed for the table are the 1e-7 values of the
@@ -20,6 +21,7 @@ what `expand` and `claim` call) is timed on the same n.
 """
 from __future__ import annotations
 
+import math
 import sys
 import time
 from fractions import Fraction
@@ -106,7 +108,36 @@ def _links(ns) -> None:
               flush=True)
 
 
+def _angles(ns) -> None:
+    """The ANGLE entries (equal masses): the vectorised engine's angle-area parts alone
+    (`two_loop_fast.angle_area`, no link squared) at the rules of the tolerances 1e-6 and 1e-7, normalised
+    as `two_loop_quadrature.second_order` does, beside the derived values of docs/perturbative.md 4i."""
+    from clusterexp.routes.angle_area import one_species_units
+    from clusterexp.routes.two_loop_quadrature import chord_closed_single, first_order_share
+    print("# the angle-area parts of every cluster with p + q = n at the rules of the tolerances 1e-6, 1e-7")
+    for n in ns:
+        for p in range(n - 1, (n - 1) // 2, -1):
+            q = n - p
+            L, orbits = two_loop_fast.orbits_of(p, q)
+            norm = first_order_share(p, q) / (L * len(orbits) * chord_closed_single(1, 2.0, (p - 1) / p + (q - 1) / q))
+            runs = []
+            for tol in TOLERANCES:
+                start = time.perf_counter()
+                _, area = two_loop_fast.angle_area(p, q, *two_loop_fast.RULES[tol])
+                runs.append((-2 * math.pi * norm * area["X"], -2 * math.pi * norm * area["Y"], time.perf_counter() - start))
+            (p0, q0, t0), (p1, q1, t1) = runs
+            exact_p, exact_q = one_species_units(p, q)
+            bound_p = max(10 * abs(p1 - p0), FLOOR)
+            entry_q = f"({q1:.7f}, {max(10 * abs(q1 - q0), FLOOR):.0e})" if q > 1 else "(0.0, 0.0)"
+            print(f"{{{p},{q}}} ({t0:.0f} s, {t1:.0f} s): derived {exact_p}, {exact_q}; off by "
+                  f"{abs(p1 - float(exact_p)):.1e}, {abs(q1 - float(exact_q)):.1e}   "
+                  f"table entry ({p}, {q}): (({p1:.7f}, {bound_p:.0e}), {entry_q}),", flush=True)
+
+
 def main(argv) -> None:
+    if argv[:1] == ["--angles"]:
+        _angles([int(n) for n in argv[1:]])
+        return
     if argv[:1] == ["--cycles"]:
         _cycles([int(k) for k in argv[1:]])
         return

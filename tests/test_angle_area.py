@@ -42,9 +42,9 @@ def test_equal_masses_against_the_quadrature_table():
     """Independent route: `two_loop_table.ANGLE`, the quadrature engine of section 4f
     (`routes/two_loop_quadrature.py`: finite-difference Gaussian calculus on the link curves themselves,
     with the equal-time delta terms, at tolerance 1e-7), which this module does not use; every entry within
-    its error bound, every two-loop cluster n = 4..8 (fourteen), both cycles (n = 7, 8 from the vectorised
-    engine `routes/two_loop_fast.py`)."""
-    assert len(two_loop_table.ANGLE) == 14
+    its error bound, every two-loop cluster n = 4..10 (twenty-three), both cycles (n = 7 .. 10 from the
+    vectorised engine `routes/two_loop_fast.py`)."""
+    assert len(two_loop_table.ANGLE) == 23 and set(two_loop_table.ANGLE) == set(two_loop_table.LINK)
     for (p, q), ((angle_p, bound_p), (angle_q, bound_q)) in two_loop_table.ANGLE.items():
         exact_p, exact_q = one_species_units(p, q)
         assert abs(float(exact_p) - angle_p) <= bound_p, (p, q, exact_p, angle_p)

@@ -75,19 +75,30 @@ def test_the_two_species_bookkeeping_gives_the_derived_pair_with_one(monkeypatch
             assert abs(value - float(derived[monomial])) < 1e-12 and error == 0, (monomial, value)
 
 
-@pytest.mark.parametrize("n", [7, 8])
-def test_b7_b8_square_are_the_chains_plus_the_table(n):
-    """numerical_coefficients at n = 7, 8 (the vectorised engine's entries, section 4h): the exact chains
+# b_n^(2) about bosons as the on-demand route printed it before n = 9, 10 were tabled (benchmarks/
+# two_loop_demand-last-run.txt, 2026-12-04): the quadrature's own angle-area parts at the tolerance rules
+# (1e-6, 1e-7), each +- 1e-5
+ON_DEMAND = {9: 11.631019, 10: 12.769130}
+
+
+@pytest.mark.parametrize("n", [7, 8, 9, 10])
+def test_b7_to_b10_square_are_the_chains_plus_the_table(n):
+    """numerical_coefficients at n = 7 .. 10 (the vectorised engine's entries, section 4h): the exact chains
     plus every cluster {p, n - p} of the table, sign (-1)^n about fermions. Bookkeeping only (the code
     against its own table); the outside checks of the engine are tests/test_two_loop_fast.py (exact
-    {2-cycle, loop} values, equal and unequal masses, and the scalar engine's n = 4 entry) and of the
-    n-cycle alone its Fock-squared ring part (routes/cycle_alone.py, docs 4h)."""
+    {2-cycle, loop} values, equal and unequal masses, and the scalar engine's n = 4 entry), of the
+    n-cycle alone its Fock-squared ring part (routes/cycle_alone.py, docs 4h), and of the table the
+    observed sum rule (test_two_loop_fast.py). n = 9, 10 also against the on-demand route's earlier run
+    (another path through the same engine: its quadrature angle-area parts, coarser rules; reproducibility,
+    not an outside value)."""
     clusters = [(p, n - p) for p in range((n + 1) // 2, n)]
     beyond = sum(two_loop_table.BEYOND[c][0] for c in clusters)
     for about in ("boson", "fermion"):
         value, error = numerical_coefficients([Species(E)], {}, (n,), about)[E ** 2]
         assert abs(value - _b_square(n, about, beyond)) < 1e-12
         assert 0 < error < 1e-4
+        if about == "boson" and n in ON_DEMAND:
+            assert abs(value - ON_DEMAND[n]) < 1e-5 + error, (n, value)
 
 
 def test_expand_prints_numbers_through_the_eighth_virial_coefficient():

@@ -128,3 +128,17 @@ def test_clusters_of_one_n_sum_to_the_closure(n, clusters):
     error in any one of them shows here (numerical evaluation; {2, 1} is -3/2 exactly)."""
     total = sum(w * _ratio(p, q, (10, 12)) for p, q, w in clusters)
     assert abs(total + n * (n - 1) / 4) < 1e-9
+
+
+def test_the_table_obeys_the_sum_rule_at_every_n():
+    """The same observed sum rule (not derived) over the stored LINK entries of every n = 4 .. 10
+    (clusterexp/routes/two_loop_table.py; n = 9, 10 added after the rule was found at n = 4 .. 8): in the
+    table's units (link^2/(segments x G1) = -LINK p q / share, share 1/2 for p = q) it says that
+    sum_p p q LINK(p, n - p) = n(n - 1)/4. A mistyped or misnormalised entry, or a cluster missing from
+    an n, shows here."""
+    from clusterexp.routes.two_loop_table import LINK, SINGLE_CYCLES_CHECKED
+    for n in range(4, SINGLE_CYCLES_CHECKED + 1):
+        clusters = [(p, n - p) for p in range(n - 1, (n - 1) // 2, -1)]
+        assert all(c in LINK for c in clusters), n
+        total = sum(p * q * LINK[(p, q)][0] for p, q in clusters)
+        assert abs(total - n * (n - 1) / 4) < 1e-9, (n, total)

@@ -339,9 +339,9 @@ def taylor_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int, i
                               "second order: two-particle b, b_3 of one species, products |x||y| of two different "
                               "parameters, products d_ij d_ik of two mutual parameters, products e_i d_ij (any n), "
                               "and b with two particles of one species and one of another; computed as numbers "
-                              "beside the name (unknown='name', numerical_coefficients): e^2 in b_4 .. b_8 of one "
-                              "species (b_9, b_10 on demand), d_ij^2 in b of two species with |n| <= 8 at equal masses "
-                              "(9, 10 on demand) and |n| <= 10 at unequal masses (mass ratios up to 10^5 where the "
+                              "beside the name (unknown='name', numerical_coefficients): e^2 in b_4 .. b_10 of one "
+                              "species (b_11 on demand), d_ij^2 in b of two species with |n| <= 10 at equal masses "
+                              "(11 on demand) and |n| <= 10 at unequal masses (mass ratios up to 10^5 where the "
                               "quadrature converges)")
     label = "_".join(map(str, n))
     return {m: (sympy.Symbol(f"t_b_{label}__{m}") if v is None else sympy.Rational(v.numerator, v.denominator))
@@ -422,8 +422,8 @@ def numerical_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int
     """{monomial: (value, error bound)} for the second-order Taylor coefficients of b_n that are not
     derived in closed form but computed numerically: the square of the exchange parameter in b_n of
     one species (n = 4..two_loop_table.SINGLE_CYCLES_CHECKED from the table, beyond up to
-    two_loop_demand.MAX_N computed when asked: minutes, cached), and d_ij^2 in b_n of two species, |n| >= 4:
-    equal masses from the table (|n| <= 8) or on demand (|n| <= two_loop_demand.MAX_N), unequal masses
+    two_loop_demand.MAX_N computed when asked: about an hour, cached), and d_ij^2 in b_n of two species, |n| >= 4:
+    equal masses from the table (|n| <= 10) or on demand (|n| <= two_loop_demand.MAX_N), unequal masses
     computed by quadrature on demand (|n| <= two_species_link.MAX_PARTICLES, seconds to a few minutes
     each, cached); empty where none is. The values are floats with their quadrature error bounds: the tool keeps the coefficient's name and
     shows the number beside it, never in place of it."""

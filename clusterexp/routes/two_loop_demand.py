@@ -1,7 +1,7 @@
 """Computed on demand, not closed: the alpha^2 coefficient of b_n of one species beyond the table.
 
 `two_loop_table` holds the part of b_n^(2) beyond the chains of three loops for n <= its
-SINGLE_CYCLES_CHECKED (= 8), computed once by benchmarks/two_loop_table.py. For larger n the same
+SINGLE_CYCLES_CHECKED (= 10), computed once by benchmarks/two_loop_table.py. For larger n the same
 quantities are computed here when asked, with the same engines and the same error bound:
 
 * every two-loop cluster {p-cycle, q-cycle}, p + q = n: its part beyond the chains (link squared plus
@@ -13,8 +13,10 @@ quantities are computed here when asked, with the same engines and the same erro
 Each at the engines' rules for the tolerances 1e-6 and 1e-7; the bound is max(MARGIN x the change
 between the rules, FLOOR) per cluster, as for the table. Per unit mass about bosons (about fermions the
 clusters' sign is (-1)^n, the caller's). The cost grows fast with n (benchmarks/two_loop_demand.py: six
-minutes of one core for n = 9, twenty on a loaded machine for n = 10), so the result is cached for the
-process, each step shows on a terminal, and n > MAX_N is refused (NotSupportedYet, said beside the coefficient's name).
+minutes of one core for n = 9, twenty on a loaded machine for n = 10, when these were still computed here;
+n = 11, about three times n = 10, is projected to take an hour and has not been run), so the result is
+cached for the process, each step shows on a terminal, and n > MAX_N is refused (NotSupportedYet, said
+beside the coefficient's name).
 """
 from __future__ import annotations
 
@@ -28,7 +30,7 @@ from . import two_loop_fast
 from .cycle_alone import k_cycle_orders
 from .two_loop_table import FLOOR, SINGLE_CYCLES_CHECKED
 
-MAX_N = 10
+MAX_N = 11
 TOLERANCES = (1e-6, 1e-7)
 CYCLE_RULES = ((8, 8), (10, 12))           # (levels, nodes) of the k-cycle alone at the same two tolerances
 MARGIN = 10

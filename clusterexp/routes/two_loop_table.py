@@ -9,7 +9,7 @@ At second order in the exchange parameter, b_n of one species is (docs/perturbat
 * every two-loop cluster {p-cycle, q-cycle}, p + q = n: its H F ring part (in the chains) plus the part
   beyond, `BEYOND[(p, q)]` = the link squared `LINK` plus the self angles times the link's area `ANGLE`;
   the link squared has no closed form yet and is computed by quadrature (`routes.two_loop_quadrature`,
-  the scalar engine, n = 4..6 but {5, 1}; `routes.two_loop_fast`, the same integrals vectorised, n = 7, 8
+  the scalar engine, n = 4..6 but {5, 1}; `routes.two_loop_fast`, the same integrals vectorised, n = 7 .. 10
   and {5, 1}, which the scalar engine got wrong by 0.009: it kept the equal-time terms of three laps of
   the shorter loop only; LINK now all from the vectorised engine, `benchmarks/two_loop_table.py
   --links`); the angle-area parts are derived (-(p - 1)/2 times the cluster's |first order| for a
@@ -21,9 +21,9 @@ and the chord-closed pairs of section 4e) and is not here. Each entry is (value,
 bound on the quadrature error. LINK was regenerated (2026-12-04) with the vectorised engine after its
 mend for pieces with a common end point (docs/perturbative.md 4f): the value at the rule (14, 20), the
 bound max(10 |change from the rule (12, 16)|, 1e-11), and the changes were 5e-14 to 4e-13 (in units of
-the ratio r of 4f); the scalar engine, a separate code for the same integrals, agrees on n = 4..6 within
+the ratio r of 4f; n = 9, 10 added 2026-12-05 the same way, changes 1.8e-13 to 5.0e-13); the scalar engine, a separate code for the same integrals, agrees on n = 4..6 within
 4e-7, and the sampled loops of section 4g check the n = 4 entries (tests/test_two_loop_monte_carlo.py).
-ANGLE keeps the quadrature's angle-area numbers (the scalar engine, n = 7, 8 the vectorised one, at
+ANGLE keeps the quadrature's angle-area numbers (the scalar engine, n = 7 .. 10 the vectorised one, at
 tolerance 1e-7), which check the derived values of section 4i (tests/test_angle_area.py); BEYOND adds
 the derived values themselves (`angle_area.one_species_units`, exact) to LINK.
 """
@@ -31,7 +31,7 @@ from __future__ import annotations
 
 from .angle_area import one_species_units
 
-SINGLE_CYCLES_CHECKED = 8
+SINGLE_CYCLES_CHECKED = 10
 FLOOR = 2e-6          # the smallest error bound of a cluster computed on demand (two_loop_demand)
 
 # Per cluster {p-cycle, q-cycle} (p >= q), one species' units: LINK the link squared, ANGLE the angle-area
@@ -52,6 +52,15 @@ LINK: dict[tuple[int, int], tuple[float, float]] = {
     (6, 2): (0.3362899571588, 1e-11),
     (5, 3): (0.3272052801466, 1e-11),
     (4, 4): (0.1621800635896, 1e-11),
+    (8, 1): (0.3203478717380, 1e-11),
+    (7, 2): (0.3054795165257, 1e-11),
+    (6, 3): (0.2959853521088, 1e-11),
+    (5, 4): (0.2916383728389, 1e-11),
+    (9, 1): (0.2946168990338, 1e-11),
+    (8, 2): (0.2803466098323, 1e-11),
+    (7, 3): (0.2707976691416, 1e-11),
+    (6, 4): (0.2656553884619, 1e-11),
+    (5, 5): (0.1320168710528, 1e-11),
 }
 ANGLE: dict[tuple[int, int], tuple[tuple[float, float], tuple[float, float]]] = {
     (3, 1): ((-0.3333332, 2e-06), (0.0, 0.0)),
@@ -68,6 +77,15 @@ ANGLE: dict[tuple[int, int], tuple[tuple[float, float], tuple[float, float]]] = 
     (6, 2): ((-0.2083333, 2e-06), (-0.0416667, 2e-06)),
     (5, 3): ((-0.1333333, 2e-06), (-0.0666667, 2e-06)),
     (4, 4): ((-0.0468750, 2e-06), (-0.0468750, 2e-06)),
+    (8, 1): ((-0.4375000, 2e-06), (0.0, 0.0)),
+    (7, 2): ((-0.2142857, 2e-06), (-0.0357143, 2e-06)),
+    (6, 3): ((-0.1388889, 2e-06), (-0.0555556, 2e-06)),
+    (5, 4): ((-0.1000000, 2e-06), (-0.0750000, 2e-06)),
+    (9, 1): ((-0.4444444, 2e-06), (0.0, 0.0)),
+    (8, 2): ((-0.2187500, 2e-06), (-0.0312500, 2e-06)),
+    (7, 3): ((-0.1428571, 2e-06), (-0.0476190, 2e-06)),
+    (6, 4): ((-0.1041667, 2e-06), (-0.0625000, 2e-06)),
+    (5, 5): ((-0.0400000, 2e-06), (-0.0400000, 2e-06)),
 }
 # the part beyond the chains for one species: the link squared and both angle-area parts (derived, exact)
 BEYOND: dict[tuple[int, int], tuple[float, float]] = {
