@@ -21,7 +21,6 @@ what `expand` and `claim` call) is timed on the same n.
 """
 from __future__ import annotations
 
-import math
 import sys
 import time
 from fractions import Fraction
@@ -111,20 +110,23 @@ def _links(ns) -> None:
 def _angles(ns) -> None:
     """The ANGLE entries (equal masses): the vectorised engine's angle-area parts alone
     (`two_loop_fast.angle_area`, no link squared) at the rules of the tolerances 1e-6 and 1e-7, normalised
-    as `two_loop_quadrature.second_order` does, beside the derived values of docs/perturbative.md 4i."""
+    by `two_loop_quadrature.second_order` itself, beside the derived values of docs/perturbative.md 4i."""
     from clusterexp.routes.angle_area import one_species_units
-    from clusterexp.routes.two_loop_quadrature import chord_closed_single, first_order_share
+    from clusterexp.routes.two_loop_quadrature import chord_closed_single
+
+    def angle_only(p, q, tol):          # the tuple of two_loop_parts without its link squared (0 here)
+        L, orbits = two_loop_fast.orbits_of(p, q)
+        contact, area = two_loop_fast.angle_area(p, q, *two_loop_fast.RULES[tol])
+        return L * len(orbits), chord_closed_single(1, 2.0, (p - 1) / p + (q - 1) / q), 0.0, contact, area
     print("# the angle-area parts of every cluster with p + q = n at the rules of the tolerances 1e-6, 1e-7")
     for n in ns:
         for p in range(n - 1, (n - 1) // 2, -1):
             q = n - p
-            L, orbits = two_loop_fast.orbits_of(p, q)
-            norm = first_order_share(p, q) / (L * len(orbits) * chord_closed_single(1, 2.0, (p - 1) / p + (q - 1) / q))
             runs = []
             for tol in TOLERANCES:
                 start = time.perf_counter()
-                _, area = two_loop_fast.angle_area(p, q, *two_loop_fast.RULES[tol])
-                runs.append((-2 * math.pi * norm * area["X"], -2 * math.pi * norm * area["Y"], time.perf_counter() - start))
+                parts = two_loop_quadrature.second_order(p, q, tol, parts=angle_only)
+                runs.append((parts["angle_p"], parts["angle_q"], time.perf_counter() - start))
             (p0, q0, t0), (p1, q1, t1) = runs
             exact_p, exact_q = one_species_units(p, q)
             bound_p = max(10 * abs(p1 - p0), FLOOR)
