@@ -1,8 +1,8 @@
 """b_n of one species at second order beyond the table, computed on demand (clusterexp/routes/two_loop_demand.py):
 what each step costs as n grows, and the coefficient it gives.
 
-Run:  python benchmarks/two_loop_demand.py 11         (projected about an hour of one core, not yet run; n = 9, 10
-                                                       took six and twenty minutes: two_loop_demand-last-run.txt)
+Run:  python benchmarks/two_loop_demand.py 11         (about twenty minutes of one core; n = 9, 10 took six and
+                                                       twenty: figures in two_loop_demand-last-run.txt)
 
 For n the steps are the clusters {p-cycle, q-cycle}, p + q = n, at the rules of the tolerances 1e-6 and 1e-7
 (two_loop_fast.second_order), then the n-cycle alone at two rules (cycle_alone.k_cycle_orders); each is

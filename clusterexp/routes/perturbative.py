@@ -422,7 +422,7 @@ def numerical_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int
     """{monomial: (value, error bound)} for the second-order Taylor coefficients of b_n that are not
     derived in closed form but computed numerically: the square of the exchange parameter in b_n of
     one species (n = 4..two_loop_table.SINGLE_CYCLES_CHECKED from the table, beyond up to
-    two_loop_demand.MAX_N computed when asked: about an hour, cached), and d_ij^2 in b_n of two species, |n| >= 4:
+    two_loop_demand.MAX_N computed when asked: about twenty minutes, cached), and d_ij^2 in b_n of two species, |n| >= 4:
     equal masses from the table (|n| <= 10) or on demand (|n| <= two_loop_demand.MAX_N), unequal masses
     computed by quadrature on demand (|n| <= two_species_link.MAX_PARTICLES, seconds to a few minutes
     each, cached); empty where none is. The values are floats with their quadrature error bounds: the tool keeps the coefficient's name and

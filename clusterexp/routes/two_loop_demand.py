@@ -14,7 +14,7 @@ Each at the engines' rules for the tolerances 1e-6 and 1e-7; the bound is max(MA
 between the rules, FLOOR) per cluster, as for the table. Per unit mass about bosons (about fermions the
 clusters' sign is (-1)^n, the caller's). The cost grows fast with n (benchmarks/two_loop_demand.py: six
 minutes of one core for n = 9, twenty on a loaded machine for n = 10, when these were still computed here;
-n = 11, about three times n = 10, is projected to take an hour and has not been run), so the result is
+n = 11 twenty-one minutes with the other core running the test suite), so the result is
 cached for the process, each step shows on a terminal, and n > MAX_N is refused (NotSupportedYet, said
 beside the coefficient's name).
 """
