@@ -19,6 +19,7 @@ nodes 16) to see the finer rule's own error against the bound.
 """
 from __future__ import annotations
 
+import math
 import sys
 import time
 from fractions import Fraction
@@ -126,7 +127,6 @@ KAPPA_RULES = two_species_link.FAR_RULES[-2:]
 
 def kappa_law(a: int, b: int) -> Fraction:
     """The observed law of docs/perturbative.md 4j (not derived): [C(a, 3) - (b - 1) C(a, 2)]/(a b)^2."""
-    import math
     return Fraction(math.comb(a, 3) - (b - 1) * math.comb(a, 2), (a * b) ** 2)
 
 
@@ -134,7 +134,6 @@ def kappa(cases) -> None:
     """The logarithm of the heavy-cycle approach c = m/(2 b) - kappa ln m + beta (heavy a-cycle, light b-cycle,
     m the mass ratio; docs/perturbative.md 4j, observed): the two finest far rules at m = 10^3, 10^4, 10^5 (their
     change beside each value), and kappa read off each decade, beside the observed law."""
-    import math
     print(f"# benchmarks/two_species_link.py --kappa, {time.strftime('%Y-%m-%d %H:%MZ', time.gmtime())}, "
           f"rules {KAPPA_RULES}", flush=True)
     for a, b in cases:
