@@ -1,0 +1,88 @@
+"""The link squared of the two-loop clusters in closed form (clusterexp/routes/link_integrals.py; docs/
+perturbative.md section 4k), against values that the closed form does not use: section 4e's exact
+{2-cycle, loop} law at any masses, the two-dimensional quadrature engine of section 4f (a different
+decomposition: chord-closed pairs, no contact model) at equal and unequal masses, and the static-flux
+law of a heavy cycle. Only r(1, 1) = -1 (the exact b_{1,1}) enters the closed form."""
+from fractions import Fraction
+
+import mpmath
+import pytest
+
+from clusterexp.routes import link_integrals, two_loop_table
+
+
+@pytest.mark.parametrize("m_i, m_j", [(1, 1), (2, 1), (1, 2), (3, 1), (1, 3), (1, 40), (40, 1), (1000, 1),
+                                      (1, 1000), (Fraction(7, 3), Fraction(2, 5))])
+def test_the_two_cycle_with_a_loop_is_the_chord_closed_law_at_every_mass(m_i, m_j):
+    """{2-cycle of mass m_i, loop of mass m_j}: section 4e derived m_i/2 + m_j/4 by chord-closed pairs
+    (checked there by both static limits: the flux law of Comtet, Georgelin, Ouvry, J. Phys. A 22 (1989)
+    3917; at equal masses 3/4, as Sen's symmetry gives, Phys. Rev. Lett. 68 (1992) 2977). The closed form
+    fixes its one constant at {1, 1}, so this is a check at every mass ratio, to 25 digits."""
+    scale = -(mpmath.mpf(Fraction(m_i).numerator) / Fraction(m_i).denominator
+              + mpmath.mpf(Fraction(m_j).numerator) / Fraction(m_j).denominator) / 4
+    exact = Fraction(m_i) / 2 + Fraction(m_j) / 4
+    value = scale * link_integrals.ratio(2, 1, m_i, m_j)
+    assert abs(value - mpmath.mpf(exact.numerator) / exact.denominator) < mpmath.mpf(10) ** -25 * value
+    float_value, bound = link_integrals.coefficient(2, 1, m_i, m_j)
+    assert abs(float_value - float(exact)) <= bound < 1e-12 * float(exact)
+
+
+def test_every_cluster_of_the_quadrature_table_through_n_10():
+    """The 23 entries of two_loop_table.LINK (n = 4..10), computed by the two-dimensional quadrature
+    engine of section 4f (rules (12, 16) and (14, 20), bounds 1e-11): the table holds |r|/(p q), halved
+    for p = q. The closed form agrees with every entry within its bound."""
+    assert len(two_loop_table.LINK) == 23
+    for (p, q), (value, bound) in two_loop_table.LINK.items():
+        closed = -link_integrals.ratio(p, q) / (p * q * (2 if p == q else 1))
+        assert abs(closed - value) < bound, (p, q, closed, value)
+
+
+@pytest.mark.parametrize("p, q, m_i, m_j, engine", [(2, 4, 1, 4, -3.86764434413), (2, 5, 1, 5, -4.57855480240)])
+def test_unequal_masses_against_the_quadrature_engine(p, q, m_i, m_j, engine):
+    """r at unequal masses from the engine of 4f (docs 4f: 'r(2, 4; 1, 4) = -3.86764434413', at the
+    engine's rule (10, 12), good to 1e-10 there), an independent route."""
+    assert abs(link_integrals.ratio(p, q, m_i, m_j) - engine) < 3e-10
+
+
+def test_the_two_coincidences_the_engine_showed_are_exact():
+    """Docs 4f found, with the engine to 4e-10 and 8e-13: r(3, 2; 2, 1) - r(2, 3; 2, 1) = -1/3 and
+    r(2, 3; 1, 3) = r(2, 2) - 3/4. In the closed form both hold to 30 digits."""
+    tiny = mpmath.mpf(10) ** -30
+    assert abs(link_integrals.ratio(3, 2, 2, 1) - link_integrals.ratio(2, 3, 2, 1) + mpmath.mpf(1) / 3) < tiny
+    assert abs(link_integrals.ratio(2, 3, 1, 3) - link_integrals.ratio(2, 2) + mpmath.mpf(3) / 4) < tiny
+    # and the one the engine showed is not a coincidence stays false:
+    assert abs(link_integrals.ratio(3, 1, 2, 1) - link_integrals.ratio(1, 3, 2, 1) + mpmath.mpf(2) / 3) > 0.01
+
+
+@pytest.mark.parametrize("n", [11, 12, 16, 24])
+def test_the_sum_rule_beyond_the_engine(n):
+    """The sum rule observed on the engine for n = 4..10 (docs 4f: the mean of r over the transpositions
+    of an n-cycle is -n/2) at n the engine never reached; a failure would mean the closed form and the
+    engine part ways beyond the table."""
+    total = sum(link_integrals.ratio(p, n - p) / (2 if 2 * p == n else 1) for p in range((n + 1) // 2, n))
+    assert abs(total + mpmath.mpf(n * (n - 1)) / 4) < mpmath.mpf(10) ** -30
+
+
+@pytest.mark.parametrize("a, b", [(3, 1), (2, 2), (3, 2), (4, 3), (6, 1)])
+def test_a_heavy_cycle_is_a_static_flux_with_the_observed_logarithm(a, b):
+    """A heavy a-cycle is one static flux a d seen by the b-cycle: the coefficient per unit m_j tends to
+    m_i/(2 b) (the flux law of Comtet, Georgelin, Ouvry 1989, route R3), approached as -kappa ln(m_i/m_j)
+    with kappa = [C(a, 3) - (b - 1) C(a, 2)]/(a b)^2 (observed with the engine at ratios 10^3 .. 10^5,
+    docs 4j). At 10^10 .. 10^12 the closed form gives that kappa to 1e-9."""
+    law = mpmath.mpf(mpmath.binomial(a, 3) - (b - 1) * mpmath.binomial(a, 2)) / (a * b) ** 2
+
+    def beyond(m):
+        return -(m + 1) * link_integrals.ratio(a, b, m, 1) / (2 * a * b) - mpmath.mpf(m) / (2 * b)
+    with mpmath.workdps(link_integrals.DIGITS):
+        kappa = -(beyond(10 ** 12) - beyond(10 ** 10)) / mpmath.log(100)
+    assert abs(kappa - law) < 1e-9
+    with mpmath.workdps(link_integrals.DIGITS):
+        assert abs(beyond(10 ** 12)) < 1 + 30 * abs(law)      # the static law leads: m_i/(2 b) = 5e11
+
+
+@pytest.mark.parametrize("bad", [0, -1, 1.5, True])
+def test_bad_cycle_lengths_and_masses_are_refused(bad):
+    with pytest.raises(ValueError):
+        link_integrals.ratio(bad, 1)
+    with pytest.raises(ValueError):
+        link_integrals.coefficient(2, 1, bad, 1)
