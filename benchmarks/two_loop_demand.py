@@ -1,15 +1,15 @@
 """b_n of one species at second order beyond the table, computed on demand (clusterexp/routes/two_loop_demand.py):
 what each step costs as n grows, and the coefficient it gives.
 
-Run:  python benchmarks/two_loop_demand.py 11         (about twenty minutes of one core; n = 9, 10 took six and
-                                                       twenty: figures in two_loop_demand-last-run.txt)
+Run:  python benchmarks/two_loop_demand.py 12         (about two minutes of one core; figures in
+                                                       two_loop_demand-last-run.txt)
 
-For n the steps are the clusters {p-cycle, q-cycle}, p + q = n, at the rules of the tolerances 1e-6 and 1e-7
-(two_loop_fast.second_order), then the n-cycle alone at two rules (cycle_alone.k_cycle_orders); each is
-timed (two_loop_demand.STEPS). Printed: the part beyond the chains with its bound, the whole alpha^2 coefficient of b_n about bosons
+For n the steps are the clusters {p-cycle, q-cycle}, p + q = n, in closed form (link_integrals, docs 4k; until
+the sixteenth session by quadrature at two rules, which took six to twenty-one minutes for n = 9 .. 11), then
+the n-cycle alone at two rules (cycle_alone.k_cycle_orders); each is timed (two_loop_demand.STEPS). Printed:
+the part beyond the chains with its bound, the whole alpha^2 coefficient of b_n about bosons
 (`perturbative.numerical_coefficients`: the chains of three loops, exact, plus that part), and, side by side,
-the same call again (the process cache: what every later `expand` or `claim` of the run pays; for n <= 10,
-since the fifteenth session, the table's lookup instead).
+the same call again (the process cache: what every later `expand` or `claim` of the run pays).
 """
 from __future__ import annotations
 

@@ -413,6 +413,7 @@ def derived_taylor(system, piece: sympy.Symbol, used) -> tuple[dict, int, frozen
         return tube_taylor(system, tube, deviation, mass, order, shifts, cycle)
     occupied = [i for i, n in enumerate(index) if n]
     deviations = {}   # perturbative symbol -> (deviation in the shifts, sign of |deviation| on the side)
+    words = {}        # perturbative symbol -> the user's expression it stands for (in messages)
     species, about = [], []
     names = system.species_names
     for i, s in enumerate(system.species):
@@ -431,6 +432,7 @@ def derived_taylor(system, piece: sympy.Symbol, used) -> tuple[dict, int, frozen
         symbol = sympy.Symbol(f"e_{i}", real=True) if dev else None
         if dev:
             deviations[symbol] = dev
+            words[symbol] = s.exchange - at
         species.append(Perturbed(symbol, m))
     mutual = {}
     for i, j in itertools.combinations(occupied, 2):
@@ -440,12 +442,13 @@ def derived_taylor(system, piece: sympy.Symbol, used) -> tuple[dict, int, frozen
         if found[1]:
             mutual[(i, j)] = sympy.Symbol(f"d_{i}_{j}", real=True)
             deviations[mutual[(i, j)]] = found[1]
+            words[mutual[(i, j)]] = system.mutual(names[i], names[j])
     terms = taylor_coefficients(species, mutual, index, tuple(about), order, unknown="name")
     gaps: list[str] = []   # why a coefficient the route computes has no number here (a reach of the quadrature)
     numbers = numerical_coefficients(species, mutual, index, tuple(about), gaps) if order >= 2 else {}
     found = in_shifts(terms, numbers, deviations, shifts)
-    for (i, j), symbol in mutual.items():   # the gaps in the user's words
-        gaps = [g.replace(f"{symbol}^2", f"({system.mutual(names[i], names[j])})^2") for g in gaps]
+    for symbol, expr in words.items():   # the gaps in the user's words
+        gaps = [g.replace(f"{symbol}^2", f"({expr})^2") for g in gaps]
     return None if found is None else (found[0], order, found[1], found[2], gaps)
 
 

@@ -130,22 +130,25 @@ def test_two_equal_cycles_count_twice_and_carry_their_bounds():
 
 
 def test_nothing_computed_where_the_table_does_not_reach():
-    """b_3 is exact (no number), b_n beyond the on-demand reach (n > two_loop_demand.MAX_N; the gap says
-    why); a mixture of unequal masses beyond the on-demand quadrature's
-    reach (|n| > two_species_link.MAX_PARTICLES, or a mass ratio beyond FAR_RATIO) and b_{2,1} (derived
-    exactly, section 4e): no estimate is offered there."""
-    from clusterexp.routes import two_loop_demand, two_species_link
+    """b_3 is exact (no number), b_n of one species beyond the on-demand reach (n > two_loop_demand.MAX_N;
+    the gap says why) and b_{2,1} (derived exactly, section 4e): no estimate is offered there. A mixture's
+    d^2 has a number at every |n| and mass ratio (the link squared in closed form, section 4k): the chains
+    plus `link_integrals.coefficient` (bookkeeping; the closed form's outside checks are in
+    tests/test_link_integrals.py)."""
+    from clusterexp.routes import link_integrals, two_loop_demand
     assert numerical_coefficients([Species(E)], {}, (3,), "boson") == {}
     gaps = []
     beyond = two_loop_demand.MAX_N + 1
     assert numerical_coefficients([Species(E)], {}, (beyond,), "boson", gaps) == {}
     assert len(gaps) == 1 and f"up to n = {two_loop_demand.MAX_N}" in gaps[0], gaps
     d = sympy.Symbol("d", real=True)
-    far = two_species_link.MAX_PARTICLES + 1
-    assert numerical_coefficients([Species(E, 1), Species(None, 2)], {(0, 1): d}, (far - 1, 1), "boson") == {}
-    heavy = two_species_link.FAR_RATIO + 1
-    assert numerical_coefficients([Species(E, 1), Species(None, heavy)], {(0, 1): d}, (3, 1), "boson") == {}
     assert numerical_coefficients([Species(E, 1), Species(None, 2)], {(0, 1): d}, (2, 1), "boson") == {}
+    for masses, n in (((1, 2), (beyond - 1, 1)), ((1, 10 ** 6 + 1), (3, 1)), ((1, 1), (beyond, 3))):
+        species = [Species(E, masses[0]), Species(None, masses[1])]
+        value, bound = numerical_coefficients(species, {(0, 1): d}, n, "boson")[d ** 2]
+        chains = chain_part(species, {(0, 1): d}, n, "boson")[d ** 2]
+        link, link_bound = link_integrals.coefficient(*n, *masses)
+        assert abs(value - float(chains) - link) <= 1e-12 * abs(value) and bound == link_bound, (masses, n)
 
 
 def test_the_engine_reproduces_the_table_entry_of_two_two_cycles():
@@ -283,11 +286,11 @@ def test_a_mass_that_moves_with_the_variable_gets_no_number():
 
 
 def test_on_demand_computation_reproduces_the_table_at_n_4():
-    """The on-demand path for b_n beyond the table (routes/two_loop_demand.py: every cluster {p, q} at
-    two rules, plus the n-cycle alone beyond its ring part), run at n = 4 where the table has the answer
-    (code against the code that wrote the table, the same engine: a check of the plumbing and the bound,
-    not an outside value; the outside check of n = 4 is the sampled-loop route of section 4g). Also the
-    ring part against its series: (1/2)[z^n] z ln^2(1 - z)/(1 - z), 203/90 and 469/180 for n = 7, 8."""
+    """The on-demand path for b_n beyond the table (routes/two_loop_demand.py: the clusters {p, q} in closed
+    form with the derived angle-area parts, plus the n-cycle alone beyond its ring part by quadrature), run
+    at n = 4 where the table has the quadrature engine's answer (two routes for the link squared: section
+    4k against 4f). Also the ring part against its series: (1/2)[z^n] z ln^2(1 - z)/(1 - z), 203/90 and
+    469/180 for n = 7, 8."""
     from fractions import Fraction
     from clusterexp.routes import two_loop_demand
     value, bound = two_loop_demand._computed(4)
@@ -300,10 +303,21 @@ def test_on_demand_computation_reproduces_the_table_at_n_4():
         assert two_loop_demand.ring_part(n) == Fraction(int(series.p), int(series.q))
     with pytest.raises(ValueError):
         two_loop_demand.beyond_on_demand(4)
-    link, link_bound = two_loop_demand._link(3, 1)        # the two-species path: the link squared alone
-    assert abs(link - two_loop_table.LINK[(3, 1)][0]) <= link_bound + two_loop_table.LINK[(3, 1)][1]
-    d = sympy.Symbol("d", real=True)
-    gaps = []
-    far = two_loop_demand.MAX_N + 1
-    assert numerical_coefficients([Species(None), Species(None)], {(0, 1): d}, (far - 1, 1), "boson", gaps) == {}
-    assert len(gaps) == 1 and f"up to |n| = {two_loop_demand.MAX_N}" in gaps[0], gaps
+
+
+def test_b11_clusters_in_closed_form_against_the_quadrature_engine(monkeypatch):
+    """The five two-loop clusters of b_11 (their part beyond the chains) by the closed form with the derived
+    angle-area parts, against the quadrature engine's run of the fifteenth session (benchmarks/
+    two_loop_demand-last-run.txt, the rule 1e-7: 0.0918672732 + 0.0837272508 + 0.0624890315 + 0.0094084322
+    - 0.1769469754, each good to about 1e-8). The 11-cycle alone is set to its ring part here (it is
+    the quadrature of routes/cycle_alone.py, a minute, and equals its ring part to 1e-10: docs 4h)."""
+    from clusterexp.routes import two_loop_demand
+    monkeypatch.setattr(two_loop_demand, "k_cycle_orders", lambda n, *rule: (0.0, float(two_loop_demand.ring_part(n))))
+    two_loop_demand._computed.cache_clear()
+    try:
+        value, bound = two_loop_demand._computed(11)
+    finally:
+        two_loop_demand._computed.cache_clear()
+    engine = 0.0918672732 + 0.0837272508 + 0.0624890315 + 0.0094084322 - 0.1769469754
+    assert abs(value - engine) < 5e-8, value
+    assert two_loop_demand.FLOOR <= bound < 1.01 * two_loop_demand.FLOOR

@@ -86,3 +86,35 @@ def test_bad_cycle_lengths_and_masses_are_refused(bad):
         link_integrals.ratio(bad, 1)
     with pytest.raises(ValueError):
         link_integrals.coefficient(2, 1, bad, 1)
+
+
+def test_the_exact_expressions_of_the_first_clusters():
+    """The closed form as sympy expressions (docs 4k): {2, 1} at masses (3, 1) is the rational -7/4 of
+    section 4e exactly; r(3, 1) = -2 + (sqrt 3/12) ln(2 + sqrt 3) and r(2, 2) = -2 - (sqrt 3/6) ln(2 + sqrt 3)
+    (to 50 digits against the expressions), so the sum rule at n = 4, r(3, 1) + r(2, 2)/2 = -3, holds
+    exactly; and the numbers agree with `ratio`."""
+    import sympy
+    assert link_integrals.exact_ratio(2, 1, 3, 1) == sympy.Rational(-7, 4)
+    log_term = sympy.sqrt(3) * sympy.log(2 + sympy.sqrt(3))
+    r31, r22 = link_integrals.exact_ratio(3, 1), link_integrals.exact_ratio(2, 2)
+    assert abs(sympy.N(r31 - (-2 + log_term / 12), 60)) < 1e-50
+    assert abs(sympy.N(r22 - (-2 - log_term / 6), 60)) < 1e-50
+    assert abs(sympy.N(r31 + r22 / 2 + 3, 60)) < 1e-50
+    number = sympy.Float(mpmath.nstr(link_integrals.ratio(3, 2, 2, 1), 40), 45)
+    assert abs(sympy.N(link_integrals.exact_ratio(3, 2, 2, 1), 45) - number) < 1e-30
+
+
+def test_b4_in_closed_form_against_the_quadrature_table():
+    """b_4^(2) of one species about bosons: the chains 11/12, the 4-cycle alone's ring part 1 (its
+    quadrature equals 1 to 1e-13, docs 4h; not derived), the derived angle-area parts and the link squared of
+    {3, 1} and {2, 2}: 35/8 - (sqrt 3/144) ln(2 + sqrt 3) (docs 4k), against the quadrature table's
+    4.35915945841 +- 2e-11 (the engine of 4f, another route for the link squared); a_4^(2) = 1/16 +
+    (sqrt 3/48) ln(2 + sqrt 3) against 0.11002162477 +- 6e-11 (docs 4h)."""
+    import math
+    from clusterexp.routes.perturbative import Species, numerical_coefficients
+    import sympy
+    e = sympy.Symbol("e", real=True)
+    value, bound = numerical_coefficients([Species(e)], {}, (4,), "boson")[e ** 2]
+    closed = 35 / 8 - math.sqrt(3) / 144 * math.log(2 + math.sqrt(3))
+    assert abs(value - closed) < bound + 1e-13 and bound < 1e-10
+    assert abs(1 / 16 + math.sqrt(3) / 48 * math.log(2 + math.sqrt(3)) - 0.11002162477) < 6e-11

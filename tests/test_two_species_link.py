@@ -133,18 +133,22 @@ def test_the_command_line_shows_the_number_beside_the_name():
 
 
 def test_the_series_says_why_a_coefficient_has_no_number():
-    """Beyond the quadrature's reach (mass ratio 10^6) the d^2 coefficient keeps its name without a number,
-    and the series line says why, in the user's parameter (not the route's internal symbol)."""
+    """Beyond the on-demand reach (one species, b_n with n > two_loop_demand.MAX_N: the n-cycle alone is not
+    computed there) the alpha^2 coefficient keeps its name without a number, and the series line says why,
+    in the user's parameter about the expansion point (not the route's internal symbol). (The mixture at
+    the mass ratio 10^6 that this test used to refuse is now in closed form: tests/test_link_integrals.py.)"""
     import subprocess
     import sys
-    text = ("dimension 2 parameter nu in [0, 1] species A bose species B mass 1000000 bose mutual A B = nu "
-            "clusters pairphase derive cluster b[2,2] expand nu about 0 to 2")
+    from clusterexp.routes import two_loop_demand
+    n = two_loop_demand.MAX_N + 1
+    text = (f"dimension 2 parameter alpha in [0, 1] species A exchange alpha clusters pairphase derive cluster b[{n}] "
+            "expand alpha about 1 to 2")
     out = subprocess.run([sys.executable, "-m", "clusterexp", "run", "-e", text, "--no-files"],
                          capture_output=True, text=True, timeout=300)
     assert out.returncode == 0, out.stderr
-    line = next(x for x in out.stdout.splitlines() if "series in nu" in x)
-    assert "no number for the coefficient of (nu)^2" in line and "mass ratio" in line, line
-    assert "d_0_1" not in out.stdout and "computed: " not in out.stdout
+    line = next(x for x in out.stdout.splitlines() if "series in alpha" in x)
+    assert "no number for the coefficient of (alpha - 1)^2" in line and f"up to n = {two_loop_demand.MAX_N}" in line, line
+    assert "e_0" not in out.stdout and "computed: " not in out.stdout
 
 
 def test_a_terminal_sees_which_rule_runs_and_the_value_is_cached(monkeypatch):

@@ -127,3 +127,55 @@ def coefficient(p: int, q: int, m_i=1, m_j=1) -> tuple[float, float]:
         fine = scale * ratio(p, q, m_i, m_j, DIGITS + 20)
         rough = scale * ratio(p, q, m_i, m_j, DIGITS)
         return float(fine), float(max(10 * abs(fine - rough), 1e-15 * abs(fine)))
+
+
+def exact_ratio(p: int, q: int, m_i=1, m_j=1):
+    """r(p, q; m_i, m_j) as an exact sympy expression: a rational number plus rational multiples of
+    logarithms of quadratic surds (the same formulas as `_per_segment`, with sympy's exact roots; docs
+    4k). E.g. r(3, 1) = -2 + (sqrt(3)/12) ln(2 + sqrt(3)) at equal masses. Simplification takes about a
+    second for |n| <= 6 and grows with p q."""
+    import sympy
+    ratio(p, q, m_i, m_j, 15)                       # the same checks of the arguments
+    m_i, m_j = _mass(m_i, "m_i"), _mass(m_j, "m_j")
+    dx = sympy.Rational(m_j.numerator * m_i.denominator, m_j.denominator * m_i.numerator + m_j.numerator * m_i.denominator)
+    local = 2 * sympy.pi - _exact_per_segment(1, 1, dx, 1 - dx)
+    value = (_exact_per_segment(p, q, dx, 1 - dx) + local) / (-2 * sympy.pi)
+    return sympy.simplify(sympy.expand_log(sympy.expand(value), force=True))
+
+
+def _exact_per_segment(p: int, q: int, dx, dy):
+    """`_per_segment` in exact arithmetic (sympy): rational lags, surd roots, exact logarithms."""
+    import sympy
+
+    def sigma(x: int, period: int):
+        return sympy.Rational(x * (period - x), period)
+
+    def log_moment(rho):
+        def antiderivative(v):
+            if v == 0:
+                return 0
+            lv = sympy.log(sympy.Abs(v))
+            return (1 - rho) * (v * lv - v) - (v * v * lv / 2 - v * v / 4)
+        return antiderivative(1 - rho) - antiderivative(-rho)
+
+    def pole_moment(rho):
+        return -1 if rho == 1 else (1 - rho) * sympy.log(sympy.Abs((1 - rho) / rho)) - 1
+    drel, c = dx + dy, -(dx / p + dy / q)
+    logs, poles = 0, 0
+    for dj in range(p):
+        for di in range(q):
+            a = dx * sigma(dj, p) + dy * sigma(di, q)
+            b = dx * sympy.Rational(p - 2 * dj, p) + dy * sympy.Rational(q - 2 * di, q)
+            if a == 0:
+                rho2 = -b / c
+                logs += sympy.log(-c) / 2 + log_moment(sympy.Integer(0)) + log_moment(rho2)
+                poles += pole_moment(rho2) / (c * rho2)
+                continue
+            disc = sympy.sqrt(b * b - 4 * a * c)
+            rho1, rho2 = (-b + disc) / (2 * c), (-b - disc) / (2 * c)
+            logs += sympy.log(-c) / 2 + log_moment(rho1) + log_moment(rho2)
+            poles += (pole_moment(rho2) - pole_moment(rho1)) / (c * (rho2 - rho1))
+    area = -(2 * dx / p + 2 * dy / q) * 2 * logs + 2 * drel * sympy.log(drel)
+    area += sum(2 * dx * sympy.log(dy * sigma(di, q)) for di in range(1, q))
+    area += sum(2 * dy * sympy.log(dx * sigma(dj, p)) for dj in range(1, p))
+    return sympy.pi * area / 2 + (2 * sympy.pi * drel) ** 2 * (2 * poles / (4 * sympy.pi)) / 2

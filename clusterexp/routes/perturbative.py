@@ -340,9 +340,8 @@ def taylor_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int, i
                               "parameters, products d_ij d_ik of two mutual parameters, products e_i d_ij (any n), "
                               "and b with two particles of one species and one of another; computed as numbers "
                               "beside the name (unknown='name', numerical_coefficients): e^2 in b_4 .. b_10 of one "
-                              "species (b_11 on demand), d_ij^2 in b of two species with |n| <= 10 at equal masses "
-                              "(11 on demand) and |n| <= 10 at unequal masses (mass ratios up to 10^5 where the "
-                              "quadrature converges)")
+                              "species (b_11 .. b_16 on demand), d_ij^2 in b of two species at every |n| and any "
+                              "masses (the link squared in closed form)")
     label = "_".join(map(str, n))
     return {m: (sympy.Symbol(f"t_b_{label}__{m}") if v is None else sympy.Rational(v.numerator, v.denominator))
             for m, v in out.items()}
@@ -376,42 +375,27 @@ def _computed_square(gas: _Gas, link: _Link, n, gaps: list | None = None) -> tup
 def _computed_two_species(gas: _Gas, link: _Link, n, gaps: list | None = None) -> dict:
     """For b_n of two species i, j and the mutual link d = d_ij (n_i + n_j >= 4): the coefficient of d^2,
     the chains of three loops (exact, any masses) plus the link squared of the cluster of the n_i-cycle
-    of i with the n_j-cycle of j, signed by the cycles' transpositions about fermions. Equal masses: from
-    the table (`two_loop_table.two_species_cluster`, one species' units, scaled by the ratio of the
-    clusters' first orders: 2 when n_i = n_j, else 1), beyond it on demand (`two_loop_demand`, |n| <= its
-    MAX_N). Unequal masses: computed on demand at the mass ratio
-    (`two_species_link`, |n| <= its MAX_PARTICLES; the link squared is not linear in the masses, section
-    4j). {monomial: (value, error)}; empty where neither reaches. (The e_i d and e_j d coefficients are
-    exact for any masses: `angle_area`, section 4i.)"""
+    of i with the n_j-cycle of j, signed by the cycles' transpositions about fermions. The link squared
+    is in closed form for every |n| and mass ratio (`link_integrals`, section 4k); at equal masses with
+    |n| <= 10 the quadrature table is read instead (`two_loop_table.two_species_cluster`, one species'
+    units, scaled by the ratio of the clusters' first orders: 2 when n_i = n_j, else 1; the closed form
+    agrees with it to 1e-12). {monomial: (value, error)}. (The e_i d and e_j d coefficients are exact for
+    any masses: `angle_area`, section 4i.)"""
+    from . import link_integrals
     from .two_loop_table import two_species_cluster
-    from .two_species_link import link_squared_coefficient
     i, j = link.i, link.j
     a, b = n[i], n[j]
     if link.i == link.j or sum(n) != a + b or a < 1 or b < 1:
         return {}
     sign = gas.sign[i] ** (a - 1) * gas.sign[j] ** (b - 1)
-    if gas.mass[i] == gas.mass[j]:
-        cluster = two_species_cluster(a, b)
-        if cluster is not None:
-            square, square_error = cluster[0]
-        else:   # beyond the table: on demand (minutes, cached) up to two_loop_demand.MAX_N
-            from .two_loop_demand import link_squared_on_demand
-            try:
-                square, square_error = link_squared_on_demand(a, b)
-            except (NotSupportedYet, ValueError) as why:
-                if gaps is not None and isinstance(why, NotSupportedYet):
-                    gaps.append(f"no number for the coefficient of {link.symbol}^2 ({why})")
-                return {}
+    cluster = two_species_cluster(a, b) if gas.mass[i] == gas.mass[j] else None
+    if cluster is not None:
+        square, square_error = cluster[0]
         scale = float(gas.mass[i]) * (2 if a == b else 1)
+    elif a + b < 4:
+        return {}                       # |n| = 3 is derived exactly (section 4e)
     else:
-        if a + b < 4:
-            return {}                       # |n| = 3 is derived exactly (section 4e)
-        try:
-            square, square_error = link_squared_coefficient(a, b, gas.mass[i], gas.mass[j])
-        except NotSupportedYet as why:
-            if gaps is not None:   # said beside the name: why it has no number
-                gaps.append(f"no number for the coefficient of {link.symbol}^2 ({why})")
-            return {}
+        square, square_error = link_integrals.coefficient(a, b, gas.mass[i], gas.mass[j])
         scale = 1.0
     ring, landau = _chain(gas, link, link, n)
     return {link.symbol ** 2: (float(ring + landau) + sign * scale * square, scale * square_error)}
@@ -422,11 +406,12 @@ def numerical_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int
     """{monomial: (value, error bound)} for the second-order Taylor coefficients of b_n that are not
     derived in closed form but computed numerically: the square of the exchange parameter in b_n of
     one species (n = 4..two_loop_table.SINGLE_CYCLES_CHECKED from the table, beyond up to
-    two_loop_demand.MAX_N computed when asked: about twenty minutes, cached), and d_ij^2 in b_n of two species, |n| >= 4:
-    equal masses from the table (|n| <= 10) or on demand (|n| <= two_loop_demand.MAX_N), unequal masses
-    computed by quadrature on demand (|n| <= two_species_link.MAX_PARTICLES, seconds to a few minutes
-    each, cached); empty where none is. The values are floats with their quadrature error bounds: the tool keeps the coefficient's name and
-    shows the number beside it, never in place of it."""
+    two_loop_demand.MAX_N assembled when asked: the clusters in closed form, the n-cycle alone by
+    quadrature, a minute or two, cached), and d_ij^2 in b_n of two species, |n| >= 4, any masses: the
+    chains plus the link squared in closed form (section 4k; at equal masses and |n| <= 10 the table's
+    quadrature values, which agree with it to 1e-12); empty where none is. The values are floats with
+    error bounds: the tool keeps the coefficient's name and shows the number beside it, never in place
+    of it."""
     K = len(species)
     gas = _Gas(species, _points(about, K))
     n = _index(multi_index, K)

@@ -1,20 +1,19 @@
-"""Computed on demand, not closed: the alpha^2 coefficient of b_n of one species beyond the table.
+"""Computed on demand: the alpha^2 coefficient of b_n of one species beyond the table.
 
 `two_loop_table` holds the part of b_n^(2) beyond the chains of three loops for n <= its
-SINGLE_CYCLES_CHECKED (= 10), computed once by benchmarks/two_loop_table.py. For larger n the same
-quantities are computed here when asked, with the same engines and the same error bound:
+SINGLE_CYCLES_CHECKED (= 10), from the quadrature engine. For larger n it is assembled here when asked:
 
-* every two-loop cluster {p-cycle, q-cycle}, p + q = n: its part beyond the chains (link squared plus
-  the angle-area parts, `two_loop_fast.second_order`, normalised by the cluster's first order);
-* the n-cycle alone (`cycle_alone.k_cycle_orders`): the chains carry its Fock-squared ring part
-  (1/2)[z^n] z ln^2(1 - z)/(1 - z); what it has beyond (zero to 1e-13 for n <= 8, docs/perturbative.md 4h,
-  a finding, not a derivation) is computed and added, so nothing rests on that pattern here.
+* every two-loop cluster {p-cycle, q-cycle}, p + q = n: its part beyond the chains, the link squared in
+  closed form (`link_integrals`, docs/perturbative.md 4k; milliseconds) plus the angle-area parts
+  (derived, `angle_area.one_species_units`, section 4i);
+* the n-cycle alone (`cycle_alone.k_cycle_orders`, by quadrature): the chains carry its Fock-squared ring
+  part (1/2)[z^n] z ln^2(1 - z)/(1 - z); what it has beyond (zero to 1e-10 for n <= 16, docs/perturbative.md
+  4h, a finding, not a derivation) is computed and added, so nothing rests on that pattern here.
 
-Each at the engines' rules for the tolerances 1e-6 and 1e-7; the bound is max(MARGIN x the change
-between the rules, FLOOR) per cluster, as for the table. Per unit mass about bosons (about fermions the
-clusters' sign is (-1)^n, the caller's). The cost grows fast with n (benchmarks/two_loop_demand.py: six
-minutes of one core for n = 9, twenty on a loaded machine for n = 10, when these were still computed here;
-n = 11 twenty-one minutes with the other core running the test suite), so the result is
+The n-cycle alone runs at two rules; its bound is max(MARGIN x the change between the rules, its own
+value, FLOOR), the clusters' bounds (`link_integrals.coefficient`) are added. Per unit mass about bosons
+(about fermions the clusters' sign is (-1)^n, the caller's). The cost is the n-cycle's quadrature
+(benchmarks/two_loop_demand.py: about one to nine minutes of one core for n = 11 .. 16 on a loaded machine), so the result is
 cached for the process, each step shows on a terminal, and n > MAX_N is refused (NotSupportedYet, said
 beside the coefficient's name).
 """
@@ -26,12 +25,12 @@ from functools import lru_cache
 
 from ..errors import NotSupportedYet
 from ..progress import Progress
-from . import two_loop_fast
+from . import link_integrals
+from .angle_area import one_species_units
 from .cycle_alone import k_cycle_orders
 from .two_loop_table import FLOOR, SINGLE_CYCLES_CHECKED
 
-MAX_N = 11
-TOLERANCES = (1e-6, 1e-7)
+MAX_N = 16
 CYCLE_RULES = ((8, 8), (10, 12))           # (levels, nodes) of the k-cycle alone at the same two tolerances
 MARGIN = 10
 STEPS: list[tuple[str, float, float]] = []   # (step, seconds, value) of the computations run so far (benchmarks)
@@ -53,64 +52,31 @@ def beyond_on_demand(n: int) -> tuple[float, float]:
     if isinstance(n, bool) or not isinstance(n, int) or n <= SINGLE_CYCLES_CHECKED:
         raise ValueError(f"n must be an integer above {SINGLE_CYCLES_CHECKED} (below, the table has it); got {n!r}")
     if n > MAX_N:
-        raise NotSupportedYet(f"b_{n} at second order (the two-loop clusters are computed on demand up to n = "
-                              f"{MAX_N}, each n costing several times the one before; docs/perturbative.md, "
-                              "section 4h)")
+        raise NotSupportedYet(f"b_{n} at second order (the n-cycle alone is computed on demand up to n = "
+                              f"{MAX_N}, by quadrature, minutes each; docs/perturbative.md, sections 4h, 4k)")
     return _computed(n)
 
 
 @lru_cache(maxsize=None)
 def _computed(n: int) -> tuple[float, float]:
     clusters = [(p, n - p) for p in range((n + 1) // 2, n)]
-    report = Progress()
     value, bound = 0.0, 0.0
-    try:
-        for k, (p, q) in enumerate(clusters, 1):
-            runs = []
-            for tol in TOLERANCES:
-                report.step(f"quadrature b_{n} at second order, cluster {{{p}-cycle, {q}-cycle}} "
-                            f"({k}/{len(clusters) + 1}), rule {tol:g}")
-                start = time.perf_counter()
-                runs.append(two_loop_fast.second_order(p, q, tol)["beyond"])
-                STEPS.append((f"{{{p},{q}}} tol={tol:g}", time.perf_counter() - start, runs[-1]))
-            value += runs[-1]
-            bound += max(MARGIN * abs(runs[1] - runs[0]), FLOOR)
-        runs = []
-        for rule in CYCLE_RULES:
-            report.step(f"quadrature b_{n} at second order, the {n}-cycle alone ({len(clusters) + 1}/{len(clusters) + 1})")
-            start = time.perf_counter()
-            runs.append(k_cycle_orders(n, *rule)[1] - float(ring_part(n)))
-            STEPS.append((f"{n}-cycle alone beyond its ring part, rule {rule}", time.perf_counter() - start, runs[-1]))
-        value += runs[-1]
-        bound += max(MARGIN * abs(runs[1] - runs[0]), abs(runs[-1]), FLOOR)
-    finally:
-        report.done()
-    return float(value), float(bound)
-
-
-def link_squared_on_demand(a: int, b: int) -> tuple[float, float]:
-    """(value, error bound) of the link squared of the cluster {a-cycle, b-cycle} at equal masses, in one
-    species' units as in `two_loop_table.LINK` (for two species the caller scales it), computed now for
-    SINGLE_CYCLES_CHECKED < a + b <= MAX_N (the table has the smaller ones)."""
-    n = a + b
-    if n <= SINGLE_CYCLES_CHECKED:
-        raise ValueError(f"a + b must be above {SINGLE_CYCLES_CHECKED} (below, the table has it); got {a} + {b}")
-    if n > MAX_N:
-        raise NotSupportedYet(f"the link squared of the {{{a}-cycle, {b}-cycle}} cluster for |n| = {n} (computed on "
-                              f"demand up to |n| = {MAX_N}; docs/perturbative.md, section 4h)")
-    return _link(max(a, b), min(a, b))
-
-
-@lru_cache(maxsize=None)
-def _link(p: int, q: int) -> tuple[float, float]:
+    for p, q in clusters:                     # closed form (section 4k) plus the derived angle-area parts
+        link, link_bound = link_integrals.coefficient(p, q)
+        half = 2 if p == q else 1             # one species' units: the cluster's first order is halved
+        value += link / half + float(sum(one_species_units(p, q)))
+        bound += link_bound / half
+    STEPS.append((f"the {len(clusters)} two-loop clusters of b_{n} in closed form", 0.0, value))
     report = Progress()
     runs = []
     try:
-        for tol in TOLERANCES:
-            report.step(f"quadrature link^2 of {{{p}-cycle, {q}-cycle}}, rule {tol:g}")
+        for k, rule in enumerate(CYCLE_RULES, 1):
+            report.step(f"quadrature b_{n} at second order, the {n}-cycle alone, rule {k}/{len(CYCLE_RULES)}")
             start = time.perf_counter()
-            runs.append(two_loop_fast.second_order(p, q, tol)["link2"])
-            STEPS.append((f"link^2 {{{p},{q}}} tol={tol:g}", time.perf_counter() - start, runs[-1]))
+            runs.append(k_cycle_orders(n, *rule)[1] - float(ring_part(n)))
+            STEPS.append((f"{n}-cycle alone beyond its ring part, rule {rule}", time.perf_counter() - start, runs[-1]))
     finally:
         report.done()
-    return float(runs[-1]), float(max(MARGIN * abs(runs[1] - runs[0]), FLOOR))
+    value += runs[-1]
+    bound += max(MARGIN * abs(runs[1] - runs[0]), abs(runs[-1]), FLOOR)
+    return float(value), float(bound)
