@@ -68,7 +68,8 @@ def test_a_heavy_cycle_is_a_static_flux_with_the_observed_logarithm(a, b):
     """A heavy a-cycle is one static flux a d seen by the b-cycle: the coefficient per unit m_j tends to
     m_i/(2 b) (the flux law of Comtet, Georgelin, Ouvry 1989, route R3), approached as -kappa ln(m_i/m_j)
     with kappa = [C(a, 3) - (b - 1) C(a, 2)]/(a b)^2 (observed with the engine at ratios 10^3 .. 10^5,
-    docs 4j). At 10^10 .. 10^12 the closed form gives that kappa to 1e-9."""
+    docs 4j, and derived from the closed form's eps ln eps terms in docs 4k). At 10^10 .. 10^12 the closed
+    form's numbers give that kappa to 1e-9."""
     law = mpmath.mpf(mpmath.binomial(a, 3) - (b - 1) * mpmath.binomial(a, 2)) / (a * b) ** 2
 
     def beyond(m):
