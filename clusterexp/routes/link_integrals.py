@@ -55,7 +55,8 @@ def _pole_moment(rho) -> mpmath.mpf:
 def _roots(a: Fraction, b: Fraction, c: Fraction):
     """The two real roots rho_1 <= 0 < 1 <= rho_2 of a + b u + c u^2 (c < 0, positive on (0, 1))."""
     disc = mpmath.sqrt(_mp(b * b - 4 * a * c))
-    first, second = (-_mp(b) + disc) / _mp(2 * c), (-_mp(b) - disc) / _mp(2 * c)
+    half = -(_mp(b) + (disc if b >= 0 else -disc)) / 2      # no cancellation (the small root at a heavy loop)
+    first, second = half / _mp(c), _mp(a) / half
     return min(first, second), max(first, second)
 
 
