@@ -46,7 +46,7 @@ class Unknown:
 
     @property
     def estimate_text(self) -> str | None:
-        """E.g. `computed: 4.359161 +- 3e-6 (quadrature of ..., not a closed form)`, or None."""
+        """E.g. `computed: 4.359161 +- 3e-6 (numbers: quadrature or the closed form ...)`, or None."""
         if self.estimate is None:
             return None
         from .routes.two_loop_table import SOURCE

@@ -128,7 +128,7 @@ def unknowns_latex(derivation: Derivation, names) -> list[str]:
 
 
 def _estimate_latex(unknown) -> str:
-    """`; computed: $value pm error$ (quadrature ..., not a closed form)` where the value is known
+    """`; computed: $value pm error$ (numbers: quadrature or the closed form ...)` where the value is known
     numerically, else nothing."""
     if unknown.estimate is None:
         return ""

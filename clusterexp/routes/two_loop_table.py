@@ -91,7 +91,7 @@ ANGLE: dict[tuple[int, int], tuple[tuple[float, float], tuple[float, float]]] = 
 BEYOND: dict[tuple[int, int], tuple[float, float]] = {
     key: (LINK[key][0] + float(sum(one_species_units(*key))), LINK[key][1]) for key in LINK}
 
-SOURCE = "quadrature of the two-loop clusters (docs/perturbative.md, sections 4h, 4j), not a closed form"
+SOURCE = "numbers: quadrature or the closed form of the two-loop clusters (docs/perturbative.md, 4h-4k)"
 
 
 def two_species_cluster(a: int, b: int):
