@@ -407,7 +407,7 @@ def numerical_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int
     derived in closed form but computed numerically: the square of the exchange parameter in b_n of
     one species (n = 4..two_loop_table.SINGLE_CYCLES_CHECKED from the table, beyond up to
     two_loop_demand.MAX_N assembled when asked: the clusters in closed form, the n-cycle alone by
-    quadrature, a minute or two, cached), and d_ij^2 in b_n of two species, |n| >= 4, any masses: the
+    quadrature, minutes, cached), and d_ij^2 in b_n of two species, |n| >= 4, any masses: the
     chains plus the link squared in closed form (section 4k; at equal masses and |n| <= 10 the table's
     quadrature values, which agree with it to 1e-12); empty where none is. The values are floats with
     error bounds: the tool keeps the coefficient's name and shows the number beside it, never in place

@@ -1,5 +1,9 @@
 """Computed on demand, not closed: the link squared of the two-loop cluster of a mixture at unequal masses.
 
+The package now takes this coefficient from its closed form (`link_integrals`,
+docs/perturbative.md 4k); this module is kept as the independent quadrature check of that closed form
+(tests) and for the benchmarks, and the package does not call it.
+
 In b_n with a particles of species i and b of species j, the d_ij^2 coefficient is the chains of three
 loops (exact, `perturbative._chain`) plus the link squared of the cluster {a-cycle X of species i,
 b-cycle Y of species j} (docs/perturbative.md, sections 4f-4h and 4j). X is a Brownian loop of duration a

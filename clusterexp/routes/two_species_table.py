@@ -1,6 +1,10 @@
 """Computed, not closed: the d_ij^2 link coefficient of the two-species clusters with |n| <= 6 at unequal
 masses, tabulated over the mass ratios 1/100 .. 100 and interpolated.
 
+The package now takes this coefficient from its closed form (`link_integrals`,
+docs/perturbative.md 4k); this module is kept as the independent quadrature check of that closed form
+(tests) and for the benchmarks, and the package does not call it.
+
 `two_species_link` computes the coefficient c(m_i, m_j) = m_j g(m_i/m_j) of the cluster {p-cycle of
 species i, q-cycle of species j} by quadrature when asked (seconds to tens of seconds per cluster, docs/
 perturbative.md 4j). For the clusters with p + q <= 6 this module holds g at Chebyshev points instead, so a
