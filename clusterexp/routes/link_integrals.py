@@ -31,59 +31,64 @@ def _mp(x: Fraction) -> mpmath.mpf:
     return mpmath.mpf(x.numerator) / x.denominator
 
 
-def _sigma(x: Fraction, period: int) -> Fraction:
-    return x * (period - x) / period
+def _sigma(x: int, period: int) -> Fraction:
+    return Fraction(x * (period - x), period)
 
 
-def _log_moment(rho) -> mpmath.mpf:
-    """int_0^1 (1 - u) ln|u - rho| du for a real rho outside (0, 1)."""
-    def antiderivative(v):
-        if v == 0:
-            return mpmath.mpf(0)
-        lv = mpmath.log(abs(v))
-        return (1 - rho) * (v * lv - v) - (v * v * lv / 2 - v * v / 4)
-    return antiderivative(1 - rho) - antiderivative(-rho)
+class _Arithmetic:
+    """The few operations the closed form needs: mpmath numbers (`NUMERIC`) or exact sympy (`_exact`)."""
+
+    def __init__(self, number, log, sqrt, absolute, exact: bool):
+        self.number, self.log, self.sqrt, self.abs, self.exact = number, log, sqrt, absolute, exact
 
 
-def _pole_moment(rho) -> mpmath.mpf:
-    """int_0^1 (1 - u) / (u - rho) du for a real rho outside [0, 1) (rho = 1 allowed)."""
-    if rho == 1:
-        return mpmath.mpf(-1)
-    return (1 - rho) * mpmath.log(abs((1 - rho) / rho)) - 1
+NUMERIC = _Arithmetic(_mp, mpmath.log, mpmath.sqrt, abs, False)
 
 
-def _roots(a: Fraction, b: Fraction, c: Fraction):
-    """The two real roots rho_1 <= 0 < 1 <= rho_2 of a + b u + c u^2 (c < 0, positive on (0, 1))."""
-    disc = mpmath.sqrt(_mp(b * b - 4 * a * c))
-    half = -(_mp(b) + (disc if b >= 0 else -disc)) / 2      # no cancellation (the small root at a heavy loop)
-    first, second = half / _mp(c), _mp(a) / half
-    return min(first, second), max(first, second)
+def _exact() -> _Arithmetic:
+    import sympy
+    return _Arithmetic(lambda x: sympy.Rational(x.numerator, x.denominator), sympy.log, sympy.sqrt, sympy.Abs, True)
 
 
-def _per_segment(p: int, q: int, dx: Fraction, dy: Fraction) -> mpmath.mpf:
-    """The second-order coefficient per link segment, before the local constant: (pi/2) A + (2 pi
-    D_rel)^2 K / 2 in the notation of docs/perturbative.md 4k."""
-    drel = dx + dy
-    c = -(dx / p + dy / q)
-    logs, poles = mpmath.mpf(0), mpmath.mpf(0)
+def _closed_form(p: int, q: int, dx: Fraction, dy: Fraction, ops: _Arithmetic):
+    """r(p, q) at the diffusions (dx, dy) by (4k.4) of docs/perturbative.md: r = 1/2 - A/(4 D_rel) -
+    (D_rel/2) sum F_2, every integral over [0, 1] of a lag pair's quadratic Q(u) = a + b u + c u^2 in closed
+    form from its roots rho_1 <= 0 < 1 <= rho_2 (real: Q > 0 on (0, 1), c < 0)."""
+    number, log = ops.number, ops.log
+
+    def log_moment(rho):                            # int_0^1 (1 - u) ln|u - rho| du
+        def antiderivative(v):
+            if v == 0:
+                return 0
+            lv = log(ops.abs(v))
+            return (1 - rho) * (v * lv - v) - (v * v * lv / 2 - v * v / 4)
+        return antiderivative(1 - rho) - antiderivative(-rho)
+
+    def pole_moment(rho):                           # int_0^1 (1 - u)/(u - rho) du, rho = 1 allowed
+        return -1 if rho == 1 else (1 - rho) * log(ops.abs((1 - rho) / rho)) - 1
+    drel, c = dx + dy, -(dx / p + dy / q)
+    logs, poles = number(Fraction(0)), number(Fraction(0))
     for dj in range(p):
         for di in range(q):
-            # Q(u) = a + b u + c u^2 on [0, 1]: s_p(u + dj) = (u + dj)(p - dj - u)/p
-            a = dx * _sigma(Fraction(dj), p) + dy * _sigma(Fraction(di), q)
+            # s_p(u + dj) = (u + dj)(p - dj - u)/p on [0, 1], likewise s_q(u + di)
+            a = dx * _sigma(dj, p) + dy * _sigma(di, q)
             b = dx * Fraction(p - 2 * dj, p) + dy * Fraction(q - 2 * di, q)
             if a == 0:                              # the segment with itself: Q = u (b + c u), rho_1 = 0
-                rho2 = -b / c
-                logs += mpmath.log(_mp(-c)) / 2 + _log_moment(0) + _log_moment(_mp(rho2))
-                poles += _pole_moment(_mp(rho2)) / _mp(c * rho2)     # less 1/(D_rel u)
-                continue
-            rho1, rho2 = _roots(a, b, c)
-            logs += mpmath.log(_mp(-c)) / 2 + _log_moment(rho1) + _log_moment(rho2)
-            poles += (_pole_moment(rho2) - _pole_moment(rho1)) / (_mp(c) * (rho2 - rho1))
-    area = -_mp(2 * dx / p + 2 * dy / q) * 2 * logs + 2 * _mp(drel) * mpmath.log(_mp(drel))
-    area += sum(2 * _mp(dx) * mpmath.log(_mp(dy * _sigma(Fraction(di), q))) for di in range(1, q))
-    area += sum(2 * _mp(dy) * mpmath.log(_mp(dx * _sigma(Fraction(dj), p))) for dj in range(1, p))
-    contact = 2 * poles / (4 * mpmath.pi)
-    return mpmath.pi * area / 2 + (2 * mpmath.pi * _mp(drel)) ** 2 * contact / 2
+                rho1, rho2 = number(Fraction(0)), number(-b / c)
+                poles += pole_moment(rho2) / number(-b)                      # less 1/(D_rel u)
+            else:
+                disc = ops.sqrt(number(b * b - 4 * a * c))
+                if ops.exact:                       # plain surds, which sympy simplifies
+                    rho1, rho2 = (-number(b) + disc) / number(2 * c), (-number(b) - disc) / number(2 * c)
+                else:                               # no cancellation (the small root of a heavy loop's pairs)
+                    half = -(number(b) + (disc if b >= 0 else -disc)) / 2
+                    rho1, rho2 = (number(a) / half, half / number(c)) if b >= 0 else (half / number(c), number(a) / half)
+                poles += (pole_moment(rho2) - pole_moment(rho1)) / (number(c) * (rho2 - rho1))
+            logs += log(number(-c)) / 2 + log_moment(rho1) + log_moment(rho2)
+    area = -number(2 * dx / p + 2 * dy / q) * 2 * logs + 2 * number(drel) * log(number(drel))
+    area += sum(2 * number(dx) * log(number(dy * _sigma(di, q))) for di in range(1, q))
+    area += sum(2 * number(dy) * log(number(dx * _sigma(dj, p))) for dj in range(1, p))
+    return number(Fraction(1, 2)) - area / (4 * number(drel)) - number(drel) * poles / 2
 
 
 def _mass(value, name: str) -> Fraction:
@@ -112,10 +117,8 @@ def ratio(p: int, q: int, m_i=1, m_j=1, digits: int = DIGITS) -> mpmath.mpf:
 @lru_cache(maxsize=None)
 def _ratio(p: int, q: int, dx: Fraction, digits: int) -> mpmath.mpf:
     """r at D_X = dx, D_Y = 1 - dx (r is homogeneous of degree zero in the diffusions)."""
-    dy = 1 - dx
     with mpmath.workdps(digits):
-        local = 2 * mpmath.pi - _per_segment(1, 1, dx, dy)          # fixed by r(1, 1) = -1
-        return +((_per_segment(p, q, dx, dy) + local) / (-2 * mpmath.pi))
+        return +_closed_form(p, q, dx, 1 - dx, NUMERIC)
 
 
 def coefficient(p: int, q: int, m_i=1, m_j=1) -> tuple[float, float]:
@@ -132,51 +135,12 @@ def coefficient(p: int, q: int, m_i=1, m_j=1) -> tuple[float, float]:
 
 def exact_ratio(p: int, q: int, m_i=1, m_j=1):
     """r(p, q; m_i, m_j) as an exact sympy expression: a rational number plus rational multiples of
-    logarithms of quadratic surds (the same formulas as `_per_segment`, with sympy's exact roots; docs
-    4k). E.g. r(3, 1) = -2 + (sqrt(3)/12) ln(2 + sqrt(3)) at equal masses. Simplification takes about a
-    second for |n| <= 6 and grows with p q."""
+    logarithms of quadratic surds (the same formulas as `ratio`, in exact arithmetic; docs 4k). E.g.
+    r(3, 1) = -2 + (sqrt(3)/12) ln(2 + sqrt(3)) at equal masses. Simplification takes about a second for
+    |n| <= 6 and grows with p q."""
     import sympy
     ratio(p, q, m_i, m_j, 15)                       # the same checks of the arguments
     m_i, m_j = _mass(m_i, "m_i"), _mass(m_j, "m_j")
-    dx = sympy.Rational(m_j.numerator * m_i.denominator, m_j.denominator * m_i.numerator + m_j.numerator * m_i.denominator)
-    local = 2 * sympy.pi - _exact_per_segment(1, 1, dx, 1 - dx)
-    value = (_exact_per_segment(p, q, dx, 1 - dx) + local) / (-2 * sympy.pi)
+    dx = m_j / (m_i + m_j)
+    value = _closed_form(p, q, dx, 1 - dx, _exact())
     return sympy.simplify(sympy.expand_log(sympy.expand(value), force=True))
-
-
-def _exact_per_segment(p: int, q: int, dx, dy):
-    """`_per_segment` in exact arithmetic (sympy): rational lags, surd roots, exact logarithms."""
-    import sympy
-
-    def sigma(x: int, period: int):
-        return sympy.Rational(x * (period - x), period)
-
-    def log_moment(rho):
-        def antiderivative(v):
-            if v == 0:
-                return 0
-            lv = sympy.log(sympy.Abs(v))
-            return (1 - rho) * (v * lv - v) - (v * v * lv / 2 - v * v / 4)
-        return antiderivative(1 - rho) - antiderivative(-rho)
-
-    def pole_moment(rho):
-        return -1 if rho == 1 else (1 - rho) * sympy.log(sympy.Abs((1 - rho) / rho)) - 1
-    drel, c = dx + dy, -(dx / p + dy / q)
-    logs, poles = 0, 0
-    for dj in range(p):
-        for di in range(q):
-            a = dx * sigma(dj, p) + dy * sigma(di, q)
-            b = dx * sympy.Rational(p - 2 * dj, p) + dy * sympy.Rational(q - 2 * di, q)
-            if a == 0:
-                rho2 = -b / c
-                logs += sympy.log(-c) / 2 + log_moment(sympy.Integer(0)) + log_moment(rho2)
-                poles += pole_moment(rho2) / (c * rho2)
-                continue
-            disc = sympy.sqrt(b * b - 4 * a * c)
-            rho1, rho2 = (-b + disc) / (2 * c), (-b - disc) / (2 * c)
-            logs += sympy.log(-c) / 2 + log_moment(rho1) + log_moment(rho2)
-            poles += (pole_moment(rho2) - pole_moment(rho1)) / (c * (rho2 - rho1))
-    area = -(2 * dx / p + 2 * dy / q) * 2 * logs + 2 * drel * sympy.log(drel)
-    area += sum(2 * dx * sympy.log(dy * sigma(di, q)) for di in range(1, q))
-    area += sum(2 * dy * sympy.log(dx * sigma(dj, p)) for dj in range(1, p))
-    return sympy.pi * area / 2 + (2 * sympy.pi * drel) ** 2 * (2 * poles / (4 * sympy.pi)) / 2
