@@ -8,6 +8,7 @@ from fractions import Fraction
 import mpmath
 import pytest
 
+from clusterexp.errors import NotSupportedYet
 from clusterexp.routes import link_integrals, two_loop_table
 
 
@@ -85,7 +86,7 @@ def test_a_heavy_cycle_is_a_static_flux_with_the_observed_logarithm(a, b):
 def test_bad_cycle_lengths_and_masses_are_refused(bad):
     with pytest.raises(ValueError):
         link_integrals.ratio(bad, 1)
-    with pytest.raises(ValueError):
+    with pytest.raises(NotSupportedYet if isinstance(bad, float) else ValueError):
         link_integrals.coefficient(2, 1, bad, 1)
 
 

@@ -24,6 +24,8 @@ from functools import lru_cache
 
 import mpmath
 
+from ..errors import NotSupportedYet
+
 DIGITS = 40
 
 
@@ -91,15 +93,20 @@ def _closed_form(p: int, q: int, dx: Fraction, dy: Fraction, ops: _Arithmetic):
     return number(Fraction(1, 2)) - area / (4 * number(drel)) - number(drel) * poles / 2
 
 
-def _mass(value, name: str) -> Fraction:
-    if isinstance(value, (bool, float)):
-        raise ValueError(f"{name} must be an exact positive mass (int, Fraction or Rational), got {value!r}")
+def exact_mass(value, name: str) -> Fraction:
+    """A positive rational mass as a Fraction (ints, Fractions, sympy Rationals); a float is refused as
+    not supported (the closed form is exact in the masses), anything else non-positive or non-rational
+    is a ValueError."""
+    if isinstance(value, float):
+        raise NotSupportedYet(f"{name} = {value!r} is a float: give an exact mass (int, Fraction or Rational)")
+    if isinstance(value, bool):
+        raise ValueError(f"{name} must be a positive rational mass, got {value!r}")
     try:
         out = Fraction(str(value))
     except (TypeError, ValueError):
-        raise ValueError(f"{name} must be an exact positive mass, got {value!r}") from None
+        raise ValueError(f"{name} must be a positive rational mass, got {value!r}") from None
     if out <= 0:
-        raise ValueError(f"{name} must be an exact positive mass, got {value!r}")
+        raise ValueError(f"{name} must be a positive rational mass, got {value!r}")
     return out
 
 
@@ -110,7 +117,7 @@ def ratio(p: int, q: int, m_i=1, m_j=1, digits: int = DIGITS) -> mpmath.mpf:
     for value, name in ((p, "p"), (q, "q")):
         if isinstance(value, bool) or not isinstance(value, int) or value < 1:
             raise ValueError(f"{name} must be a positive integer cycle length, got {value!r}")
-    m_i, m_j = _mass(m_i, "m_i"), _mass(m_j, "m_j")
+    m_i, m_j = exact_mass(m_i, "m_i"), exact_mass(m_j, "m_j")
     return _ratio(p, q, m_j / (m_i + m_j), digits)
 
 
@@ -127,7 +134,7 @@ def coefficient(p: int, q: int, m_i=1, m_j=1) -> tuple[float, float]:
     for {2, 1}). The bound is ten times the change from DIGITS to DIGITS + 20 working digits (the
     logarithms' rounding; it grows with the mass ratio), never below 1e-15 of the value (the float)."""
     with mpmath.workdps(DIGITS + 20):
-        scale = -_mp(_mass(m_i, "m_i") + _mass(m_j, "m_j")) / (2 * p * q)
+        scale = -_mp(exact_mass(m_i, "m_i") + exact_mass(m_j, "m_j")) / (2 * p * q)
         fine = scale * ratio(p, q, m_i, m_j, DIGITS + 20)
         rough = scale * ratio(p, q, m_i, m_j, DIGITS)
         return float(fine), float(max(10 * abs(fine - rough), 1e-15 * abs(fine)))
@@ -140,7 +147,7 @@ def exact_ratio(p: int, q: int, m_i=1, m_j=1):
     |n| <= 6 and grows with p q."""
     import sympy
     ratio(p, q, m_i, m_j, 15)                       # the same checks of the arguments
-    m_i, m_j = _mass(m_i, "m_i"), _mass(m_j, "m_j")
+    m_i, m_j = exact_mass(m_i, "m_i"), exact_mass(m_j, "m_j")
     dx = m_j / (m_i + m_j)
     value = _closed_form(p, q, dx, 1 - dx, _exact())
     return sympy.simplify(sympy.expand_log(sympy.expand(value), force=True))

@@ -42,6 +42,7 @@ from ..errors import NotSupportedYet
 from ..progress import Progress
 from . import two_loop_fast, two_species_table
 from .angle_area import first_order_normalisation
+from .link_integrals import exact_mass
 
 MAX_PARTICLES = 10
 MAX_RATIO = 100          # two rules up to here
@@ -54,18 +55,6 @@ CONVERGING = 10
 USE_TABLE = True         # |n| <= 6 at ratios 1/100 .. 100 from two_species_table (benchmarks turn it off)
 
 
-def _fraction(value, name: str) -> Fraction:
-    if isinstance(value, float):
-        raise NotSupportedYet(f"{name} = {value!r} is a float: give an exact mass (int, Fraction or Rational)")
-    try:
-        out = Fraction(str(value))
-    except (TypeError, ValueError):
-        raise ValueError(f"{name} must be a positive rational mass, got {value!r}") from None
-    if out <= 0:
-        raise ValueError(f"{name} must be a positive rational mass, got {value!r}")
-    return out
-
-
 def link_squared_coefficient(a: int, b: int, m_i, m_j) -> tuple[float, float]:
     """(value, error bound) of the d_ij^2 coefficient that the link of the cluster {a-cycle of species i,
     b-cycle of species j} adds to b_{a e_i + b e_j}, about bosons for both species (about fermions times
@@ -75,7 +64,7 @@ def link_squared_coefficient(a: int, b: int, m_i, m_j) -> tuple[float, float]:
     for value, name in ((a, "a"), (b, "b")):
         if isinstance(value, bool) or not isinstance(value, int) or value < 1:
             raise ValueError(f"{name} must be a positive integer cycle length, got {value!r}")
-    m_i, m_j = _fraction(m_i, "m_i"), _fraction(m_j, "m_j")
+    m_i, m_j = exact_mass(m_i, "m_i"), exact_mass(m_j, "m_j")
     if a + b > MAX_PARTICLES:
         raise NotSupportedYet(f"the link squared of the {{{a}-cycle, {b}-cycle}} cluster at unequal masses for "
                               f"|n| = {a + b} > {MAX_PARTICLES} (computed on demand up to |n| = {MAX_PARTICLES}; "
