@@ -114,11 +114,16 @@ def ratio(p: int, q: int, m_i=1, m_j=1, digits: int = DIGITS) -> mpmath.mpf:
     """r(p, q; m_i, m_j): the cluster's d^2 coefficient over its first order, per link segment (the
     p-cycle of mass m_i per particle, the q-cycle of mass m_j), at `digits` working digits. -3/2 for
     {2, 1} at equal masses."""
+    return _ratio(p, q, _diffusion(p, q, m_i, m_j), digits)
+
+
+def _diffusion(p, q, m_i, m_j) -> Fraction:
+    """D_X of the p-cycle when D_X + D_Y = 1 (m_j/(m_i + m_j)), after checking the arguments."""
     for value, name in ((p, "p"), (q, "q")):
         if isinstance(value, bool) or not isinstance(value, int) or value < 1:
             raise ValueError(f"{name} must be a positive integer cycle length, got {value!r}")
     m_i, m_j = exact_mass(m_i, "m_i"), exact_mass(m_j, "m_j")
-    return _ratio(p, q, m_j / (m_i + m_j), digits)
+    return m_j / (m_i + m_j)
 
 
 @lru_cache(maxsize=None)
@@ -146,8 +151,6 @@ def exact_ratio(p: int, q: int, m_i=1, m_j=1):
     r(3, 1) = -2 + (sqrt(3)/12) ln(2 + sqrt(3)) at equal masses. Simplification takes about a second for
     |n| <= 6 and grows with p q."""
     import sympy
-    ratio(p, q, m_i, m_j, 15)                       # the same checks of the arguments
-    m_i, m_j = exact_mass(m_i, "m_i"), exact_mass(m_j, "m_j")
-    dx = m_j / (m_i + m_j)
+    dx = _diffusion(p, q, m_i, m_j)
     value = _closed_form(p, q, dx, 1 - dx, _exact())
     return sympy.simplify(sympy.expand_log(sympy.expand(value), force=True))
