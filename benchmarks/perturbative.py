@@ -10,9 +10,10 @@ b's (the a_n through first order) for the same tables. Coefficients not derived 
 back as named unknowns (unknown="name"), so the figures time the whole table. Last, what a user runs:
 the joint series `expand alpha, nu about 0 to 2` of every b and a of two species up to total order 3-6,
 end to end (derive and print), beside the same input without the series (the ratio is the series' cost);
-and the same at unequal masses (1 and 3/2), where the d_ij^2 coefficients are computed numbers: with the
-table of routes/two_species_table.py (the package's path) beside the quadrature on demand that it replaced
-(two_species_link.USE_TABLE off; about two minutes for total order 6).
+and the same at unequal masses (1 and 3/2), where the d_ij^2 coefficients of |n| >= 4 are the closed forms
+of docs/perturbative.md section 4k, exact expressions with logarithms of quadratic surds (until the
+eighteenth session they were numbers: from a table, 1.2 s at total order 6, or by quadrature on demand,
+124 s; benchmarks/two_species_table.py keeps that comparison).
 """
 from __future__ import annotations
 
@@ -26,7 +27,6 @@ import sympy  # noqa: E402
 import clusterexp  # noqa: E402
 from clusterexp.export import to_text  # noqa: E402
 
-from clusterexp.routes import two_species_link  # noqa: E402
 from clusterexp.routes.perturbative import Species, expansion, taylor_coefficients  # noqa: E402
 from clusterexp.exact.series import indices_up_to  # noqa: E402
 from clusterexp.exact.virial import cluster_to_virial  # noqa: E402
@@ -63,17 +63,7 @@ JOINT = ("dimension 2 parameter alpha in [0, 1/2] parameter nu in [0, 1/2] speci
 
 
 UNEQUAL = ("dimension 2 parameter alpha in [0, 1/2] parameter nu in [0, 1/2] species A exchange alpha "
-           "species B mass 3/2 exchange alpha mutual A B = nu clusters pairphase order {order} "
-           "expand alpha, nu about 0 to 2")
-
-
-def unequal(order, table):
-    two_species_link.USE_TABLE = table
-    two_species_link._at_ratio.cache_clear()
-    try:
-        return seconds(lambda: printed(UNEQUAL.format(order=order)), repeats=1)
-    finally:
-        two_species_link.USE_TABLE = True
+           "species B mass 3/2 exchange alpha mutual A B = nu clusters pairphase order {order} ")
 
 
 def printed(text):
@@ -98,10 +88,11 @@ def main():
         plain = seconds(lambda: printed(JOINT.format(order=order)), repeats=1)
         joint = seconds(lambda: printed(JOINT.format(order=order) + "expand alpha, nu about 0 to 2"), repeats=1)
         print(f"{f'  |n| <= {order}':<58}{plain:>13.3f}{joint:>10.3f}{joint / plain:>8.1f}")
-    print(f"{'the same series at masses 1 and 3/2 (computed d^2 numbers)':<58}{'quadrature':>13}{'table':>10}{'ratio':>8}")
+    print(f"{'the same at masses 1 and 3/2 (d^2 in closed form, section 4k)':<58}{'plain':>13}{'series':>10}{'ratio':>8}")
     for order in range(4, 7):
-        quadrature, table_path = unequal(order, False), unequal(order, True)
-        print(f"{f'  |n| <= {order}':<58}{quadrature:>13.3f}{table_path:>10.3f}{quadrature / table_path:>8.1f}")
+        plain = seconds(lambda: printed(UNEQUAL.format(order=order)), repeats=1)
+        joint = seconds(lambda: printed(UNEQUAL.format(order=order) + "expand alpha, nu about 0 to 2"), repeats=1)
+        print(f"{f'  |n| <= {order}':<58}{plain:>13.3f}{joint:>10.3f}{joint / plain:>8.1f}")
 
 
 if __name__ == "__main__":

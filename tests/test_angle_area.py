@@ -54,12 +54,13 @@ def test_equal_masses_against_the_quadrature_table():
         assert (exact_p, exact_q) == (-(p - 1) * first / 2, -(q - 1) * first / 2)
 
 
-@pytest.mark.parametrize("masses", [(1, 1), (2, 1), (1, 3), (R(1, 2), R(5, 2))])
+@pytest.mark.parametrize("masses", [(1, 1), (2, 1), (1, 3), (R(1, 2), R(5, 2)), (1, 10 ** 6 + 1), (R(10 ** 7 + 3, 7), 1)])
 def test_pair_with_one_is_section_4c(masses):
     """Section 4c, derived separately for the 2-cycle by the antipodal curve D(t) = S(t) - S(t + 1):
     e_i d of b_{2,1} gets -(m_j/m_ref)/4 from the 2-cycle with the loop, any masses (the package's b_{2,1},
     which carries it, minus its Landau chain); the loop has no self pair, so e_j d gets nothing; and the
-    normalisation is 4c's P = m_i m_j/(8 pi m_ref^2)."""
+    normalisation is 4c's P = m_i m_j/(8 pi m_ref^2). The far mass ratios once made sympy's nsimplify
+    guess surds for the exact rational."""
     m_i, m_j = masses
     e, d = sympy.symbols("e d", real=True)
     species = [Species(e, m_i), Species(None, m_j)]

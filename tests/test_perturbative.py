@@ -183,17 +183,17 @@ def test_second_order_products_of_mutual_parameters_three_species():
     assert b[d ** 2] == b[g ** 2] == b[h ** 2] == 0
     assert all(b[sympy.Abs(x)] == 0 for x in (d, g, h))
     # an exchange parameter times a mutual one beyond three particles: the product of the contacts and
-    # e*d are derived (section 4i), the square is not; independent route for e*d: the quadrature engine's
-    # angle-area part of the {2-cycle, 2-cycle} cluster (two_loop_table.ANGLE, one species' units, times 2
-    # for two species), plus the Landau chain
-    from clusterexp.routes.two_loop_table import ANGLE
-    b = taylor_coefficients([Species(e), Species(None)], {(0, 1): d}, (2, 2), "boson", 2, unknown="name")
-    assert b[sympy.Abs(e) * sympy.Abs(d)] != 0 and b[e * d].is_Rational and b[d ** 2].is_Symbol
-    landau = chain_part([Species(e), Species(None)], {(0, 1): d}, (2, 2), "boson")[e * d]
+    # e*d are derived (section 4i), the square too (section 4k, closed form with a logarithm); independent
+    # route for both: the quadrature engine's parts of the {2-cycle, 2-cycle} cluster (two_loop_table.LINK
+    # and ANGLE, one species' units, times 2 for two species), plus the chains
+    from clusterexp.routes.two_loop_table import ANGLE, LINK
+    b = taylor_coefficients([Species(e), Species(None)], {(0, 1): d}, (2, 2), "boson", 2)
+    assert b[sympy.Abs(e) * sympy.Abs(d)] != 0 and b[e * d].is_Rational
+    chains = chain_part([Species(e), Species(None)], {(0, 1): d}, (2, 2), "boson")
     (angle, bound), _ = ANGLE[(2, 2)]
-    assert abs(float(b[e * d] - landau) - 2 * angle) <= 2 * bound
-    with pytest.raises(NotSupportedYet, match=r"b\[2,2\] in d\*\*2"):
-        taylor_coefficients([Species(e), Species(None)], {(0, 1): d}, (2, 2), "boson", 2)
+    assert abs(float(b[e * d] - chains[e * d]) - 2 * angle) <= 2 * bound
+    link, link_bound = LINK[(2, 2)]
+    assert b[d ** 2].has(sympy.log) and abs(float(b[d ** 2] - chains[d ** 2]) - 2 * link) <= 2 * link_bound
     # unequal masses: e*d and the square are derived for b[2,1] (sections 4c, 4e)
     b = taylor_coefficients([Species(e, 2), Species(None)], {(0, 1): d}, (2, 1), "boson", 2)
     assert b[d ** 2].is_Rational and b[e * d].is_Rational

@@ -11,7 +11,7 @@ import sympy
 
 from clusterexp.errors import NotSupportedYet
 from clusterexp.routes import two_loop_table, two_species_link
-from clusterexp.routes.perturbative import Species, chain_part, numerical_coefficients, taylor_coefficients
+from clusterexp.routes.perturbative import Species, chain_part, taylor_coefficients
 
 E1, E2, D = sympy.symbols("e1 e2 d", real=True)
 
@@ -57,8 +57,8 @@ def test_an_infinitely_heavy_particle_is_a_static_flux(a, about):
     |n| = 9, offered since the twelfth session."""
     values = []
     for M in (40, 80):
-        numbers = numerical_coefficients([Species(E1, 1), Species(None, M)], {(0, 1): D}, (a, 1), about)
-        values.append(numbers[D ** 2][0] / M)
+        derived = taylor_coefficients([Species(E1, 1), Species(None, M)], {(0, 1): D}, (a, 1), about)
+        values.append(float(derived[D ** 2]) / M)
     limit = 2 * values[1] - values[0]
     assert abs(limit - _static_flux_square(a, about[0])) < 1e-4, (values, limit)
     assert abs(values[1] - _static_flux_square(a, about[0])) > 1e-3          # the extrapolation matters
@@ -82,13 +82,13 @@ def test_equal_masses_agree_with_the_table():
     """At equal masses the on-demand route (the vectorised engine at its coarser rules) gives the table's
     {3-cycle, loop} link squared (the same engine at a finer rule; the scalar engine, a separate code for
     the same integrals, agrees within 4e-7, and the table is checked on its own by the sampled loops),
-    within the bounds; and the package keeps using the table there."""
+    within the bounds; and the package's closed form (section 4k) agrees with the table too."""
     value, bound = two_species_link.link_squared_coefficient(3, 1, 2, 2)
     table, table_bound = two_loop_table.LINK[(3, 1)]
     assert abs(value / 2 - table) < table_bound + bound / 2
-    computed = numerical_coefficients([Species(E1, 2), Species(E2, 2)], {(0, 1): D}, (3, 1), "boson")
+    derived = taylor_coefficients([Species(E1, 2), Species(E2, 2)], {(0, 1): D}, (3, 1), "boson")[D ** 2]
     chains = chain_part([Species(E1, 2), Species(E2, 2)], {(0, 1): D}, (3, 1), "boson")[D ** 2]
-    assert computed[D ** 2] == (float(chains) + 2 * table, 2 * table_bound)
+    assert abs(float(derived) - (float(chains) + 2 * table)) <= 2 * table_bound
 
 
 def test_not_linear_in_the_masses():
@@ -104,8 +104,8 @@ def test_not_linear_in_the_masses():
 
 
 def test_beyond_the_reach_is_not_supported_yet():
-    """|n| > MAX_PARTICLES and mass ratios beyond FAR_RATIO raise NotSupportedYet (no silent guess);
-    numerical_coefficients then offers no number (the coefficient keeps its name)."""
+    """|n| > MAX_PARTICLES and mass ratios beyond FAR_RATIO raise NotSupportedYet in this quadrature route
+    (no silent guess; the package uses the closed form of section 4k instead)."""
     with pytest.raises(NotSupportedYet, match="not supported yet|computed on demand up to"):
         two_species_link.link_squared_coefficient(two_species_link.MAX_PARTICLES, 1, 2, 1)
     with pytest.raises(NotSupportedYet, match="mass ratio"):
@@ -114,11 +114,11 @@ def test_beyond_the_reach_is_not_supported_yet():
         two_species_link.link_squared_coefficient(3, 1, 1.5, 1)
 
 
-def test_the_command_line_shows_the_number_beside_the_name():
-    """b[2,2] of two Bose species of masses 1 and 2 with `expand nu about 0 to 2`: the d^2 coefficient
-    keeps its name and shows the computed number, the chains 3/2 plus the link squared 0.880807 (section
-    4j; bookkeeping: the number against this module's own value, whose outside checks are the tests
-    above and the sampled loops)."""
+def test_the_command_line_prints_the_closed_form():
+    """b[2,2] of two Bose species of masses 1 and 2 with `expand nu about 0 to 2`: the d^2 coefficient is
+    printed in closed form (section 4k), 9/4 + (sqrt 7/56) ln(8 + 3 sqrt 7), no name left; checked against
+    an independent route, the chains 3/2 plus the quadrature engine's link squared 0.880807 (section 4j),
+    within its bound."""
     import subprocess
     import sys
     text = ("dimension 2 parameter nu in [0, 1] species A bose species B mass 2 bose mutual A B = nu "
@@ -126,10 +126,14 @@ def test_the_command_line_shows_the_number_beside_the_name():
     out = subprocess.run([sys.executable, "-m", "clusterexp", "run", "-e", text, "--no-files"],
                          capture_output=True, text=True, timeout=300)
     assert out.returncode == 0, out.stderr
-    line = next(x for x in out.stdout.splitlines() if x.strip().startswith("b_2_2_nu_2_above = "))
+    line = next(x for x in out.stdout.splitlines() if x.strip().startswith("series in nu about 0"))
+    assert "through order 2 from the perturbative route" in line and "b_2_2_nu" not in out.stdout, line
+    nu = sympy.Symbol("nu")
+    series = sympy.sympify(line.split("): ", 1)[1].replace("+ O(nu**3)", ""), locals={"nu": nu})
+    square = sympy.expand(series).coeff(nu, 2)
+    assert sympy.simplify(square - (sympy.Rational(9, 4) + sympy.sqrt(7) / 56 * sympy.log(8 + 3 * sympy.sqrt(7)))) == 0
     value, bound = two_species_link.link_squared_coefficient(2, 2, 1, 2)
-    number = float(line.split("computed: ")[1].split(" +-")[0])
-    assert abs(number - (1.5 + value)) < 1e-6 and abs(value - 0.880807) < 1e-5, line
+    assert abs(float(square) - (1.5 + value)) < bound and abs(value - 0.880807) < 1e-5, (square, value, bound)
 
 
 def test_the_series_says_why_a_coefficient_has_no_number():

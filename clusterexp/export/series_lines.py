@@ -23,7 +23,7 @@ def about_point(piece) -> sympy.Expr:
     polynomial, variable, point = piece.polynomial, piece.variable, piece.point
     if getattr(piece, "variables", ()):
         return _about_joint_point(piece)
-    if (point == 0 and not piece.unknowns) or not polynomial.has(variable):
+    if (point == 0 and not piece.unknowns and _rational(piece)) or not polynomial.has(variable):
         return polynomial
     shift = sympy.Dummy("u")
     coefficients = sympy.Poly(sympy.expand(polynomial.subs(variable, shift + point)), shift).all_coeffs()[::-1]
@@ -38,7 +38,7 @@ def _about_joint_point(piece) -> sympy.Expr:
     """A joint series' polynomial in powers of the deviations (p - p0, q - q0, ...), lowest total
     degree first."""
     variables = [(v, p) for v, p, _ in piece.variables]
-    if all(p == 0 for _, p in variables) and not piece.unknowns:
+    if all(p == 0 for _, p in variables) and not piece.unknowns and _rational(piece):
         return piece.polynomial
     bases, powered = _in_powers(piece.polynomial, variables)
     terms = []
@@ -65,10 +65,17 @@ def series_value_text(piece) -> str:
     return f"{_ordered_text(about_point(piece), piece)} + {_remainder_text(piece)}"
 
 
+def _rational(piece) -> bool:
+    """Whether every number in the series' polynomial is rational (else its powers are grouped, so that a
+    closed-form coefficient with logarithms prints as one factor of its power)."""
+    return not any(a.is_number and not a.is_Rational for a in sympy.preorder_traversal(piece.polynomial)
+                   if isinstance(a, (sympy.log, sympy.Pow)) and not a.free_symbols)
+
+
 def _ordered_text(expr, piece) -> str:
     joint_at_zero = getattr(piece, "variables", ()) and all(p == 0 for _, p, _ in piece.variables)
-    if (piece.point == 0 and not piece.unknowns and not getattr(piece, "variables", ())) or joint_at_zero \
-            and not piece.unknowns or not isinstance(expr, sympy.Add):
+    if ((piece.point == 0 and not piece.unknowns and not getattr(piece, "variables", ())) or joint_at_zero
+            and not piece.unknowns) and _rational(piece) or not isinstance(expr, sympy.Add):
         return sympy.sstr(expr, order="lex")
     return _joined([sympy.sstr(term, order="lex") for term in expr.args])
 

@@ -103,7 +103,9 @@ def angle_area_coefficients(p: int, q: int, m_i=1, m_j=1, m_ref=1) -> tuple[symp
         # self pairs (u1, u2), u1 < u2 < own, at lag u2 - u1 = k: own - k of them; the other loop's q
         # (resp. p) passes around the link curves count the own loop's area that many times
         pairs = sum(((own - k) * self_pair_angle_area(own, k, diffusion) for k in range(1, own)), sympy.Integer(0))
-        value = sympy.nsimplify(sympy.simplify(-2 * sympy.pi * norm * other * pairs))
+        value = sympy.simplify(-2 * sympy.pi * norm * other * pairs)
+        if not value.is_Rational:   # (never on an exact Rational: it guesses surds for large ones)
+            value = sympy.nsimplify(value)
         if not value.is_Rational:
             raise NotSupportedYet(f"angle-area part {value} of {{{p}, {q}}} is not rational")
         out.append(value)

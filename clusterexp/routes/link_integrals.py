@@ -25,6 +25,7 @@ from functools import lru_cache
 import mpmath
 
 from ..errors import NotSupportedYet
+from .surd_logs import LogSum, Surd, canonical
 
 DIGITS = 40
 
@@ -38,18 +39,17 @@ def _sigma(x: int, period: int) -> Fraction:
 
 
 class _Arithmetic:
-    """The few operations the closed form needs: mpmath numbers (`NUMERIC`) or exact sympy (`_exact`)."""
+    """The few operations the closed form needs: mpmath numbers (`NUMERIC`) or exact surds and sums of
+    their logarithms (`EXACT`, module surd_logs)."""
 
-    def __init__(self, number, log, sqrt, absolute, exact: bool):
-        self.number, self.log, self.sqrt, self.abs, self.exact = number, log, sqrt, absolute, exact
-
-
-NUMERIC = _Arithmetic(_mp, mpmath.log, mpmath.sqrt, abs, False)
+    def __init__(self, number, log, sqrt, absolute):
+        self.number, self.log, self.sqrt, self.abs = number, log, sqrt, absolute
 
 
-def _exact() -> _Arithmetic:
-    import sympy
-    return _Arithmetic(lambda x: sympy.Rational(x.numerator, x.denominator), sympy.log, sympy.sqrt, sympy.Abs, True)
+NUMERIC = _Arithmetic(_mp, mpmath.log, mpmath.sqrt, abs)
+
+
+EXACT = _Arithmetic(Surd, LogSum.log, Surd.sqrt, abs)
 
 
 def _closed_form(p: int, q: int, dx: Fraction, dy: Fraction, ops: _Arithmetic):
@@ -80,11 +80,9 @@ def _closed_form(p: int, q: int, dx: Fraction, dy: Fraction, ops: _Arithmetic):
                 poles += pole_moment(rho2) / number(-b)                      # less 1/(D_rel u)
             else:
                 disc = ops.sqrt(number(b * b - 4 * a * c))
-                if ops.exact:                       # plain surds, which sympy simplifies
-                    rho1, rho2 = (-number(b) + disc) / number(2 * c), (-number(b) - disc) / number(2 * c)
-                else:                               # no cancellation (the small root of a heavy loop's pairs)
-                    half = -(number(b) + (disc if b >= 0 else -disc)) / 2
-                    rho1, rho2 = (number(a) / half, half / number(c)) if b >= 0 else (half / number(c), number(a) / half)
+                # no cancellation in floating point (the small root of a heavy loop's pairs)
+                half = -(number(b) + (disc if b >= 0 else -disc)) / 2
+                rho1, rho2 = (number(a) / half, half / number(c)) if b >= 0 else (half / number(c), number(a) / half)
                 poles += (pole_moment(rho2) - pole_moment(rho1)) / (number(c) * (rho2 - rho1))
             logs += log(number(-c)) / 2 + log_moment(rho1) + log_moment(rho2)
     area = -number(2 * dx / p + 2 * dy / q) * 2 * logs + 2 * number(drel) * log(number(drel))
@@ -147,10 +145,15 @@ def coefficient(p: int, q: int, m_i=1, m_j=1) -> tuple[float, float]:
 
 def exact_ratio(p: int, q: int, m_i=1, m_j=1):
     """r(p, q; m_i, m_j) as an exact sympy expression: a rational number plus rational multiples of
-    logarithms of quadratic surds (the same formulas as `ratio`, in exact arithmetic; docs 4k). E.g.
-    r(3, 1) = -2 + (sqrt(3)/12) ln(2 + sqrt(3)) at equal masses. Simplification takes about a second for
-    |n| <= 6 and grows with p q."""
-    import sympy
+    sqrt(D) ln u, u > 1 of norm +-1 in Q(sqrt D) (the same formulas as `ratio`, in exact surd arithmetic,
+    put in the canonical form of `surd_logs.canonical`; docs 4k). E.g. r(3, 1) = -2 + (sqrt(3)/12)
+    ln(2 + sqrt(3)) at equal masses. Milliseconds per cluster."""
     dx = _diffusion(p, q, m_i, m_j)
-    value = _closed_form(p, q, dx, 1 - dx, _exact())
-    return sympy.simplify(sympy.expand_log(sympy.expand(value), force=True))
+    return canonical(_closed_form(p, q, dx, 1 - dx, EXACT))
+
+
+def exact_coefficient(p: int, q: int, m_i=1, m_j=1):
+    """The exact sympy value of `coefficient`: -(m_i + m_j) r / (2 m_ref p q), m_ref = 1."""
+    import sympy
+    total = exact_mass(m_i, "m_i") + exact_mass(m_j, "m_j")
+    return sympy.expand(-sympy.Rational(total.numerator, total.denominator) / (2 * p * q) * exact_ratio(p, q, m_i, m_j))

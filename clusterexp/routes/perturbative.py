@@ -22,11 +22,11 @@ exchange, period 1 for mutual. The derivation is docs/perturbative.md; in short:
   n and any masses (section 4i, `angle_area`). Squares x^2 also get two-loop and one-loop clusters:
   derived for three particles of one species (b_3: the loop + 2-cycle from Sen's symmetry, the 3-cycle
   from its pairs; sections 4b, 4d) and for two particles of one species with one of another (b_{2,1}:
-  d_ij^2 for any masses; section 4e), otherwise not derived: `NotSupportedYet`, or named unknowns
-  with unknown="name" (computed numbers beside some of them: `numerical_coefficients`; for d_ij^2 of two
-  species the chains, exact for any masses, plus the link squared of the {n_i-cycle, n_j-cycle} cluster,
-  from the table at equal masses and by quadrature at the user's mass ratio otherwise, section 4j: it
-  is not linear in the masses).
+  d_ij^2 for any masses; section 4e) and for d_ij^2 of two species at every n and any masses (the
+  chains plus the link squared of the {n_i-cycle, n_j-cycle} cluster in closed form, section 4k: a
+  rational number plus rational multiples of sqrt(D) ln u, a sympy expression, not linear in the
+  masses); e_i^2 of one species for n >= 4 is not derived: `NotSupportedYet`, or a named unknown with
+  unknown="name" (a computed number beside it: `numerical_coefficients`).
 
 Monomials whose sign changes under the mirror image (every parameter -> minus itself; e.g. x,
 x*Abs(y), x*Abs(x)) vanish by that symmetry and are not listed.
@@ -261,6 +261,21 @@ def _beyond_the_chains_of_three(gas: _Gas, i: int) -> Fraction:
     return gas.sign[i] * gas.mass[i] / 2
 
 
+def _two_species_square(gas: _Gas, link: _Link, n):
+    """The d^2 coefficient of b_n of two species i, j (|n| >= 4) for the mutual link d = d_ij, exactly:
+    the chains of three loops plus the link squared of the cluster of the n_i-cycle of i with the
+    n_j-cycle of j in closed form (section 4k: a rational number plus rational multiples of sqrt(D) ln u,
+    `link_integrals.exact_coefficient`), signed by the cycles' transpositions about fermions. A sympy
+    expression."""
+    from .link_integrals import exact_coefficient
+    i, j = link.i, link.j
+    a, b = n[i], n[j]
+    sign = gas.sign[i] ** (a - 1) * gas.sign[j] ** (b - 1)
+    ring, landau = _chain(gas, link, link, n)
+    chains = ring + landau
+    return sympy.Rational(chains.numerator, chains.denominator) + sign * exact_coefficient(a, b, gas.mass[i], gas.mass[j])
+
+
 def _acts(link: _Link, n) -> bool:
     """Whether the link's parameter can enter b_n at all: an exchange needs two particles of its species."""
     return n[link.i] >= 2 if link.i == link.j else n[link.i] >= 1 and n[link.j] >= 1
@@ -282,6 +297,8 @@ def _second_order(gas: _Gas, p: _Link, q: _Link, n):
         if pair is not None:
             ring, landau = _chain(gas, p, p, n)
             return {x ** 2: ring + landau + pair}
+        if p.i != p.j:
+            return {x ** 2: _two_species_square(gas, p, n)}
         return {x ** 2: None}
     monomials = (sympy.Abs(x) * sympy.Abs(y), x * y)
     if not p.species & q.species or support != p.species | q.species or not (_acts(p, n) and _acts(q, n)):
@@ -309,8 +326,9 @@ def taylor_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int, i
     """Taylor coefficients of b_n through `order` in the statistics parameters about the base point.
 
     species: Species(exchange symbol or None, mass); mutual: {(i, j): symbol}, i < j; about: "boson" /
-    "fermion" (one word or one per species); order 0, 1 or 2. Returns {monomial: Rational} for every
-    mirror-even monomial of degree <= order (zeros included), in a fixed order. A coefficient that is not
+    "fermion" (one word or one per species); order 0, 1 or 2. Returns {monomial: exact value} for every
+    mirror-even monomial of degree <= order (zeros included), in a fixed order: Rationals, except d_ij^2
+    of two species at |n| >= 4 (logarithms of quadratic surds, section 4k). A coefficient that is not
     derived raises NotSupportedYet naming it, or becomes a named Symbol with unknown="name".
     """
     K = len(species)
@@ -338,12 +356,12 @@ def taylor_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int, i
                               f"not derived ({_HOW}); derived at "
                               "second order: two-particle b, b_3 of one species, products |x||y| of two different "
                               "parameters, products d_ij d_ik of two mutual parameters, products e_i d_ij (any n), "
-                              "and b with two particles of one species and one of another; computed as numbers "
-                              "beside the name (unknown='name', numerical_coefficients): e^2 in b_4 .. b_10 of one "
-                              "species (b_11 .. b_16 on demand), d_ij^2 in b of two species at every |n| and any "
-                              "masses (the link squared in closed form)")
+                              "and d_ij^2 in b of two species (any n and masses); computed as numbers beside the "
+                              "name (unknown='name', numerical_coefficients): e^2 in b_4 .. b_10 of one species "
+                              "(b_11 .. b_16 on demand)")
     label = "_".join(map(str, n))
-    return {m: (sympy.Symbol(f"t_b_{label}__{m}") if v is None else sympy.Rational(v.numerator, v.denominator))
+    return {m: (sympy.Symbol(f"t_b_{label}__{m}") if v is None
+                else sympy.Rational(v.numerator, v.denominator) if isinstance(v, Fraction) else v)
             for m, v in out.items()}
 
 
@@ -372,46 +390,15 @@ def _computed_square(gas: _Gas, link: _Link, n, gaps: list | None = None) -> tup
     return float(ring + landau) + gas.sign[i] ** n[i] * float(gas.mass[i]) * value, float(gas.mass[i]) * error
 
 
-def _computed_two_species(gas: _Gas, link: _Link, n, gaps: list | None = None) -> dict:
-    """For b_n of two species i, j and the mutual link d = d_ij (n_i + n_j >= 4): the coefficient of d^2,
-    the chains of three loops (exact, any masses) plus the link squared of the cluster of the n_i-cycle
-    of i with the n_j-cycle of j, signed by the cycles' transpositions about fermions. The link squared
-    is in closed form for every |n| and mass ratio (`link_integrals`, section 4k); at equal masses with
-    |n| <= 10 the quadrature table is read instead (`two_loop_table.two_species_cluster`, one species'
-    units, scaled by the ratio of the clusters' first orders: 2 when n_i = n_j, else 1; the closed form
-    agrees with it to 1e-12). {monomial: (value, error)}. (The e_i d and e_j d coefficients are exact for
-    any masses: `angle_area`, section 4i.)"""
-    from . import link_integrals
-    from .two_loop_table import two_species_cluster
-    i, j = link.i, link.j
-    a, b = n[i], n[j]
-    if link.i == link.j or sum(n) != a + b or a < 1 or b < 1:
-        return {}
-    sign = gas.sign[i] ** (a - 1) * gas.sign[j] ** (b - 1)
-    cluster = two_species_cluster(a, b) if gas.mass[i] == gas.mass[j] else None
-    if cluster is not None:
-        square, square_error = cluster[0]
-        scale = float(gas.mass[i]) * (2 if a == b else 1)
-    elif a + b < 4:
-        return {}                       # |n| = 3 is derived exactly (section 4e)
-    else:
-        square, square_error = link_integrals.coefficient(a, b, gas.mass[i], gas.mass[j])
-        scale = 1.0
-    ring, landau = _chain(gas, link, link, n)
-    return {link.symbol ** 2: (float(ring + landau) + sign * scale * square, scale * square_error)}
-
-
 def numerical_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int, int], sympy.Symbol],
                            multi_index: Sequence[int], about="boson", gaps: list | None = None) -> dict:
     """{monomial: (value, error bound)} for the second-order Taylor coefficients of b_n that are not
     derived in closed form but computed numerically: the square of the exchange parameter in b_n of
     one species (n = 4..two_loop_table.SINGLE_CYCLES_CHECKED from the table, beyond up to
     two_loop_demand.MAX_N assembled when asked: the clusters in closed form, the n-cycle alone by
-    quadrature, minutes, cached), and d_ij^2 in b_n of two species, |n| >= 4, any masses: the
-    chains plus the link squared in closed form (section 4k; at equal masses and |n| <= 10 the table's
-    quadrature values, which agree with it to 1e-12); empty where none is. The values are floats with
-    error bounds: the tool keeps the coefficient's name and shows the number beside it, never in place
-    of it."""
+    quadrature, minutes, cached); empty where none is. The values are floats with error bounds: the
+    tool keeps the coefficient's name and shows the number beside it, never in place of it. (d_ij^2 of
+    two species is derived in closed form, section 4k: `taylor_coefficients` gives it exactly.)"""
     K = len(species)
     gas = _Gas(species, _points(about, K))
     n = _index(multi_index, K)
@@ -421,7 +408,6 @@ def numerical_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int
         computed = _computed_square(gas, link, n, gaps)
         if computed is not None:
             out[link.symbol ** 2] = computed
-        out.update(_computed_two_species(gas, link, n, gaps))
     return out
 
 
