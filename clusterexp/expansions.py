@@ -199,11 +199,15 @@ def _at_point(label, exact, limits, symbol, point, known, system, span):
 def _polynomial_part(frozen, variables, known):
     """The Taylor polynomial through total degree `known` when the frozen value is a polynomial (with
     rational coefficients) in the variables and its other symbols: ring arithmetic, then a filter on the
-    total degree in the shifts. None when it is not such a polynomial."""
+    total degree in the shifts. Irrational numbers in the coefficients (the sqrt(D) ln u of the closed
+    forms, docs/perturbative.md 4k) are carried as generators of the ring and put back at the end. None
+    when it is not such a polynomial."""
     from sympy.polys.rings import ring
     from sympy import QQ
+    from .piece_taylor import carried
     shifts = [sympy.Dummy(f"u_{v.name}") for v, _, _ in variables]
-    shifted = frozen.xreplace({v: p + u for (v, p, _), u in zip(variables, shifts)})
+    numbers: dict = {}   # irrational numeric factors -> generators
+    shifted = carried(frozen, numbers).xreplace({v: p + u for (v, p, _), u in zip(variables, shifts)})
     others = sorted(shifted.free_symbols - set(shifts), key=lambda x: x.name)
     try:
         R, *gens = ring(shifts + others, QQ)
@@ -213,6 +217,7 @@ def _polynomial_part(frozen, variables, known):
     m = len(shifts)
     kept = R({monomial: c for monomial, c in element.items() if sum(monomial[:m]) <= known})
     back = {u: v - p for (v, p, _), u in zip(variables, shifts)}
+    back.update({g: number for number, g in numbers.items()})
     return sympy.expand(kept.as_expr().xreplace(back))
 
 

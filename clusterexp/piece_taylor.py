@@ -78,9 +78,13 @@ def tube_taylor(system, tube, deviation, mass, order, shifts, cycle=None):
 
 def in_shifts(terms, numbers, deviations, shifts):
     """The route's {monomial: value} in the expansion variables' shifts: ({powers: value} known,
-    the powers not derived, {powers: (value, error bound)} computed), or None where a |deviation| meets
-    a point the caller took for analytic."""
-    estimates, unestimated = {}, set()
+    the powers not derived, {powers: (value, error bound)} computed, {powers: (value, error bound) or
+    None} the named rests), or None where a |deviation| meets a point the caller took for analytic.
+    A value is a number, a named Symbol (not derived), or a number plus one named rest (a symbol ending
+    in perturbative.REST: the known part counts as known, the rest is named on its own, with its
+    number from `numbers` where there is one)."""
+    from .routes.perturbative import REST
+    estimates, unestimated, rests = {}, set(), {}
     polynomial, missing = sympy.Integer(0), set()
     for monomial, value in terms.items():
         if value == 0:
@@ -89,6 +93,18 @@ def in_shifts(terms, numbers, deviations, shifts):
             return None   # a kink the caller took for an analytic point
         term = monomial.replace(sympy.Abs, lambda x: deviations[x][1] * x)
         term = sympy.expand(term.xreplace({x: dev for x, (dev, _) in deviations.items()}))
+        rest = next((x for x in value.free_symbols if x.name.endswith(REST)), None)
+        if rest is not None:   # known but for a named rest
+            polynomial += (value - rest) * term
+            reached = sympy.Poly(term, *shifts)
+            for powers, c in zip(reached.monoms(), reached.coeffs()):
+                number = numbers.get(monomial)
+                share = None if number is None else (float(c) * number[0], abs(float(c)) * number[1])
+                if powers in rests:   # (two rests on one power: their numbers add, or none is known)
+                    before = rests[powers]
+                    share = None if before is None or share is None else (before[0] + share[0], before[1] + share[1])
+                rests[powers] = share
+            continue
         if isinstance(value, sympy.Symbol):   # not derived: every power it reaches stays unknown
             reached = sympy.Poly(term, *shifts)
             missing.update(reached.monoms())
@@ -106,7 +122,8 @@ def in_shifts(terms, numbers, deviations, shifts):
     # a power is estimated only when every coefficient that reaches it is; the known part adds exactly
     estimates = {powers: (value + float(polynomial.coeff_monomial(powers)), error)
                  for powers, (value, error) in estimates.items() if powers not in unestimated}
-    return known, frozenset(missing), estimates
+    rests = {powers: share for powers, share in rests.items() if powers not in missing}
+    return known, frozenset(missing), estimates, rests
 
 
 def coverage_part_at(system, root, power: int, point, value_of_root):
@@ -152,3 +169,33 @@ def line_coefficient(line, rest):
         return None
     poly = sympy.Poly(shifted, *shifts.values())
     return sympy.expand(poly.coeff_monomial(sympy.Mul(*(shifts[v] ** e for v, _, e, _ in rest))))
+
+
+def expanded(expr: sympy.Expr) -> sympy.Expr:
+    """sympy.expand(expr), by ring arithmetic over QQ in its symbols where expr is a polynomial in them
+    with rational coefficients (many times faster for the virial coefficients' products of pieces)."""
+    from sympy.polys.rings import ring
+    symbols = sorted(expr.free_symbols, key=lambda x: x.name)
+    if symbols:
+        try:
+            R, *_ = ring(symbols, sympy.QQ)
+            return R(expr).as_expr()
+        except Exception:  # noqa: BLE001 - not a polynomial over QQ in its symbols: sympy's expand
+            pass
+    return sympy.expand(expr)
+
+
+def carried(coefficient, numbers: dict) -> sympy.Expr:
+    """`coefficient` with each irrational numeric factor of its terms (sqrt(3), log(2 + sqrt(3)): the closed
+    forms of docs/perturbative.md 4k) replaced by a symbol from `numbers` (filled here): sympy expands
+    products of such numbers slowly, so they are put back only after the expansion."""
+    coefficient = sympy.sympify(coefficient)
+    if coefficient.is_Rational:
+        return coefficient
+    coefficient = sympy.expand(coefficient)
+    for term in sympy.Add.make_args(coefficient):
+        for factor in sympy.Mul.make_args(term):
+            if factor.is_number and not factor.is_Rational:
+                numbers.setdefault(factor, sympy.Dummy("number"))
+    return coefficient.xreplace(numbers)
+

@@ -28,7 +28,7 @@ import sympy
 
 from .naming import bracket_label
 from .piece_taylor import deviation as deviation_of
-from .piece_taylor import in_shifts, line_coefficient, tube_taylor
+from .piece_taylor import carried, expanded, in_shifts, line_coefficient, tube_taylor
 
 _PIECE = re.compile(r"^([ab])_(\d+(?:_\d+)*)$")
 SIDE_SIGNS = {"above": "+", "below": "-"}
@@ -43,14 +43,15 @@ class Unknown:
     piece: sympy.Symbol
     monomial: tuple[tuple[sympy.Symbol, sympy.Expr, int, str | None], ...]  # (variable, point, power, side)
     estimate: tuple[float, float] | None = None  # (value, error bound) where computed numerically, not closed
+    rest: str | None = None  # the words for a named rest: the one part of the coefficient not derived
 
     @property
     def estimate_text(self) -> str | None:
         """E.g. `computed: 4.359161 +- 3e-6 (numbers: quadrature or the closed form ...)`, or None."""
         if self.estimate is None:
             return None
-        from .routes.two_loop_table import SOURCE
-        return f"computed: {format_estimate(*self.estimate)} ({SOURCE})"
+        from .routes.two_loop_table import REST_SOURCE, SOURCE
+        return f"computed: {format_estimate(*self.estimate)} ({REST_SOURCE if self.rest else SOURCE})"
 
     @property
     def description(self) -> str:
@@ -58,6 +59,8 @@ class Unknown:
         powers = " ".join(_power_text(v, p, k) for v, p, k, _ in self.monomial if k)
         where = ", ".join(f"{v} = {p}" + (f" from {s}" if s and k else "") for v, p, k, s in self.monomial)
         what = piece_label(self.piece)
+        if self.rest:
+            return f"part of the coefficient of {powers} in {what} about {where} not in closed form: {self.rest}"
         return f"coefficient of {powers} in {what} about {where}" if powers else f"value of {what} at {where}"
 
     def latex(self, names: Mapping | None = None) -> str:
@@ -75,7 +78,8 @@ class Unknown:
             where = ",".join(f"{sympy.latex(v, symbol_names=names)}={sympy.latex(p)}" for v, p, _, _ in self.monomial)
             return rf"\left.{base}\right|_{{{where}}}"
         signs = "".join(SIDE_SIGNS[s] for _, _, k, s in self.monomial if s and k)
-        return rf"{{{base}}}^{{[{' '.join(factors)}]{signs}}}"
+        rest = r"_{\mathrm{rest}}" if self.rest else ""
+        return rf"{{{base}}}^{{[{' '.join(factors)}]{signs}}}{rest}"
 
     def latex_description(self, names: Mapping | None = None) -> str:
         """The description with the symbols typeset (for the LaTeX document)."""
@@ -282,6 +286,7 @@ def expand_pieces(system, value: sympy.Expr, variables: Sequence[tuple[sympy.Sym
     K = len(system.species)
     unknowns: list[Unknown] = []
     replacements = {}
+    numbers: dict = {}   # the irrational numbers of derived coefficients -> symbols while expanding (fast)
     for piece in pieces_in(value, K):
         own = depends_on(system, piece)
         used = [(v, p, k, s if kinked(system, piece, v, p) else None) for v, p, k, s in variables if v in own]
@@ -292,8 +297,10 @@ def expand_pieces(system, value: sympy.Expr, variables: Sequence[tuple[sympy.Sym
                 raise ValueError(f"{piece_label(piece)} is not analytic at {v} = {p}")
         polynomial = sympy.Integer(0)
         derived = derived_taylor(system, piece, used)
+        rests = derived[5] if derived is not None and len(derived) > 5 else {}
         if derived is not None and derived[1] >= 1 and notes is not None:
-            reach = f"{derived[1] - 1}, partly {derived[1]}," if derived[2] else f"{derived[1]}"
+            reach = f"{derived[1] - 1}, partly {derived[1]}," if derived[2] else \
+                f"{derived[1]} (but for a named rest)" if rests else f"{derived[1]}"
             source = "docs/tubes.md" if system.tubes is not None and (_tube_piece(piece) or (coverage_power(
                 system, piece) or 0) >= 1) \
                 else "docs/perturbative.md"
@@ -307,7 +314,15 @@ def expand_pieces(system, value: sympy.Expr, variables: Sequence[tuple[sympy.Sym
                 if line is not None and not pieces_in(line, K):
                     coefficient = line_coefficient(line, [(v, p, e, s) for (v, p, _, s), e in zip(used, powers) if e])
             if derived is not None and sum(powers) <= derived[1] and powers not in derived[2]:
-                coefficient = derived[0].get(powers, sympy.Integer(0))
+                coefficient = carried(derived[0].get(powers, sympy.Integer(0)), numbers)
+                if powers in rests:   # known but for a part that is computed, not derived: named apart
+                    estimate, words = rests[powers]
+                    rest = Unknown(sympy.Symbol(_name(piece, monomial) + "_rest"), piece, monomial, estimate, words)
+                    _NAMED.setdefault(rest.symbol.name, dataclasses.replace(rest, estimate=None))
+                    if estimate is not None:
+                        _ESTIMATES[(system, rest.symbol.name)] = estimate
+                    unknowns.append(rest)
+                    coefficient += rest.symbol
             if coefficient is None:
                 estimate = derived[3].get(powers) if derived is not None else None
                 unknown = Unknown(sympy.Symbol(_name(piece, monomial)), piece, monomial, estimate)
@@ -320,7 +335,8 @@ def expand_pieces(system, value: sympy.Expr, variables: Sequence[tuple[sympy.Sym
         replacements[piece] = polynomial
     if not replacements:
         return value, []
-    return sympy.expand(sympy.sympify(value).xreplace(replacements)), unknowns
+    back = {symbol: number for number, symbol in numbers.items()}
+    return expanded(sympy.sympify(value).xreplace(replacements)).xreplace(back), unknowns
 
 
 def value_at(system, piece: sympy.Symbol, point: Mapping) -> sympy.Expr | None:
@@ -365,19 +381,21 @@ def _coverage_part_at(system, piece: sympy.Symbol, point: Mapping) -> sympy.Expr
                             value_at)
 
 
-def derived_taylor(system, piece: sympy.Symbol, used) -> tuple[dict, int, frozenset, dict] | None:
+def derived_taylor(system, piece: sympy.Symbol, used) -> tuple | None:
     """The Taylor coefficients of a cluster piece that the perturbative route derives
     (`routes.perturbative`, docs/perturbative.md), as ({powers of (v - v0) per used variable: value},
-    the total order through which the route was asked, the powers it could not derive there, and
-    {power: (value, error bound)} for those of them computed numerically), or None
-    where it does not apply: every pair
+    the total order through which the route was asked, the powers it could not derive there,
+    {power: (value, error bound)} for those of them computed numerically, the reasons why a computed
+    number is missing, and {power: ((value, error bound) or None, words)}: the named rest of a power whose
+    value is known but for one part that is computed, not derived), or None where it does not apply
+    (the tube pieces: the first four only): every pair
     phase of the piece's species must sit at a boson or fermion point (mutual: an integer) at the
     expansion point, each deviation linear in one expansion variable, masses rational. Among tubes: the
     value at zero coverage of a b piece (the tube-free piece), and the tube pieces themselves about an
     integer flux (`routes.tube_perturbative`, docs/tubes.md)."""
     from .routes import regime_of
     from .routes.perturbative import Species as Perturbed
-    from .routes.perturbative import numerical_coefficients, taylor_coefficients
+    from .routes.perturbative import numerical_coefficients, rest_words, taylor_coefficients
     if not regime_of(system).named_pieces:
         return None
     tube = _tube_piece(piece) if system.tubes is not None and piece.name not in _NAMED else None
@@ -449,7 +467,10 @@ def derived_taylor(system, piece: sympy.Symbol, used) -> tuple[dict, int, frozen
     found = in_shifts(terms, numbers, deviations, shifts)
     for symbol, expr in words.items():   # the gaps in the user's words
         gaps = [g.replace(f"{symbol}^2", f"({expr})^2") for g in gaps]
-    return None if found is None else (found[0], order, found[1], found[2], gaps)
+    if found is None:
+        return None
+    rests = {powers: (share, rest_words(sum(index))) for powers, share in found[3].items()}
+    return found[0], order, found[1], found[2], gaps, rests
 
 
 def side_in_range(parameters: Iterable, symbol: sympy.Symbol, point) -> str | None:

@@ -52,7 +52,10 @@ def test_third_virial_series_from_the_perturbative_route_and_a4_names_b4():
     -2 alpha); now b_3 comes from the perturbative route through alpha^2 (docs/perturbative.md, 4d) and
     both sides give the published a_3 = 1/36 + alpha^2/12 (Myrheim & Olaussen 1993; even in alpha) with
     nothing named. b_4's alpha^2 coefficient is not derived: a_4's series names it per side, and the
-    value that makes a_4 vanish at second order is the textbook relation's."""
+    value that makes a_4 vanish at second order is the textbook relation's. Since section 4k the coefficient
+    is a closed form plus a named rest (the 4-cycle alone beyond its ring part): the rest is what a_4 then
+    names per side, and the closed form, 35/8 - (sqrt 3/144) ln(2 + sqrt 3), plus the rest is the textbook
+    value."""
     d = clusterexp.derive(ANYONS.replace("up to 3", "up to 4") + "expand alpha about 0 to 2 from both")
     above, below = _series(d, "virial", (3,))
     assert (above.side, below.side) == ("above", "below")
@@ -62,42 +65,46 @@ def test_third_virial_series_from_the_perturbative_route_and_a4_names_b4():
         assert sympy.expand(piece.polynomial - (sympy.Rational(1, 36) + piece.variable ** 2 / 12)) == 0
     above, below = _series(d, "virial", (4,))
     a, b = _named(above), _named(below)
-    assert set(a) == {"b_4_alpha_2_above"} and set(b) == {"b_4_alpha_2_below"}
-    root = _a4_condition(0)
-    for piece, name in ((above, a["b_4_alpha_2_above"]), (below, b["b_4_alpha_2_below"])):
-        assert sympy.expand(piece.polynomial.subs(name, root)) == 0
+    assert set(a) == {"b_4_alpha_2_above_rest"} and set(b) == {"b_4_alpha_2_below_rest"}
+    closed = sympy.Rational(35, 8) - sympy.sqrt(3) / 144 * sympy.log(2 + sympy.sqrt(3))
+    root = _a4_condition(0) - closed
+    for piece, name in ((above, a["b_4_alpha_2_above_rest"]), (below, b["b_4_alpha_2_below_rest"])):
+        assert sympy.simplify(piece.polynomial.subs(name, root)) == 0
 
 
 def test_third_virial_series_near_fermions():
     """About alpha = 1 (analytic): the route gives b_3 = 1/9 - (13/24)(alpha - 1)^2, so a_3 = 1/36 +
     (1 - alpha)^2/12 [published: Myrheim & Olaussen 1993; Sen, Phys. Rev. Lett. 68 (1992) 2977], with
     b_2 = -1/4 + (alpha - 1)^2/2 and b_3(1) the ideal Fermi 1/9 [published: Viefers, Ravndal, Haugset,
-    Am. J. Phys. 63 (1995) 369]. a_4 names b_4's second coefficient only (no first order about fermions)."""
+    Am. J. Phys. 63 (1995) 369]. a_4 names only the rest of b_4's second coefficient (no first order about
+    fermions; the rest is the 4-cycle alone beyond its ring part, docs 4k)."""
     d = clusterexp.derive(ANYONS.replace("up to 3", "up to 4") + "expand alpha about 1 to 2")
     (piece,) = _series(d, "virial", (3,))
     assert piece.side is None and not piece.kink and not piece.unknowns
     assert sympy.expand(piece.polynomial - (sympy.Rational(1, 36) + (1 - piece.variable) ** 2 / 12)) == 0
     (piece,) = _series(d, "virial", (4,))
-    assert set(_named(piece)) == {"b_4_alpha_2_about_1"}
+    assert set(_named(piece)) == {"b_4_alpha_2_about_1_rest"}
     record = json.loads(to_json(d))
     (a4,) = [c for c in record["coefficients"] if c["kind"] == "virial" and c["index"] == [4]]
-    assert a4["series"][0]["unknowns"] == ["b_4_alpha_2_about_1"]
-    assert set(record["unknowns"]) == {"b_4_alpha_2_about_1"}
-    assert "b[4]" in record["unknowns"]["b_4_alpha_2_about_1"]
+    assert a4["series"][0]["unknowns"] == ["b_4_alpha_2_about_1_rest"]
+    assert set(record["unknowns"]) == {"b_4_alpha_2_about_1_rest"}
+    assert "b[4]" in record["unknowns"]["b_4_alpha_2_about_1_rest"]
 
 
 def test_a_named_piece_alone_gets_its_series():
     """b[4] = b_4 has no visible alpha, but it is a function of alpha: its series is printed, with the
     first order b_4^(1) = -(2/4) H_3 = -11/12 [derived from Dasnieres de Veigy & Ouvry 1992, physics.md
-    section 5] and the ideal Bose 1/16, and the alpha^2 coefficient named."""
+    section 5] and the ideal Bose 1/16, and the alpha^2 coefficient in closed form plus its named rest
+    (docs 4k)."""
     d = clusterexp.derive("dimension 2 parameter alpha species A exchange alpha clusters pairphase "
                           "derive cluster up to 4 expand alpha about 0 to 2 from above")
     (piece,) = _series(d, "cluster", (4,))
-    b42 = _named(piece)["b_4_alpha_2_above"]
+    b42 = _named(piece)["b_4_alpha_2_above_rest"]
     x = piece.variable
-    assert sympy.expand(piece.polynomial - (sympy.Rational(1, 16) - sympy.Rational(11, 12) * x + b42 * x ** 2)) == 0
+    closed = sympy.Rational(35, 8) - sympy.sqrt(3) / 144 * sympy.log(2 + sympy.sqrt(3))
+    assert sympy.expand(piece.polynomial - (sympy.Rational(1, 16) - sympy.Rational(11, 12) * x + (closed + b42) * x ** 2)) == 0
     text = to_text(d)
-    assert "b_4_alpha_2_above = coefficient of alpha^2 in b[4] about alpha = 0 from above" in text
+    assert "b_4_alpha_2_above_rest = part of the coefficient of alpha^2 in b[4] about alpha = 0 from above" in text
     (b3,) = _series(d, "cluster", (3,))
     assert sympy.expand(b3.polynomial - (sympy.Rational(1, 9) - x + sympy.Rational(59, 24) * x ** 2)) == 0
 
@@ -105,8 +112,10 @@ def test_a_named_piece_alone_gets_its_series():
 def test_published_third_virial_coefficient_is_proven_and_a4_claim_is_decided_with_the_condition():
     """The published a_3 = 1/36 + alpha^2/12 + O(alpha^3) (Myrheim & Olaussen 1993) is proven by the
     derived b_3; a claimed a_4 = alpha^2/16 + O(alpha^3) holds exactly when b_4's alpha^2 coefficient takes
-    the value the textbook relation gives (35/8), which the check states; the computed coefficient
-    (docs/perturbative.md section 4h, 4.35916, checked by sampled loops in section 4g) refutes it."""
+    the value the textbook relation gives (35/8), which the check states for the named rest of that
+    coefficient (its closed form is 35/8 - (sqrt 3/144) ln(2 + sqrt 3), docs 4k, so the rest would have to be
+    (sqrt 3/144) ln(2 + sqrt 3) = 0.0091); the computed rest (0 +- 2e-9, docs 4h; the whole coefficient
+    4.35916 is checked by sampled loops in section 4g) refutes it."""
     d = clusterexp.derive("dimension 2 parameter alpha in [0, 1] species A exchange alpha clusters pairphase "
                           "derive virial up to 4 claim a[3] = 1/36 + alpha^2/12 + O(alpha^3) "
                           "claim a[4] = alpha^2/16 + O(alpha^3)")
@@ -114,7 +123,9 @@ def test_published_third_virial_coefficient_is_proven_and_a4_claim_is_decided_wi
     assert third.status == "proven"
     assert fourth.status == "mismatch" and not fourth.ok and "error bounds away" in fourth.method
     solved = {e.lhs.name: e.rhs for e in fourth.conditions}
-    assert solved == {"b_4_alpha_2_above": _a4_condition(sympy.Rational(1, 16))}
+    closed = sympy.Rational(35, 8) - sympy.sqrt(3) / 144 * sympy.log(2 + sympy.sqrt(3))
+    assert set(solved) == {"b_4_alpha_2_above_rest"}
+    assert sympy.simplify(solved["b_4_alpha_2_above_rest"] - (_a4_condition(sympy.Rational(1, 16)) - closed)) == 0
     (wrong,) = clusterexp.derive("dimension 2 parameter alpha in [0, 1] species A exchange alpha clusters "
                                  "pairphase derive virial up to 3 claim a[3] = 1/36 + alpha^2/10 + O(alpha^3)").checks
     assert wrong.status == "mismatch"

@@ -148,7 +148,11 @@ def exact_ratio(p: int, q: int, m_i=1, m_j=1):
     sqrt(D) ln u, u > 1 of norm +-1 in Q(sqrt D) (the same formulas as `ratio`, in exact surd arithmetic,
     put in the canonical form of `surd_logs.canonical`; docs 4k). E.g. r(3, 1) = -2 + (sqrt(3)/12)
     ln(2 + sqrt(3)) at equal masses. Milliseconds per cluster."""
-    dx = _diffusion(p, q, m_i, m_j)
+    return _exact_ratio(p, q, _diffusion(p, q, m_i, m_j))
+
+
+@lru_cache(maxsize=4096)
+def _exact_ratio(p: int, q: int, dx: Fraction):
     return canonical(_closed_form(p, q, dx, 1 - dx, EXACT))
 
 

@@ -25,8 +25,10 @@ exchange, period 1 for mutual. The derivation is docs/perturbative.md; in short:
   d_ij^2 for any masses; section 4e) and for d_ij^2 of two species at every n and any masses (the
   chains plus the link squared of the {n_i-cycle, n_j-cycle} cluster in closed form, section 4k: a
   rational number plus rational multiples of sqrt(D) ln u, a sympy expression, not linear in the
-  masses); e_i^2 of one species for n >= 4 is not derived: `NotSupportedYet`, or a named unknown with
-  unknown="name" (a computed number beside it: `numerical_coefficients`).
+  masses). e_i^2 of one species for n >= 4 is exact (the chains and every two-loop cluster in closed
+  form) but for one part, the n-cycle alone beyond its ring part (zero to 1e-10 through n = 16, computed,
+  not derived): `NotSupportedYet`, or with unknown="name" the exact part plus a named rest (a symbol
+  ending in REST; its computed number: `numerical_coefficients`).
 
 Monomials whose sign changes under the mirror image (every parameter -> minus itself; e.g. x,
 x*Abs(y), x*Abs(x)) vanish by that symmetry and are not listed.
@@ -276,12 +278,46 @@ def _two_species_square(gas: _Gas, link: _Link, n):
     return sympy.Rational(chains.numerator, chains.denominator) + sign * exact_coefficient(a, b, gas.mass[i], gas.mass[j])
 
 
+REST = "__rest"   # the end of a named rest's symbol (taylor_coefficients with unknown="name")
+
+
+@dataclass(frozen=True)
+class _Partial:
+    """A Taylor coefficient known exactly but for one part that is computed, not derived: `known` plus the
+    rest, which taylor_coefficients names (a symbol ending in REST) and numerical_coefficients evaluates."""
+
+    known: sympy.Expr
+
+
+def rest_words(n: int) -> str:
+    """What the named rest of the e^2 coefficient of b_n of one species is, in words."""
+    return f"the {n}-cycle alone beyond its ring part"
+
+
+def _one_species_square(gas: _Gas, link: _Link, n) -> _Partial:
+    """The e^2 coefficient of b_n of one species i, n_i >= 4: the chains of three loops (with the
+    n-cycle's ring part) plus every two-loop cluster {p-cycle, q-cycle}, p + q = n_i, exactly (the link
+    squared in closed form, section 4k, and the angle-area parts, 4i; one species' units: a cluster with
+    p = q counts half), signed (-1)^n_i about fermions and times m_i/m_ref; the rest, the n-cycle alone
+    beyond its ring part, is computed (`two_loop_demand.cycle_rest`)."""
+    from .angle_area import one_species_units
+    from .link_integrals import exact_coefficient
+    i = link.i
+    k = n[i]
+    ring, landau = _chain(gas, link, link, n)
+    clusters = sum((exact_coefficient(p, k - p) / (2 if 2 * p == k else 1) + sum(one_species_units(p, k - p))
+                    for p in range((k + 1) // 2, k)), sympy.Integer(0))
+    mass = sympy.Rational(gas.mass[i].numerator, gas.mass[i].denominator)
+    chains = sympy.Rational((ring + landau).numerator, (ring + landau).denominator)
+    return _Partial(sympy.expand(chains + gas.sign[i] ** k * mass * clusters))
+
+
 def _acts(link: _Link, n) -> bool:
     """Whether the link's parameter can enter b_n at all: an exchange needs two particles of its species."""
     return n[link.i] >= 2 if link.i == link.j else n[link.i] >= 1 and n[link.j] >= 1
 
 
-def _second_order(gas: _Gas, p: _Link, q: _Link, n):
+def _second_order(gas: _Gas, p: _Link, q: _Link, n, closed_forms: bool = True):
     """{monomial: value or None (not derived)} for the second-order monomials of the link pair (p, q)."""
     x, y = p.symbol, q.symbol
     support = frozenset(i for i, v in enumerate(n) if v)
@@ -297,9 +333,11 @@ def _second_order(gas: _Gas, p: _Link, q: _Link, n):
         if pair is not None:
             ring, landau = _chain(gas, p, p, n)
             return {x ** 2: ring + landau + pair}
+        if not closed_forms:
+            return {x ** 2: None}
         if p.i != p.j:
             return {x ** 2: _two_species_square(gas, p, n)}
-        return {x ** 2: None}
+        return {x ** 2: _one_species_square(gas, p, n)}
     monomials = (sympy.Abs(x) * sympy.Abs(y), x * y)
     if not p.species & q.species or support != p.species | q.species or not (_acts(p, n) and _acts(q, n)):
         return dict.fromkeys(monomials, Fraction(0))
@@ -322,11 +360,13 @@ def _second_order(gas: _Gas, p: _Link, q: _Link, n):
 
 def taylor_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int, int], sympy.Symbol],
                         multi_index: Sequence[int], about="boson", order: int = 2,
-                        unknown: str = "raise") -> dict:
+                        unknown: str = "raise", closed_forms: bool = True) -> dict:
     """Taylor coefficients of b_n through `order` in the statistics parameters about the base point.
 
     species: Species(exchange symbol or None, mass); mutual: {(i, j): symbol}, i < j; about: "boson" /
-    "fermion" (one word or one per species); order 0, 1 or 2. Returns {monomial: exact value} for every
+    "fermion" (one word or one per species); order 0, 1 or 2; closed_forms=False treats the squares that
+    need the closed forms of section 4k (d_ij^2 and e_i^2 at |n| >= 4) as not derived (the tube route's
+    static limits need only rational coefficients). Returns {monomial: exact value} for every
     mirror-even monomial of degree <= order (zeros included), in a fixed order: Rationals, except d_ij^2
     of two species at |n| >= 4 (logarithms of quadratic surds, section 4k). A coefficient that is not
     derived raises NotSupportedYet naming it, or becomes a named Symbol with unknown="name".
@@ -348,64 +388,57 @@ def taylor_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int, i
             out[sympy.Abs(link.symbol)] = _first_order(gas, link, n)
     if order >= 2:
         for p, q in combinations_with_replacement(links, 2):
-            out.update(_second_order(gas, p, q, n))
-    missing = [m for m, v in out.items() if v is None]
+            out.update(_second_order(gas, p, q, n, closed_forms))
+    missing = [m for m, v in out.items() if v is None or isinstance(v, _Partial)]
     if missing and unknown == "raise":
         listed = ", ".join(str(m) for m in missing)
         raise NotSupportedYet(f"second-order Taylor coefficients of b[{','.join(map(str, n))}] in {listed}: "
                               f"not derived ({_HOW}); derived at "
                               "second order: two-particle b, b_3 of one species, products |x||y| of two different "
                               "parameters, products d_ij d_ik of two mutual parameters, products e_i d_ij (any n), "
-                              "and d_ij^2 in b of two species (any n and masses); computed as numbers beside the "
-                              "name (unknown='name', numerical_coefficients): e^2 in b_4 .. b_10 of one species "
-                              "(b_11 .. b_16 on demand)")
+                              "and d_ij^2 in b of two species (any n and masses); e^2 in b_n of one species, n >= 4, "
+                              "is exact but for the n-cycle alone beyond its ring part, which unknown='name' names "
+                              "(numerical_coefficients: its number, n <= 10 measured, 11 .. 16 on demand)")
     label = "_".join(map(str, n))
     return {m: (sympy.Symbol(f"t_b_{label}__{m}") if v is None
+                else v.known + sympy.Symbol(f"t_b_{label}__{m}{REST}") if isinstance(v, _Partial)
                 else sympy.Rational(v.numerator, v.denominator) if isinstance(v, Fraction) else v)
             for m, v in out.items()}
 
 
-def _computed_square(gas: _Gas, link: _Link, n, gaps: list | None = None) -> tuple[float, float] | None:
-    """(value, error bound) of e_i^2 in b_n of one species i with n >= 4 particles: the chains of three
-    loops (exact) plus the two-loop clusters beyond them, computed by quadrature (`two_loop_table` through
-    its SINGLE_CYCLES_CHECKED, `two_loop_demand` beyond, minutes and cached; their sign about fermions is
-    (-1)^n), times m_i/m_ref; None where neither reaches (the reason appended to `gaps`)."""
-    from .two_loop_demand import beyond_on_demand
-    from .two_loop_table import SINGLE_CYCLES_CHECKED, beyond_the_chains
+def _computed_rest(gas: _Gas, link: _Link, n, gaps: list | None = None) -> tuple[float, float] | None:
+    """(value, error bound) of the named rest of e_i^2 in b_n of one species i with n >= 4 particles (the
+    n-cycle alone beyond its ring part, `two_loop_demand.cycle_rest`: measured for n <= 10, computed on
+    demand up to MAX_N, minutes and cached), signed (-1)^n about fermions, times m_i/m_ref; None where it
+    is not reached (the reason appended to `gaps`)."""
+    from .two_loop_demand import cycle_rest
     i = link.i
     if link.i != link.j or sum(n) != n[i] or n[i] < 4:
         return None
-    found = beyond_the_chains(n[i])
-    if found is None and n[i] > SINGLE_CYCLES_CHECKED:
-        try:
-            found = beyond_on_demand(n[i])
-        except NotSupportedYet as why:
-            if gaps is not None:   # said beside the name: why it has no number
-                gaps.append(f"no number for the coefficient of {link.symbol}^2 ({why})")
-            return None
-    if found is None:
+    try:
+        value, error = cycle_rest(n[i])
+    except NotSupportedYet as why:
+        if gaps is not None:   # said beside the name: why it has no number
+            gaps.append(f"no number for the coefficient of {link.symbol}^2 ({why})")
         return None
-    ring, landau = _chain(gas, link, link, n)
-    value, error = found
-    return float(ring + landau) + gas.sign[i] ** n[i] * float(gas.mass[i]) * value, float(gas.mass[i]) * error
+    return gas.sign[i] ** n[i] * float(gas.mass[i]) * value, float(gas.mass[i]) * error
 
 
 def numerical_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int, int], sympy.Symbol],
                            multi_index: Sequence[int], about="boson", gaps: list | None = None) -> dict:
-    """{monomial: (value, error bound)} for the second-order Taylor coefficients of b_n that are not
-    derived in closed form but computed numerically: the square of the exchange parameter in b_n of
-    one species (n = 4..two_loop_table.SINGLE_CYCLES_CHECKED from the table, beyond up to
-    two_loop_demand.MAX_N assembled when asked: the clusters in closed form, the n-cycle alone by
-    quadrature, minutes, cached); empty where none is. The values are floats with error bounds: the
-    tool keeps the coefficient's name and shows the number beside it, never in place of it. (d_ij^2 of
-    two species is derived in closed form, section 4k: `taylor_coefficients` gives it exactly.)"""
+    """{monomial: (value, error bound)} of the named rests of `taylor_coefficients` (unknown="name"): for
+    the square of the exchange parameter in b_n of one species, n >= 4, the n-cycle alone beyond its ring
+    part (measured for n <= two_loop_table.SINGLE_CYCLES_CHECKED, computed when asked up to
+    two_loop_demand.MAX_N: quadrature, minutes, cached); empty where none is. The values are floats with
+    error bounds: the tool keeps the rest's name and shows the number beside it, never in place of it.
+    (Every other second-order coefficient that is derived is exact.)"""
     K = len(species)
     gas = _Gas(species, _points(about, K))
     n = _index(multi_index, K)
     links = _links(species, mutual)
     out = {}
     for link in links:
-        computed = _computed_square(gas, link, n, gaps)
+        computed = _computed_rest(gas, link, n, gaps)
         if computed is not None:
             out[link.symbol ** 2] = computed
     return out

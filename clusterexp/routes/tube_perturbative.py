@@ -55,8 +55,10 @@ def _heavy(kind: str, M: int, about, masses, cycle, tubes: int = 1) -> dict:
         scale = sympy.Rational(2) * sympy.Rational(masses[0]) / M ** 2
     elif kind == "anyon":
         species = [Species(EXCHANGE, masses[0]), Species(None, M)]
-        terms = taylor_coefficients(species, {(0, 1): g[0]}, (cycle, 1), (about, "boson"), 2, unknown="name")
-        if not terms[g[0] ** 2].is_Rational:   # named, or the closed form (section 4k): its static limit
+        terms = taylor_coefficients(species, {(0, 1): g[0]}, (cycle, 1), (about, "boson"), 2, unknown="name",
+                                    closed_forms=False)
+        if isinstance(terms[g[0] ** 2], sympy.Symbol):   # not derived at finite M (or the closed form of
+            # section 4k, not a polynomial in 1/M): its static limit
             sign = 1 if about == "boson" else (-1) ** (cycle + 1)
             chains = chain_part(species, {(0, 1): g[0]}, (cycle, 1), (about, "boson"))[g[0] ** 2]
             terms[g[0] ** 2] = chains + sign * sympy.Rational(M, 2 * cycle)
@@ -89,9 +91,9 @@ def _two_tubes(kind: str, M: int, about, masses, cycle, g) -> dict:
         species = [Species(EXCHANGE if a >= 2 else None, masses[0]),
                    Species(EXCHANGE_B if b >= 2 else None, masses[1]), Species(None, M)]
         mutual, index, points = {(0, 1): MUTUAL, (0, 2): g[0], (1, 2): g[1]}, (a, b, 2), (*about, "boson")
-    terms = taylor_coefficients(species, mutual, index, points, 2, unknown="name")
+    terms = taylor_coefficients(species, mutual, index, points, 2, unknown="name", closed_forms=False)
     for monomial, value in list(terms.items()):
-        if not value.is_Rational:   # named, or the closed form of the link squared (section 4k)
+        if isinstance(value, sympy.Symbol):
             if monomial != g[0] ** 2 or kind != "anyon":
                 raise RuntimeError(f"coverage-squared part: {monomial} not derived at finite M (internal error)")
             terms[monomial] = chain_part(species, mutual, index, points)[monomial]

@@ -92,6 +92,7 @@ BEYOND: dict[tuple[int, int], tuple[float, float]] = {
     key: (LINK[key][0] + float(sum(one_species_units(*key))), LINK[key][1]) for key in LINK}
 
 SOURCE = "numbers: quadrature or the closed form of the two-loop clusters (docs/perturbative.md, 4h-4k)"
+REST_SOURCE = "quadrature at two rules, docs/perturbative.md 4h; zero to 1e-10 through n = 16, not derived"
 
 
 def two_species_cluster(a: int, b: int):
