@@ -8,8 +8,13 @@ perturbative.md 4k), side by side with the routes it replaces, in one run:
 * the closed form (logarithms of the roots of each quadratic, 40 digits).
 
 Printed per cluster: seconds of each route, the ratios, and the largest difference between the values;
-then the growth with n of the closed form (every cluster of n, n = 4 .. 30). Figures in
-link_integrals-last-run.txt.
+then the growth with n of the closed form (every cluster of n, n = 4 .. 30). Last, the exact expression:
+the package's surd arithmetic with its canonical form (`exact_ratio`, routes/surd_logs.py) beside the
+straightforward sympy route it replaced (the same formulas in sympy numbers, then sympy.simplify of the
+expanded logarithms), with the number of terms each prints (the sympy route of the sixteenth session
+used the roots' plain formula, which sympy simplifies faster: 0.07 to 0.43 s for these and a few more
+clusters, measured on commit 48edff3; its forms were logarithms of products with surd exponents).
+Figures in link_integrals-last-run.txt.
 
 Run:  python benchmarks/link_integrals.py            (about a minute of one core, most of it the engine)
 """
@@ -22,6 +27,7 @@ from pathlib import Path
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 
 import mpmath  # noqa: E402
+import sympy  # noqa: E402
 
 from clusterexp.routes import link_integrals, two_loop_fast  # noqa: E402
 from clusterexp.routes.angle_area import first_order_normalisation  # noqa: E402
@@ -96,6 +102,25 @@ def main() -> None:
         terms = sum(p * (n - p) for p in range(1, n))
         print(f"  n = {n:2d}: {n - 1} clusters, {terms} lag pairs: {equal:.3f} s; at 1 : 1000 with the bound "
               f"(two precisions) {unequal:.3f} s", flush=True)
+    print("exact expression: cluster | surd arithmetic s (terms) | sympy + simplify s (terms) | ratio | equal to 40 digits",
+          flush=True)
+    for p, q, m_i, m_j in ((3, 1, 1, 1), (2, 2, 1, 1), (3, 2, 1, 1)):   # {3, 2} at 2 : 1 took sympy over 4 minutes
+        link_integrals._exact_ratio.cache_clear()
+        exact, t_exact = timed(link_integrals.exact_ratio, p, q, m_i, m_j)
+        plain, t_plain = timed(by_sympy, p, q, m_i, m_j)
+        same = abs(sympy.N(exact - plain, 40)) < 1e-35
+        print(f"  {{{p}, {q}}} at {m_i}:{m_j} | {t_exact:.3f} ({len(sympy.Add.make_args(exact))}) | {t_plain:.2f} "
+              f"({len(sympy.Add.make_args(plain))}) | {t_plain / t_exact:.0f} | {same}", flush=True)
+
+
+def by_sympy(p: int, q: int, m_i, m_j):
+    """r(p, q) exactly in sympy numbers (the route before routes/surd_logs.py): the same `_closed_form`,
+    then sympy.simplify of the expanded logarithms."""
+    ops = link_integrals._Arithmetic(lambda x: sympy.Rational(x.numerator, x.denominator), sympy.log, sympy.sqrt,
+                                     sympy.Abs)
+    dx = link_integrals._diffusion(p, q, m_i, m_j)
+    value = link_integrals._closed_form(p, q, dx, 1 - dx, ops)
+    return sympy.simplify(sympy.expand_log(sympy.expand(value), force=True))
 
 
 if __name__ == "__main__":
