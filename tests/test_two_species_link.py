@@ -138,7 +138,8 @@ def test_the_command_line_prints_the_closed_form():
 
 def test_the_series_says_why_a_coefficient_has_no_number():
     """Beyond the on-demand reach (one species, b_n with n > two_loop_demand.MAX_N: the n-cycle alone is not
-    computed there) the alpha^2 coefficient keeps its name without a number, and the series line says why,
+    computed there) the alpha^2 coefficient's rest keeps its name without a number (the closed form is
+    printed, docs 4k), and the series line says why,
     in the user's parameter about the expansion point (not the route's internal symbol). (The mixture at
     the mass ratio 10^6 that this test used to refuse is now in closed form: tests/test_link_integrals.py.)"""
     import subprocess
@@ -151,7 +152,7 @@ def test_the_series_says_why_a_coefficient_has_no_number():
                          capture_output=True, text=True, timeout=300)
     assert out.returncode == 0, out.stderr
     line = next(x for x in out.stdout.splitlines() if "series in alpha" in x)
-    assert "no number for the coefficient of (alpha - 1)^2" in line and f"up to n = {two_loop_demand.MAX_N}" in line, line
+    assert "no number for the rest of the coefficient of (alpha - 1)^2" in line and f"up to n = {two_loop_demand.MAX_N}" in line, line
     assert "e_0" not in out.stdout and "computed: " not in out.stdout
 
 

@@ -367,9 +367,10 @@ def taylor_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int, i
     "fermion" (one word or one per species); order 0, 1 or 2; closed_forms=False treats the squares that
     need the closed forms of section 4k (d_ij^2 and e_i^2 at |n| >= 4) as not derived (the tube route's
     static limits need only rational coefficients). Returns {monomial: exact value} for every
-    mirror-even monomial of degree <= order (zeros included), in a fixed order: Rationals, except d_ij^2
-    of two species at |n| >= 4 (logarithms of quadratic surds, section 4k). A coefficient that is not
-    derived raises NotSupportedYet naming it, or becomes a named Symbol with unknown="name".
+    mirror-even monomial of degree <= order (zeros included), in a fixed order: Rationals, except the
+    squares at |n| >= 4 (logarithms of quadratic surds, section 4k; e_i^2 of one species plus its named
+    rest). A coefficient that is not derived raises NotSupportedYet naming it, or becomes a named Symbol
+    with unknown="name".
     """
     K = len(species)
     if not isinstance(order, int) or order < 0:
@@ -419,7 +420,7 @@ def _computed_rest(gas: _Gas, link: _Link, n, gaps: list | None = None) -> tuple
         value, error = cycle_rest(n[i])
     except NotSupportedYet as why:
         if gaps is not None:   # said beside the name: why it has no number
-            gaps.append(f"no number for the coefficient of {link.symbol}^2 ({why})")
+            gaps.append(f"no number for the rest of the coefficient of {link.symbol}^2 ({why})")
         return None
     return gas.sign[i] ** n[i] * float(gas.mass[i]) * value, float(gas.mass[i]) * error
 
