@@ -50,8 +50,13 @@ class Unknown:
         """E.g. `computed: 4.359161 +- 3e-6 (numbers: quadrature or the closed form ...)`, or None."""
         if self.estimate is None:
             return None
+        return f"computed: {format_estimate(*self.estimate)} ({self.source})"
+
+    @property
+    def source(self) -> str:
+        """How the number was computed, in words."""
         from .routes.two_loop_table import REST_SOURCE, SOURCE
-        return f"computed: {format_estimate(*self.estimate)} ({REST_SOURCE if self.rest else SOURCE})"
+        return REST_SOURCE if self.rest else SOURCE
 
     @property
     def description(self) -> str:

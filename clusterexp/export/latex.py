@@ -132,10 +132,9 @@ def _estimate_latex(unknown) -> str:
     numerically, else nothing."""
     if unknown.estimate is None:
         return ""
-    from ..routes.two_loop_table import SOURCE
     value, error = unknown.estimate
     text = format_estimate(value, error).replace("+-", r"\pm")
-    return rf"; computed: ${text}$ ({SOURCE})"
+    return rf"; computed: ${text}$ ({unknown.source})"
 
 
 def claim_latex_name(derivation: Derivation, target) -> str:

@@ -1,4 +1,7 @@
-"""Computed, not closed: the second-order coefficients of the two-loop clusters of one species.
+"""The quadrature table of the two-loop clusters of one species at second order: since the closed form of
+docs/perturbative.md 4k (`link_integrals`) the package no longer reads it; it is kept as the independent
+check of that closed form (tests/test_computed_coefficients.py, test_link_integrals.py, test_two_loop_fast.py)
+and holds SOURCE, the label of computed numbers. What follows is how it was made.
 
 At second order in the exchange parameter, b_n of one species is (docs/perturbative.md, sections 4-4h)
 
@@ -8,7 +11,7 @@ At second order in the exchange parameter, b_n of one species is (docs/perturbat
   k = 3..SINGLE_CYCLES_CHECKED, section 4d and `routes.cycle_alone`; derived exactly for k = 3);
 * every two-loop cluster {p-cycle, q-cycle}, p + q = n: its H F ring part (in the chains) plus the part
   beyond, `BEYOND[(p, q)]` = the link squared `LINK` plus the self angles times the link's area `ANGLE`;
-  the link squared has no closed form yet and is computed by quadrature (`routes.two_loop_quadrature`,
+  the link squared is computed here by quadrature (`routes.two_loop_quadrature`,
   the scalar engine, n = 4..6 but {5, 1}; `routes.two_loop_fast`, the same integrals vectorised, n = 7 .. 10
   and {5, 1}, which the scalar engine got wrong by 0.009: it kept the equal-time terms of three laps of
   the shorter loop only; LINK now all from the vectorised engine, `benchmarks/two_loop_table.py
@@ -91,7 +94,7 @@ ANGLE: dict[tuple[int, int], tuple[tuple[float, float], tuple[float, float]]] = 
 BEYOND: dict[tuple[int, int], tuple[float, float]] = {
     key: (LINK[key][0] + float(sum(one_species_units(*key))), LINK[key][1]) for key in LINK}
 
-SOURCE = "numbers: quadrature or the closed form of the two-loop clusters (docs/perturbative.md, 4h-4k)"
+SOURCE = "numbers: quadrature (docs/perturbative.md 4h; the two-loop clusters are in closed form, 4k)"
 REST_SOURCE = "quadrature at two rules, docs/perturbative.md 4h; zero to 1e-10 through n = 16, not derived"
 
 
