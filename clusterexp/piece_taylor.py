@@ -72,19 +72,14 @@ def tube_taylor(system, tube, deviation, mass, order, shifts, cycle=None):
             deviations[symbol] = found[1]
     still = {x: 0 for x in (FLUX, EXCHANGE, MUTUAL) if x not in deviations}
     terms = {m.xreplace(still): v for m, v in tube_coefficients(kind, about, masses, order, cycle, tube.tubes).items()}
-    found = in_shifts({m: v for m, v in terms.items() if m != 0}, {}, deviations, shifts)
-    return None if found is None else (found[0], order, found[1], found[2])
+    found = in_shifts({m: v for m, v in terms.items() if m != 0}, deviations, shifts)
+    return None if found is None else (found[0], order, found[1])
 
 
-def in_shifts(terms, numbers, deviations, shifts):
-    """The route's {monomial: value} in the expansion variables' shifts: ({powers: value} known,
-    the powers not derived, {powers: (value, error bound)} computed, {powers: (value, error bound) or
-    None} the named rests), or None where a |deviation| meets a point the caller took for analytic.
-    A value is a number, a named Symbol (not derived), or a number plus one named rest (a symbol ending
-    in perturbative.REST: the known part counts as known, the rest is named on its own, with its
-    number from `numbers` where there is one)."""
-    from .routes.perturbative import REST
-    estimates, unestimated, rests = {}, set(), {}
+def in_shifts(terms, deviations, shifts):
+    """The route's {monomial: value} in the expansion variables' shifts: ({powers: value} known, the
+    powers not derived), or None where a |deviation| meets a point the caller took for analytic. A value
+    is a number or a named Symbol (not derived: every power it reaches stays unknown)."""
     polynomial, missing = sympy.Integer(0), set()
     for monomial, value in terms.items():
         if value == 0:
@@ -93,37 +88,13 @@ def in_shifts(terms, numbers, deviations, shifts):
             return None   # a kink the caller took for an analytic point
         term = monomial.replace(sympy.Abs, lambda x: deviations[x][1] * x)
         term = sympy.expand(term.xreplace({x: dev for x, (dev, _) in deviations.items()}))
-        rest = next((x for x in value.free_symbols if x.name.endswith(REST)), None)
-        if rest is not None:   # known but for a named rest
-            polynomial += (value - rest) * term
-            reached = sympy.Poly(term, *shifts)
-            for powers, c in zip(reached.monoms(), reached.coeffs()):
-                number = numbers.get(monomial)
-                share = None if number is None else (float(c) * number[0], abs(float(c)) * number[1])
-                if powers in rests:   # (two rests on one power: their numbers add, or none is known)
-                    before = rests[powers]
-                    share = None if before is None or share is None else (before[0] + share[0], before[1] + share[1])
-                rests[powers] = share
-            continue
-        if isinstance(value, sympy.Symbol):   # not derived: every power it reaches stays unknown
-            reached = sympy.Poly(term, *shifts)
-            missing.update(reached.monoms())
-            if monomial not in numbers:
-                unestimated.update(reached.monoms())
-                continue
-            number, error = numbers[monomial]   # computed numerically: shown beside the name, never in its place
-            for powers, c in zip(reached.monoms(), reached.coeffs()):
-                before = estimates.get(powers, (0.0, 0.0))
-                estimates[powers] = (before[0] + float(c) * number, before[1] + abs(float(c)) * error)
+        if isinstance(value, sympy.Symbol):
+            missing.update(sympy.Poly(term, *shifts).monoms())
             continue
         polynomial += value * term
     polynomial = sympy.Poly(sympy.expand(polynomial), *shifts)
     known = {powers: c for powers, c in zip(polynomial.monoms(), polynomial.coeffs()) if powers not in missing}
-    # a power is estimated only when every coefficient that reaches it is; the known part adds exactly
-    estimates = {powers: (value + float(polynomial.coeff_monomial(powers)), error)
-                 for powers, (value, error) in estimates.items() if powers not in unestimated}
-    rests = {powers: share for powers, share in rests.items() if powers not in missing}
-    return known, frozenset(missing), estimates, rests
+    return known, frozenset(missing)
 
 
 def coverage_part_at(system, root, power: int, point, value_of_root):

@@ -18,7 +18,6 @@ of the exact two-body coefficients; physics.md, route R3). Elsewhere it is taken
 """
 from __future__ import annotations
 
-import dataclasses
 import itertools
 import re
 from dataclasses import dataclass
@@ -42,21 +41,6 @@ class Unknown:
     symbol: sympy.Symbol
     piece: sympy.Symbol
     monomial: tuple[tuple[sympy.Symbol, sympy.Expr, int, str | None], ...]  # (variable, point, power, side)
-    estimate: tuple[float, float] | None = None  # (value, error bound) where computed numerically, not closed
-    rest: str | None = None  # the words for a named rest: the one part of the coefficient not derived
-
-    @property
-    def estimate_text(self) -> str | None:
-        """E.g. `computed: 4.359161 +- 3e-6 (numbers: quadrature or the closed form ...)`, or None."""
-        if self.estimate is None:
-            return None
-        return f"computed: {format_estimate(*self.estimate)} ({self.source})"
-
-    @property
-    def source(self) -> str:
-        """How the number was computed, in words."""
-        from .routes.two_loop_table import REST_SOURCE, SOURCE
-        return REST_SOURCE if self.rest else SOURCE
 
     @property
     def description(self) -> str:
@@ -64,8 +48,6 @@ class Unknown:
         powers = " ".join(_power_text(v, p, k) for v, p, k, _ in self.monomial if k)
         where = ", ".join(f"{v} = {p}" + (f" from {s}" if s and k else "") for v, p, k, s in self.monomial)
         what = piece_label(self.piece)
-        if self.rest:
-            return f"part of the coefficient of {powers} in {what} about {where} not in closed form: {self.rest}"
         return f"coefficient of {powers} in {what} about {where}" if powers else f"value of {what} at {where}"
 
     def latex(self, names: Mapping | None = None) -> str:
@@ -83,8 +65,7 @@ class Unknown:
             where = ",".join(f"{sympy.latex(v, symbol_names=names)}={sympy.latex(p)}" for v, p, _, _ in self.monomial)
             return rf"\left.{base}\right|_{{{where}}}"
         signs = "".join(SIDE_SIGNS[s] for _, _, k, s in self.monomial if s and k)
-        rest = r"_{\mathrm{rest}}" if self.rest else ""
-        return rf"{{{base}}}^{{[{' '.join(factors)}]{signs}}}{rest}"
+        return rf"{{{base}}}^{{[{' '.join(factors)}]{signs}}}"
 
     def latex_description(self, names: Mapping | None = None) -> str:
         """The description with the symbols typeset (for the LaTeX document)."""
@@ -99,38 +80,14 @@ class Unknown:
         return f"the coefficient of ${' '.join(powers)}$ in {what} about {where}"
 
 
-def with_estimates(expr, estimates: Mapping) -> tuple[float, float] | None:
-    """(value, error bound) of `expr` with each symbol of `estimates` ({symbol: (value, bound)}) at its
-    value, bounds added linearly; None unless `expr` is free of every other symbol and of degree at most
-    1 in those (a product of two computed numbers would need more than a linear bound)."""
-    expr = sympy.expand(sympy.sympify(expr))
-    if expr.free_symbols - set(estimates):
-        return None
-    used = [s for s in estimates if expr.has(s)]
-    if used and sympy.Poly(expr, *used).total_degree() > 1:
-        return None
-    value = float(expr.subs({s: estimates[s][0] for s in used}))
-    return value, sum(abs(float(expr.coeff(s))) * estimates[s][1] for s in used)
-
-
-def format_estimate(value: float, error: float) -> str:
-    """`4.359161 +- 0.000003`: the value and its error bound to the error's leading digit."""
-    import math
-    places = max(0, -math.floor(math.log10(error))) if error > 0 else 12
-    bound = math.ceil(error * 10 ** places - 1e-9) / 10 ** places   # never printed smaller than it is
-    return f"{value:.{places}f} +- {bound:.{places}f}"
-
-
 def _power_text(v, p, k) -> str:
     base = str(v) if p == 0 else f"({v} - {p})"
     return base if k == 1 else f"{base}^{k}"
 
 
 # Every unknown ever named, by its symbol's name. A name is a function of what it means (piece,
-# variables, points, powers, sides), so one table serves every derivation; the computed values depend
-# on the gas as well and are kept per gas (system, name).
+# variables, points, powers, sides), so one table serves every derivation.
 _NAMED: dict[str, Unknown] = {}
-_ESTIMATES: dict[tuple, tuple[float, float]] = {}
 
 
 def piece_label(piece: sympy.Symbol) -> str:
@@ -179,15 +136,12 @@ def pieces_in(value: sympy.Expr, K: int) -> list[sympy.Symbol]:
                    if piece_index(s, K) is not None or _tube_piece(s) is not None), key=lambda s: s.name)
 
 
-def unknowns_in(values: Iterable, system=None) -> list[Unknown]:
-    """The named Taylor coefficients that occur in the given values, sorted by name; with `system`, each
-    with the value computed for that gas where there is one (`Unknown.estimate`: a name says what the
-    coefficient is of, the number also depends on the gas's masses and parameters)."""
+def unknowns_in(values: Iterable) -> list[Unknown]:
+    """The named Taylor coefficients that occur in the given values, sorted by name."""
     names = set()
     for value in values:
         names |= {s.name for s in sympy.sympify(value).free_symbols if s.name in _NAMED}
-    return [dataclasses.replace(_NAMED[n], estimate=_ESTIMATES.get((system, n))) if system is not None
-            else _NAMED[n] for n in sorted(names)]
+    return [_NAMED[n] for n in sorted(names)]
 
 
 def _definitions(system, index, piece=None) -> list[tuple[str, sympy.Expr]]:
@@ -302,15 +256,12 @@ def expand_pieces(system, value: sympy.Expr, variables: Sequence[tuple[sympy.Sym
                 raise ValueError(f"{piece_label(piece)} is not analytic at {v} = {p}")
         polynomial = sympy.Integer(0)
         derived = derived_taylor(system, piece, used)
-        rests = derived[5] if derived is not None and len(derived) > 5 else {}
         if derived is not None and derived[1] >= 1 and notes is not None:
-            reach = f"{derived[1] - 1}, partly {derived[1]}," if derived[2] else \
-                f"{derived[1]} (but for a named rest)" if rests else f"{derived[1]}"
+            reach = f"{derived[1] - 1}, partly {derived[1]}," if derived[2] else f"{derived[1]}"
             source = "docs/tubes.md" if system.tubes is not None and (_tube_piece(piece) or (coverage_power(
                 system, piece) or 0) >= 1) \
                 else "docs/perturbative.md"
             notes.append(f"{piece_label(piece)} through order {reach} from the perturbative route ({source})")
-            notes.extend(f"{piece_label(piece)}: {gap}" for gap in (derived[4] if len(derived) > 4 else ()))
         for powers in itertools.product(*(range(k + 1) for _, _, k, _ in used)):
             monomial = tuple((v, p, e, s) for (v, p, _, s), e in zip(used, powers))
             coefficient = value_at(system, piece, {v: p for v, p, _, _ in used}) if not any(powers) else None
@@ -320,20 +271,9 @@ def expand_pieces(system, value: sympy.Expr, variables: Sequence[tuple[sympy.Sym
                     coefficient = line_coefficient(line, [(v, p, e, s) for (v, p, _, s), e in zip(used, powers) if e])
             if derived is not None and sum(powers) <= derived[1] and powers not in derived[2]:
                 coefficient = carried(derived[0].get(powers, sympy.Integer(0)), numbers)
-                if powers in rests:   # known but for a part that is computed, not derived: named apart
-                    estimate, words = rests[powers]
-                    rest = Unknown(sympy.Symbol(_name(piece, monomial) + "_rest"), piece, monomial, estimate, words)
-                    _NAMED.setdefault(rest.symbol.name, dataclasses.replace(rest, estimate=None))
-                    if estimate is not None:
-                        _ESTIMATES[(system, rest.symbol.name)] = estimate
-                    unknowns.append(rest)
-                    coefficient += rest.symbol
             if coefficient is None:
-                estimate = derived[3].get(powers) if derived is not None else None
-                unknown = Unknown(sympy.Symbol(_name(piece, monomial)), piece, monomial, estimate)
-                _NAMED.setdefault(unknown.symbol.name, dataclasses.replace(unknown, estimate=None))
-                if estimate is not None:
-                    _ESTIMATES[(system, unknown.symbol.name)] = estimate
+                unknown = Unknown(sympy.Symbol(_name(piece, monomial)), piece, monomial)
+                _NAMED.setdefault(unknown.symbol.name, unknown)
                 unknowns.append(unknown)
                 coefficient = unknown.symbol
             polynomial += coefficient * sympy.Mul(*((v - p) ** e for v, p, e, _ in monomial))
@@ -389,18 +329,15 @@ def _coverage_part_at(system, piece: sympy.Symbol, point: Mapping) -> sympy.Expr
 def derived_taylor(system, piece: sympy.Symbol, used) -> tuple | None:
     """The Taylor coefficients of a cluster piece that the perturbative route derives
     (`routes.perturbative`, docs/perturbative.md), as ({powers of (v - v0) per used variable: value},
-    the total order through which the route was asked, the powers it could not derive there,
-    {power: (value, error bound)} for those of them computed numerically, the reasons why a computed
-    number is missing, and {power: ((value, error bound) or None, words)}: the named rest of a power whose
-    value is known but for one part that is computed, not derived), or None where it does not apply
-    (the tube pieces: the first four only): every pair
+    the total order through which the route was asked, the powers it could not derive there), or None
+    where it does not apply: every pair
     phase of the piece's species must sit at a boson or fermion point (mutual: an integer) at the
     expansion point, each deviation linear in one expansion variable, masses rational. Among tubes: the
     value at zero coverage of a b piece (the tube-free piece), and the tube pieces themselves about an
     integer flux (`routes.tube_perturbative`, docs/tubes.md)."""
     from .routes import regime_of
     from .routes.perturbative import Species as Perturbed
-    from .routes.perturbative import numerical_coefficients, rest_words, taylor_coefficients
+    from .routes.perturbative import taylor_coefficients
     if not regime_of(system).named_pieces:
         return None
     tube = _tube_piece(piece) if system.tubes is not None and piece.name not in _NAMED else None
@@ -436,7 +373,6 @@ def derived_taylor(system, piece: sympy.Symbol, used) -> tuple | None:
         return tube_taylor(system, tube, deviation, mass, order, shifts, cycle)
     occupied = [i for i, n in enumerate(index) if n]
     deviations = {}   # perturbative symbol -> (deviation in the shifts, sign of |deviation| on the side)
-    words = {}        # perturbative symbol -> the user's expression it stands for (in messages)
     species, about = [], []
     names = system.species_names
     for i, s in enumerate(system.species):
@@ -455,7 +391,6 @@ def derived_taylor(system, piece: sympy.Symbol, used) -> tuple | None:
         symbol = sympy.Symbol(f"e_{i}", real=True) if dev else None
         if dev:
             deviations[symbol] = dev
-            words[symbol] = s.exchange - at
         species.append(Perturbed(symbol, m))
     mutual = {}
     for i, j in itertools.combinations(occupied, 2):
@@ -465,17 +400,9 @@ def derived_taylor(system, piece: sympy.Symbol, used) -> tuple | None:
         if found[1]:
             mutual[(i, j)] = sympy.Symbol(f"d_{i}_{j}", real=True)
             deviations[mutual[(i, j)]] = found[1]
-            words[mutual[(i, j)]] = system.mutual(names[i], names[j])
     terms = taylor_coefficients(species, mutual, index, tuple(about), order, unknown="name")
-    gaps: list[str] = []   # why a coefficient the route computes has no number here (a reach of the quadrature)
-    numbers = numerical_coefficients(species, mutual, index, tuple(about), gaps) if order >= 2 else {}
-    found = in_shifts(terms, numbers, deviations, shifts)
-    for symbol, expr in words.items():   # the gaps in the user's words
-        gaps = [g.replace(f"{symbol}^2", f"({expr})^2") for g in gaps]
-    if found is None:
-        return None
-    rests = {powers: (share, rest_words(sum(index))) for powers, share in found[3].items()}
-    return found[0], order, found[1], found[2], gaps, rests
+    found = in_shifts(terms, deviations, shifts)
+    return None if found is None else (found[0], order, found[1])
 
 
 def side_in_range(parameters: Iterable, symbol: sympy.Symbol, point) -> str | None:

@@ -192,7 +192,7 @@ class Derivation:
             values += [c.value for c in self.coefficients]
         if "_checks" in self.__dict__:  # (the checks' own LaTeX names are made while they run)
             values += [e for r in self.checks for e in (r.difference, r.condition) if e is not None]
-        return unknowns_in(values, self.system)
+        return unknowns_in(values)
 
     @property
     def failed_checks(self) -> list:

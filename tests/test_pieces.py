@@ -51,11 +51,9 @@ def test_third_virial_series_from_the_perturbative_route_and_a4_names_b4():
     """The series of a_3 about the boson point used to treat b_3 as a constant (a spurious linear term
     -2 alpha); now b_3 comes from the perturbative route through alpha^2 (docs/perturbative.md, 4d) and
     both sides give the published a_3 = 1/36 + alpha^2/12 (Myrheim & Olaussen 1993; even in alpha) with
-    nothing named. b_4's alpha^2 coefficient is not derived: a_4's series names it per side, and the
-    value that makes a_4 vanish at second order is the textbook relation's. Since section 4k the coefficient
-    is a closed form plus a named rest (the 4-cycle alone beyond its ring part): the rest is what a_4 then
-    names per side, and the closed form, 35/8 - (sqrt 3/144) ln(2 + sqrt 3), plus the rest is the textbook
-    value."""
+    nothing named. b_4's alpha^2 coefficient is derived too (docs 4k, 4l): a_4's series names nothing on
+    either side, and differs from the textbook relation's value 1/16 (the closure of section 4b (iv),
+    which would need b_4^(2) = 35/8) by (sqrt 3/48) ln(2 + sqrt 3)."""
     d = clusterexp.derive(ANYONS.replace("up to 3", "up to 4") + "expand alpha about 0 to 2 from both")
     above, below = _series(d, "virial", (3,))
     assert (above.side, below.side) == ("above", "below")
@@ -64,68 +62,63 @@ def test_third_virial_series_from_the_perturbative_route_and_a4_names_b4():
     for piece in (above, below):
         assert sympy.expand(piece.polynomial - (sympy.Rational(1, 36) + piece.variable ** 2 / 12)) == 0
     above, below = _series(d, "virial", (4,))
-    a, b = _named(above), _named(below)
-    assert set(a) == {"b_4_alpha_2_above_rest"} and set(b) == {"b_4_alpha_2_below_rest"}
     closed = sympy.Rational(35, 8) - sympy.sqrt(3) / 144 * sympy.log(2 + sympy.sqrt(3))
-    root = _a4_condition(0) - closed
-    for piece, name in ((above, a["b_4_alpha_2_above_rest"]), (below, b["b_4_alpha_2_below_rest"])):
-        assert sympy.simplify(piece.polynomial.subs(name, root)) == 0
+    for piece in (above, below):
+        assert not piece.unknowns
+        second = sympy.expand(piece.polynomial).coeff(piece.variable, 2)
+        assert sympy.simplify(second - (sympy.Rational(1, 16) + sympy.sqrt(3) / 48 * sympy.log(2 + sympy.sqrt(3)))) == 0
+    # the textbook relation's b_4^(2) (section 4b (iv)) against the derived one: the logarithm is the difference
+    assert _a4_condition(sympy.Rational(1, 16)) == sympy.Rational(35, 8) and closed != sympy.Rational(35, 8)
 
 
 def test_third_virial_series_near_fermions():
     """About alpha = 1 (analytic): the route gives b_3 = 1/9 - (13/24)(alpha - 1)^2, so a_3 = 1/36 +
     (1 - alpha)^2/12 [published: Myrheim & Olaussen 1993; Sen, Phys. Rev. Lett. 68 (1992) 2977], with
     b_2 = -1/4 + (alpha - 1)^2/2 and b_3(1) the ideal Fermi 1/9 [published: Viefers, Ravndal, Haugset,
-    Am. J. Phys. 63 (1995) 369]. a_4 names only the rest of b_4's second coefficient (no first order about
-    fermions; the rest is the 4-cycle alone beyond its ring part, docs 4k)."""
+    Am. J. Phys. 63 (1995) 369]. a_4 names nothing: [-1/16 + (sqrt 3/48) ln(2 + sqrt 3)] (alpha - 1)^2
+    (docs 4k, 4l)."""
     d = clusterexp.derive(ANYONS.replace("up to 3", "up to 4") + "expand alpha about 1 to 2")
     (piece,) = _series(d, "virial", (3,))
     assert piece.side is None and not piece.kink and not piece.unknowns
     assert sympy.expand(piece.polynomial - (sympy.Rational(1, 36) + (1 - piece.variable) ** 2 / 12)) == 0
     (piece,) = _series(d, "virial", (4,))
-    assert set(_named(piece)) == {"b_4_alpha_2_about_1_rest"}
+    assert not piece.unknowns
+    x = piece.variable
+    second = sympy.expand(piece.polynomial.subs(x, x + 1)).coeff(x, 2)
+    assert sympy.simplify(second - (-sympy.Rational(1, 16) + sympy.sqrt(3) / 48 * sympy.log(2 + sympy.sqrt(3)))) == 0
     record = json.loads(to_json(d))
-    (a4,) = [c for c in record["coefficients"] if c["kind"] == "virial" and c["index"] == [4]]
-    assert a4["series"][0]["unknowns"] == ["b_4_alpha_2_about_1_rest"]
-    assert set(record["unknowns"]) == {"b_4_alpha_2_about_1_rest"}
-    assert "b[4]" in record["unknowns"]["b_4_alpha_2_about_1_rest"]
+    assert "unknowns" not in record
 
 
 def test_a_named_piece_alone_gets_its_series():
     """b[4] = b_4 has no visible alpha, but it is a function of alpha: its series is printed, with the
     first order b_4^(1) = -(2/4) H_3 = -11/12 [derived from Dasnieres de Veigy & Ouvry 1992, physics.md
-    section 5] and the ideal Bose 1/16, and the alpha^2 coefficient in closed form plus its named rest
-    (docs 4k)."""
+    section 5] and the ideal Bose 1/16, and the alpha^2 coefficient in closed form (docs 4k, 4l)."""
     d = clusterexp.derive("dimension 2 parameter alpha species A exchange alpha clusters pairphase "
                           "derive cluster up to 4 expand alpha about 0 to 2 from above")
     (piece,) = _series(d, "cluster", (4,))
-    b42 = _named(piece)["b_4_alpha_2_above_rest"]
+    assert not piece.unknowns
     x = piece.variable
     closed = sympy.Rational(35, 8) - sympy.sqrt(3) / 144 * sympy.log(2 + sympy.sqrt(3))
-    assert sympy.expand(piece.polynomial - (sympy.Rational(1, 16) - sympy.Rational(11, 12) * x + (closed + b42) * x ** 2)) == 0
-    text = to_text(d)
-    assert "b_4_alpha_2_above_rest = part of the coefficient of alpha^2 in b[4] about alpha = 0 from above" in text
+    assert sympy.expand(piece.polynomial - (sympy.Rational(1, 16) - sympy.Rational(11, 12) * x + closed * x ** 2)) == 0
+    assert "unknown Taylor coefficients" not in to_text(d)
     (b3,) = _series(d, "cluster", (3,))
     assert sympy.expand(b3.polynomial - (sympy.Rational(1, 9) - x + sympy.Rational(59, 24) * x ** 2)) == 0
 
 
-def test_published_third_virial_coefficient_is_proven_and_a4_claim_is_decided_with_the_condition():
+def test_published_third_virial_coefficient_is_proven_and_a4_claim_is_refuted():
     """The published a_3 = 1/36 + alpha^2/12 + O(alpha^3) (Myrheim & Olaussen 1993) is proven by the
-    derived b_3; a claimed a_4 = alpha^2/16 + O(alpha^3) holds exactly when b_4's alpha^2 coefficient takes
-    the value the textbook relation gives (35/8), which the check states for the named rest of that
-    coefficient (its closed form is 35/8 - (sqrt 3/144) ln(2 + sqrt 3), docs 4k, so the rest would have to be
-    (sqrt 3/144) ln(2 + sqrt 3) = 0.0091); the computed rest (0 +- 2e-9, docs 4h; the whole coefficient
-    4.35916 is checked by sampled loops in section 4g) refutes it."""
+    derived b_3; a claimed a_4 = alpha^2/16 + O(alpha^3) (the textbook relation's value, which needs
+    b_4^(2) = 35/8) is refuted by the derived b_4^(2) = 35/8 - (sqrt 3/144) ln(2 + sqrt 3) (docs 4k, 4l;
+    the whole coefficient 4.35916 is checked by sampled loops in section 4g), with nothing left to solve."""
     d = clusterexp.derive("dimension 2 parameter alpha in [0, 1] species A exchange alpha clusters pairphase "
                           "derive virial up to 4 claim a[3] = 1/36 + alpha^2/12 + O(alpha^3) "
                           "claim a[4] = alpha^2/16 + O(alpha^3)")
     third, fourth = d.checks
     assert third.status == "proven"
-    assert fourth.status == "mismatch" and not fourth.ok and "error bounds away" in fourth.method
-    solved = {e.lhs.name: e.rhs for e in fourth.conditions}
-    closed = sympy.Rational(35, 8) - sympy.sqrt(3) / 144 * sympy.log(2 + sympy.sqrt(3))
-    assert set(solved) == {"b_4_alpha_2_above_rest"}
-    assert sympy.simplify(solved["b_4_alpha_2_above_rest"] - (_a4_condition(sympy.Rational(1, 16)) - closed)) == 0
+    assert fourth.status == "mismatch" and not fourth.ok and not fourth.conditions
+    difference = sympy.sqrt(3) / 48 * sympy.log(2 + sympy.sqrt(3)) * sympy.Symbol("alpha", nonnegative=True) ** 2
+    assert sympy.simplify(fourth.difference + difference) == 0, fourth.difference
     (wrong,) = clusterexp.derive("dimension 2 parameter alpha in [0, 1] species A exchange alpha clusters "
                                  "pairphase derive virial up to 3 claim a[3] = 1/36 + alpha^2/10 + O(alpha^3)").checks
     assert wrong.status == "mismatch"
@@ -199,7 +192,7 @@ def test_document_with_named_coefficients_compiles(tmp_path):
                           + "expand alpha about 0 to 2 from above claim a[4] = alpha^2/16 + O(alpha^3) "
                           "claim a[3] = 1/36 + alpha^2/12 + O(alpha^4)")
     tex = latex_document(d)
-    assert r"{b_{4}}^{[\alpha^{2}]+}" in tex and "holds if and only if" in tex and "mismatch" in tex
+    assert r"{b_{3}}^{[\alpha^{3}]+}" in tex and "holds if and only if" in tex and "mismatch" in tex
     (tmp_path / "doc.tex").write_text(tex)
     run = subprocess.run(["pdflatex", "-interaction=nonstopmode", "-halt-on-error", "doc.tex"], cwd=tmp_path,
                          capture_output=True, text=True, timeout=120)

@@ -68,10 +68,6 @@ def to_json(derivation: Derivation) -> str:
     unknowns = derivation.unknowns()
     if unknowns:
         document["unknowns"] = {u.symbol.name: u.description for u in unknowns}
-        computed = {u.symbol.name: {"value": u.estimate[0], "error": u.estimate[1]} for u in unknowns if u.estimate}
-        if computed:
-            from ..routes.two_loop_table import SOURCE
-            document["computed_unknowns"] = {"how": SOURCE, "values": computed}
     if system.samplings:
         from ..loops.report import json_items
         document["sampled"] = json_items(derivation.sampled)

@@ -15,7 +15,6 @@ from .latex_lines import aligned_rows, escape_text, top_level_terms  # noqa: F40
 from ..naming import generated_latex_names, is_single_atom, latex_subscript, species_latex
 from ..exact.series import indices_up_to
 from .series_lines import series_latex_rows
-from ..pieces import format_estimate
 
 LETTERS = {"cluster": "b", "virial": "a"}
 
@@ -123,18 +122,8 @@ def unknowns_latex(derivation: Derivation, names) -> list[str]:
         return []
     return [r"Unknown Taylor coefficients of the named many-body pieces (the pieces are continuous; at a kink "
             r"each side has its own coefficients):", r"\begin{itemize}"] + \
-        [rf"\item ${names[u.symbol]}$: {u.latex_description(names)}" + _estimate_latex(u) + "."
+        [rf"\item ${names[u.symbol]}$: {u.latex_description(names)}."
          for u in unknowns] + [r"\end{itemize}"]
-
-
-def _estimate_latex(unknown) -> str:
-    """`; computed: $value pm error$ (numbers: quadrature or the closed form ...)` where the value is known
-    numerically, else nothing."""
-    if unknown.estimate is None:
-        return ""
-    value, error = unknown.estimate
-    text = format_estimate(value, error).replace("+-", r"\pm")
-    return rf"; computed: ${text}$ ({unknown.source})"
 
 
 def claim_latex_name(derivation: Derivation, target) -> str:

@@ -9,7 +9,6 @@ if TYPE_CHECKING:  # the results import the printers for their notebook display,
 
 import sympy
 
-from ..pieces import format_estimate, with_estimates
 
 
 
@@ -92,64 +91,7 @@ def series_text_lines(derivation: Derivation, c: Coefficient) -> list[str]:
     lines = []
     for p in derivation.series_of(c):
         lines.append(f"series in {p.heading} ({p.description}): {series_value_text(p)}")
-        computed = computed_series_text(p)
-        if computed:
-            lines.append(f"  with the computed coefficients (error bounds; not closed forms): {computed}")
     return lines
-
-
-def _computed_terms(piece) -> list | None:
-    """[(coefficient, factors)] of the series with every named Taylor coefficient that is known
-    numerically (`Unknown.estimate`) replaced by its value: a coefficient is a sympy number, or
-    (value, bound) where computed numbers enter (bounds added linearly); factors [(base, power)].
-    None unless every named coefficient of the series has a value and enters linearly."""
-    if not piece.unknowns or any(u.estimate is None for u in piece.unknowns):
-        return None
-    values = {u.symbol: u.estimate for u in piece.unknowns}
-    variables = [(v, q) for v, q, _ in piece.variables] if getattr(piece, "variables", ()) else \
-        [(piece.variable, piece.point)]
-    bases, powered = _in_powers(piece.polynomial, variables)
-    terms = []
-    for powers, c in powered:
-        factors = [(b, k) for b, k in zip(bases, powers) if k]
-        if not c.has(*values):
-            terms.append((c, factors))
-            continue
-        number = with_estimates(c, values)
-        if number is None:
-            return None
-        terms.append((number, factors))
-    return terms
-
-
-def computed_series_text(piece) -> str | None:
-    """The series with the computed coefficients in place (`_computed_terms`), each as `(value +- bound)`."""
-    terms = _computed_terms(piece)
-    if terms is None:
-        return None
-    texts = []
-    for c, factors in terms:
-        power = "*".join((sympy.sstr(b) if b.is_Symbol else f"({sympy.sstr(b)})") + (f"**{k}" if k > 1 else "")
-                         for b, k in factors)
-        number = f"({format_estimate(*c)})" if isinstance(c, tuple) else sympy.sstr(c)
-        texts.append(f"{number}*{power}" if power else number)
-    return _joined(texts or ["0"]) + f" + {_remainder_text(piece)}"
-
-
-def computed_series_latex(piece, symbol_names=None) -> str | None:
-    """The same in LaTeX, each computed coefficient as `(value \\pm bound)`."""
-    terms = _computed_terms(piece)
-    if terms is None:
-        return None
-    texts = []
-    for c, factors in terms:
-        power = " ".join(sympy.latex(b ** k, symbol_names=symbol_names or {}) if b.is_Symbol else
-                         rf"\left({sympy.latex(b, symbol_names=symbol_names or {})}\right)" + (f"^{{{k}}}" if k > 1 else "")
-                         for b, k in factors)
-        number = "(" + format_estimate(*c).replace("+-", r"\pm") + ")" if isinstance(c, tuple) else \
-            sympy.latex(c, symbol_names=symbol_names or {})
-        texts.append(f"{number} {power}".strip())
-    return _joined(texts or ["0"]) + " + " + " + ".join(_order_latex(o) for o in piece.remainder)
 
 
 def series_json(derivation: Derivation, c: Coefficient) -> dict:
@@ -201,9 +143,6 @@ def series_latex_rows(derivation: Derivation, c: Coefficient, amp: str, symbol_n
     for p in derivation.series_of(c):
         orders = " + ".join(_order_latex(o) for o in p.remainder)
         rows.append(rf"  {amp}= {_body_latex(p, symbol_names)} + {orders} \qquad \left({_side_latex(p)}\right)")
-        computed = computed_series_latex(p, symbol_names)
-        if computed:
-            rows.append(rf"  {amp}\approx {computed} \qquad \left(\text{{computed coefficients, error bounds}}\right)")
     return rows
 
 
@@ -213,9 +152,6 @@ def series_document_pieces(derivation: Derivation, c: Coefficient, symbol_names=
     out = []
     for p in derivation.series_of(c):
         out.append((_side_latex(p), _body_latex(p, symbol_names) + " + " + " + ".join(_order_latex(o) for o in p.remainder)))
-        computed = computed_series_latex(p, symbol_names)
-        if computed:
-            out.append((_side_latex(p) + r",\ \text{with the computed coefficients (error bounds)}", computed))
     return out
 
 

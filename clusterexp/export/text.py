@@ -31,8 +31,7 @@ def to_text(derivation: Derivation) -> str:
     unknowns = derivation.unknowns()
     if unknowns:
         lines += ["", "unknown Taylor coefficients of the named many-body pieces (pieces are continuous; at a kink "
-                  "each side has its own):"] + [f"  {u.symbol} = {u.description}" + (f"; {u.estimate_text}" if u.estimate else "")
-                                                     for u in unknowns]
+                  "each side has its own):"] + [f"  {u.symbol} = {u.description}" for u in unknowns]
     if derivation.system.samplings:
         from ..loops.report import text_lines
         lines += text_lines(derivation.sampled)

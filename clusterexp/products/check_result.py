@@ -25,8 +25,7 @@ UNDECIDED = "undecided"
 SAMPLED = "consistent within the sampling errors, not proven"
 # a claim whose difference involves named Taylor coefficients that are known only numerically (computed by
 # quadrature with an error bound, routes/two_loop_table.py), within those bounds: never a proof; not a failure
-COMPUTED = "consistent with the computed coefficients, not proven"
-STATUSES = (PROVEN, CONSISTENT, TIE, UNDECIDED, MISMATCH, SAMPLED, COMPUTED)
+STATUSES = (PROVEN, CONSISTENT, TIE, UNDECIDED, MISMATCH, SAMPLED)
 
 
 
@@ -93,7 +92,7 @@ class CheckResult:
         elif self.status == UNDECIDED:
             lines = [f"undecided: {self._subject()} holds if and only if the named many-body pieces satisfy "
                      f"({self.method}):"] + [f"  {_text(e.lhs)} = {_text(e.rhs)}" for e in self.conditions]
-        elif self.status in (SAMPLED, COMPUTED):
+        elif self.status == SAMPLED:
             lines = [f"{self.status}: {self._subject()}: {self.method}"]
         elif self.status == CONSISTENT and self.rounding:
             lines = [f"numerically consistent, not proven: {self._subject()}: {self.method}"]
@@ -148,8 +147,8 @@ class CheckResult:
             body = rf"{name} = {claimed}\ \text{{if and only if }}" + r",\ ".join(
                 f"{tex(e.lhs)} = {tex(e.rhs)}" for e in self.conditions)
         else:
-            relation = r"\approx" if self.status in (CONSISTENT, SAMPLED, COMPUTED) else "="
-            body = rf"{name} = {claimed}" if (self.rounding is None and self.status not in (SAMPLED, COMPUTED)) or \
+            relation = r"\approx" if self.status in (CONSISTENT, SAMPLED) else "="
+            body = rf"{name} = {claimed}" if (self.rounding is None and self.status != SAMPLED) or \
                 self.status == PROVEN else \
                 rf"{name} {relation} {claimed}"
         return f"{head} {body}"

@@ -35,7 +35,7 @@ from typing import Iterable, Sequence
 import sympy
 
 from ..errors import InputError
-from .check_result import (COMPUTED, CONSISTENT, MISMATCH, PROVEN, STATUSES, TIE, UNDECIDED, CheckList,  # noqa: F401
+from .check_result import (CONSISTENT, MISMATCH, PROVEN, STATUSES, TIE, UNDECIDED, CheckList,  # noqa: F401
                            CheckResult, _text)
 from .numbers import Interval, evaluate, format_number, parameter_interval
 
@@ -151,40 +151,8 @@ def check_with_pieces(claimed, derived, system, *, label: str | None = None,
     if sympy.false in equations:
         return CheckResult(MISMATCH, method="a part of claimed - derived that no unknown piece enters is not "
                            "zero", difference=sympy.expand(claimed - derived), **common)
-    computed = _against_computed(equations, system)
-    if computed is not None:
-        status, method = computed
-        return CheckResult(status, method=method, difference=sympy.expand(claimed - derived),
-                           conditions=tuple(equations) if status == MISMATCH else (), **common)
     return CheckResult(UNDECIDED, method="the derived value contains many-body pieces the tool cannot compute",
                        difference=sympy.expand(claimed - derived), conditions=tuple(equations), **common)
-
-
-def _against_computed(equations, system) -> tuple[str, str] | None:
-    """(status, how) when every named piece in the equations is a Taylor coefficient known numerically
-    (`pieces.Unknown.estimate`) and enters linearly: consistent when each equation holds within the
-    coefficients' error bounds (added linearly), else a mismatch with the numbers; None otherwise."""
-    from ..pieces import format_estimate, pieces_in, unknowns_in, with_estimates
-    K = len(system.species)
-    parts = []
-    for equation in equations:
-        residual = sympy.expand(equation.lhs - equation.rhs)
-        known = {u.symbol: u.estimate for u in unknowns_in([residual], system)}
-        if not known or any(e is None for e in known.values()) or set(pieces_in(residual, K)) - set(known):
-            return None
-        number = with_estimates(residual, known)
-        if number is None:
-            return None
-        value, bound = number
-        needed = ", ".join(f"{s} = {format_estimate(*e)}" for s, e in sorted(known.items(), key=lambda kv: kv[0].name))
-        parts.append((abs(value) <= bound, f"{_text(equation.lhs)} = {_text(equation.rhs)} needed, computed {needed}"
-                      + ("" if abs(value) <= bound else f" ({abs(value) / bound:.3g} error bounds away"
-                         + ("; the bound is a quadrature estimate, not rigorous" if abs(value) < 10 * bound else "")
-                         + ")")))
-    from ..routes.two_loop_table import SOURCE
-    ok = all(holds for holds, _ in parts)
-    how = "; ".join(text for _, text in parts) + f" ({SOURCE})"
-    return (COMPUTED if ok else MISMATCH), how
 
 
 def decimal_places(text: str) -> tuple[int, int]:

@@ -158,27 +158,24 @@ NEAR = sympy.Rational(1, 4)   # how far from its point `evaluate` takes an `expa
 def _through_series(derivation, coefficient, value, point: dict, digits: int, stated: str = ""):
     """For a value with named many-body pieces: (how, number text) from the `expand` series of the input
     nearest to the point among those that reach it (one variable or a joint series: the point on each side and
-    within NEAR of it, every other parameter given, every named Taylor coefficient in it computed or
-    absent), else None. The number is the truncated series at the point; `how` says which series, the
-    O term left out and its size there; a +- is the computed coefficients' bound only."""
-    from ..pieces import format_estimate, pieces_in, with_estimates
+    within NEAR of it, every other parameter given, no named Taylor coefficient in it), else None. The
+    number is the truncated series at the point; `how` says which series, the O term left out and its
+    size there."""
+    from ..pieces import pieces_in
     if not pieces_in(value, len(derivation.system.species)):
         return None
     candidates = []
     for piece in derivation.series_of(coefficient):
         axes = getattr(piece, "variables", ()) or ((piece.variable, piece.point, piece.side),)
         shifts = _shifts_within(axes, point)
-        if shifts is None:
+        if shifts is None or piece.unknowns:
             continue
-        estimates = {u.symbol: u.estimate for u in piece.unknowns}
-        if any(e is None for e in estimates.values()):
-            continue
-        number = with_estimates(sympy.expand(piece.polynomial).subs(point), estimates)
-        if number is not None:
-            candidates.append((max(shifts), piece, axes, estimates, number))
+        number = sympy.expand(piece.polynomial).subs(point)
+        if not number.free_symbols:
+            candidates.append((max(shifts), piece, axes, number))
     if not candidates:
         return None
-    reach, piece, axes, estimates, (number, bound) = min(candidates, key=lambda c: c[0])
+    reach, piece, axes, number = min(candidates, key=lambda c: c[0])
     size = format_number(evaluate(reach ** (piece.known + 1), {}, 3), 3)
     names = [v for v, _, _ in axes]
     bases = [f"{v}" if p == 0 else f"({v} - {p})" for v, p, _ in axes]
@@ -197,9 +194,7 @@ def _through_series(derivation, coefficient, value, point: dict, digits: int, st
                + f" through total degree {piece.known}; terms of total degree {piece.known + 1} left out, "
                f"each up to {size} here (largest deviation {format_number(evaluate(reach, {}, 3), 3)})")
     how += f"; also O({'), O('.join(others)})" if others else ""
-    if not estimates:
-        return how, format_number(evaluate(sympy.expand(piece.polynomial).subs(point), {}, digits), digits)
-    return how + "; +- from the computed coefficients only", format_estimate(number, max(bound, 10.0 ** -digits))
+    return how, format_number(evaluate(number, {}, digits), digits)
 
 
 def _shifts_within(axes, point: dict):

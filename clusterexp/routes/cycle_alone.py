@@ -1,6 +1,7 @@
 """A k-cycle alone at second order in the exchange parameter (docs/perturbative.md, sections 4d and 4h), by
-the pair decomposition of section 4d (numerical evaluation): the check behind
-`two_loop_table.SINGLE_CYCLES_CHECKED` that the k-cycle carries only its Fock-squared ring part.
+the pair decomposition of section 4d evaluated by quadrature: the independent route for `cycle_square`,
+which sums the same pairs and pairs of pairs exactly (section 4l); the package itself does not call it
+(tests/test_two_loop_fast.py, tests/test_cycle_square.py, benchmarks/cycle_square.py).
 
 The same sum as tests/test_three_cycle.py `_k_cycle_orders` (the scalar version, kept there as the
 cross-check for k = 3, 4): the single pairs (a, b) of the k strands exactly (the Aharonov-Bohm kernel with

@@ -25,10 +25,10 @@ exchange, period 1 for mutual. The derivation is docs/perturbative.md; in short:
   d_ij^2 for any masses; section 4e) and for d_ij^2 of two species at every n and any masses (the
   chains plus the link squared of the {n_i-cycle, n_j-cycle} cluster in closed form, section 4k: a
   rational number plus rational multiples of sqrt(D) ln u, a sympy expression, not linear in the
-  masses). e_i^2 of one species for n >= 4 is exact (the chains and every two-loop cluster in closed
-  form) but for one part, the n-cycle alone beyond its ring part (zero to 1e-10 through n = 16, computed,
-  not derived): `NotSupportedYet`, or with unknown="name" the exact part plus a named rest (a symbol
-  ending in REST; its computed number: `numerical_coefficients`).
+  masses), and for e_i^2 of one species at every n (the chains, every two-loop cluster in closed form,
+  and the n-cycle alone, `cycle_square`: its pairs and pairs of pairs summed exactly, section 4l).
+  Every second-order coefficient of the regime is thereby derived; closed_forms=False (the tube route)
+  leaves the squares that need the logarithms named.
 
 Monomials whose sign changes under the mirror image (every parameter -> minus itself; e.g. x,
 x*Abs(y), x*Abs(x)) vanish by that symmetry and are not listed.
@@ -278,38 +278,24 @@ def _two_species_square(gas: _Gas, link: _Link, n):
     return sympy.Rational(chains.numerator, chains.denominator) + sign * exact_coefficient(a, b, gas.mass[i], gas.mass[j])
 
 
-REST = "__rest"   # the end of a named rest's symbol (taylor_coefficients with unknown="name")
-
-
-@dataclass(frozen=True)
-class _Partial:
-    """A Taylor coefficient known exactly but for one part that is computed, not derived: `known` plus the
-    rest, which taylor_coefficients names (a symbol ending in REST) and numerical_coefficients evaluates."""
-
-    known: sympy.Expr
-
-
-def rest_words(n: int) -> str:
-    """What the named rest of the e^2 coefficient of b_n of one species is, in words."""
-    return f"the {n}-cycle alone beyond its ring part"
-
-
-def _one_species_square(gas: _Gas, link: _Link, n) -> _Partial:
+def _one_species_square(gas: _Gas, link: _Link, n) -> sympy.Expr:
     """The e^2 coefficient of b_n of one species i, n_i >= 4: the chains of three loops (with the
     n-cycle's ring part) plus every two-loop cluster {p-cycle, q-cycle}, p + q = n_i, exactly (the link
     squared in closed form, section 4k, and the angle-area parts, 4i; one species' units: a cluster with
-    p = q counts half), signed (-1)^n_i about fermions and times m_i/m_ref; the rest, the n-cycle alone
-    beyond its ring part, is computed (`two_loop_demand.cycle_rest`)."""
+    p = q counts half), plus the n-cycle alone beyond its ring part (`cycle_square`, section 4l: computed
+    exactly, zero for every n so far), signed (-1)^n_i about fermions and times m_i/m_ref."""
     from .angle_area import one_species_units
+    from .cycle_square import cycle_square, ring_part
     from .link_integrals import exact_coefficient
     i = link.i
     k = n[i]
     ring, landau = _chain(gas, link, link, n)
     clusters = sum((exact_coefficient(p, k - p) / (2 if 2 * p == k else 1) + sum(one_species_units(p, k - p))
                     for p in range((k + 1) // 2, k)), sympy.Integer(0))
+    alone = cycle_square(k) - sympy.Rational(ring_part(k).numerator, ring_part(k).denominator)
     mass = sympy.Rational(gas.mass[i].numerator, gas.mass[i].denominator)
     chains = sympy.Rational((ring + landau).numerator, (ring + landau).denominator)
-    return _Partial(sympy.expand(chains + gas.sign[i] ** k * mass * clusters))
+    return sympy.expand(chains + gas.sign[i] ** k * mass * (clusters + alone))
 
 
 def _acts(link: _Link, n) -> bool:
@@ -365,12 +351,12 @@ def taylor_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int, i
 
     species: Species(exchange symbol or None, mass); mutual: {(i, j): symbol}, i < j; about: "boson" /
     "fermion" (one word or one per species); order 0, 1 or 2; closed_forms=False treats the squares that
-    need the closed forms of section 4k (d_ij^2 and e_i^2 at |n| >= 4) as not derived (the tube route's
+    need the closed forms of sections 4k, 4l (d_ij^2 and e_i^2 at |n| >= 4) as not derived (the tube route's
     static limits need only rational coefficients). Returns {monomial: exact value} for every
     mirror-even monomial of degree <= order (zeros included), in a fixed order: Rationals, except the
-    squares at |n| >= 4 (logarithms of quadratic surds, section 4k; e_i^2 of one species plus its named
-    rest). A coefficient that is not derived raises NotSupportedYet naming it, or becomes a named Symbol
-    with unknown="name".
+    squares at |n| >= 4 (logarithms of quadratic surds, sections 4k, 4l). A coefficient that is not
+    derived (closed_forms=False) raises NotSupportedYet naming it, or becomes a named Symbol with
+    unknown="name".
     """
     K = len(species)
     if not isinstance(order, int) or order < 0:
@@ -390,59 +376,18 @@ def taylor_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int, i
     if order >= 2:
         for p, q in combinations_with_replacement(links, 2):
             out.update(_second_order(gas, p, q, n, closed_forms))
-    missing = [m for m, v in out.items() if v is None or isinstance(v, _Partial)]
+    missing = [m for m, v in out.items() if v is None]
     if missing and unknown == "raise":
         listed = ", ".join(str(m) for m in missing)
         raise NotSupportedYet(f"second-order Taylor coefficients of b[{','.join(map(str, n))}] in {listed}: "
                               f"not derived ({_HOW}); derived at "
                               "second order: two-particle b, b_3 of one species, products |x||y| of two different "
                               "parameters, products d_ij d_ik of two mutual parameters, products e_i d_ij (any n), "
-                              "and d_ij^2 in b of two species (any n and masses); e^2 in b_n of one species, n >= 4, "
-                              "is exact but for the n-cycle alone beyond its ring part, which unknown='name' names "
-                              "(numerical_coefficients: its number, n <= 10 measured, 11 .. 16 on demand)")
+                              "and every square x^2 (sections 4k, 4l), which closed_forms=False leaves out")
     label = "_".join(map(str, n))
     return {m: (sympy.Symbol(f"t_b_{label}__{m}") if v is None
-                else v.known + sympy.Symbol(f"t_b_{label}__{m}{REST}") if isinstance(v, _Partial)
                 else sympy.Rational(v.numerator, v.denominator) if isinstance(v, Fraction) else v)
             for m, v in out.items()}
-
-
-def _computed_rest(gas: _Gas, link: _Link, n, gaps: list | None = None) -> tuple[float, float] | None:
-    """(value, error bound) of the named rest of e_i^2 in b_n of one species i with n >= 4 particles (the
-    n-cycle alone beyond its ring part, `two_loop_demand.cycle_rest`: measured for n <= 10, computed on
-    demand up to MAX_N, minutes and cached), signed (-1)^n about fermions, times m_i/m_ref; None where it
-    is not reached (the reason appended to `gaps`)."""
-    from .two_loop_demand import cycle_rest
-    i = link.i
-    if link.i != link.j or sum(n) != n[i] or n[i] < 4:
-        return None
-    try:
-        value, error = cycle_rest(n[i])
-    except NotSupportedYet as why:
-        if gaps is not None:   # said beside the name: why it has no number
-            gaps.append(f"no number for the rest of the coefficient of {link.symbol}^2 ({why})")
-        return None
-    return gas.sign[i] ** n[i] * float(gas.mass[i]) * value, float(gas.mass[i]) * error
-
-
-def numerical_coefficients(species: Sequence[Species], mutual: Mapping[tuple[int, int], sympy.Symbol],
-                           multi_index: Sequence[int], about="boson", gaps: list | None = None) -> dict:
-    """{monomial: (value, error bound)} of the named rests of `taylor_coefficients` (unknown="name"): for
-    the square of the exchange parameter in b_n of one species, n >= 4, the n-cycle alone beyond its ring
-    part (measured for n <= two_loop_table.SINGLE_CYCLES_CHECKED, computed when asked up to
-    two_loop_demand.MAX_N: quadrature, minutes, cached); empty where none is. The values are floats with
-    error bounds: the tool keeps the rest's name and shows the number beside it, never in place of it.
-    (Every other second-order coefficient that is derived is exact.)"""
-    K = len(species)
-    gas = _Gas(species, _points(about, K))
-    n = _index(multi_index, K)
-    links = _links(species, mutual)
-    out = {}
-    for link in links:
-        computed = _computed_rest(gas, link, n, gaps)
-        if computed is not None:
-            out[link.symbol ** 2] = computed
-    return out
 
 
 def expansion(species, mutual, multi_index, about="boson", order: int = 2, unknown: str = "raise") -> sympy.Expr:

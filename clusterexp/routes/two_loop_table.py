@@ -1,14 +1,15 @@
 """The quadrature table of the two-loop clusters of one species at second order: since the closed form of
 docs/perturbative.md 4k (`link_integrals`) the package no longer reads it; it is kept as the independent
-check of that closed form (tests/test_computed_coefficients.py, test_link_integrals.py, test_two_loop_fast.py)
-and holds SOURCE, the label of computed numbers. What follows is how it was made.
+check of that closed form (tests/test_computed_coefficients.py, test_link_integrals.py, test_two_loop_fast.py).
+What follows is how it was made.
 
 At second order in the exchange parameter, b_n of one species is (docs/perturbative.md, sections 4-4h)
 
 * the chains of three loops (the Hartree-Fock ring of the contact and the Landau term), closed for
   every n (`perturbative.chain_part`);
 * every k-cycle alone: its Fock-squared ring part only, which the chains already carry (computed for
-  k = 3..SINGLE_CYCLES_CHECKED, section 4d and `routes.cycle_alone`; derived exactly for k = 3);
+  k = 3..SINGLE_CYCLES_CHECKED, section 4d and `routes.cycle_alone`; summed exactly for every k since,
+  section 4l and `routes.cycle_square`);
 * every two-loop cluster {p-cycle, q-cycle}, p + q = n: its H F ring part (in the chains) plus the part
   beyond, `BEYOND[(p, q)]` = the link squared `LINK` plus the self angles times the link's area `ANGLE`;
   the link squared is computed here by quadrature (`routes.two_loop_quadrature`,
@@ -35,7 +36,6 @@ from __future__ import annotations
 from .angle_area import one_species_units
 
 SINGLE_CYCLES_CHECKED = 10
-FLOOR = 2e-6          # the smallest error bound of a cluster computed on demand (two_loop_demand)
 
 # Per cluster {p-cycle, q-cycle} (p >= q), one species' units: LINK the link squared, ANGLE the angle-area
 # parts carried by the self pairs of the p-cycle and of the q-cycle (value, error bound) each; a 1-cycle
@@ -94,8 +94,6 @@ ANGLE: dict[tuple[int, int], tuple[tuple[float, float], tuple[float, float]]] = 
 BEYOND: dict[tuple[int, int], tuple[float, float]] = {
     key: (LINK[key][0] + float(sum(one_species_units(*key))), LINK[key][1]) for key in LINK}
 
-SOURCE = "numbers: quadrature (docs/perturbative.md 4h; the two-loop clusters are in closed form, 4k)"
-REST_SOURCE = "quadrature at two rules, docs/perturbative.md 4h; zero to 1e-10 through n = 16, not derived"
 
 
 def two_species_cluster(a: int, b: int):

@@ -1,0 +1,103 @@
+"""The k-cycle alone at second order, summed exactly (clusterexp/routes/cycle_square.py, docs/perturbative.md
+section 4l): each ingredient against an independent evaluation, the result against the published a_3 (k = 3),
+the exact two-body lemma (k = 2) and the quadrature of the same pair decomposition (routes/cycle_alone.py)."""
+from fractions import Fraction
+
+import mpmath
+import pytest
+import sympy
+
+from clusterexp.routes import cycle_alone, cycle_square
+from clusterexp.routes.surd_logs import Surd
+
+
+def test_ring_part_against_its_series():
+    """(1/2)[z^k] z ln^2(1 - z)/(1 - z) by sympy's series against the harmonic-number sum."""
+    z = sympy.Symbol("z")
+    for k in (2, 3, 4, 7, 8):
+        series = sympy.Rational(1, 2) * sympy.series(sympy.log(1 - z) ** 2 * z / (1 - z), z, 0, k + 1).removeO().coeff(z, k)
+        assert cycle_square.ring_part(k) == Fraction(int(series.p), int(series.q))
+
+
+@pytest.mark.parametrize("k, j", [(3, 1), (4, 1), (4, 2), (5, 2), (7, 3), (9, 2)])
+def test_one_pair_against_the_schlaefli_form(k, j):
+    """S(rho) = Li_2(rho^2)/4 - pi^2/24 for the pair of strands at lag j of a k-cycle (rho = 1 - k/(j(k - j)),
+    negative, zero and positive here) against the Schlaefli form of section 4d by scipy's quadrature
+    (`cycle_alone._single`: the Aharonov-Bohm kernel with the Gaussian end points), to 1e-12. At k = 3 it
+    is the value of section 4d, -0.344320356941374."""
+    v = Fraction(j * (k - j), k)
+    quadrature = cycle_alone._single(float(v), float(v - 1), 1e-10)[1]
+    closed = float(mpmath.polylog(2, float(((v - 1) / v) ** 2)) / 4 - mpmath.pi ** 2 / 24)
+    assert abs(quadrature - closed) < 1e-12, (quadrature, closed)
+    if k == 3:
+        assert abs(closed + 0.344320356941374) < 1e-14
+
+
+def _mp(x: Fraction) -> mpmath.mpf:
+    return mpmath.mpf(x.numerator) / x.denominator
+
+
+def _numeric(total) -> mpmath.mpf:
+    with mpmath.workdps(40):
+        return _mp(total.constant) + sum(c.mp() * mpmath.log(abs(w.mp())) for w, c in total.logs.items()) + \
+            sum(_mp(q) * mpmath.polylog(2, _mp(x)) for x, q in total.dilogs.items()) + _mp(total.pi2) * mpmath.pi ** 2
+
+
+@pytest.mark.parametrize("c0, c1, V", [
+    (Fraction(1, 3), Fraction(-1, 5), Fraction(2, 3)),        # sqrt V irrational
+    (Fraction(0), Fraction(1, 2), Fraction(3, 4)),            # the lag-0 covariance zero
+    (Fraction(1, 2), Fraction(0), Fraction(3, 4)),            # ... and at the far end
+    (Fraction(1, 4), Fraction(1, 2), Fraction(1, 4)),         # c1 = sqrt V: the two pairs one vector there
+    (Fraction(-1, 6), Fraction(-2, 3), Fraction(4, 9)),       # c1 = -sqrt V
+    (Fraction(1, 5), Fraction(1, 5), Fraction(1, 2)),         # constant covariance
+])
+def test_half_lag_integral_against_quadrature(c0, c1, V):
+    """The antiderivative of `cycle_square._half` against mpmath's quadrature of int_0^1 (1 - w) [1/(V - c^2)
+    + (sigma^2/(2 c^2)) ln(1 - c^2/V)] dw, c = c0 + sigma w, to 20 digits."""
+    total = cycle_square._Sum()
+    cycle_square._half(total, c0, c1, V, 1)
+    def integrand(w):
+        c = mp[0] + sigma * w
+        log_part = -1 / mp[2] if c == 0 else mpmath.log(1 - c * c / mp[2]) / (c * c)
+        return (1 - w) * (1 / (mp[2] - c * c) + sigma ** 2 / 2 * log_part)
+    with mpmath.workdps(40):
+        sigma, mp = _mp(c1 - c0), [_mp(x) for x in (c0, c1, V)]
+        quadrature = mpmath.quad(integrand, [0, 1])
+        assert abs(_numeric(total) - quadrature) < mpmath.mpf(10) ** -20, (_numeric(total), quadrature)
+
+
+def test_every_logarithm_argument_is_a_quadratic_surd():
+    """The sum keeps one coefficient per logarithm argument, each in the field of its argument (the
+    canonical form checks the conjugation-odd part at 60 digits, surd_logs.canonical)."""
+    total = cycle_square._Sum()
+    cycle_square._half(total, Fraction(1, 3), Fraction(-1, 5), Fraction(2, 3), 1)
+    assert all(isinstance(w, Surd) and (c.D == 1 or c.D == w.D) for w, c in total.logs.items())
+
+
+def test_two_and_three_cycles_against_outside_values():
+    """k = 2: no alpha^2 term (the exact two-body b_2 split into its loop clusters, docs 4b (i), whose test
+    evaluates the channel sums and the Bessel integrals independently). k = 3: the ring part 1/2, which is
+    what the published a_3 = 1/36 + alpha^2/12 requires of the 3-cycle (Myrheim & Olaussen, Phys. Lett. B
+    299 (1993) 267; section 4b (iii): X_C = 0)."""
+    assert cycle_square.cycle_square(2) == 0
+    assert cycle_square.cycle_square(3) == sympy.Rational(1, 2)
+
+
+@pytest.mark.parametrize("k", list(range(4, 13)) + [20])
+def test_k_cycle_is_its_ring_part_exactly(k):
+    """Every dilogarithm and logarithm of the pairs and pairs of pairs cancels and the k-cycle's alpha^2
+    coefficient is its Fock-squared ring part, exactly (section 4l); the quadrature of the same decomposition
+    (routes/cycle_alone.py, tests/test_two_loop_fast.py) finds it to 1e-10 for k <= 16 (docs 4h)."""
+    value = cycle_square.cycle_square(k)
+    assert value.is_Rational and value == cycle_square.ring_part(k), value
+
+
+def test_nothing_is_assumed_about_the_result():
+    """A term that does not cancel stays in the result: with the single pairs' pi^2/24 doubled, the 4-cycle
+    comes out as its ring part minus 6 pi^2/(24 * 16), a dilogarithm-free but irrational number."""
+    total = cycle_square._Sum()
+    total.pi2 -= Fraction(6, 24)
+    extra = total.expression(Fraction(1, 16))
+    assert extra == -sympy.pi ** 2 / 64
+    with pytest.raises(ValueError):
+        cycle_square.cycle_square(1)
