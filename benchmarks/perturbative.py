@@ -10,7 +10,9 @@ b's (the a_n through first order) for the same tables. Coefficients not derived 
 back as named unknowns (unknown="name"), so the figures time the whole table. Last, what a user runs:
 the joint series `expand alpha, nu about 0 to 2` of every b and a of two species up to total order 3-6,
 end to end (derive and print), beside the same input without the series (the ratio is the series' cost);
-and the same at unequal masses (1 and 3/2), where the d_ij^2 coefficients of |n| >= 4 are the closed forms
+and one species, every a_n through alpha^2 up to n = 4 .. 10, end to end with cold caches (the clusters of
+section 4k and the n-cycles of 4l computed in the run); the same at unequal masses (1 and 3/2), where the
+d_ij^2 coefficients of |n| >= 4 are the closed forms
 of docs/perturbative.md section 4k, exact expressions with logarithms of quadratic surds (until the
 eighteenth session they were numbers: from a table, 1.2 s at total order 6, or by quadrature on demand,
 124 s; benchmarks/two_species_table.py keeps that comparison).
@@ -62,6 +64,21 @@ JOINT = ("dimension 2 parameter alpha in [0, 1/2] parameter nu in [0, 1/2] speci
          "species B bose mutual A B = nu clusters pairphase order {order} ")
 
 
+ONE = "dimension 2 parameter alpha in [0, 1/2] species A exchange alpha clusters pairphase derive virial up to {order} "
+
+
+def cold():
+    """Clear the process caches of the closed forms (link squared, n-cycle alone)."""
+    from clusterexp.routes import cycle_square, link_integrals
+    cycle_square.cycle_square.cache_clear()
+    link_integrals._exact_ratio.cache_clear()
+
+
+def cold_printed(text):
+    cold()
+    return printed(text)
+
+
 UNEQUAL = ("dimension 2 parameter alpha in [0, 1/2] parameter nu in [0, 1/2] species A exchange alpha "
            "species B mass 3/2 exchange alpha mutual A B = nu clusters pairphase order {order} ")
 
@@ -88,6 +105,11 @@ def main():
         plain = seconds(lambda: printed(JOINT.format(order=order)), repeats=1)
         joint = seconds(lambda: printed(JOINT.format(order=order) + "expand alpha, nu about 0 to 2"), repeats=1)
         print(f"{f'  |n| <= {order}':<58}{plain:>13.3f}{joint:>10.3f}{joint / plain:>8.1f}")
+    print(f"{'one species, a_n through alpha^2 (end to end, cold caches)':<58}{'plain':>13}{'series':>10}{'ratio':>8}")
+    for order in range(4, 11):
+        plain = seconds(lambda: cold_printed(ONE.format(order=order)), repeats=1)
+        series = seconds(lambda: cold_printed(ONE.format(order=order) + "expand alpha about 0 to 2"), repeats=1)
+        print(f"{f'  n <= {order}':<58}{plain:>13.3f}{series:>10.3f}{series / plain:>8.1f}")
     print(f"{'the same at masses 1 and 3/2 (d^2 in closed form, section 4k)':<58}{'plain':>13}{'series':>10}{'ratio':>8}")
     for order in range(4, 7):
         plain = seconds(lambda: printed(UNEQUAL.format(order=order)), repeats=1)
