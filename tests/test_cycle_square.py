@@ -21,8 +21,9 @@ def test_ring_part_against_its_series():
 
 @pytest.mark.parametrize("k, j", [(3, 1), (4, 1), (4, 2), (5, 2), (7, 3), (9, 2)])
 def test_one_pair_against_the_schlaefli_form(k, j):
-    """S(rho) = Li_2(rho^2)/4 - pi^2/24 for the pair of strands at lag j of a k-cycle (rho = 1 - k/(j(k - j)),
-    negative, zero and positive here) against the Schlaefli form of section 4d by scipy's quadrature
+    """S(rho) = Li_2(rho^2)/4 - pi^2/24 (derived in section 4l (i)) for the pair of strands at lag j of a
+    k-cycle (rho = 1 - k/(j(k - j)), negative, zero and positive here) against the Schlaefli form of section 4d
+    by scipy's quadrature
     (`cycle_alone._single`: the Aharonov-Bohm kernel with the Gaussian end points), to 1e-12. At k = 3 it
     is the value of section 4d, -0.344320356941374."""
     v = Fraction(j * (k - j), k)
@@ -31,6 +32,47 @@ def test_one_pair_against_the_schlaefli_form(k, j):
     assert abs(quadrature - closed) < 1e-12, (quadrature, closed)
     if k == 3:
         assert abs(closed + 0.344320356941374) < 1e-14
+
+
+@pytest.mark.parametrize("k, j", [(3, 1), (4, 2), (5, 2), (9, 2)])
+def test_one_pair_first_order_and_the_fock_half(k, j):
+    """The derivation of (4l.1) gives the |alpha| coefficient of one pair as -(1 - rho) = -1/v (section 4l
+    (i)); the Schlaefli quadrature (`cycle_alone._single`) agrees to 1e-12 (at k = 3, -3/2: section 4d), and
+    summed over the pairs of a k-cycle, -k H_{k-1}, it is k^2 times the Fock half of the contact,
+    -(1/2)[z^k] ln^2(1 - z) (section 3)."""
+    v = Fraction(j * (k - j), k)
+    assert abs(cycle_alone._single(float(v), float(v - 1), 1e-10)[0] + float(1 / v)) < 1e-12
+    pairs = sum(Fraction(k - i) / Fraction(i * (k - i), k) for i in range(1, k))
+    z = sympy.Symbol("z")
+    half = -sympy.Rational(1, 2) * sympy.series(sympy.log(1 - z) ** 2, z, 0, k + 1).removeO().coeff(z, k)
+    assert -pairs / k ** 2 == Fraction(int(half.p), int(half.q))
+
+
+@pytest.mark.parametrize("rho", ["-0.9", "-0.5", "0.25", "0.7"])
+def test_the_two_terms_of_one_pair(rho):
+    """The two steps of the derivation of (4l.1) against the integrals they evaluate, to 20 digits:
+    E[phi^2] = pi^2/3 - pi arcsin(rho) + arcsin(rho)^2 - Li_2(rho^2)/2 for the principal angle between the
+    ends (density ((1 - rho^2)/(2 pi)) Jt(-rho cos phi)), and Lemma F3 of the winding term,
+    int_0^inf s K_0(A s) K_0(B s) I_0(C s) ds = psi/(2 A B sin psi) with cos psi = (A^2 + B^2 - C^2)/(2AB), at
+    the arguments of the derivation (A = 1, B = a u, C = 1 - b u)."""
+    with mpmath.workdps(30):
+        r = mpmath.mpf(rho)
+
+        def jt(y):
+            if abs(y - 1) < mpmath.mpf("0.1"):
+                return mpmath.hyp2f1(2, 2, mpmath.mpf(5) / 2, (1 - y) / 2) / 3
+            return (1 - y * mpmath.acos(y) / mpmath.sqrt(1 - y * y)) / (1 - y * y)
+        moment = (1 - r * r) / mpmath.pi * mpmath.quad(lambda phi: phi ** 2 * jt(-r * mpmath.cos(phi)), [0, mpmath.pi])
+        closed = mpmath.pi ** 2 / 3 - mpmath.pi * mpmath.asin(r) + mpmath.asin(r) ** 2 - mpmath.polylog(2, r * r) / 2
+        assert abs(moment - closed) < mpmath.mpf(10) ** -20, (moment, closed)
+        lam = (1 - r) / (1 + r)
+        a, b, u = 1 + lam, 1 - lam, mpmath.mpf("0.6")
+        A, B, C = mpmath.mpf(1), a * u, 1 - b * u
+        integral = mpmath.quad(lambda x: x * mpmath.besselk(0, A * x) * mpmath.besselk(0, B * x) * mpmath.besseli(0, C * x),
+                               [0, 1, 10, mpmath.inf])
+        psi = mpmath.acos((A * A + B * B - C * C) / (2 * A * B))
+        assert abs(psi - mpmath.acos(r + (1 - r) * u)) < mpmath.mpf(10) ** -25   # cos psi = rho + (1 - rho) u
+        assert abs(integral - psi / (2 * A * B * mpmath.sin(psi))) < mpmath.mpf(10) ** -20, integral
 
 
 def _mp(x: Fraction) -> mpmath.mpf:

@@ -6,8 +6,8 @@ alpha^2 coefficient as a sum over the pairs and the pairs of pairs:
 
 * one pair (a, b), lag j = b - a: its relative vector has per-component variance v = j(k - j)/k at each end
   and covariance v - 1 between its ends, rho = 1 - 1/v; its alpha^2 part is S(rho) = Li_2(rho^2)/4 - pi^2/24
-  (section 4l (i): identified to 20 digits at several rho against the Schlaefli form of section 4d, whose
-  scipy evaluation `cycle_alone._single` the tests compare);
+  (derived in section 4l (i); the tests compare the Schlaefli form of section 4d by scipy,
+  `cycle_alone._single`);
 * two pairs p, q: Lambda - C, a lag integral int_{-1}^{1} (1 - |u|) F(c(u)) du with
   F(c) = 1/(V - c^2) + (c'^2/(2 c^2)) ln(1 - c^2/V), V the product of the two variances and c(u) the
   covariance of the two relative vectors at lag u, linear on [-1, 0] and on [0, 1] (the loop's variogram
