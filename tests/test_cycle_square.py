@@ -1,6 +1,8 @@
 """The k-cycle alone at second order, summed exactly (clusterexp/routes/cycle_square.py, docs/perturbative.md
-section 4l): each ingredient against an independent evaluation, the result against the published a_3 (k = 3),
-the exact two-body lemma (k = 2) and the quadrature of the same pair decomposition (routes/cycle_alone.py)."""
+section 4l): each ingredient against an independent evaluation (the single pair against the Schlaefli
+quadrature, the steps of its derivation, each half lag integral against mpmath's quadrature), the result
+against the published a_3 (k = 3), the exact two-body lemma (k = 2) and the quadrature of the same pair
+decomposition (routes/cycle_alone.py, k = 4, 5), and its sign about fermions in b_n."""
 from fractions import Fraction
 
 import mpmath
@@ -134,12 +136,42 @@ def test_k_cycle_is_its_ring_part_exactly(k):
     assert value.is_Rational and value == cycle_square.ring_part(k), value
 
 
+@pytest.mark.parametrize("k", [4, 5])
+def test_k_cycle_against_the_quadrature_of_the_same_decomposition(k):
+    """The exact sum against `cycle_alone.k_cycle_orders`, the same pairs and pairs of pairs by quadrature
+    (scipy for the single pairs, the graded rule of two_loop_fast for the pairs of pairs), to 1e-9."""
+    quadrature = cycle_alone.k_cycle_orders(k, 8, 8)[1]
+    assert abs(float(cycle_square.cycle_square(k)) - quadrature) < 1e-9, quadrature
+
+
 def test_nothing_is_assumed_about_the_result():
-    """A term that does not cancel stays in the result: with the single pairs' pi^2/24 doubled, the 4-cycle
-    comes out as its ring part minus 6 pi^2/(24 * 16), a dilogarithm-free but irrational number."""
-    total = cycle_square._Sum()
+    """What does not cancel stays in the result: the 4-cycle's sum with the single pairs' pi^2/24 counted
+    twice comes out as its ring part minus 6 pi^2/(24 * 16) (six pairs), and with a dilogarithm added as its
+    ring part plus that dilogarithm."""
+    total = cycle_square._total(4)
     total.pi2 -= Fraction(6, 24)
-    extra = total.expression(Fraction(1, 16))
-    assert extra == -sympy.pi ** 2 / 64
+    assert total.expression(Fraction(1, 16)) == 1 - sympy.pi ** 2 / 64
+    total = cycle_square._total(4)
+    assert not any(total.dilogs.values())       # they cancel argument by argument as they are added
+    total.dilog(Fraction(1, 4), Fraction(1, 9))  # one that does not
+    left = total.expression(Fraction(1, 16))
+    assert left == 1 + sympy.polylog(2, sympy.Rational(1, 9)) / 64, left
     with pytest.raises(ValueError):
         cycle_square.cycle_square(1)
+
+
+@pytest.mark.parametrize("k", [4, 5])
+def test_the_k_cycle_changes_sign_with_its_transpositions_about_fermions(k, monkeypatch):
+    """b_k of one species takes the k-cycle alone with the sign (-1)^(k-1) about fermions (its total angle
+    is pi (k - 1) mod 2 pi: one sign per transposition) and the two-loop clusters with (-1)^k: with the
+    k-cycle set to its ring part plus one, e^2 of b_k moves by +1 about bosons and by (-1)^(k-1) about
+    fermions (times the mass)."""
+    from clusterexp.routes import perturbative
+    e = sympy.Symbol("e", real=True)
+    before = {about: perturbative.taylor_coefficients([perturbative.Species(e, 2)], {}, (k,), about)[e ** 2]
+              for about in ("boson", "fermion")}
+    monkeypatch.setattr(cycle_square, "cycle_square", lambda n: sympy.Rational(
+        cycle_square.ring_part(n).numerator, cycle_square.ring_part(n).denominator) + 1)
+    for about, sign in (("boson", 1), ("fermion", (-1) ** (k - 1))):
+        after = perturbative.taylor_coefficients([perturbative.Species(e, 2)], {}, (k,), about)[e ** 2]
+        assert sympy.simplify(after - before[about] - 2 * sign) == 0, (about, after, before[about])

@@ -136,32 +136,6 @@ def test_the_command_line_prints_the_closed_form():
     assert abs(float(square) - (1.5 + value)) < bound and abs(value - 0.880807) < 1e-5, (square, value, bound)
 
 
-def test_one_species_far_beyond_the_tables_is_printed_in_closed_form():
-    """b_17 of one species about fermions (beyond the tables and the former quadrature of the 17-cycle
-    alone): the (alpha - 1)^2 coefficient in closed form (the clusters of section 4k, the 17-cycle of 4l),
-    in the user's parameter, nothing named; its value against the chains plus the clusters by the 60-digit
-    evaluation of the closed form and the 17-cycle's ring part (bookkeeping across two code paths)."""
-    import subprocess
-    import sys
-    text = ("dimension 2 parameter alpha in [0, 1] species A exchange alpha clusters pairphase derive cluster b[17] "
-            "expand alpha about 1 to 2")
-    out = subprocess.run([sys.executable, "-m", "clusterexp", "run", "-e", text, "--no-files"],
-                         capture_output=True, text=True, timeout=300)
-    assert out.returncode == 0, out.stderr
-    line = next(x for x in out.stdout.splitlines() if "series in alpha" in x)
-    assert "log(" in line and "b_17_" not in out.stdout and "e_0" not in out.stdout, line
-    alpha = sympy.Symbol("alpha")
-    series = sympy.sympify(line.split("): ", 1)[1].replace("+ O((alpha - 1)**3)", ""), locals={"alpha": alpha})
-    square = sympy.expand(series.subs(alpha, alpha + 1)).coeff(alpha, 2)
-    from clusterexp.routes.angle_area import one_species_units
-    from clusterexp.routes.link_integrals import coefficient
-    from clusterexp.routes.perturbative import Species, chain_part
-    e = sympy.Symbol("e", real=True)
-    clusters = sum(coefficient(p, 17 - p, 1, 1)[0] + float(sum(one_species_units(p, 17 - p))) for p in range(9, 17))
-    expected = float(chain_part([Species(e)], {}, (17,), "fermion")[e ** 2]) - clusters     # (-1)^17 about fermions
-    assert abs(float(square) - expected) < 1e-9, (square, expected)
-
-
 def test_a_terminal_sees_which_rule_runs_and_the_value_is_cached(monkeypatch):
     """The quadrature reports each rule on the progress line (clusterexp/progress.py; on a terminal only,
     forced on here) and is computed once per (a, b, mass ratio): masses (14, 2) reuse (7, 1), scaled."""

@@ -23,8 +23,6 @@ UNDECIDED = "undecided"
 # a claim on a coefficient with Monte Carlo parts, within the stated number of standard errors at every
 # sampled point (products/sampled_use.py): statistics, never a proof; not a failure
 SAMPLED = "consistent within the sampling errors, not proven"
-# a claim whose difference involves named Taylor coefficients that are known only numerically (computed by
-# quadrature with an error bound, routes/two_loop_table.py), within those bounds: never a proof; not a failure
 STATUSES = (PROVEN, CONSISTENT, TIE, UNDECIDED, MISMATCH, SAMPLED)
 
 

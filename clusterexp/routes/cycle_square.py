@@ -18,7 +18,7 @@ Each half of a lag integral has an elementary antiderivative (`_half`): logarith
 coefficients in Q(sqrt V), logarithms of rationals, and Li_2(c^2/V) at the two ends. The module adds all of
 it exactly (`surd_logs`: the logarithms; a table {x: q} for the dilogarithms, Li_2(1) = pi^2/6 read as pi^2)
 and returns the canonical sympy expression. Nothing is assumed about the result: whatever does not cancel
-is returned (a dilogarithm as sympy's polylog). For every k computed (k = 3 .. 40, section 4l) every
+is returned (a dilogarithm as sympy's polylog). For every k computed (k = 2 .. 40, section 4l) every
 dilogarithm and every logarithm cancels and the result is the Fock-squared ring part
 (1/2)[z^k] z ln^2(1 - z)/(1 - z).
 """
@@ -34,7 +34,7 @@ import sympy
 from ..progress import Progress
 from .surd_logs import LogSum, Surd, canonical
 
-SHOWN_FROM = 20    # show progress on a terminal from this k on (k = 40 takes about ten seconds)
+SHOWN_FROM = 20    # show progress on a terminal from this k on (k = 40 takes about fourteen seconds)
 
 
 def ring_part(k: int) -> Fraction:
@@ -140,23 +140,30 @@ def _half(total: _Sum, c0: Fraction, c1: Fraction, V: Fraction, count: int) -> N
 @lru_cache(maxsize=None)
 def cycle_square(k: int) -> sympy.Expr:
     """The alpha^2 coefficient of the k-cycle cluster (1/k^2) E[e^{i alpha Theta}] of one species of unit
-    mass about bosons (about fermions it is the same: the k-cycle's sign (-1)^(k-1) times (-1)^(k-1)), k >= 2,
-    exactly: a sympy expression (a Rational for every k computed, the ring part)."""
+    mass about bosons, k >= 2, exactly: a sympy expression (a Rational for every k computed, the ring part).
+    About fermions (alpha = 1 + e) the k-cycle is (-1)^(k-1) times the same function of e (its total angle
+    is pi (k - 1) mod 2 pi): the caller's sign."""
     if isinstance(k, bool) or not isinstance(k, int) or k < 2:
         raise ValueError(f"k must be an integer >= 2, got {k!r}")
     report = Progress(enabled=None if k >= SHOWN_FROM else False)
     try:
         report.step(f"cluster the {k}-cycle alone at second order, exactly")
-        halves, shared, lags = _lag_classes(k)
-        total = _Sum()
-        for j, count in lags.items():
-            v = Fraction(j * (k - j), k)
-            total.dilog(Fraction(count, 4), (v - 1) ** 2 / v ** 2)
-            total.pi2 -= Fraction(count, 24)
-        for (c0, c1, V), count in halves.items():
-            _half(total, c0, c1, V, count)
-        for (c0, V), count in shared.items():
-            total.log(Fraction(count, 2) / c0, 1 - c0 * c0 / V)
-        return total.expression(Fraction(1, k * k))
+        return _total(k).expression(Fraction(1, k * k))
     finally:
         report.done()
+
+
+def _total(k: int) -> _Sum:
+    """k^2 times the k-cycle's alpha^2 coefficient as an unreduced `_Sum`: the single pairs, the half lag
+    integrals and the equal-time terms."""
+    halves, shared, lags = _lag_classes(k)
+    total = _Sum()
+    for j, count in lags.items():
+        v = Fraction(j * (k - j), k)
+        total.dilog(Fraction(count, 4), (v - 1) ** 2 / v ** 2)
+        total.pi2 -= Fraction(count, 24)
+    for (c0, c1, V), count in halves.items():
+        _half(total, c0, c1, V, count)
+    for (c0, V), count in shared.items():
+        total.log(Fraction(count, 2) / c0, 1 - c0 * c0 / V)
+    return total

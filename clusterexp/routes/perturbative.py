@@ -282,8 +282,10 @@ def _one_species_square(gas: _Gas, link: _Link, n) -> sympy.Expr:
     """The e^2 coefficient of b_n of one species i, n_i >= 4: the chains of three loops (with the
     n-cycle's ring part) plus every two-loop cluster {p-cycle, q-cycle}, p + q = n_i, exactly (the link
     squared in closed form, section 4k, and the angle-area parts, 4i; one species' units: a cluster with
-    p = q counts half), plus the n-cycle alone beyond its ring part (`cycle_square`, section 4l: computed
-    exactly, zero for every n so far), signed (-1)^n_i about fermions and times m_i/m_ref."""
+    p = q counts half; signed (-1)^n_i about fermions, one sign per transposition of the two cycles), plus
+    the n-cycle alone beyond its ring part (`cycle_square`, section 4l: computed exactly, zero for every n
+    so far; signed (-1)^(n_i - 1) about fermions: its total angle is pi (n_i - 1) mod 2 pi), times
+    m_i/m_ref."""
     from .angle_area import one_species_units
     from .cycle_square import cycle_square, ring_part
     from .link_integrals import exact_coefficient
@@ -295,7 +297,7 @@ def _one_species_square(gas: _Gas, link: _Link, n) -> sympy.Expr:
     alone = cycle_square(k) - sympy.Rational(ring_part(k).numerator, ring_part(k).denominator)
     mass = sympy.Rational(gas.mass[i].numerator, gas.mass[i].denominator)
     chains = sympy.Rational((ring + landau).numerator, (ring + landau).denominator)
-    return sympy.expand(chains + gas.sign[i] ** k * mass * (clusters + alone))
+    return sympy.expand(chains + gas.sign[i] ** k * mass * clusters + gas.sign[i] ** (k - 1) * mass * alone)
 
 
 def _acts(link: _Link, n) -> bool:

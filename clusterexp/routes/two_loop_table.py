@@ -1,6 +1,6 @@
 """The quadrature table of the two-loop clusters of one species at second order: since the closed form of
 docs/perturbative.md 4k (`link_integrals`) the package no longer reads it; it is kept as the independent
-check of that closed form (tests/test_computed_coefficients.py, test_link_integrals.py, test_two_loop_fast.py).
+check of that closed form (tests/test_one_species_squares.py, test_link_integrals.py, test_two_loop_fast.py).
 What follows is how it was made.
 
 At second order in the exchange parameter, b_n of one species is (docs/perturbative.md, sections 4-4h)
@@ -8,8 +8,8 @@ At second order in the exchange parameter, b_n of one species is (docs/perturbat
 * the chains of three loops (the Hartree-Fock ring of the contact and the Landau term), closed for
   every n (`perturbative.chain_part`);
 * every k-cycle alone: its Fock-squared ring part only, which the chains already carry (computed for
-  k = 3..SINGLE_CYCLES_CHECKED, section 4d and `routes.cycle_alone`; summed exactly for every k since,
-  section 4l and `routes.cycle_square`);
+  k = 3..SINGLE_CYCLES_CHECKED, section 4d and `routes.cycle_alone`; section 4l and `routes.cycle_square`
+  sum it exactly for every k);
 * every two-loop cluster {p-cycle, q-cycle}, p + q = n: its H F ring part (in the chains) plus the part
   beyond, `BEYOND[(p, q)]` = the link squared `LINK` plus the self angles times the link's area `ANGLE`;
   the link squared is computed here by quadrature (`routes.two_loop_quadrature`,
@@ -110,8 +110,9 @@ def two_species_cluster(a: int, b: int):
 
 def beyond_the_chains(n: int) -> tuple[float, float] | None:
     """(value, error bound) of the alpha^2 coefficient of b_n of one species of unit mass about bosons
-    beyond the chains of three loops, for n >= 4: the sum of BEYOND over the clusters {p, q} with
-    p + q = n; None where a cluster or the single n-cycle has not been computed."""
+    beyond the chains of three loops, for n >= 4, by quadrature (the independent check of the closed forms):
+    the sum of BEYOND over the clusters {p, q} with p + q = n, the n-cycle alone at its ring part (which the
+    quadrature of 4h found for n <= SINGLE_CYCLES_CHECKED); None beyond the table."""
     if n < 4 or n > SINGLE_CYCLES_CHECKED:
         return None
     clusters = [(p, n - p) for p in range((n + 1) // 2, n)]
