@@ -157,7 +157,8 @@ class Sampling:
     `coefficients`: (kind "cluster"/"virial", multi-index, span) as listed; `fixed`: (parameter symbol,
     exact value) of `at`; `axes`: (symbol, exact values) of `over` (a Cartesian grid, first axis
     slowest); `seed`; budget `time_cap` (seconds), `target` (error bar of every listed coefficient),
-    `loops` (total loop samples); `table` / `map` file names; `spans` of the clauses (for messages).
+    `loops` (total loop samples); `table` / `map` file names; `spans` of the clauses (for messages);
+    `slices`: time slices per loop (`in N slices`).
     """
 
     coefficients: tuple[tuple[str, Index, Span], ...]
@@ -171,6 +172,7 @@ class Sampling:
     table: str | None = None
     map: str | None = None
     spans: tuple[tuple[str, Span], ...] = ()
+    slices: int = 16
 
     def clause_span(self, clause: str) -> Span:
         return dict(self.spans).get(clause, self.span)

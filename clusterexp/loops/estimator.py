@@ -87,6 +87,18 @@ class ThirdOrderResult:
     seconds: float
     slices: int
     seed: int
+    extrapolated: bool = True   # the slice extrapolation was on (`extrapolate=`)
+
+    @property
+    def slice_bound(self) -> float | None:
+        """A bound on the discretisation error the slice extrapolation leaves in `cluster`: for any power
+        law 1/slices^p with p >= 1 (the correlated slice study finds p near 2, docs/loops.md) what remains
+        is at most twice the extrapolation's shift; the shift is itself sampled, so it is taken at its
+        value plus two of its standard errors.  Not part of the statistical error bar.  None without the
+        extrapolation: then the O(1/slices) error is not assessed."""
+        if not self.extrapolated:
+            return None
+        return 2.0 * (abs(self.extrapolation_shift.value) + 2.0 * self.extrapolation_shift.error)
 
     @property
     def b3(self) -> Estimate:
@@ -298,7 +310,7 @@ def scan_third_order(kind: str = "identical", alphas=None, *, grid=None, samples
             kind=kind, alpha=p[0], alpha_12=a12, name=name, cluster=Estimate(value, err),
             three_body=Estimate(value - ideal, err), virial_name=vname, virial=virial, two_body=two,
             parts=parts, extrapolation_shift=shift, round_values=round_values, samples=sum(per_family.values()), samples_per_family=per_family, rounds=out.rounds,
-            seconds=out.seconds, slices=slices, seed=seed))
+            seconds=out.seconds, slices=slices, seed=seed, extrapolated=bool(extrapolate)))
     return results
 
 

@@ -28,3 +28,11 @@ def plus_minus(value: float, error: float, separator: str = " +- ") -> str:
         step = 10 ** place
         return f"{round(value / step) * step:.0f}{separator}{round(error / step) * step:.0f}"
     return f"{value:.{decimals}f}{separator}{error:.{decimals}f}"
+
+
+def slice_text(bound: float | None) -> str:
+    """What the loops' time slicing may still leave in a number, beside its statistical error bar
+    (`ThirdOrderResult.slice_bound`): empty when not assessed or exactly zero."""
+    if bound is None or bound < EXACT_BELOW:
+        return ""
+    return f"slicing bias below {bound:.2g}"

@@ -13,7 +13,7 @@ import sympy
 
 from ..naming import latex_subscript, species_latex
 from ..products.numbers import grid_text
-from .quoting import EXACT_BELOW, METHOD, PLUS_MINUS_LATEX, plus_minus, settled  # noqa: F401 (quoted here too)
+from .quoting import EXACT_BELOW, METHOD, PLUS_MINUS_LATEX, plus_minus, settled, slice_text  # noqa: F401 (quoted here too)
 from .sampled import SampledNumbers, SampledStatement
 
 def _point_text(point) -> str:
@@ -38,16 +38,24 @@ def text_lines(numbers: SampledNumbers) -> list[str]:
         s = statement.sampling
         lines += ["", f"sampled values ({METHOD}), `sample` at line {s.span.line}, seed {s.seed}, "
                       f"{_budget_text(statement)}:"]
+        sliced = f" in {s.slices} slices" if "slices" in dict(s.spans) else ""
         for run in statement.runs:
-            again = (f"alone `sample {run.label} ... with {run.samples} loops seed {run.seed}` repeats it" if run.index
-                     else f"this statement with `with {s.loops or run.samples} loops seed {run.seed}` repeats it")
+            again = (f"alone `sample {run.label} ... with {run.samples} loops{sliced} seed {run.seed}` repeats it"
+                     if run.index else
+                     f"this statement with `with {s.loops or run.samples} loops{sliced} seed {run.seed}` repeats it")
             lines.append(f"  {run.label}: {run.samples} loops in {run.rounds} rounds{_rounding_text(s, run)}, "
                          f"{run.slices} slices; {again}")
         for point in statement.points:
             where = f"at {_point_text(point.point)}: " if point.point else ""
             lines.append("  " + where + "; ".join(f"{v.label} = {plus_minus(v.value, v.error)}"
-                                                  + (f" + {v.remainder}" if v.remainder else "") for v in point.values))
+                                                  + (f" + {v.remainder}" if v.remainder else "") + _bias(v.slice_bound)
+                                                  for v in point.values))
     return lines
+
+
+def _bias(bound) -> str:
+    text = slice_text(bound)
+    return f" ({text})" if text else ""
 
 
 def _rounding_text(sampling, run) -> str:
@@ -97,7 +105,9 @@ def json_items(numbers: SampledNumbers) -> list[dict]:
             "points": [{"at": {name: sympy.sstr(value) for name, value in p.point},
                         "values": [{"coefficient": v.label, "kind": v.kind, "index": list(v.index),
                                     **dict(zip(("value", "error"), settled(v.value, v.error))),
-                                    **({"remainder": v.remainder} if v.remainder else {})} for v in p.values]}
+                                    **({"remainder": v.remainder} if v.remainder else {}),
+                                    **({"slice_bound": v.slice_bound} if v.slice_bound is not None else {})}
+                                   for v in p.values]}
                        for p in statement.points],
         })
     return out

@@ -38,6 +38,8 @@ SAMPLES_PER_SECOND = 20_000.0
 # loop-points per second on both cores; half of it assumed).
 POINT_SAMPLES_PER_SECOND = 100_000.0
 MAX_UNTIMED_SECONDS = 600.0      # a loop budget estimated longer than this needs an explicit `within`
+DEFAULT_SLICES = 16              # time slices per loop without `in N slices` (the estimators' default)
+MAX_SLICES = 256
 
 
 def estimator_kind(index: tuple[int, ...]) -> tuple[str, int, int | None]:
@@ -95,7 +97,7 @@ class _Statement:
 
 
 _WORDS = {"at": "at", "over": "over", "seed": "seed", "within": "within ... seconds", "target": "target",
-          "loops": "with ... loops", "table": "table", "map": "map"}
+          "loops": "with ... loops", "slices": "in ... slices", "table": "table", "map": "map"}
 
 
 def build_samplings(builder, source, names: list[str], order: int) -> tuple[Sampling, ...]:
@@ -163,25 +165,38 @@ def _budgeted(builder, statement: _Statement, coefficients, fixed, axes, least: 
         if loops < least:
             raise InputError(f"{loops} loops is less than two rounds of the estimator (an error bar needs two); "
                              f"ask for at least {least}", statement.clause_span("loops"))
+    slices = _slices(statement)
     if time_cap is None and loops is None:
         time_cap = DEFAULT_TIME_CAP
     if loops is not None and time_cap is None:
         points = math.prod(len(values) for _, values in axes) if axes else 1
-        seconds = loop_seconds(runs, loops, points)
+        seconds = loop_seconds(runs, loops, points, slices)
         if seconds > MAX_UNTIMED_SECONDS:
             from ..limits import duration_text
             raise InputError(f"{loops:,} loops would take about {duration_text(seconds)} ({runs} estimator run"
                              f"{'s' if runs > 1 else ''}, {points} point{'s' if points > 1 else ''}, at the assumed "
                              f"{SAMPLES_PER_SECOND:,.0f} loops per second); a loop budget without `within` may take "
                              f"at most {MAX_UNTIMED_SECONDS / 60:g} minutes", statement.clause_span("loops"),
-                             hint=f"ask for at most {_affordable(runs, points):,} loops, or add `within T seconds` "
+                             hint=f"ask for at most {_affordable(runs, points, slices):,} loops, or add `within T seconds` "
                                   f"(at most {MAX_TIME_CAP:g}), which stops the run at T seconds")
     table = _file_name(statement, "table")
     figure = _file_name(statement, "map")
     if figure is not None:
         _check_map(statement, figure, coefficients, axes)
     spans = tuple((name, statement.clause_span(name)) for name in statement.clauses)
-    return Sampling(tuple(coefficients), span, fixed, axes, seed, time_cap, target, loops, table, figure, spans)
+    return Sampling(tuple(coefficients), span, fixed, axes, seed, time_cap, target, loops, table, figure, spans,
+                    slices)
+
+
+def _slices(statement: _Statement) -> int:
+    """`in N slices`: an even number (the estimator extrapolates from N/2 slices) from 4 to MAX_SLICES."""
+    if "slices" not in statement.clauses:
+        return DEFAULT_SLICES
+    slices = int(str(statement.clauses["slices"].children[0]))
+    if slices % 2 or not 4 <= slices <= MAX_SLICES:
+        raise InputError(f"the loops take an even number of time slices from 4 to {MAX_SLICES} (the estimator "
+                         f"extrapolates from half of them), not {slices}", statement.clause_span("slices"))
+    return slices
 
 
 def _coefficient(builder, ref, names):
@@ -345,14 +360,15 @@ def grid_points(sampling: Sampling) -> list[dict[sympy.Symbol, sympy.Expr]]:
     return [{**fixed, **dict(zip(symbols, combo))} for combo in itertools.product(*(v for _, v in sampling.axes))]
 
 
-def loop_seconds(runs: int, loops: int, points: int = 1) -> float:
+def loop_seconds(runs: int, loops: int, points: int = 1, slices: int = DEFAULT_SLICES) -> float:
     """Estimated wall time of `runs` estimator runs of `loops` loops each over `points` grid points,
-    at conservative rates (an upper estimate)."""
-    return runs * loops * (1 / SAMPLES_PER_SECOND + (points - 1) / POINT_SAMPLES_PER_SECOND)
+    at conservative rates (an upper estimate; the cost of a loop grows with its slices)."""
+    return (runs * loops * (1 / SAMPLES_PER_SECOND + (points - 1) / POINT_SAMPLES_PER_SECOND)
+            * max(1.0, slices / DEFAULT_SLICES))
 
 
-def _affordable(runs: int, points: int) -> int:
-    loops = int(MAX_UNTIMED_SECONDS / loop_seconds(runs, 1, points))
+def _affordable(runs: int, points: int, slices: int = DEFAULT_SLICES) -> int:
+    loops = int(MAX_UNTIMED_SECONDS / loop_seconds(runs, 1, points, slices))
     return int(float(f"{loops:.2g}"))
 
 
@@ -363,6 +379,6 @@ def expected_seconds(system) -> float:
     for sampling in system.samplings:
         runs = len({index for _, index, _ in sampling.coefficients})
         points = math.prod(len(values) for _, values in sampling.axes) if sampling.axes else 1
-        by_loops = loop_seconds(runs, sampling.loops, points) if sampling.loops else math.inf
+        by_loops = loop_seconds(runs, sampling.loops, points, sampling.slices) if sampling.loops else math.inf
         total += min(sampling.time_cap or math.inf, by_loops)
     return total

@@ -55,21 +55,25 @@ def _statement(system: System, sampling: Sampling, exact) -> SampledStatement:
     b_indices = list(dict.fromkeys(index for _, index, _ in sampling.coefficients))
     exprs = {(kind, index): sympy.sympify(exact(kind, index)) for kind, index, _ in sampling.coefficients}
     estimates: dict[tuple, list[tuple[float, float]]] = {}
+    bounds: dict[tuple, list[float]] = {}
     runs = []
     for index in b_indices:
         values, run = _run(system, sampling, index, points, exprs, len(b_indices))
-        estimates[index] = values
+        estimates[index] = [(v, e) for v, e, _ in values]
+        bounds[index] = [b for _, _, b in values]
         runs.append(run)
     out_points = []
     for k, point in enumerate(points):
         row = []
         for kind, index, _ in sampling.coefficients:
             expr = exprs[(kind, index)]
-            value, error = propagate(expr, point, {cluster_symbol(n): estimates[n][k] for n in b_indices})
-            row.append(SampledValue(_label(kind, index), kind, index, value, error))
+            at = {cluster_symbol(n): estimates[n][k] for n in b_indices}
+            value, error = propagate(expr, point, at)
+            bound = propagated_bound(expr, point, at, {cluster_symbol(n): bounds[n][k] for n in b_indices})
+            row.append(SampledValue(_label(kind, index), kind, index, value, error, slice_bound=bound))
         shown = tuple((name, point[next(s for s in point if s.name == name)]) for name in names)
         out_points.append(SampledPoint(shown, tuple(row)))
-    clusters = tuple(SampledCluster(n, tuple(point.items()), *estimates[n][k])
+    clusters = tuple(SampledCluster(n, tuple(point.items()), *estimates[n][k], slice_bound=bounds[n][k])
                      for n in b_indices for k, point in enumerate(points))
     return SampledStatement(sampling, tuple(runs), tuple(out_points), clusters)
 
@@ -93,9 +97,24 @@ def propagate(expr: sympy.Expr, point: dict, estimates: dict) -> tuple[float, fl
     return float(value), math.sqrt(variance)
 
 
+def propagated_bound(expr: sympy.Expr, point: dict, estimates: dict, bounds: dict) -> float | None:
+    """The slice-discretisation bound of a derived coefficient: sum_k |dc/db_k| bound_k (exact for the
+    third-order coefficients, linear in their one third-order b); None when a b's bound is not assessed."""
+    at_point = expr.xreplace(point)
+    total = 0.0
+    for symbol, bound in bounds.items():
+        if symbol not in at_point.free_symbols:
+            continue
+        if bound is None:
+            return None
+        slope = sympy.diff(at_point, symbol).xreplace({s: sympy.Float(v, 17) for s, (v, _) in estimates.items()})
+        total += abs(float(slope)) * bound
+    return total
+
+
 def _run(system: System, sampling: Sampling, index, points, exprs, runs: int):
-    """One estimator scan for the b of `index` over every point: [(value, error)] per point, in the
-    reference species' units (b scales with m/m_ref), and the run's record."""
+    """One estimator scan for the b of `index` over every point: [(value, error, slice bound)] per point,
+    in the reference species' units (b scales with m/m_ref), and the run's record."""
     kind, _, _ = estimator_kind(index)
     statistics = statistics_of(system.species, system.mutual, index)
     params = []
@@ -111,10 +130,11 @@ def _run(system: System, sampling: Sampling, index, points, exprs, runs: int):
     try:
         if kind == "identical":
             results = scan_third_order(kind, [p[0] for p in distinct], samples=sampling.loops, time_cap=cap,
-                                       target_error=target, seed=seed, workers=WORKERS, batch=DEFAULT_UNIT)
+                                       target_error=target, seed=seed, workers=WORKERS, batch=DEFAULT_UNIT,
+                                       slices=sampling.slices)
         else:
             results = scan_third_order(kind, grid=distinct, samples=sampling.loops, time_cap=cap, target_error=target,
-                                       seed=seed, workers=WORKERS, batch=DEFAULT_UNIT)
+                                       seed=seed, workers=WORKERS, batch=DEFAULT_UNIT, slices=sampling.slices)
     except TargetNotReachable as error:
         wanted = ", ".join(_label(k, n) for k, n, _ in sampling.coefficients if n == index)
         budget = (f"the time cap of {cap:g} s" + (f" (its share of `within {sampling.time_cap:g} seconds`)"
@@ -126,7 +146,8 @@ def _run(system: System, sampling: Sampling, index, points, exprs, runs: int):
                          sampling.clause_span("target")) from None
     except LoopsError as error:
         raise InputError(f"{label}: {error}", sampling.clause_span("within" if cap else "loops")) from None
-    by_params = {p: (ratio * r.cluster.value, ratio * r.cluster.error) for p, r in zip(distinct, results)}
+    by_params = {p: (ratio * r.cluster.value, ratio * r.cluster.error, ratio * r.slice_bound)
+                 for p, r in zip(distinct, results)}
     first = results[0]
     record = SampledRun(index, label, kind, sampling.seed, seed, first.samples, first.rounds, first.seconds,
                         first.slices)

@@ -35,6 +35,7 @@ class SampledValue:
     value: float
     error: float
     remainder: str = ""   # the terms the number leaves out ("O(n^3)": tube coverage), printed after it
+    slice_bound: float | None = None   # the bound on the loops' slice discretisation error (None: not assessed)
 
 
 @dataclass(frozen=True)
@@ -52,6 +53,7 @@ class SampledCluster:
     value: float
     error: float
     piece: sympy.Symbol | None = None   # a named tube piece (T_two_tubes, ...) in place of the b of `index`
+    slice_bound: float | None = None    # ThirdOrderResult.slice_bound in these units; None: not assessed (tubes)
 
 
 @dataclass(frozen=True)

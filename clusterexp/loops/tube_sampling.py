@@ -303,7 +303,7 @@ def _estimated(estimate, distinct, sampling, cap, target, seed, piece, options):
     """One estimator run over the distinct points, its failures as errors at the statement's clauses."""
     try:
         return estimate(distinct, samples=sampling.loops, time_cap=cap, target_error=target, seed=seed,
-                        workers=WORKERS, **options)
+                        workers=WORKERS, slices=sampling.slices, **options)
     except TargetNotReachable as error:
         raise InputError(f"target {sampling.target:g} is out of reach for {piece} with "
                          + (f"{cap:g} s" if cap else f"{sampling.loops} loops")
