@@ -11,7 +11,8 @@ needs no `sample`, and a mixed point carries the error of its sampled pieces onl
 
 A claim on such a coefficient is compared at every point of the `sample` statements: it is "consistent
 within k standard errors" (k = 3 unless the claim says `within k errors`) when |claimed - value| < k
-error at every point, never "proven"; otherwise it is a mismatch shown with the numbers.
+error at every point, never "proven"; undecided where it misses by less than k errors plus the bound
+on the loops' slicing bias (`ThirdOrderResult.slice_bound`); otherwise a mismatch shown with the numbers.
 
 Flux tubes (the second half; the two halves call each other): every coefficient among tubes is a series
 in the coverage, and a table or figure states the O(coverage^k) left out; a piece is exact where it can
