@@ -79,7 +79,7 @@ def test_claims_are_consistent_within_errors_or_a_mismatch(mixed_input, by_hand)
 
 def test_table_has_value_and_error_columns(mixed_input, by_hand):
     (table, rows), = mixed_input.tables
-    assert rows[0] == ["alpha", "a[3]", "a[3] error", "a[2]"]
+    assert rows[0] == ["alpha", "a[3]", "a[3] error", "a[3] slicing bias bound", "a[2]"]
     for row in rows[1:]:
         value, error = by_hand[float(row[0])]
         assert float(row[1]) == pytest.approx(value, rel=1e-12) and float(row[2]) == pytest.approx(error, rel=1e-12)
@@ -94,7 +94,7 @@ def test_plot_and_table_files(tmp_path):
     assert done.returncode == 0, done.stderr
     assert (tmp_path / "p.png").read_bytes()[:4] == b"\x89PNG"
     header, *rows = list(csv.reader((tmp_path / "t.csv").read_text().splitlines()))
-    assert header == ["alpha", "a[3]", "a[3] error"] and len(rows) == 2
+    assert header == ["alpha", "a[3]", "a[3] error", "a[3] slicing bias bound"] and len(rows) == 2
 
 
 @pytest.mark.parametrize("statement,message,where", [

@@ -192,7 +192,7 @@ def test_outputs_carry_value_and_error(tmp_path):
     assert "sampled values (Brownian-loop Monte Carlo" in result.stdout
     assert "at alpha = 1/2, nu = 1/2: a[2,1] = " in result.stdout and " +- " in result.stdout
     rows = list(csv.reader((tmp_path / "grid.csv").read_text().splitlines()))
-    assert rows[0] == ["alpha", "nu", "a[2,1]", "a[2,1] error"] and len(rows) == 5
+    assert rows[0] == ["alpha", "nu", "a[2,1]", "a[2,1] error", "a[2,1] slicing bias bound"] and len(rows) == 5
     assert [r[:2] for r in rows[1:]] == [["0", "0"], ["0", "0.5"], ["0.5", "0"], ["0.5", "0.5"]]  # no dates
     assert not has_plots or (tmp_path / "grid.png").read_bytes()[:4] == b"\x89PNG"
     again = run_cli("run", str(path), cwd=tmp_path)  # refuses to replace the files, before running
@@ -206,8 +206,8 @@ def test_outputs_carry_value_and_error(tmp_path):
     point = statement["points"][-1]
     assert point["at"] == {"alpha": "1/2", "nu": "1/2"} and point["values"][0]["error"] > 0
     # the text table agrees with the file (same seed and budget)
-    value, error = point["values"][0]["value"], point["values"][0]["error"]
-    assert rows[-1][2:] == [repr(value), repr(error)]
+    value, error, bound = (point["values"][0][k] for k in ("value", "error", "slice_bound"))
+    assert rows[-1][2:] == [repr(value), repr(error), repr(bound)]
 
 
 @pytest.mark.parametrize("value,error,text", [
@@ -232,7 +232,7 @@ def test_the_loop_budget_rounded_up_to_whole_rounds_is_said(tmp_path):
     assert result.stdout.count("a[2,1] = 0 +- 0") == 2
     with open(tmp_path / "t.csv", newline="") as stream:
         rows = list(csv.reader(stream))
-    assert [row[2:] for row in rows[1:]] == [["0.0", "0.0"], ["0.0", "0.0"]]
+    assert [row[2:] for row in rows[1:]] == [["0.0", "0.0", "0.0"], ["0.0", "0.0", "0.0"]]
     data = json.loads(run_cli("run", "-e", text, "--format", "json", "--no-files").stdout)
     sampled_json = next(v for k, v in data.items() if isinstance(v, list) and v and isinstance(v[0], dict)
                         and "runs" in v[0])[0]

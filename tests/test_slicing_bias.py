@@ -15,7 +15,11 @@ import math
 import pytest
 
 from clusterexp import derive
-from clusterexp.loops import estimate_third_order
+from clusterexp.export.latex import number_latex
+from clusterexp.loops import estimate_third_order, scan_third_order
+from clusterexp.loops.estimator import DEFAULT_UNIT
+from clusterexp.loops.report import latex_block, table_rows
+from clusterexp.loops.sampled import WORKERS, run_seed
 from clusterexp.loops import request, tube_estimates
 from clusterexp.loops.estimator import DEFAULT_SLICES
 from clusterexp.model import Sampling
@@ -32,7 +36,10 @@ def published_a3(alpha: float) -> float:
 def test_bound_covers_the_bias_at_four_slices(alpha, samples):
     r = estimate_third_order("identical", alpha, samples=samples, seed=3, slices=4, progress=False)
     shift = r.extrapolation_shift
-    assert r.slice_bound == pytest.approx(2 * (abs(shift.value) + 2 * shift.error))
+    families = r.family_shifts
+    assert sum(f.value for f in families.values()) == pytest.approx(shift.value)
+    assert r.slice_bound == pytest.approx(2 * (sum(abs(f.value) for f in families.values())
+                                               + 2 * math.sqrt(sum(f.error ** 2 for f in families.values()))))
     raw = r.virial.value - 2 * shift.value            # a_3 = 4 b_2^2 - 2 b_3, b_3 raw = extrapolated + shift
     published = published_a3(alpha)
     assert abs(raw - published) > 3 * r.virial.error    # the slicing bias is there to be bounded
@@ -121,3 +128,42 @@ def test_tube_pieces_take_the_slices_and_carry_no_bound():
     (statement,) = d.sampled
     assert [run.slices for run in statement.runs] == [8]
     assert all(v.slice_bound is None for p in statement.points for v in p.values)
+
+
+def test_a_claim_beyond_the_bound_at_one_point_is_a_mismatch():
+    text = ("dimension 2\nparameter alpha in [0, 1]\nspecies A exchange alpha\nclusters pairphase\n"
+            "derive virial a[3]\nsample a[3] over alpha = [1/4, 1/2] seed 5 with 24000 loops in 8 slices\n")
+    statement, = derive(text).sampled
+    (low,), (high,) = (p.values for p in statement.points)
+    inside = low.value + 3 * low.error + low.slice_bound / 2           # undecided alone
+    outside = high.value + 3 * high.error + 2 * high.slice_bound      # a mismatch alone
+    slope = (outside - inside) / (1 / 2 - 1 / 4)                       # the line through both claimed values
+    claim = f"claim a[3] = {inside - slope / 4:.12f} + {slope:.12f}*alpha within 3 errors\n"
+    check, = derive(text + claim).checks
+    assert check.status == "mismatch" and "alpha = 1/2" in check.method and "slicing bias too" in check.method
+    claim = f"claim a[3] = {inside - slope / 4:.12f} + {slope:.12f}*alpha - {1.5 * high.slice_bound:.12f}*(4*alpha - 1)"
+    check, = derive(text + claim + " within 3 errors\n").checks                # now both points inside their bound
+    assert check.status == "undecided" and "slicing" in check.method
+
+
+def test_the_bound_follows_the_mass_ratio():
+    """b of a species of mass 2 in the units of a reference of mass 1 is twice the unit-mass b (in the
+    plane b scales like the area in units of lambda^2), and so is its bound."""
+    d = derive("dimension 2\nspecies B bose\nspecies A mass 2 exchange 1/2\nclusters pairphase\n"
+               "sample b[0,3] seed 5 with 24000 loops\n")
+    (cluster,) = d.sampled.statements[0].clusters
+    (r,) = scan_third_order("identical", [0.5], samples=24000, seed=run_seed(5, (0, 3)), workers=WORKERS,
+                            batch=DEFAULT_UNIT, progress=False)
+    assert cluster.value == pytest.approx(2 * r.cluster.value, rel=1e-12)
+    assert cluster.slice_bound == pytest.approx(2 * r.slice_bound, rel=1e-12)
+
+
+def test_latex_and_tables_carry_the_bound(sampled):
+    d, statement, values = sampled
+    block = latex_block(d.sampled, d.system)
+    assert block.count(r"\ \text{(slicing bias below ") == 2
+    header, row = table_rows(statement)
+    assert header == ["a[3]", "a[3] error", "a[3] slicing bias bound", "b[3]", "b[3] error", "b[3] slicing bias bound"]
+    assert float(row[2]) >= values["a[3]"].slice_bound and float(row[2]) <= 1.05 * values["a[3]"].slice_bound
+    latex = number_latex("0.0362 +- 0.0013 (Monte Carlo; slicing bias below 0.0009)")
+    assert latex == r"0.0362 \pm 0.0013\ \text{(Monte Carlo; slicing bias below 0.0009)}"

@@ -141,11 +141,11 @@ TABLE_ROWS_SHOWN = 40
 
 
 def number_latex(text: str) -> str:
-    if " +- " in text:   # a Monte Carlo value: `0.0362 +- 0.0013 (Monte Carlo)`
+    if " +- " in text:   # a Monte Carlo value: `0.0362 +- 0.0013 (Monte Carlo; slicing bias below 0.0009)`
         value, rest = text.split(" +- ", 1)
-        sampled = " (Monte Carlo)" in rest
-        error = number_latex(rest.replace(" (Monte Carlo)", ""))
-        return rf"{number_latex(value)} \pm {error}" + (r"\ \text{(Monte Carlo)}" if sampled else "")
+        error, _, words = rest.partition(" (")
+        words = rf"\ \text{{({escape_text(words)}}}" if words else ""
+        return rf"{number_latex(value)} \pm {number_latex(error)}" + words
     if "/" in text:
         p, q = text.lstrip("-").split("/", 1)
         return ("-" if text.startswith("-") else "") + rf"\tfrac{{{p}}}{{{q}}}"

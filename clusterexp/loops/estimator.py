@@ -88,17 +88,22 @@ class ThirdOrderResult:
     slices: int
     seed: int
     extrapolated: bool = True   # the slice extrapolation was on (`extrapolate=`)
+    family_shifts: dict[str, Estimate] = field(default_factory=dict)   # extrapolation_shift per family
 
     @property
     def slice_bound(self) -> float | None:
-        """A bound on the discretisation error the slice extrapolation leaves in `cluster`: for any power
-        law 1/slices^p with p >= 1 (the correlated slice study finds p near 2, docs/loops.md) what remains
-        is at most twice the extrapolation's shift; the shift is itself sampled, so it is taken at its
-        value plus two of its standard errors.  Not part of the statistical error bar.  None without the
-        extrapolation: then the O(1/slices) error is not assessed."""
+        """A bound on the discretisation error the slice extrapolation leaves in `cluster`, assuming
+        each family's error is dominated by one power law C/slices^p with p >= 1 (the correlated slice
+        study finds p near 2, docs/loops.md "Slicing bias"): what remains of a family is then at most twice
+        its extrapolation shift.  The families' shifts are added in size (they must not cancel), and since
+        they are sampled, two standard errors of their sum are added.  Not part of the statistical error
+        bar.  None without the extrapolation: then the O(1/slices) error is not assessed."""
         if not self.extrapolated:
             return None
-        return 2.0 * (abs(self.extrapolation_shift.value) + 2.0 * self.extrapolation_shift.error)
+        shifts = self.family_shifts or {"all": self.extrapolation_shift}
+        size = sum(abs(s.value) for s in shifts.values())
+        noise = math.sqrt(sum(s.error ** 2 for s in shifts.values()))
+        return 2.0 * (size + 2.0 * noise)
 
     @property
     def b3(self) -> Estimate:
@@ -228,8 +233,14 @@ def _with_exact_exchange(out, params):
                                batch_raw={**out.batch_raw, "exchange": column})
 
 
+def _mean(rounds) -> Estimate:
+    """Mean of independent equal-size rounds and its standard error."""
+    return Estimate(float(rounds.mean()), float(rounds.std(ddof=1) / math.sqrt(len(rounds))))
+
+
 def _summaries(out, n_params):
-    """Per parameter point: (total value, total error, per-family Estimates, shift, round values)."""
+    """Per parameter point: (total value, total error, per-family Estimates, shift, per-family shifts,
+    round values)."""
     err = combined_error(out.batch_means)
     rows = []
     for k in range(n_params):
@@ -238,11 +249,11 @@ def _summaries(out, n_params):
         rounds = sum(m[:, k] for m in out.batch_means.values())
         shift_rounds = sum(out.batch_raw[f][:, k] - m[:, k] for f, m in out.batch_means.items())
         for f, m in out.batch_means.items():
-            mean = float(m[:, k].mean())
-            total += mean
-            parts[f] = Estimate(mean, float(m[:, k].std(ddof=1) / math.sqrt(m.shape[0])))
-        shift = Estimate(float(shift_rounds.mean()), float(shift_rounds.std(ddof=1) / math.sqrt(out.rounds)))
-        rows.append((total, float(err[k]), parts, shift, tuple(float(r) for r in rounds)))
+            parts[f] = _mean(m[:, k])
+            total += parts[f].value
+        shift = _mean(shift_rounds)
+        shifts = {f: _mean(out.batch_raw[f][:, k] - m[:, k]) for f, m in out.batch_means.items()}
+        rows.append((total, float(err[k]), parts, shift, shifts, tuple(float(r) for r in rounds)))
     return rows
 
 
@@ -295,7 +306,7 @@ def scan_third_order(kind: str = "identical", alphas=None, *, grid=None, samples
         out = _with_exact_exchange(out, params)
     per_family = {f: n * out.rounds for f, n in plan.families.items()}
     results = []
-    for p, (value, err, parts, shift, round_values) in zip(params, _summaries(out, len(params))):
+    for p, (value, err, parts, shift, shifts, round_values) in zip(params, _summaries(out, len(params))):
         if kind == "identical":
             b2 = exact.b2_identical(p[0])
             two = {"b_2": b2, "a_2": -b2}
@@ -310,7 +321,7 @@ def scan_third_order(kind: str = "identical", alphas=None, *, grid=None, samples
             kind=kind, alpha=p[0], alpha_12=a12, name=name, cluster=Estimate(value, err),
             three_body=Estimate(value - ideal, err), virial_name=vname, virial=virial, two_body=two,
             parts=parts, extrapolation_shift=shift, round_values=round_values, samples=sum(per_family.values()), samples_per_family=per_family, rounds=out.rounds,
-            seconds=out.seconds, slices=slices, seed=seed, extrapolated=bool(extrapolate)))
+            seconds=out.seconds, slices=slices, seed=seed, extrapolated=bool(extrapolate), family_shifts=shifts))
     return results
 
 
@@ -355,7 +366,7 @@ def estimate_second_order(kind: str = "identical", alpha: float = 0.0, *, sample
     plan = _plan(key, kind, [(a,)], samples, None, None, seed, workers, slices, batch, False,
                  "b_2" if kind == "identical" else "b_11", extrapolate=False, sequence=sequence)
     out = execute(plan)
-    value, err, parts, _, _ = _summaries(out, 1)[0]
+    value, err, parts, _, _, _ = _summaries(out, 1)[0]
     if kind == "identical":
         # b_2 = (1/2) [loop part + swap part], each part estimating its integral over the area.
         lp, sp = parts["pair_loop"], parts["pair_swap"]

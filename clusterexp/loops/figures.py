@@ -18,7 +18,7 @@ import sympy
 from ..errors import InputError
 from ..products.figure_style import style
 from ..products.plots import _format, axis_latex, coefficient_latex, conventions_caption, finish, symbol_latex, value_and_error_maps
-from .quoting import METHOD, PLUS_MINUS_LATEX, plus_minus, settled
+from .quoting import METHOD, PLUS_MINUS_LATEX, plus_minus, settled, settled_bound
 from .sampled_records import coverage_term, label
 
 
@@ -58,6 +58,10 @@ def drawn_cells(statement, column) -> list[tuple[float, float]]:
 def _notes(statement, drawn, exact) -> list[str]:
     """What the caption adds among tubes: each series' truncation, the exact terms not drawn."""
     notes = list(dict.fromkeys(f"{label(c.kind, c.index)}: {statement.note(c)}" for c in drawn if statement.note(c)))
+    labels = {c.label for c in drawn}
+    bounds = [v.slice_bound for p in statement.points for v in p.values if v.label in labels and v.slice_bound]
+    if bounds:
+        notes.append(f"not drawn: the bound on the loops' slicing bias, at most {settled_bound(max(bounds)):.2g}")
     if exact:
         notes.append("exact at every point, not drawn: " + ", ".join(c.label for c in exact))
     return notes

@@ -32,7 +32,19 @@ def plus_minus(value: float, error: float, separator: str = " +- ") -> str:
 
 def slice_text(bound: float | None) -> str:
     """What the loops' time slicing may still leave in a number, beside its statistical error bar
-    (`ThirdOrderResult.slice_bound`): empty when not assessed or exactly zero."""
-    if bound is None or bound < EXACT_BELOW:
+    (`ThirdOrderResult.slice_bound`): empty when not assessed or zero."""
+    bound = settled_bound(bound)
+    if not bound:
         return ""
     return f"slicing bias below {bound:.2g}"
+
+
+def settled_bound(bound: float | None) -> float | None:
+    """The slicing bias bound as printers and files show it: rounded up to two significant digits (a
+    bound must not shrink in print), 0 below the rounding of the phases, None when not assessed."""
+    if bound is None:
+        return None
+    if not math.isfinite(bound) or bound < EXACT_BELOW:
+        return 0.0 if math.isfinite(bound) else bound
+    step = 10.0 ** (math.floor(math.log10(bound)) - 1)
+    return float(f"{math.ceil(bound / step - 1e-9) * step:.2g}")

@@ -13,7 +13,7 @@ import sympy
 
 from ..naming import latex_subscript, species_latex
 from ..products.numbers import grid_text
-from .quoting import EXACT_BELOW, METHOD, PLUS_MINUS_LATEX, plus_minus, settled, slice_text  # noqa: F401 (quoted here too)
+from .quoting import EXACT_BELOW, METHOD, PLUS_MINUS_LATEX, plus_minus, settled, settled_bound, slice_text  # noqa: F401 (quoted here too)
 from .sampled import SampledNumbers, SampledStatement
 
 def _point_text(point) -> str:
@@ -79,8 +79,9 @@ def latex_block(numbers: SampledNumbers, system) -> str:
                 lhs = (f"{letter}_{{{latex_subscript(v.index, labels)}}}" if v.index and "[" not in v.label[2:]
                        else rf"\mathrm{{{v.label.replace('_', chr(92) + '_')}}}")   # tube pieces, terms in the coverage
                 lhs += rf"\big|_{{{where}}}" if where else ""
+                bias = slice_text(v.slice_bound)
                 rows.append(f"  {lhs} &= " + plus_minus(v.value, v.error, PLUS_MINUS_LATEX)
-                            + (f" + {v.remainder}" if v.remainder else ""))
+                            + (f" + {v.remainder}" if v.remainder else "") + (rf"\ \text{{({bias})}}" if bias else ""))
     body = " \\\\\n".join(rows)
     return f"% sampled values: {METHOD}\n\\begin{{align*}}\n{body}\n\\end{{align*}}\n"
 
@@ -106,7 +107,8 @@ def json_items(numbers: SampledNumbers) -> list[dict]:
                         "values": [{"coefficient": v.label, "kind": v.kind, "index": list(v.index),
                                     **dict(zip(("value", "error"), settled(v.value, v.error))),
                                     **({"remainder": v.remainder} if v.remainder else {}),
-                                    **({"slice_bound": v.slice_bound} if v.slice_bound is not None else {})}
+                                    **({"slice_bound": settled_bound(v.slice_bound)} if v.slice_bound is not None
+                                       else {})}
                                    for v in p.values]}
                        for p in statement.points],
         })
@@ -118,14 +120,22 @@ def table_rows(statement: SampledStatement) -> list[list[str]]:
     columns are the coefficients (coverage given) or their terms in the coverage (`SampledStatement.columns`),
     each value column's head stating what the series leaves out, as `tabulate` does."""
     columns = statement.columns
+    bounded = {c.label for c in columns if any(v.label == c.label and v.slice_bound is not None
+                                                for p in statement.points for v in p.values)}
     header = list(statement.parameter_names)
     for column in columns:
         note = statement.note(column)
         header += [column.label + (f" ({note})" if note else ""), f"{column.label} error"]
+        header += [f"{column.label} slicing bias bound"] if column.label in bounded else []
     rows = [header]
     for k, point in enumerate(statement.points):
-        rows.append([grid_text(sympy.sympify(value), 15) for _, value in point.point]
-                    + [repr(x) for c in columns for x in settled(*statement.cell(k, c.label))])
+        row = [grid_text(sympy.sympify(value), 15) for _, value in point.point]
+        for c in columns:
+            row += [repr(x) for x in settled(*statement.cell(k, c.label))]
+            if c.label in bounded:
+                bound = next((v.slice_bound for v in point.values if v.label == c.label), 0.0)
+                row.append(repr(settled_bound(bound) or 0.0))
+        rows.append(row)
     return rows
 
 

@@ -175,7 +175,8 @@ def _budgeted(builder, statement: _Statement, coefficients, fixed, axes, least: 
             from ..limits import duration_text
             raise InputError(f"{loops:,} loops would take about {duration_text(seconds)} ({runs} estimator run"
                              f"{'s' if runs > 1 else ''}, {points} point{'s' if points > 1 else ''}, at the assumed "
-                             f"{SAMPLES_PER_SECOND:,.0f} loops per second); a loop budget without `within` may take "
+                             f"{SAMPLES_PER_SECOND:,.0f} loops per second at {DEFAULT_SLICES} slices, proportionally "
+                             f"fewer with more, here {slices}); a loop budget without `within` may take "
                              f"at most {MAX_UNTIMED_SECONDS / 60:g} minutes", statement.clause_span("loops"),
                              hint=f"ask for at most {_affordable(runs, points, slices):,} loops, or add `within T seconds` "
                                   f"(at most {MAX_TIME_CAP:g}), which stops the run at T seconds")
@@ -194,8 +195,8 @@ def _slices(statement: _Statement) -> int:
         return DEFAULT_SLICES
     slices = int(str(statement.clauses["slices"].children[0]))
     if slices % 2 or not 4 <= slices <= MAX_SLICES:
-        raise InputError(f"the loops take an even number of time slices from 4 to {MAX_SLICES} (the estimator "
-                         f"extrapolates from half of them), not {slices}", statement.clause_span("slices"))
+        raise InputError(f"the loops take an even number of time slices from 4 to {MAX_SLICES}, not {slices}",
+                         statement.clause_span("slices"))
     return slices
 
 

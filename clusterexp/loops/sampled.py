@@ -146,7 +146,8 @@ def _run(system: System, sampling: Sampling, index, points, exprs, runs: int):
                          sampling.clause_span("target")) from None
     except LoopsError as error:
         raise InputError(f"{label}: {error}", sampling.clause_span("within" if cap else "loops")) from None
-    by_params = {p: (ratio * r.cluster.value, ratio * r.cluster.error, ratio * r.slice_bound)
+    by_params = {p: (ratio * r.cluster.value, ratio * r.cluster.error,
+                     None if r.slice_bound is None else ratio * r.slice_bound)
                  for p, r in zip(distinct, results)}
     first = results[0]
     record = SampledRun(index, label, kind, sampling.seed, seed, first.samples, first.rounds, first.seconds,

@@ -72,12 +72,9 @@ def _statistics_key(system, index, point: dict):
     return tuple(key)
 
 
-def _estimates(derivation) -> dict:
-    """{(index, statistics key): (value, error)}, the smallest error where several statements agree."""
-    return _tables(derivation)[0]
-
-
 def _tables(derivation) -> tuple[dict, dict]:
+    """{(index, statistics key): (value, error)}, the smallest error where several statements agree,
+    and {same key: slice bound or None} of the chosen estimates."""
     cache = derivation.__dict__.get("_sampled_estimates")
     if cache is not None:
         return cache
@@ -142,7 +139,7 @@ def quoted(value: float, error: float) -> str:
 def sample_points(derivation, expr) -> list[dict]:
     """The points of the input's `sample` statements at which every sampled b of `expr` is estimated
     (among tubes: each tube piece exactly known or estimated)."""
-    table = _estimates(derivation)
+    table = _tables(derivation)[0]
     wanted = {i for s, i in sampled_symbols(derivation.system).items() if s in sympy.sympify(expr).free_symbols}
     tubes = derivation.system.tubes is not None
     out, seen = [], set()
@@ -265,35 +262,40 @@ def sampled_table(derivation, table, items) -> list[list[str]]:
     header (`truncation` of the item)."""
     import itertools
 
+    from ..loops.quoting import settled_bound
     from .numbers import grid_text
     axes = [(s, list(values)) for s, values in table.axes] + [(s, [v]) for s, v in table.fixed]
     points = [{s: v for (s, _), v in zip(axes, combination)}
               for combination in itertools.product(*(values for _, values in axes))]
     columns = [[_table_cell(derivation, item.value, point, table) for point in points] for item in items]
-    errors = [any(error is not None for _, error in cells) for cells in columns]
+    errors = [any(error is not None for _, error, _ in cells) for cells in columns]
+    bounded = [any(bound is not None for _, _, bound in cells) for cells in columns]
     header = [s.name for s, _ in axes]
-    for item, with_error in zip(items, errors):
+    for item, with_error, with_bound in zip(items, errors, bounded):
         label = item.label + (f" ({item.truncation})" if getattr(item, "truncation", None) else "")
         header += [label, f"{item.label} error"] if with_error else [label]
+        header += [f"{item.label} slicing bias bound"] if with_bound else []
     rows = [header]
     for k, point in enumerate(points):
         row = [grid_text(point[s], table.digits) for s, _ in axes]
-        for cells, with_error in zip(columns, errors):
-            text, error = cells[k]
+        for cells, with_error, with_bound in zip(columns, errors, bounded):
+            text, error, bound = cells[k]
             row += [text, repr(0.0 if error is None else error)] if with_error else [text]
+            row += [repr(settled_bound(bound) or 0.0)] if with_bound else []
         rows.append(row)
     return rows
 
 
-def _table_cell(derivation, expr, point: dict, table) -> tuple[str, float | None]:
-    """(text of the value, its error or None when exact) of one coefficient at one grid point."""
+def _table_cell(derivation, expr, point: dict, table) -> tuple[str, float | None, float | None]:
+    """(text of the value, its error or None when exact, its slicing bias bound or None) of one
+    coefficient at one grid point."""
     from .numbers import evaluate, format_number
     expr, _ = filled(derivation.system, expr, point)
     if uses_sampled(derivation, expr) or tube_pieces_in(expr):
-        value, error = sampled_value(derivation, expr, point, table.span)
-        return repr(value), error
+        value, error, bound = sampled_number(derivation, expr, point, table.span)
+        return repr(value), error, bound
     own = {s.name: point[s] for s in expr.free_symbols if s in point}
-    return format_number(evaluate(expr, own, table.digits), table.digits), None
+    return format_number(evaluate(expr, own, table.digits), table.digits), None, None
 
 
 def plot_sampled_line(derivation, figure, items, path, into, options=(), caption_tex=None, caption=None) -> None:
@@ -313,6 +315,7 @@ def plot_sampled_line(derivation, figure, items, path, into, options=(), caption
 
 
 def _plot_sampled_line(derivation, figure, items, path, into, options, caption_tex, conventions) -> None:
+    from ..loops.quoting import settled_bound
     from . import plots
     if len(figure.axes) != 1 and derivation.system.tubes is not None:   # a heat map, point by point (below)
         return tube_map(derivation, figure, items[0], path, into, options, caption_tex, conventions)
@@ -334,6 +337,7 @@ def _plot_sampled_line(derivation, figure, items, path, into, options, caption_t
     drawing = plots._figure(Figure, caption.count("\n") + 1)
     axes = drawing.add_subplot()
     x = plots._samples(span, 401, numpy)
+    bounds = []
     for item, expr in zip(exact, prepared):
         axes.plot(x, plots._evaluator(expr, [symbol.name], numpy)(x), label=f"${plots.coefficient_latex(item)}$",
                   linewidth=1.5)
@@ -350,7 +354,8 @@ def _plot_sampled_line(derivation, figure, items, path, into, options, caption_t
         if not along:
             raise InputError(f"no `sample` statement estimates the sampled part of {item.label} on {symbol.name} "
                              f"in {span}; add one, e.g. `sample {item.label} over {symbol.name} = [...]`", figure.span)
-        numbers = [sampled_value(derivation, item.value, {**fixed, symbol: v}, figure.span) for v in along]
+        numbers = [sampled_number(derivation, item.value, {**fixed, symbol: v}, figure.span) for v in along]
+        bounds += [n[2] for n in numbers if n[2]]
         axes.errorbar([float(v) for v in along], [n[0] for n in numbers], yerr=[n[1] for n in numbers], fmt="o",
                       markersize=3, capsize=3, label=f"${plots.coefficient_latex(item)}$ (Monte Carlo)")
     axes.set_xlim(float(span.lower), float(span.upper))
@@ -358,8 +363,12 @@ def _plot_sampled_line(derivation, figure, items, path, into, options, caption_t
     axes.legend(loc="best", fontsize=8)
     axes.grid(True, linewidth=0.3, alpha=0.5)
     plots._format(path)
+    unseen = (f" Not drawn: the bound on the loops' slicing bias, at most {settled_bound(max(bounds)):.2g}."
+              if bounds else "")
+    caption += unseen
     if caption_tex is not None:
-        caption_tex += r" Points: Brownian-loop Monte Carlo (\texttt{sample}), error bars one standard error." + tubes
+        caption_tex += (r" Points: Brownian-loop Monte Carlo (\texttt{sample}), error bars one standard error."
+                        + tubes + unseen)
     plots.finish(drawing, path, caption, into, options, caption_tex=caption_tex,
                  title=", ".join(i.label for i in items) + f" against {symbol.name}")
 
@@ -377,7 +386,7 @@ def resolved(derivation, expr, point: dict, span) -> tuple[sympy.Expr, dict]:
     point ({symbol: exact number}); a piece neither exact nor sampled there is refused at `span`."""
     system = derivation.system
     expr, _ = filled(system, sympy.sympify(expr), point)
-    table = _estimates(derivation)
+    table = _tables(derivation)[0]
     estimates = {}
     for piece in tube_pieces_in(expr):
         key = _statistics_key(system, piece, point)
