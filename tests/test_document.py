@@ -100,7 +100,8 @@ def test_a_sampled_map_is_a_figure_of_the_document(tmp_path):
     text = ("dimension 2 parameter alpha in [0, 1] parameter nu in [0, 1] species A exchange alpha "
             "species B exchange alpha mutual A B = nu typeset nu as \"\\nu_{AB}\" clusters pairphase "
             "derive virial a[2,1] sample a[2,1] over alpha = [0, 1/2], nu = [0, 1/2] seed 9 with 2800 loops "
-            "map \"grid.png\"\n")
+            "map \"grid.png\" evaluate a[2,1] at alpha = 1/2, nu = 1/2 "
+            "tabulate a[2,1] over alpha in [0, 1/2] at nu = 1/2 into \"t.csv\"\n")
     result = run_cli("run", "-e", text, "--format", "latex", "--document", "--files-into", str(tmp_path),
                      "-o", str(tmp_path / "doc.tex"))
     assert result.returncode == 0, result.stderr
@@ -109,6 +110,9 @@ def test_a_sampled_map_is_a_figure_of_the_document(tmp_path):
     caption = (tmp_path / "grid.caption.tex").read_text().rstrip("\n")
     assert r"\includegraphics[width=0.8\textwidth]{grid.pdf}" in source and caption in source
     assert caption.startswith(r"Sampled $a_{A^{2} B}$ over $\alpha$ and $\nu_{AB}$") and r"\pm" in caption
+    assert "not drawn: the bound on the loops' slicing bias, at most" in caption
+    assert r"\text{(Monte Carlo; slicing bias below " in source      # the evaluated number, in the document
+    assert r"slicing bias bound of $a_{A^{2} B}$" in source          # the tabulated bound's column
     assert layout_problems(compile_twice(tmp_path)) == []
 
 

@@ -160,6 +160,10 @@ def _table_columns(derivation, table, cells) -> tuple[list[str], list[str]]:
         if label is None and cell.endswith(" error") and cell[:-len(" error")] in names:
             heads.append(rf"error of ${names[cell[:-len(' error')]]}$")
             continue
+        bias = " slicing bias bound"
+        if label is None and cell.endswith(bias) and cell[:-len(bias)] in names:
+            heads.append(rf"slicing bias bound of ${names[cell[:-len(bias)]]}$")
+            continue
         if label is None:   # not expected: keep the CSV's own text
             heads.append(escape_text(cell))
             continue
@@ -170,10 +174,12 @@ def _table_columns(derivation, table, cells) -> tuple[list[str], list[str]]:
 
 
 def _breakable(number: str, group: int = 10) -> str:
-    """A long decimal may break after every `group` digits (values asked with many digits)."""
-    if len(number) <= 4 * group:
+    """A long decimal may break after every `group` digits (values asked with many digits); the words
+    after a Monte Carlo number (`\\ \\text{(...)}`) stay whole."""
+    head, mark, words = number.partition(r"\ \text{")
+    if len(head) <= 4 * group:
         return number
-    return r"\allowbreak ".join(number[k:k + group] for k in range(0, len(number), group))
+    return r"\allowbreak ".join(head[k:k + group] for k in range(0, len(head), group)) + mark + words
 
 
 def figures_section(derivation: Derivation) -> list[str]:
