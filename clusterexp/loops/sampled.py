@@ -90,11 +90,13 @@ def propagate(expr: sympy.Expr, point: dict, estimates: dict) -> tuple[float, fl
     if value.free_symbols:
         raise InputError(f"cannot evaluate {expr}: it still depends on "
                          f"{', '.join(sorted(s.name for s in value.free_symbols))}")
-    variance = 0.0
-    for symbol, (_, error) in estimates.items():
-        slope = sympy.diff(at_point, symbol).xreplace({s: sympy.Float(v, 17) for s, (v, _) in estimates.items()})
-        variance += (float(slope) * error) ** 2
+    variance = sum((_slope(at_point, symbol, estimates) * error) ** 2 for symbol, (_, error) in estimates.items())
     return float(value), math.sqrt(variance)
+
+
+def _slope(at_point: sympy.Expr, symbol: sympy.Symbol, estimates: dict) -> float:
+    """dc/db at the estimates (exact for third-order coefficients, linear in their third-order b)."""
+    return float(sympy.diff(at_point, symbol).xreplace({s: sympy.Float(v, 17) for s, (v, _) in estimates.items()}))
 
 
 def propagated_bound(expr: sympy.Expr, point: dict, estimates: dict, bounds: dict) -> float | None:
@@ -107,8 +109,7 @@ def propagated_bound(expr: sympy.Expr, point: dict, estimates: dict, bounds: dic
             continue
         if bound is None:
             return None
-        slope = sympy.diff(at_point, symbol).xreplace({s: sympy.Float(v, 17) for s, (v, _) in estimates.items()})
-        total += abs(float(slope)) * bound
+        total += abs(_slope(at_point, symbol, estimates)) * bound
     return total
 
 
