@@ -190,6 +190,7 @@ def compared_at_points(derivation, claim, sides, parts, points, k, label, note: 
     """The claim's verdict at every point: `parts` are (name, claimed, derived) compared apart (the
     coefficient, or each power of the tube coverage in it), each number from `sampled_value`; `sides`
     (claimed, derived) are the whole values the result shows; `note` ends the method."""
+    from ..loops.quoting import settled_bound   # a bound is rounded up in print
     worst, rows = None, []
     for point in points:
         for part, claimed, derived in parts:
@@ -222,14 +223,14 @@ def compared_at_points(derivation, claim, sides, parts, points, k, label, note: 
         point, part, mine, value, error, deviation, bound = worst
         method = (f"{deviation:.2g} standard errors from the Monte Carlo number at {_point_text(point)}"
                   f"{' in ' + part if part else ''}: claimed {mine:.10g}, derived {quoted(value, error)}; outside "
-                  f"{k:g} standard errors, but the loops' time slicing may shift that number by up to {bound:.2g} "
-                  f"(docs/loops.md), which covers the difference{note}")
+                  f"{k:g} standard errors, but the loops' time slicing may shift that number by up to "
+                  f"{settled_bound(bound):.2g} (docs/loops.md), which covers the difference{note}")
         return CheckResult(UNDECIDED, claimed, derived, method, label=label, points=count)
     point, part, mine, value, error, deviation, bound = max(beyond, key=lambda r: r[5])
     away = "infinitely many" if math.isinf(deviation) else f"{deviation:.2g}"
     what = "the exact value" if error == 0 else "the Monte Carlo number"
     if bound:
-        note = f"; beyond the bound {bound:.2g} on the loops' slicing bias too" + note
+        note = f"; beyond the bound {settled_bound(bound):.2g} on the loops' slicing bias too" + note
     method = (f"{away} standard errors away from {what} at {_point_text(point)}"
               f"{' in ' + part if part else ''}: claimed {mine:.10g}, derived {quoted(value, error)}; a claim "
               f"{k:g} or more standard errors away is a mismatch{note}")
